@@ -1,0 +1,152 @@
+package coilkick
+
+import "fmt"
+
+// Scenario is one drive set-up as read from a scenario file, in SI units
+// (V, A, ohm, H, m, kg, N, s, K). The loader (Load) fills it and checks
+// each field's range; Build turns it into models.
+type Scenario struct {
+	Name   string // free text, from the file
+	Source string // file the scenario came from ("" when built in code)
+
+	Supply      SupplySpec
+	Coil        CoilSpec
+	Magnet      MagnetSpec
+	Plunger     PlungerSpec
+	Switch      SwitchSpec
+	Suppression SuppressionSpec
+	Timing      TimingSpec
+	Limits      LimitsSpec
+	Solver      SolverSpec
+
+	// pos maps a field path such as "plunger.mass" to where it was
+	// written, so that later checks can point at the line.
+	pos map[string]Pos
+}
+
+// Pos is a place in a scenario file.
+type Pos struct {
+	Line, Column int
+}
+
+// SupplySpec is the DC supply: an ideal source behind a resistance.
+type SupplySpec struct {
+	Voltage          float64 // V
+	SourceResistance float64 // ohm, 0 for a stiff supply
+}
+
+// CoilSpec is the winding's electrical data.
+type CoilSpec struct {
+	Resistance     float64 // ohm at RefTemperature
+	RefTemperature float64 // K
+	Temperature    float64 // K, winding temperature during the run
+	TempCoeff      float64 // 1/K at RefTemperature
+	Turns          float64 // 0 when not given
+}
+
+// Magnet model kinds.
+const (
+	MagnetGapLaw = "gap law"
+	MagnetTable  = "table"
+)
+
+// MagnetSpec selects and parameterises the magnetic model.
+type MagnetSpec struct {
+	Kind string // MagnetGapLaw or MagnetTable
+
+	// gap law
+	ClosedInductance float64 // H at the seated gap
+	OpenInductance   float64 // H at the rest gap
+	PoleArea         float64 // m², 0 when not given (then leakage is taken as zero)
+
+	// table
+	TableFile    string  // path as written, resolved against the scenario's folder
+	CurrentScale float64 // SI value of one table current unit (A)
+	GapScale     float64 // SI value of one table gap unit (m)
+	FluxScale    float64 // SI value of one table flux-linkage unit (Wb)
+}
+
+// PlungerSpec is the moving part. Gap convention: x is the working air
+// gap, SeatedGap <= x <= RestGap; pulling in reduces x.
+type PlungerSpec struct {
+	Mass          float64 // kg
+	RestGap       float64 // m, gap at the rest stop (de-energized)
+	SeatedGap     float64 // m, residual gap at the energized stop
+	SpringPreload float64 // N, spring force at the rest gap, pushing the gap open
+	SpringRate    float64 // N/m
+	Damping       float64 // N·s/m
+	Restitution   float64 // 0..1, at both stops
+	StickSpeed    float64 // m/s, impacts slower than this end in sticking
+
+	ConstantLoad float64 // N, pushing the gap open (negative: helping pull-in)
+	Pressure     float64 // Pa, on the orifice, 0 for none
+	OrificeArea  float64 // m²
+	SealTravel   float64 // m, lift over which the pressure force fades to zero
+}
+
+// SwitchSpec is the low-side switch (a MOSFET, say).
+type SwitchSpec struct {
+	OnResistance      float64 // ohm
+	OutputCapacitance float64 // F, 0 for ideal edges
+	BreakdownVoltage  float64 // V, where the switch avalanches
+	BodyDiodeDrop     float64 // V
+}
+
+// Suppression kinds.
+const (
+	SuppressNone        = "none"
+	SuppressFreewheel   = "freewheel diode"
+	SuppressDiodeZener  = "diode zener"
+	SuppressTVS         = "tvs"
+	SuppressSnubber     = "rc snubber"
+	SuppressSwitchClamp = "switch clamp"
+)
+
+// SuppressionSpec is the inductive-kick suppression part.
+type SuppressionSpec struct {
+	Kind         string  // one of the Suppress* constants
+	ForwardDrop  float64 // V, diode forward drop (freewheel, diode zener)
+	ZenerVoltage float64 // V (diode zener)
+	ClampVoltage float64 // V (tvs, switch clamp)
+	Resistance   float64 // ohm: dynamic resistance of diode/zener/tvs, or the snubber resistor
+	Capacitance  float64 // F (rc snubber)
+}
+
+// TimingSpec is when the drive is commanded on and off.
+type TimingSpec struct {
+	EnergizeAt   float64 // s
+	DeenergizeAt float64 // s
+	End          float64 // s
+}
+
+// LimitsSpec holds ratings and requirements; a zero field is not checked.
+type LimitsSpec struct {
+	SwitchVoltage   float64 // V, switch drain-source rating
+	AvalancheEnergy float64 // J, single-pulse avalanche rating
+	ClampEnergy     float64 // J per operation, clamp part rating
+	ClampCurrent    float64 // A, peak clamp current rating
+	MaxPullIn       float64 // s, requirement
+	MaxRelease      float64 // s, requirement
+	MaxDrop         float64 // s, requirement
+}
+
+// SolverSpec tunes the integrator; zero fields take the defaults.
+type SolverSpec struct {
+	Tolerance float64 // relative tolerance
+	MaxSteps  int
+}
+
+// Errorf returns an error pointing at the place where field (a path such
+// as "plunger.mass") was written, or at the file alone when unknown.
+func (s *Scenario) Errorf(field, format string, args ...any) error {
+	msg := fmt.Sprintf(format, args...)
+	p, ok := s.pos[field]
+	switch {
+	case ok && s.Source != "":
+		return fmt.Errorf("%s:%d:%d: %s: %s", s.Source, p.Line, p.Column, field, msg)
+	case s.Source != "":
+		return fmt.Errorf("%s: %s: %s", s.Source, field, msg)
+	default:
+		return fmt.Errorf("%s: %s", field, msg)
+	}
+}
