@@ -1,0 +1,374 @@
+package circuit
+
+import (
+	"errors"
+	"fmt"
+	"math"
+)
+
+// Supply is an ideal DC source behind a series resistance.
+type Supply struct {
+	Voltage          float64 // V
+	SourceResistance float64 // ohm
+}
+
+// Switch is the low-side switch, a MOSFET say.
+type Switch struct {
+	OnResistance      float64 // ohm
+	OutputCapacitance float64 // F; 0 for ideal edges
+	BreakdownVoltage  float64 // V, avalanche voltage (taken as constant)
+	BodyDiodeDrop     float64 // V, body diode forward drop (constant)
+}
+
+// Kind is the type of suppression part.
+type Kind int
+
+// Suppression kinds.
+const (
+	None        Kind = iota // nothing: the switch capacitance charges to breakdown and avalanches
+	Freewheel               // diode across the coil
+	DiodeZener              // diode in series with a Zener across the coil
+	TVS                     // bidirectional TVS across the coil
+	Snubber                 // series R–C across the coil
+	SwitchClamp             // Zener or TVS from the switch node to ground
+)
+
+var kindNames = [...]string{"none", "freewheel diode", "diode zener", "tvs", "rc snubber", "switch clamp"}
+
+func (k Kind) String() string {
+	if k < 0 || int(k) >= len(kindNames) {
+		return fmt.Sprintf("Kind(%d)", int(k))
+	}
+	return kindNames[k]
+}
+
+// Suppressor is the inductive-kick suppression part.
+type Suppressor struct {
+	Kind Kind
+	// Voltage (V) is the conduction threshold: across the coil, the total
+	// drop once it conducts (freewheel: Vf; diode zener: Vf + Vz; TVS: its
+	// clamp voltage); for SwitchClamp, the clamp voltage at the switch node.
+	Voltage float64
+	// Resistance (ohm): the dynamic resistance of a clamp (its voltage is
+	// Voltage + Resistance·i), or the snubber's resistor.
+	Resistance  float64
+	Capacitance float64 // F, snubber capacitor
+}
+
+// acrossCoil reports a suppressor that conducts across the coil and pins
+// the coil voltage at −(Voltage + Resistance·i) when it does.
+func (s Suppressor) acrossCoil() bool {
+	return s.Kind == Freewheel || s.Kind == DiodeZener || s.Kind == TVS
+}
+
+// Drive is the whole drive circuit.
+type Drive struct {
+	Supply     Supply
+	Switch     Switch
+	Suppressor Suppressor
+}
+
+// Validate reports a drive that cannot be simulated.
+func (d *Drive) Validate() error {
+	s, sw, p := d.Supply, d.Switch, d.Suppressor
+	switch {
+	case !(s.Voltage > 0):
+		return fmt.Errorf("circuit: supply voltage must be positive, got %g V", s.Voltage)
+	case s.SourceResistance < 0 || sw.OnResistance < 0:
+		return errors.New("circuit: resistances must not be negative")
+	case sw.OutputCapacitance < 0:
+		return errors.New("circuit: switch output capacitance must not be negative")
+	case !(sw.BreakdownVoltage > s.Voltage):
+		return fmt.Errorf("circuit: switch breakdown %g V must exceed the supply %g V", sw.BreakdownVoltage, s.Voltage)
+	case !(sw.BodyDiodeDrop > 0):
+		return errors.New("circuit: body diode drop must be positive")
+	case p.Resistance < 0:
+		return errors.New("circuit: suppressor resistance must not be negative")
+	}
+	switch p.Kind {
+	case None:
+	case Freewheel, DiodeZener:
+		if !(p.Voltage > 0) {
+			return fmt.Errorf("circuit: %v voltage must be positive", p.Kind)
+		}
+	case TVS:
+		if !(p.Voltage > s.Voltage) {
+			return fmt.Errorf("circuit: TVS clamp %g V must exceed the supply %g V, or it conducts while the coil is on", p.Voltage, s.Voltage)
+		}
+	case SwitchClamp:
+		if !(p.Voltage > s.Voltage) || !(p.Voltage < sw.BreakdownVoltage) {
+			return fmt.Errorf("circuit: switch clamp %g V must lie between the supply %g V and the switch breakdown %g V", p.Voltage, s.Voltage, sw.BreakdownVoltage)
+		}
+	case Snubber:
+		if !(p.Resistance > 0) || !(p.Capacitance > 0) {
+			return errors.New("circuit: snubber needs a positive resistance and capacitance")
+		}
+	default:
+		return fmt.Errorf("circuit: unknown suppressor kind %d", int(p.Kind))
+	}
+	return nil
+}
+
+// Mode is the conduction state of the drive.
+type Mode int
+
+// Modes.
+const (
+	On           Mode = iota // switch conducting
+	Off                      // switch off, nothing pinned: switch capacitance (or the snubber) carries the coil current; with neither, the coil is open and its current is zero
+	CoilClamp                // switch off, suppressor across the coil conducting
+	SwClamp                  // switch off, clamp across the switch conducting
+	Avalanche                // switch off, switch in avalanche at its breakdown voltage
+	BodyDiode                // switch off, body diode conducting (switch node below ground)
+	CoilClampRev             // switch off, bidirectional TVS across the coil conducting a reversed coil current
+)
+
+var modeNames = [...]string{"on", "off", "coil clamp", "switch clamp", "avalanche", "body diode", "coil clamp (reverse)"}
+
+func (m Mode) String() string {
+	if m < 0 || int(m) >= len(modeNames) {
+		return fmt.Sprintf("Mode(%d)", int(m))
+	}
+	return modeNames[m]
+}
+
+// Point is the drive's operating point in one mode: branch voltages and
+// currents (V, A), the derivatives of its states (V/s) and the power into
+// each part (W).
+type Point struct {
+	CoilVoltage   float64 // rail minus switch node
+	SwitchVoltage float64 // switch node to ground
+	SupplyCurrent float64 // out of the ideal source
+	SwitchCurrent float64 // through the switch channel, avalanche or body diode (drain to source; negative for the body diode)
+	ClampCurrent  float64 // through the suppressor in its conducting direction (snubber: rail to switch node)
+	DSwitchCap    float64 // d(switch capacitor voltage)/dt
+	DSnubberCap   float64 // d(snubber capacitor voltage)/dt
+	PSupply       float64 // delivered by the ideal source
+	PSource       float64 // in the source resistance
+	PSwitch       float64 // in the switch: conduction, avalanche and body diode
+	PAvalanche    float64 // the avalanche part of PSwitch
+	PClamp        float64 // in the suppressor (snubber: its resistor)
+	CurrentPinned bool    // the coil has no path: its current is held at zero
+}
+
+// Open reports whether, in mode Off, the coil has no path at all (no
+// switch capacitance, no snubber): its current must then stay zero.
+func (d *Drive) Open() bool {
+	return d.Switch.OutputCapacitance == 0 && d.Suppressor.Kind != Snubber
+}
+
+// HasSwitchCap reports whether the switch capacitor voltage is a state.
+func (d *Drive) HasSwitchCap() bool { return d.Switch.OutputCapacitance > 0 }
+
+// Solve fills pt for mode m, coil current iL (A), switch capacitor voltage
+// vC and snubber capacitor voltage vS (V). It does not allocate.
+func (d *Drive) Solve(m Mode, iL, vC, vS float64, pt *Point) {
+	*pt = Point{}
+	v0, rs := d.Supply.Voltage, d.Supply.SourceResistance
+	sup := &d.Suppressor
+	snub := sup.Kind == Snubber
+	var ip float64 // snubber current, rail to switch node
+	switch m {
+	case On:
+		ron := d.Switch.OnResistance
+		rt := rs + ron
+		var vcoil float64
+		if snub {
+			// v_coil = V0 − Rt·(iL + ip), ip = (v_coil − vS)/Rsn.
+			k := rt / sup.Resistance
+			vcoil = (v0 - rt*iL + k*vS) / (1 + k)
+			ip = (vcoil - vS) / sup.Resistance
+		} else {
+			vcoil = v0 - rt*iL
+		}
+		isw := iL + ip
+		pt.CoilVoltage = vcoil
+		pt.SwitchVoltage = ron * isw
+		pt.SupplyCurrent = isw
+		pt.SwitchCurrent = isw
+		pt.PSwitch = ron * isw * isw
+	case Off:
+		switch {
+		case d.HasSwitchCap():
+			if snub {
+				ip = (v0 - rs*iL - vC - vS) / (sup.Resistance + rs)
+			}
+			is := iL + ip
+			pt.SupplyCurrent = is
+			pt.SwitchVoltage = vC
+			pt.CoilVoltage = v0 - rs*is - vC
+			pt.DSwitchCap = is / d.Switch.OutputCapacitance
+		case snub:
+			// All coil current goes round through the snubber.
+			ip = -iL
+			pt.CoilVoltage = vS + sup.Resistance*ip
+			pt.SwitchVoltage = v0 - pt.CoilVoltage
+		default:
+			pt.CurrentPinned = true
+			pt.SwitchVoltage = v0
+		}
+	case CoilClamp, CoilClampRev:
+		// Suppressor across the coil carries the whole coil current.
+		a := math.Abs(iL)
+		vcl := sup.Voltage + sup.Resistance*a
+		pt.CoilVoltage = -vcl
+		if m == CoilClampRev {
+			pt.CoilVoltage = vcl
+		}
+		pt.SwitchVoltage = v0 - pt.CoilVoltage
+		pt.ClampCurrent = a
+		pt.PClamp = vcl * a
+	case SwClamp, Avalanche, BodyDiode:
+		var vpin, rpin float64
+		switch m {
+		case SwClamp:
+			vpin, rpin = sup.Voltage, sup.Resistance
+		case Avalanche:
+			vpin = d.Switch.BreakdownVoltage
+		case BodyDiode:
+			vpin = -d.Switch.BodyDiodeDrop
+		}
+		if snub {
+			ip = (v0 - rs*iL - vpin - vS - rpin*iL) / (sup.Resistance + rs + rpin)
+		}
+		is := iL + ip
+		vsw := vpin + rpin*is
+		pt.SupplyCurrent = is
+		pt.SwitchVoltage = vsw
+		pt.CoilVoltage = v0 - rs*is - vsw
+		p := vsw * is
+		switch m {
+		case SwClamp:
+			pt.ClampCurrent = is
+			pt.PClamp = p
+		case Avalanche:
+			pt.SwitchCurrent = is
+			pt.PSwitch, pt.PAvalanche = p, p
+		case BodyDiode:
+			pt.SwitchCurrent = is
+			pt.PSwitch = p
+		}
+	}
+	if snub {
+		pt.DSnubberCap = ip / sup.Capacitance
+		pt.ClampCurrent = ip
+		pt.PClamp = sup.Resistance * ip * ip
+		if m == Off && !d.HasSwitchCap() {
+			pt.SupplyCurrent = 0
+		}
+	}
+	pt.PSupply = v0 * pt.SupplyCurrent
+	pt.PSource = rs * pt.SupplyCurrent * pt.SupplyCurrent
+}
+
+// MaxGuards is the largest number of guards any mode has.
+const MaxGuards = 5
+
+// Guards writes the guard values of mode m at operating point pt (from
+// Solve with the same arguments) into g and returns how many there are.
+// A guard is negative while the mode holds; it reaching zero from below is
+// a mode change to Target(m, k).
+func (d *Drive) Guards(m Mode, iL float64, pt *Point, g []float64) int {
+	sup := &d.Suppressor
+	switch m {
+	case On:
+		return 0
+	case Off:
+		if pt.CurrentPinned {
+			return 0
+		}
+		vcoil, vsw := pt.CoilVoltage, pt.SwitchVoltage
+		n := 0
+		// 0: coil clamp forward (coil voltage reaching −Voltage)
+		g[n] = math.Inf(-1)
+		if sup.acrossCoil() {
+			g[n] = -vcoil - sup.Voltage
+		}
+		n++
+		// 1: TVS reverse direction (coil voltage reaching +Voltage)
+		g[n] = math.Inf(-1)
+		if sup.Kind == TVS {
+			g[n] = vcoil - sup.Voltage
+		}
+		n++
+		// 2: switch clamp
+		g[n] = math.Inf(-1)
+		if sup.Kind == SwitchClamp {
+			g[n] = vsw - sup.Voltage
+		}
+		n++
+		// 3: avalanche
+		g[n] = vsw - d.Switch.BreakdownVoltage
+		n++
+		// 4: body diode
+		g[n] = -d.Switch.BodyDiodeDrop - vsw
+		n++
+		return n
+	case CoilClamp:
+		// Conduction ends when the current falls to zero.
+		g[0] = -iL
+		return 1
+	case CoilClampRev:
+		g[0] = iL
+		return 1
+	case SwClamp, Avalanche:
+		g[0] = -pt.SupplyCurrent
+		return 1
+	case BodyDiode:
+		g[0] = pt.SupplyCurrent
+		return 1
+	}
+	return 0
+}
+
+// Target returns the mode entered when guard k of mode m reaches zero.
+func (d *Drive) Target(m Mode, k int) Mode {
+	if m != Off {
+		return Off
+	}
+	switch k {
+	case 0:
+		return CoilClamp
+	case 1:
+		return CoilClampRev
+	case 2:
+		return SwClamp
+	case 3:
+		return Avalanche
+	default:
+		return BodyDiode
+	}
+}
+
+// TurnOffMode returns the mode the drive takes at the instant the switch
+// opens with coil current iL. With a switch capacitance or a snubber the
+// current has somewhere to go and the mode is Off; otherwise the path that
+// pins the switch node lowest takes the current at once.
+func (d *Drive) TurnOffMode(iL float64) Mode {
+	if !d.Open() || iL == 0 {
+		return Off
+	}
+	if iL < 0 {
+		return BodyDiode
+	}
+	switch {
+	case d.Suppressor.acrossCoil():
+		return CoilClamp
+	case d.Suppressor.Kind == SwitchClamp:
+		return SwClamp
+	}
+	return Avalanche
+}
+
+// ClampName names the part that conducts in mode m, for event logs.
+func (d *Drive) ClampName(m Mode) string {
+	switch m {
+	case CoilClamp, CoilClampRev, SwClamp:
+		return d.Suppressor.Kind.String()
+	case Avalanche:
+		return "switch avalanche"
+	case BodyDiode:
+		return "switch body diode"
+	}
+	return m.String()
+}

@@ -1,0 +1,100 @@
+package coilkick
+
+import (
+	"encoding/json"
+	"math"
+)
+
+// DecayFraction defines the current decay time: the time from the
+// de-energize command until the coil current first falls to this fraction
+// of its value at turn-off.
+const DecayFraction = 0.01
+
+// Interval is a duration measured from a command (s), or the fact that the
+// thing it measures did not happen before the run ended. In JSON it is a
+// number of seconds or null.
+type Interval struct {
+	Happened bool
+	Seconds  float64
+}
+
+// MarshalJSON writes the seconds, or null when it did not happen.
+func (iv Interval) MarshalJSON() ([]byte, error) {
+	if !iv.Happened {
+		return []byte("null"), nil
+	}
+	return json.Marshal(iv.Seconds)
+}
+
+// Metrics are the figures of one actuation. Times are from the energize
+// command (pull-in side) or the de-energize command (release side).
+type Metrics struct {
+	// MotionDelay: energize → the plunger first leaves the rest stop
+	// (the response delay of solenoid standards).
+	MotionDelay Interval
+	// PullIn: energize → the plunger first reaches the energized stop
+	// (response delay + stroke time). Not Happened: it did not pull in.
+	PullIn Interval
+	// SeatImpactSpeed: plunger speed at that first arrival, m/s.
+	SeatImpactSpeed float64
+	// Bounces: rebounds from the energized stop while energized.
+	Bounces int
+	// CurrentAtSeating: coil current at that first arrival, A.
+	CurrentAtSeating float64
+	// PeakCurrent: largest |coil current| in the run, A.
+	PeakCurrent float64
+	// CurrentAtTurnOff: coil current at the de-energize command, A.
+	CurrentAtTurnOff float64
+	// Release: de-energize → the plunger leaves the energized stop (the
+	// drop-out delay). Not Happened: it stayed seated.
+	Release Interval
+	// Drop: de-energize → the plunger reaches the rest stop (drop-out delay
+	// + return time).
+	Drop Interval
+	// CurrentDecay: de-energize → |coil current| first falls to
+	// DecayFraction of its turn-off value.
+	CurrentDecay Interval
+	// ClampConduction: de-energize → the suppression path (clamp, diode,
+	// avalanche) first stops conducting, the coil current having reached
+	// zero.
+	ClampConduction Interval
+	// PeakSwitchVoltage, MinSwitchVoltage: extremes of the switch node
+	// voltage to ground, V.
+	PeakSwitchVoltage, MinSwitchVoltage float64
+	// PeakClampCurrent: largest current in the suppression path while the
+	// switch is off (snubber: through its resistor; none: through the
+	// switch's avalanche or body diode is not counted here), A.
+	PeakClampCurrent float64
+	// ClampEnergy: energy dissipated in the suppression part over the run
+	// (one operation), J.
+	ClampEnergy float64
+	// AvalancheEnergy: energy dissipated in the switch while in avalanche, J.
+	AvalancheEnergy float64
+	// DroppedOutEnergized: the plunger left the energized stop while still
+	// energized.
+	DroppedOutEnergized bool
+
+	// Energy balance, J: SupplyEnergy = CoilLoss + SourceLoss + SwitchLoss
+	// + ClampEnergy + MechanicalWork + StoredChange + EnergyResidual.
+	SupplyEnergy   float64
+	CoilLoss       float64 // in the coil resistance
+	SourceLoss     float64 // in the supply's source resistance
+	SwitchLoss     float64 // conduction, capacitive turn-on, avalanche and body diode
+	MechanicalWork float64 // done by the magnetic force on the plunger
+	StoredChange   float64 // change of magnetic and capacitor energy over the run
+	EnergyResidual float64 // what the balance leaves over (numerical error and omitted fast modes)
+}
+
+func (m *Metrics) init() {
+	m.MinSwitchVoltage = math.Inf(1)
+	m.PeakSwitchVoltage = math.Inf(-1)
+}
+
+// EnergyResidualRel is the energy-balance residual as a fraction of the
+// supply energy.
+func (m *Metrics) EnergyResidualRel() float64 {
+	if m.SupplyEnergy == 0 {
+		return 0
+	}
+	return math.Abs(m.EnergyResidual) / m.SupplyEnergy
+}

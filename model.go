@@ -1,0 +1,169 @@
+package coilkick
+
+import (
+	"fmt"
+	"math"
+	"os"
+
+	"coilkick/circuit"
+	"coilkick/magnet"
+	"coilkick/mech"
+)
+
+// Model is a scenario turned into the domain models, ready to simulate.
+type Model struct {
+	Name        string
+	Source      string
+	Coil        magnet.Coil
+	Temperature float64 // K, winding temperature during the run
+	Magnet      magnet.Model
+	Plunger     mech.Plunger
+	Drive       circuit.Drive
+	Timing      TimingSpec
+	Limits      LimitsSpec
+	Solver      SolverSpec
+}
+
+// CoilResistance returns the coil resistance at the run's winding
+// temperature (ohm).
+func (m *Model) CoilResistance() float64 { return m.Coil.ResistanceAt(m.Temperature) }
+
+// Stiff reports whether the model has a fast mode that an explicit method
+// would have to resolve for the whole run (an RC snubber's time constant
+// against millisecond motion): it is then integrated with the L-stable
+// Rosenbrock pair.
+func (m *Model) Stiff() bool { return m.Drive.Suppressor.Kind == circuit.Snubber }
+
+// scales returns the typical magnitude of each state, for the absolute
+// tolerances.
+func (m *Model) scales() []float64 {
+	sc := make([]float64, nState)
+	v0 := m.Drive.Supply.Voltage
+	iMax := v0 / (m.CoilResistance() + m.Drive.Supply.SourceResistance + m.Drive.Switch.OnResistance)
+	stroke := m.Plunger.GapMax - m.Plunger.GapMin
+	lam := m.Magnet.FluxLinkage(iMax, m.Plunger.GapMin)
+	tau := lam / iMax / m.CoilResistance()
+	sc[sFlux] = lam
+	sc[sGap] = stroke
+	sc[sVel] = stroke / tau
+	sc[sSwitchC] = v0
+	sc[sSnubberC] = v0
+	e := v0 * iMax * m.Timing.End
+	for k := qSupply; k < nState; k++ {
+		sc[k] = e
+	}
+	return sc
+}
+
+// Build turns a loaded scenario into models, checking what the loader
+// cannot check alone (model consistency). Errors point at the scenario
+// field concerned.
+func Build(s *Scenario) (*Model, error) {
+	md := &Model{Name: s.Name, Source: s.Source, Timing: s.Timing, Limits: s.Limits, Solver: s.Solver}
+	md.Coil = magnet.Coil{Resistance: s.Coil.Resistance, RefTemperature: s.Coil.RefTemperature,
+		TempCoeff: s.Coil.TempCoeff, Turns: s.Coil.Turns}
+	if err := md.Coil.Validate(); err != nil {
+		return nil, s.Errorf("coil", "%v", err)
+	}
+	md.Temperature = s.Coil.Temperature
+	if r := md.CoilResistance(); !(r > 0) {
+		return nil, s.Errorf("coil.temperature", "coil resistance at %.1f degC is %g ohm, not positive", md.Temperature-273.15, r)
+	}
+
+	p := s.Plunger
+	md.Plunger = mech.Plunger{Mass: p.Mass, GapMin: p.SeatedGap, GapMax: p.RestGap,
+		Spring: mech.Spring{Preload: p.SpringPreload, Rate: p.SpringRate}, Damping: p.Damping,
+		Restitution: p.Restitution, StickSpeed: p.StickSpeed}
+	var loads mech.Loads
+	if p.ConstantLoad != 0 {
+		loads = append(loads, mech.ConstantLoad(p.ConstantLoad))
+	}
+	if p.Pressure > 0 {
+		loads = append(loads, mech.OrificeLoad{Pressure: p.Pressure, Area: p.OrificeArea, Travel: p.SealTravel, GapMax: p.RestGap})
+	}
+	if len(loads) > 0 {
+		md.Plunger.Load = loads
+	}
+	if err := md.Plunger.Validate(); err != nil {
+		return nil, s.Errorf("plunger", "%v", err)
+	}
+
+	switch s.Magnet.Kind {
+	case MagnetGapLaw:
+		g := s.Magnet
+		var err error
+		var gl *magnet.GapLaw
+		if g.PoleArea > 0 {
+			gl, err = magnet.NewGapLawTurns(g.ClosedInductance, g.OpenInductance, p.SeatedGap, p.RestGap, s.Coil.Turns, g.PoleArea)
+		} else {
+			gl, err = magnet.NewGapLaw(g.ClosedInductance, g.OpenInductance, p.SeatedGap, p.RestGap)
+		}
+		if err != nil {
+			return nil, s.Errorf("magnet.gap law", "%v", err)
+		}
+		md.Magnet = gl
+	case MagnetTable:
+		f, err := os.Open(s.Magnet.TableFile)
+		if err != nil {
+			return nil, s.Errorf("magnet.table.file", "%v", err)
+		}
+		defer f.Close()
+		tb, err := magnet.ReadTableCSV(f, s.Magnet.TableFile, s.Magnet.CurrentScale, s.Magnet.GapScale, s.Magnet.FluxScale)
+		if err != nil {
+			return nil, s.Errorf("magnet.table.file", "%v", err)
+		}
+		lo, hi := tb.GapRange()
+		if lo > p.SeatedGap*(1+1e-9) || hi < p.RestGap*(1-1e-9) {
+			return nil, s.Errorf("magnet.table.file", "table covers gaps %.4g–%.4g mm but the plunger moves over %.4g–%.4g mm",
+				lo*1e3, hi*1e3, p.SeatedGap*1e3, p.RestGap*1e3)
+		}
+		md.Magnet = tb
+	default:
+		return nil, s.Errorf("magnet", "unknown magnetic model %q", s.Magnet.Kind)
+	}
+
+	kinds := map[string]circuit.Kind{SuppressNone: circuit.None, SuppressFreewheel: circuit.Freewheel,
+		SuppressDiodeZener: circuit.DiodeZener, SuppressTVS: circuit.TVS, SuppressSnubber: circuit.Snubber,
+		SuppressSwitchClamp: circuit.SwitchClamp}
+	k, ok := kinds[s.Suppression.Kind]
+	if !ok {
+		return nil, s.Errorf("suppression.type", "unknown suppression type %q", s.Suppression.Kind)
+	}
+	sup := circuit.Suppressor{Kind: k, Resistance: s.Suppression.Resistance, Capacitance: s.Suppression.Capacitance}
+	switch k {
+	case circuit.Freewheel:
+		sup.Voltage = s.Suppression.ForwardDrop
+	case circuit.DiodeZener:
+		sup.Voltage = s.Suppression.ForwardDrop + s.Suppression.ZenerVoltage
+	case circuit.TVS, circuit.SwitchClamp:
+		sup.Voltage = s.Suppression.ClampVoltage
+	}
+	md.Drive = circuit.Drive{
+		Supply: circuit.Supply{Voltage: s.Supply.Voltage, SourceResistance: s.Supply.SourceResistance},
+		Switch: circuit.Switch{OnResistance: s.Switch.OnResistance, OutputCapacitance: s.Switch.OutputCapacitance,
+			BreakdownVoltage: s.Switch.BreakdownVoltage, BodyDiodeDrop: s.Switch.BodyDiodeDrop},
+		Suppressor: sup,
+	}
+	if err := md.Drive.Validate(); err != nil {
+		return nil, s.Errorf("suppression", "%v", err)
+	}
+	t := s.Timing
+	if !(t.EnergizeAt >= 0 && t.DeenergizeAt > t.EnergizeAt && t.End > t.DeenergizeAt) {
+		return nil, s.Errorf("timing", "need 0 <= energize at < de-energize at < end")
+	}
+	if math.IsInf(t.End, 0) {
+		return nil, s.Errorf("timing.end", "must be finite")
+	}
+	return md, nil
+}
+
+// LoadModel loads a scenario file and builds its model.
+func LoadModel(path string) (*Model, error) {
+	s, err := Load(path)
+	if err != nil {
+		return nil, err
+	}
+	return Build(s)
+}
+
+var _ = fmt.Sprintf
