@@ -39,16 +39,21 @@ func (m *Model) Stiff() bool { return m.Drive.Suppressor.Kind == circuit.Snubber
 func (m *Model) scales() []float64 {
 	sc := make([]float64, nState)
 	v0 := m.Drive.Supply.Voltage
-	iMax := v0 / (m.CoilResistance() + m.Drive.Supply.SourceResistance + m.Drive.Switch.OnResistance)
+	// Current scale: the steady current, or the ramp reached in the on
+	// time when the coil's time constant is long.
+	rt := m.CoilResistance() + m.Drive.Supply.SourceResistance + m.Drive.Switch.OnResistance
+	lOpen := m.Magnet.FluxLinkage(1, m.Plunger.GapMax)
+	iScale := math.Min(v0/rt, v0*(m.Timing.DeenergizeAt-m.Timing.EnergizeAt)/lOpen)
 	stroke := m.Plunger.GapMax - m.Plunger.GapMin
-	lam := m.Magnet.FluxLinkage(iMax, m.Plunger.GapMin)
-	tau := lam / iMax / m.CoilResistance()
+	lam := m.Magnet.FluxLinkage(iScale, m.Plunger.GapMin)
+	tau := lOpen / rt
 	sc[sFlux] = lam
 	sc[sGap] = stroke
 	sc[sVel] = stroke / tau
 	sc[sSwitchC] = v0
 	sc[sSnubberC] = v0
-	e := v0 * iMax * m.Timing.End
+	// Energies: the magnetic energy stored at that current.
+	e := 0.5 * lam * iScale
 	for k := qSupply; k < nState; k++ {
 		sc[k] = e
 	}

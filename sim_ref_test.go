@@ -111,3 +111,47 @@ func TestDecayClosedForms(t *testing.T) {
 		})
 	}
 }
+
+func TestClampEnergy(t *testing.T) {
+	t.Parallel()
+	// A coil with almost no resistance, switched off after a short linear
+	// ramp, so that the R → 0 limit applies.
+	const v0, l, r = 24.0, 0.1, 1e-4
+	for _, c := range []struct {
+		name      string
+		sup       circuit.Suppressor
+		vcl, vOff float64 // clamp voltage and the part of it the supply offsets
+		fromAval  bool
+	}{
+		{"switch clamp", circuit.Suppressor{Kind: circuit.SwitchClamp, Voltage: 60}, 60, v0, false},
+		{"avalanche", circuit.Suppressor{Kind: circuit.None}, 1000, v0, true},
+		{"coil tvs", circuit.Suppressor{Kind: circuit.TVS, Voltage: 36}, 36, 0, false},
+	} {
+		md := fixedModel(t, v0, r, l, c.sup)
+		md.Timing = TimingSpec{EnergizeAt: 0, DeenergizeAt: 2e-3, End: 0.02}
+		res, err := Simulate(md, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		m := res.Metrics
+		i0 := m.CurrentAtTurnOff
+		e := m.ClampEnergy
+		if c.fromAval {
+			e = m.AvalancheEnergy
+		}
+		d := c.vcl - c.vOff
+		// source: integrating Vcl·i(t) over the first-order decay
+		// i(t) = (I0 + d/R)e^(−tR/L) − d/R gives
+		// E = Vcl·(L/R)·[I0 − (d/R)·ln(1 + R·I0/d)] (first-order circuit theory).
+		exact := c.vcl * l / r * (i0 - d/r*math.Log1p(r*i0/d))
+		// source: R → 0 limit, E = ½·L·I0²·Vcl/(Vcl − Vs), as in power-MOSFET
+		// unclamped inductive switching (avalanche) literature.
+		limit := 0.5 * l * i0 * i0 * c.vcl / d
+		if rel := math.Abs(e-exact) / exact; rel > 1e-6 {
+			t.Errorf("%s: clamp energy %.9g J, want %.9g J (rel %.2g)", c.name, e, exact, rel)
+		}
+		if rel := math.Abs(e-limit) / limit; rel > 1e-4 {
+			t.Errorf("%s: clamp energy %.9g J, R→0 limit %.9g J (rel %.2g)", c.name, e, limit, rel)
+		}
+	}
+}

@@ -135,8 +135,10 @@ func (r *run) event(t float64, y []float64, k int) (bool, error) {
 	if err := r.settle(t, y); err != nil {
 		return false, err
 	}
+	o := r.out(y)
+	r.peaks(o)
 	if !r.noTrace {
-		r.res.Trace.add(t, r.out(y))
+		r.res.Trace.add(t, o)
 	}
 	return false, nil
 }
@@ -275,19 +277,24 @@ func (r *run) settle(t float64, y []float64) error {
 	return fmt.Errorf("modes do not settle at t = %.12g s (circuit %v, plunger %v)", t, r.cmode, r.mmode)
 }
 
-func (r *run) accepted(s *stepView) {
+// peaks updates the extremes with the outputs o of the current mode.
+func (r *run) peaks(o outputs) {
 	m := &r.res.Metrics
+	m.PeakCurrent = math.Max(m.PeakCurrent, math.Abs(o.Current))
+	m.PeakSwitchVoltage = math.Max(m.PeakSwitchVoltage, o.SwitchVoltage)
+	m.MinSwitchVoltage = math.Min(m.MinSwitchVoltage, o.SwitchVoltage)
+	if r.cmode != circuit.On {
+		m.PeakClampCurrent = math.Max(m.PeakClampCurrent, o.ClampCurrent)
+	}
+}
+
+func (r *run) accepted(s *stepView) {
 	// Sample inside the step for the peaks.
 	for _, th := range [...]float64{0.25, 0.5, 0.75, 1} {
 		tt := s.t0 + th*(s.t1-s.t0)
 		s.interp(tt, r.ys[:])
 		o := r.out(r.ys[:])
-		m.PeakCurrent = math.Max(m.PeakCurrent, math.Abs(o.Current))
-		m.PeakSwitchVoltage = math.Max(m.PeakSwitchVoltage, o.SwitchVoltage)
-		m.MinSwitchVoltage = math.Min(m.MinSwitchVoltage, o.SwitchVoltage)
-		if r.cmode != circuit.On {
-			m.PeakClampCurrent = math.Max(m.PeakClampCurrent, o.ClampCurrent)
-		}
+		r.peaks(o)
 		if th == 1 && !r.noTrace {
 			r.res.Trace.add(s.t1, o)
 		}

@@ -1,0 +1,48 @@
+package magnet
+
+// Model is a magnetic model of a plunger electromagnet: flux linkage and
+// force as functions of coil current i (A) and working air gap x (m).
+// Pulling in reduces x.
+//
+// Every model here is odd in i (λ(−i, x) = −λ(i, x)), so the co-energy and
+// the force are even in i. Each model derives FluxLinkage, CoEnergy and
+// Force from one co-energy function W'(i, x), so that Force is exactly
+// −∂W'/∂x inside GapRange. Gaps outside GapRange (an integrator overshooting
+// a stop by a hair) are clamped to the range: λ, W' and the force hold their
+// values at the nearest end and ∂i/∂x is 0 there; all outputs stay finite.
+type Model interface {
+	// FluxLinkage returns λ (Wb, weber-turns) at current i (A) and gap x (m).
+	FluxLinkage(i, x float64) float64
+	// Current returns the current i (A) with FluxLinkage(i, x) = lam (Wb):
+	// the inverse of FluxLinkage in i at fixed x.
+	Current(lam, x float64) float64
+	// Partials returns ∂i/∂λ (1/H) and ∂i/∂x (A/m) at (λ, x); used for
+	// Jacobians.
+	Partials(lam, x float64) (diDlam, diDx float64)
+	// CoEnergy returns W'(i, x) = ∫0^i λ(i', x) di' (J).
+	CoEnergy(i, x float64) float64
+	// Force returns the pull toward smaller gap (N): F = −∂W'/∂x at
+	// constant i, ≥ 0 for a normal magnet.
+	Force(i, x float64) float64
+	// GapRange returns the gaps (m) where the model is valid.
+	GapRange() (min, max float64)
+}
+
+// FieldEnergy returns the stored magnetic energy W = λ·i − W' (J) of model m
+// at current i (A) and gap x (m): the Legendre transform of the co-energy
+// (any electromechanics text, e.g. Fitzgerald & Kingsley, Electric
+// Machinery, ch. 3).
+func FieldEnergy(m Model, i, x float64) float64 {
+	return m.FluxLinkage(i, x)*i - m.CoEnergy(i, x)
+}
+
+// clamp returns x limited to [lo, hi].
+func clamp(x, lo, hi float64) float64 {
+	if x < lo {
+		return lo
+	}
+	if x > hi {
+		return hi
+	}
+	return x
+}

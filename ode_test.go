@@ -1,0 +1,147 @@
+package coilkick
+
+import (
+	"math"
+	"testing"
+)
+
+// testSys is a linear system y' = A·y with an optional ball-and-floor
+// event, used to check the integrator against closed forms.
+type testSys struct {
+	a       [][]float64
+	tEnd    float64
+	floor   bool // y[0] is height, y[1] velocity; bounce with restitution e at y[0] = 0
+	e       float64
+	g       float64
+	bounces []float64
+	samples [][2]float64 // (t, y0) at accepted step ends
+}
+
+func (s *testSys) deriv(_ float64, y, dy []float64) {
+	if s.floor {
+		dy[0], dy[1] = y[1], -s.g
+		return
+	}
+	for i := range dy {
+		v := 0.0
+		for j := range y {
+			v += s.a[i][j] * y[j]
+		}
+		dy[i] = v
+	}
+}
+
+func (s *testSys) guards(_ float64, y, g []float64) int {
+	if !s.floor {
+		return 0
+	}
+	g[0] = -y[0]
+	return 1
+}
+
+func (s *testSys) nextTimeEvent(t float64) float64 {
+	if s.tEnd > t {
+		return s.tEnd
+	}
+	return math.Inf(1)
+}
+
+func (s *testSys) event(t float64, y []float64, k int) (bool, error) {
+	if k < 0 {
+		return true, nil
+	}
+	s.bounces = append(s.bounces, t)
+	y[0] = 0
+	y[1] = -s.e * y[1]
+	return false, nil
+}
+
+func (s *testSys) accepted(v *stepView) {
+	s.samples = append(s.samples, [2]float64{v.t1, v.y1[0]})
+}
+
+func TestODEHarmonicOscillator(t *testing.T) {
+	t.Parallel()
+	// source: y'' = −ω²y has y = cos(ωt) for y(0)=1, y'(0)=0 (closed form).
+	const w = 2 * math.Pi * 50
+	for _, stiff := range []bool{false, true} {
+		s := &testSys{a: [][]float64{{0, 1}, {-w * w, 0}}, tEnd: 0.1}
+		set := odeSettings{RelTol: 1e-9, Scale: []float64{1, w}, MaxSteps: 1e6, MaxStep: 0.01, Stiff: stiff}
+		if stiff {
+			set.RelTol = 1e-7
+		}
+		in := newODE(s, 2, set)
+		y := []float64{1, 0}
+		if err := in.run(0, y); err != nil {
+			t.Fatal(err)
+		}
+		worst := 0.0
+		for _, p := range s.samples {
+			worst = math.Max(worst, math.Abs(p[1]-math.Cos(w*p[0])))
+		}
+		lim := 2e-7
+		if stiff {
+			lim = 5e-4 // second-order method
+		}
+		if worst > lim {
+			t.Errorf("stiff=%v: worst error %.3g, want <= %g (steps %d)", stiff, worst, lim, in.stats.Steps)
+		}
+		t.Logf("stiff=%v: worst error %.3g, steps %d", stiff, worst, in.stats.Steps)
+	}
+}
+
+func TestODEBouncingBall(t *testing.T) {
+	t.Parallel()
+	// source: projectile motion h(t) = h0 − g t²/2; first impact at
+	// sqrt(2 h0/g), then flights of 2 e^k v1/g with v1 = sqrt(2 g h0)
+	// (Newton's restitution law).
+	const h0, g, e = 1.0, 9.81, 0.5
+	s := &testSys{floor: true, e: e, g: g, tEnd: 1.2} // before the Zeno point at 1.354 s
+	in := newODE(s, 2, odeSettings{RelTol: 1e-9, Scale: []float64{1, 1}, MaxSteps: 1e5, MaxStep: 0.1})
+	if err := in.run(0, []float64{h0, 0}); err != nil {
+		t.Fatal(err)
+	}
+	v1 := math.Sqrt(2 * g * h0)
+	want := math.Sqrt(2 * h0 / g)
+	for k := 0; k < 3; k++ {
+		if k >= len(s.bounces) {
+			t.Fatalf("only %d bounces", len(s.bounces))
+		}
+		if d := math.Abs(s.bounces[k] - want); d > 1e-10 {
+			t.Errorf("bounce %d at %.12g s, want %.12g s", k, s.bounces[k], want)
+		}
+		want += 2 * math.Pow(e, float64(k+1)) * v1 / g
+	}
+}
+
+func TestODEStiffDecay(t *testing.T) {
+	t.Parallel()
+	// A stiff linear pair: y0' = −1e6 (y0 − y1), y1' = −y1 with y(0) = (0, 1).
+	// source: closed form y1 = e^(−t), y0 = (1e6/(1e6−1))(e^(−t) − e^(−1e6 t)).
+	s := &testSys{a: [][]float64{{-1e6, 1e6}, {0, -1}}, tEnd: 2}
+	in := newODE(s, 2, odeSettings{RelTol: 1e-6, Scale: []float64{1, 1}, MaxSteps: 1e5, MaxStep: 0.5, Stiff: true})
+	y := []float64{0, 1}
+	if err := in.run(0, y); err != nil {
+		t.Fatal(err)
+	}
+	want := 1e6 / (1e6 - 1) * (math.Exp(-2) - math.Exp(-2e6))
+	if d := math.Abs(y[0]-want) / want; d > 5e-4 { // second-order method: global error ~ steps × tolerance
+		t.Errorf("y0(2) = %.9g, want %.9g", y[0], want)
+	}
+	// An explicit method would need some 2/1e6 s steps, a million of them;
+	// the L-stable pair should take a few hundred.
+	if in.stats.Steps > 2000 {
+		t.Errorf("Rosenbrock took %d steps on a stiff decay, want < 2000", in.stats.Steps)
+	}
+	t.Logf("stiff decay: %d steps, %d rejected", in.stats.Steps, in.stats.Rejected)
+}
+
+func TestODEStepBudget(t *testing.T) {
+	t.Parallel()
+	s := &testSys{a: [][]float64{{0, 1}, {-1e6, 0}}, tEnd: 100}
+	in := newODE(s, 2, odeSettings{RelTol: 1e-9, Scale: []float64{1, 1}, MaxSteps: 500, MaxStep: 1})
+	err := in.run(0, []float64{1, 0})
+	if err == nil || !errorsIs(err, errStepBudget) {
+		t.Fatalf("run with a small budget: err = %v, want the step budget error", err)
+	}
+}
