@@ -77,6 +77,7 @@ type run struct {
 
 	decayArmed     bool
 	decayThreshold float64
+	decaySign      float64 // sign of the turn-off current
 
 	g     [maxGuardCount]float64
 	ys    [nState]float64 // scratch
@@ -101,7 +102,7 @@ func (r *run) nextTimeEvent(t float64) float64 {
 func (r *run) guards(_ float64, y, g []float64) int {
 	_, n := r.guardsAt(y, g)
 	if r.decayArmed {
-		g[n] = r.decayThreshold - math.Abs(r.current(y))
+		g[n] = r.decayThreshold - r.decaySign*r.current(y) // signed: the current may overshoot zero within a step
 		n++
 	}
 	return n
@@ -165,6 +166,7 @@ func (r *run) deenergize(t float64, y []float64) {
 	if i != 0 {
 		r.decayArmed = true
 		r.decayThreshold = DecayFraction * math.Abs(i)
+		r.decaySign = math.Copysign(1, i)
 	}
 	r.note(t, "de-energize at %.4g A", i)
 	if r.cmode != circuit.Off {

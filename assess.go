@@ -1,0 +1,124 @@
+package coilkick
+
+import (
+	"fmt"
+	"math"
+
+	"coilkick/circuit"
+)
+
+// Check is one rating or requirement compared with the run's figure.
+type Check struct {
+	Name  string  // e.g. "pull-in time"
+	Unit  string  // SI unit of Value and Limit
+	Value float64 // the run's figure (meaningless when !Happened)
+	Limit float64 // the scenario's maximum
+	// Happened is false when the figure does not exist (the plunger never
+	// pulled in, say); such a check fails.
+	Happened bool
+	Pass     bool
+}
+
+// Note is a safety caution or a warning attached to a figure.
+type Note struct {
+	Figure string // the metric it concerns ("" for the run as a whole)
+	Level  string // "caution" (can hurt someone or destroy a part), "warning" or "info"
+	Text   string
+}
+
+// Thresholds used by the safety notes.
+const (
+	// KickCautionVoltage: a turn-off kick above this is flagged as hazardous
+	// to touch (the 50 V figure commonly used for extra-low-voltage
+	// touch safety; common practice, no source).
+	KickCautionVoltage = 50.0 // V
+	// HotSurfaceCaution: winding temperatures above this are flagged as a
+	// burn risk (common practice, no source).
+	HotSurfaceCaution = 333.15 // K (60 °C)
+	// ResidualWarning: an energy-balance residual above this fraction of the
+	// supply energy is flagged as a numerical problem.
+	ResidualWarning = 1e-4
+)
+
+// Assessment holds the checks and notes of a run.
+type Assessment struct {
+	Checks []Check
+	Notes  []Note
+}
+
+// Failed reports whether any check failed.
+func (a *Assessment) Failed() bool {
+	for _, c := range a.Checks {
+		if !c.Pass {
+			return true
+		}
+	}
+	return false
+}
+
+// Assess compares a run with the model's ratings and requirements and
+// writes the safety notes.
+func (md *Model) Assess(res *Result) Assessment {
+	var a Assessment
+	m := &res.Metrics
+	lim := md.Limits
+	maxCheck := func(name, unit string, value, limit float64, happened bool) {
+		if limit <= 0 {
+			return
+		}
+		a.Checks = append(a.Checks, Check{Name: name, Unit: unit, Value: value, Limit: limit,
+			Happened: happened, Pass: happened && value <= limit})
+	}
+	maxCheck("pull-in time", "s", m.PullIn.Seconds, lim.MaxPullIn, m.PullIn.Happened)
+	maxCheck("release time", "s", m.Release.Seconds, lim.MaxRelease, m.Release.Happened)
+	maxCheck("drop time", "s", m.Drop.Seconds, lim.MaxDrop, m.Drop.Happened)
+	maxCheck("peak switch voltage", "V", m.PeakSwitchVoltage, lim.SwitchVoltage, true)
+	maxCheck("avalanche energy", "J", m.AvalancheEnergy, lim.AvalancheEnergy, true)
+	maxCheck("clamp energy", "J", m.ClampEnergy, lim.ClampEnergy, true)
+	maxCheck("peak clamp current", "A", m.PeakClampCurrent, lim.ClampCurrent, true)
+
+	note := func(fig, level, format string, args ...any) {
+		a.Notes = append(a.Notes, Note{Figure: fig, Level: level, Text: fmt.Sprintf(format, args...)})
+	}
+	if !m.PullIn.Happened {
+		note("pull-in time", "warning", "the plunger did not pull in: the magnetic force never overcame the spring and load before the run ended")
+	} else if !m.Release.Happened {
+		note("release time", "warning", "the plunger did not release before the run ended (residual flux or a weak spring holds it)")
+	}
+	if m.DroppedOutEnergized {
+		note("pull-in time", "warning", "the plunger left the energized stop while the coil was still energized")
+	}
+	if m.PeakSwitchVoltage > KickCautionVoltage {
+		note("peak switch voltage", "caution", "the switch node kicks to %.0f V at turn-off: above %.0f V, treat the coil terminals and switch node as hazardous to touch, and use probes and insulation rated for it", m.PeakSwitchVoltage, KickCautionVoltage)
+	}
+	sw := md.Drive.Switch
+	if m.AvalancheEnergy > 0 {
+		note("avalanche energy", "caution", "the switch reached its breakdown voltage (%.0f V) and absorbed %s in avalanche: check its single-pulse and repetitive avalanche ratings at the operating rate and temperature", sw.BreakdownVoltage, formatEnergy(m.AvalancheEnergy))
+	}
+	if md.Drive.Suppressor.Kind == circuit.None {
+		note("peak switch voltage", "caution", "no suppression part is fitted: every turn-off dumps the coil's stored energy into the switch; a clamp or freewheel path is the usual practice")
+	}
+	if lim.SwitchVoltage > 0 && m.PeakSwitchVoltage > 0.8*lim.SwitchVoltage && m.PeakSwitchVoltage <= lim.SwitchVoltage {
+		note("peak switch voltage", "warning", "the switch voltage peak is within 20 %% of its rating (common derating practice, no source)")
+	}
+	if md.Temperature > HotSurfaceCaution {
+		note("", "caution", "the winding runs at %.0f degC: its surface may be hot enough to burn", md.Temperature-273.15)
+	}
+	if r := m.EnergyResidualRel(); r > ResidualWarning {
+		note("energy residual", "warning", "the energy balance leaves %.2g of the supply energy unexplained: tighten the solver tolerance", r)
+	}
+	note("", "info", "these are model estimates from the data in the scenario; confirm on the bench, and follow local electrical codes and licensed practice for wiring, insulation and protection")
+	return a
+}
+
+// formatEnergy writes an energy with a convenient prefix.
+func formatEnergy(j float64) string {
+	switch a := math.Abs(j); {
+	case a >= 1:
+		return fmt.Sprintf("%.3g J", j)
+	case a >= 1e-3:
+		return fmt.Sprintf("%.3g mJ", j*1e3)
+	default:
+		return fmt.Sprintf("%.3g µJ", j*1e6)
+	}
+}
