@@ -155,3 +155,53 @@ func TestClampEnergy(t *testing.T) {
 		}
 	}
 }
+
+func TestSnubberRLCResponse(t *testing.T) {
+	t.Parallel()
+	const v0, r, l, rs, cs = 24.0, 48.0, 0.1, 100.0, 100e-9
+	md := fixedModel(t, v0, r, l, circuit.Suppressor{Kind: circuit.Snubber, Resistance: rs, Capacitance: cs})
+	if !md.Stiff() {
+		t.Fatal("a snubber model should be integrated as stiff")
+	}
+	res, err := Simulate(md, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	tOff := md.Timing.DeenergizeAt
+	i0 := res.Metrics.CurrentAtTurnOff
+	vs0 := r * i0 // snubber capacitor charged to the coil's DC voltage
+	// source: natural response of a series RLC loop,
+	// i'' + (R/L) i' + i/(LC) = 0, i(0) = I0, L·i'(0) = vC(0) − R·I0:
+	// i = e^(−αt)(I0 cos ωd t + B sin ωd t), α = R/2L, ωd = √(1/LC − α²),
+	// B = (i'(0) + α I0)/ωd (any circuits textbook, e.g. Hayt & Kemmerly ch. 9).
+	rt := r + rs
+	alpha := rt / (2 * l)
+	wd := math.Sqrt(1/(l*cs) - alpha*alpha)
+	b := ((vs0-rt*i0)/l + alpha*i0) / wd
+	// The ring swings the switch node below ground after half a period,
+	// where the switch's body diode takes over: compare up to then.
+	tEnd := tOff + 3e-3
+	for _, e := range res.Events {
+		if e.Time > tOff && e.Time < tEnd {
+			tEnd = e.Time
+		}
+	}
+	const tol = 1e-4 // of I0; second-order method
+	worst, n := 0.0, 0
+	for k, tt := range res.Trace.Time {
+		s := tt - tOff
+		if s <= 0 || tt >= tEnd {
+			continue
+		}
+		want := math.Exp(-alpha*s) * (i0*math.Cos(wd*s) + b*math.Sin(wd*s))
+		worst = math.Max(worst, math.Abs(res.Trace.Current[k]-want)/i0)
+		n++
+	}
+	if n < 20 || worst > tol {
+		t.Errorf("snubber RLC ring: worst error %.3g of I0 over %d samples, want <= %g", worst, n, tol)
+	}
+	if r := res.Metrics.EnergyResidualRel(); r > 1e-4 {
+		t.Errorf("snubber energy residual %.3g", r)
+	}
+	t.Logf("snubber: worst %.3g of I0 over %d samples; %+v", worst, n, res.Stats)
+}

@@ -1,0 +1,145 @@
+package coilkick
+
+import (
+	"math"
+	"path/filepath"
+	"testing"
+)
+
+// demoScenarios lists the committed demo scenarios.
+func demoScenarios(t testing.TB) []string {
+	files, err := filepath.Glob("scenarios/*.yaml")
+	if err != nil || len(files) < 3 {
+		t.Fatalf("demo scenarios: %v, %d files", err, len(files))
+	}
+	return files
+}
+
+func TestDemoEnergyBalance(t *testing.T) {
+	t.Parallel()
+	// source: conservation of energy: supply energy = resistive + switch +
+	// clamp losses + mechanical work + change of stored magnetic and
+	// capacitor energy (first law; the residual must be numerical only).
+	const maxResidual = 1e-4
+	for _, f := range demoScenarios(t) {
+		md, err := LoadModel(f)
+		if err != nil {
+			t.Fatal(err)
+		}
+		res, err := Simulate(md, nil)
+		if err != nil {
+			t.Fatalf("%s: %v", f, err)
+		}
+		m := res.Metrics
+		if r := m.EnergyResidualRel(); !(r < maxResidual) {
+			t.Errorf("%s: energy residual %.3g of supply energy, want < %g", f, r, maxResidual)
+		}
+		if !m.PullIn.Happened || !m.Release.Happened {
+			t.Errorf("%s: demo should pull in and release: %+v", f, m)
+		}
+		for _, v := range []float64{m.PeakCurrent, m.PeakSwitchVoltage, m.ClampEnergy, m.SupplyEnergy, m.EnergyResidual} {
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				t.Errorf("%s: non-finite metric in %+v", f, m)
+			}
+		}
+	}
+}
+
+func TestDidNotPullIn(t *testing.T) {
+	t.Parallel()
+	md, err := LoadModel("scenarios/irrigation-valve.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	// The gap-law pull at the rest gap and full current is
+	// ½·i²·|dL/dx|; a preload twice that can never be overcome.
+	i := md.Drive.Supply.Voltage / md.CoilResistance()
+	md.Plunger.Spring.Preload = 2 * md.Magnet.Force(i, md.Plunger.GapMax)
+	res, err := Simulate(md, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if res.Metrics.PullIn.Happened || res.Metrics.MotionDelay.Happened {
+		t.Errorf("spring too strong: pull-in %+v, motion %+v; want neither", res.Metrics.PullIn, res.Metrics.MotionDelay)
+	}
+	as := md.Assess(res)
+	found := false
+	for _, c := range as.Checks {
+		if c.Name == "pull-in time" {
+			found = true
+			if c.Pass || c.Happened {
+				t.Errorf("pull-in check = %+v, want a failure with no value", c)
+			}
+		}
+	}
+	if !found {
+		t.Error("no pull-in check in the assessment")
+	}
+}
+
+func TestPullInConverged(t *testing.T) {
+	t.Parallel()
+	// The design's accuracy target: halving the tolerance changes the
+	// pull-in time by less than 0.1 %.
+	for _, f := range demoScenarios(t) {
+		md, err := LoadModel(f)
+		if err != nil {
+			t.Fatal(err)
+		}
+		a, err := Simulate(md, &Options{NoTrace: true})
+		if err != nil {
+			t.Fatal(err)
+		}
+		b, err := Simulate(md, &Options{NoTrace: true, Tolerance: DefaultTolerance / 2})
+		if err != nil {
+			t.Fatal(err)
+		}
+		pa, pb := a.Metrics.PullIn.Seconds, b.Metrics.PullIn.Seconds
+		if d := math.Abs(pa-pb) / pb; d > 1e-3 {
+			t.Errorf("%s: pull-in %.9g s vs %.9g s at half tolerance (%.2g)", f, pa, pb, d)
+		}
+		ra, rb := a.Metrics.Release.Seconds, b.Metrics.Release.Seconds
+		if d := math.Abs(ra-rb) / rb; d > 1e-3 {
+			t.Errorf("%s: release %.9g s vs %.9g s at half tolerance (%.2g)", f, ra, rb, d)
+		}
+		t.Logf("%s: pull-in %.9g / %.9g s", f, pa, pb)
+	}
+}
+
+func TestStepBudgetError(t *testing.T) {
+	t.Parallel()
+	md, err := LoadModel("scenarios/door-latch.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	_, err = Simulate(md, &Options{MaxSteps: 100})
+	if err == nil || !errorsIs(err, ErrStepBudget) {
+		t.Fatalf("Simulate with 100 steps: %v, want the step budget error", err)
+	}
+}
+
+func BenchmarkActuationIrrigationValve(b *testing.B) {
+	md, err := LoadModel("scenarios/irrigation-valve.yaml")
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := Simulate(md, &Options{NoTrace: true}); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+func BenchmarkActuationDoorLatchAvalanche(b *testing.B) {
+	md, err := LoadModel("scenarios/door-latch.yaml")
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := Simulate(md, &Options{NoTrace: true}); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
