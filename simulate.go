@@ -108,7 +108,9 @@ func (r *run) guards(_ float64, y, g []float64) int {
 	return n
 }
 
-const settleTol = 1e-12
+// settleTol is how far past zero a guard must be for settle to change
+// mode (V, A, N or m: all far below anything that matters).
+const settleTol = 1e-9
 
 func (r *run) event(t float64, y []float64, k int) (bool, error) {
 	m := &r.res.Metrics
@@ -180,8 +182,14 @@ func (r *run) circuitChange(t float64, y []float64, to circuit.Mode) {
 	if to == circuit.Off {
 		r.solve(y)
 		y[sSwitchC] = r.pt.SwitchVoltage // capacitor leaves the pinned voltage
-		if r.drive.Open() {
-			y[sFlux] = 0 // no path: current and flux are zero (no permanent magnet)
+		if r.drive.Suppressor.Kind != circuit.Snubber {
+			// The coil current itself reached zero (located to within
+			// ~1e-13 s): make it exactly zero, so that the pinned voltage
+			// the capacitor keeps is consistent. No permanent magnet:
+			// zero current is zero flux linkage.
+			y[sFlux] = 0
+			r.solve(y)
+			y[sSwitchC] = r.pt.SwitchVoltage
 		}
 		r.note(t, "%s stops conducting", r.drive.ClampName(from))
 		if m := &r.res.Metrics; r.offDone && !m.ClampConduction.Happened {
@@ -276,7 +284,8 @@ func (r *run) settle(t float64, y []float64) error {
 			return nil
 		}
 	}
-	return fmt.Errorf("modes do not settle at t = %.12g s (circuit %v, plunger %v)", t, r.cmode, r.mmode)
+	nc, n := r.guardsAt(y, r.g[:])
+	return fmt.Errorf("modes do not settle at t = %.12g s (circuit %v, plunger %v, guards %v|%v)", t, r.cmode, r.mmode, r.g[:nc], r.g[nc:n])
 }
 
 // peaks updates the extremes with the outputs o of the current mode.

@@ -1,0 +1,900 @@
+package coilkick
+
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"regexp"
+	"sort"
+	"strconv"
+	"strings"
+
+	"gopkg.in/yaml.v3"
+)
+
+// Load reads and checks the scenario file at path. See Parse for the
+// file's keys, units and defaults.
+func Load(path string) (*Scenario, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		var pe *os.PathError
+		if errors.As(err, &pe) {
+			err = pe.Err
+		}
+		return nil, fmt.Errorf("%s: cannot read scenario file: %v", path, err)
+	}
+	return Parse(data, path)
+}
+
+// Parse reads a scenario from YAML text. name (the file's path) is used in
+// messages, becomes Scenario.Source, and its folder is where a magnet
+// table file is looked for (the current folder when name is ""). Every error names name:line:column, the
+// field's path (such as "plunger.mass") and, for quantities, the expected
+// dimension with an example; all errors found are returned together.
+//
+// Quantities are written as text with a unit ("24 V", "250 mH", "1.2 mm",
+// "0.8 N/mm", "3 bar", "20 degC"); see ParseQuantity. A bare number is
+// accepted only where a plain number is meant. Keys are lower case with
+// spaces. Unknown keys, duplicate keys, empty values and keys that do not
+// apply (to the suppression type, say) are errors.
+//
+// Keys (required unless marked optional) and the defaults of optional ones:
+//
+//	name: text                                  optional, default ""
+//	supply:
+//	  voltage: 24 V                             > 0
+//	  source resistance: 0.5 ohm                optional, default 0; >= 0
+//	coil:
+//	  resistance: 48 ohm                        > 0, at the reference temperature
+//	  reference temperature: 20 degC            optional, default 20 degC (293.15 K)
+//	  temperature: 40 degC                      optional, default: the reference temperature
+//	  temperature coefficient: 0.00393 /K       optional, default 0.00393 /K (annealed copper,
+//	                                            IEC 60028); the resistance at the run
+//	                                            temperature must stay > 0
+//	  turns: 1800                               optional plain number > 0; default 0 (not given)
+//	magnet:                                     exactly one of "gap law" and "table"
+//	  gap law:
+//	    closed inductance: 250 mH               > 0, at the seated gap
+//	    open inductance: 120 mH                 > 0, < closed inductance
+//	    pole area: 50 mm2                       optional, default 0 (not given); > 0; needs coil.turns
+//	  table:
+//	    file: valve_flux.csv                    relative to the scenario file's folder; must exist
+//	    current unit: A                         unit of the table's currents
+//	    gap unit: mm                            unit of the table's gaps
+//	    flux linkage unit: mWb                  unit of the table's flux linkages
+//	plunger:
+//	  mass: 6 g                                 > 0
+//	  rest gap: 1.2 mm                          > seated gap
+//	  seated gap: 0.05 mm                       >= 0
+//	  spring preload: 2 N                       >= 0, spring force at the rest gap
+//	  spring rate: 0.8 N/mm                     >= 0
+//	  damping: 0.5 N*s/m                        optional, default 0; >= 0
+//	  restitution: 0.3                          optional plain number 0..1, default 0
+//	  stick speed: 0.05 m/s                     optional, default 0.05 m/s; > 0
+//	  load:                                     optional section
+//	    constant force: 0.5 N                   optional, default 0; any sign, > 0 pushes the gap open
+//	    pressure: 3 bar                         optional, default 0 (none); >= 0; when given,
+//	                                            seal travel and exactly one of orifice
+//	                                            diameter / orifice area are required
+//	    orifice diameter: 1.2 mm                > 0; OrificeArea = π d²/4
+//	    orifice area: 1.1 mm2                   > 0
+//	    seal travel: 0.3 mm                     > 0, <= rest gap − seated gap
+//	switch:
+//	  on resistance: 50 mohm                    >= 0
+//	  output capacitance: 300 pF                optional, default 0 (ideal edges); >= 0
+//	  breakdown voltage: 60 V                   > supply voltage
+//	  body diode drop: 0.7 V                    optional, default 0.7 V; > 0
+//	suppression:
+//	  type: freewheel diode                     none | freewheel diode | diode zener | tvs |
+//	                                            rc snubber | switch clamp
+//	  forward drop: 0.8 V                       freewheel diode, diode zener: required, > 0
+//	  zener voltage: 33 V                       diode zener: required, > 0
+//	  clamp voltage: 36 V                       tvs: required, > supply voltage;
+//	                                            switch clamp: required, > supply voltage
+//	                                            and < breakdown voltage
+//	  resistance: 0.2 ohm                       freewheel diode, diode zener, tvs, switch clamp:
+//	                                            optional, default 0, >= 0;
+//	                                            rc snubber: required, > 0
+//	  capacitance: 100 nF                       rc snubber: required, > 0
+//	timing:
+//	  energize at: 1 ms                         optional, default 0; >= 0
+//	  de-energize at: 100 ms                    > energize at
+//	  end: 200 ms                               > de-energize at
+//	ratings:                                    optional section; every key optional and,
+//	                                            when given, > 0; a missing key is not checked
+//	  switch voltage: 60 V                      -> Limits.SwitchVoltage
+//	  avalanche energy: 20 mJ                   -> Limits.AvalancheEnergy
+//	  clamp energy: 50 mJ                       -> Limits.ClampEnergy
+//	  clamp current: 2 A                        -> Limits.ClampCurrent
+//	  pull-in time: 30 ms                       -> Limits.MaxPullIn (a maximum)
+//	  release time: 20 ms                       -> Limits.MaxRelease (a maximum)
+//	  drop time: 40 ms                          -> Limits.MaxDrop (a maximum)
+//	solver:                                     optional section
+//	  tolerance: 1e-8                           optional plain number in [1e-12, 1e-3];
+//	                                            default 0 (the integrator's own)
+//	  max steps: 500000                         optional whole number > 0 (5e5 is accepted);
+//	                                            default 0 (the integrator's own)
+//
+// A key given with no value ("mass:") is an error, even for an optional
+// key; an optional section given empty ("ratings:") counts as empty.
+func Parse(data []byte, name string) (s *Scenario, err error) {
+	defer func() {
+		if r := recover(); r != nil {
+			s, err = nil, fmt.Errorf("%sinternal error while reading the scenario (please report this): %v", filePrefix(name), r)
+		}
+	}()
+	s = &Scenario{Source: name, pos: map[string]Pos{}}
+	if len(bytes.TrimSpace(data)) == 0 {
+		return nil, fmt.Errorf("%sfile is empty", filePrefix(name))
+	}
+	dec := yaml.NewDecoder(bytes.NewReader(data))
+	var doc yaml.Node
+	if err := dec.Decode(&doc); err != nil {
+		if err == io.EOF {
+			return nil, fmt.Errorf("%sfile is empty (it has only comments or blank lines)", filePrefix(name))
+		}
+		return nil, yamlError(name, err)
+	}
+	var second yaml.Node
+	switch err := dec.Decode(&second); {
+	case err == io.EOF:
+	case err != nil:
+		return nil, yamlError(name, err)
+	default:
+		return nil, fmt.Errorf("%s:%d: a second YAML document starts here; a scenario file holds one", name, second.Line)
+	}
+
+	l := &scenarioLoader{s: s, name: name, text: map[string]string{}, ok: map[string]bool{}}
+	l.dir = "."
+	if name != "" {
+		l.dir = filepath.Dir(name)
+	}
+	root := &doc
+	if root.Kind == yaml.DocumentNode && len(root.Content) == 1 {
+		root = root.Content[0]
+	}
+	root = derefAlias(root)
+	if root.Kind == yaml.ScalarNode && root.Tag == "!!null" {
+		return nil, fmt.Errorf("%sfile is empty (it has no keys)", filePrefix(name))
+	}
+	l.load(root)
+	if len(l.errs) > 0 {
+		return nil, l.joined()
+	}
+	return s, nil
+}
+
+// filePrefix is "name: ", or "" for a scenario without a file name.
+func filePrefix(name string) string {
+	if name == "" {
+		return ""
+	}
+	return name + ": "
+}
+
+var yamlLineRE = regexp.MustCompile(`^yaml: line (\d+): (.*)$`)
+
+// yamlError turns a yaml.v3 syntax error into "name:line: not valid YAML: ...".
+func yamlError(name string, err error) error {
+	msg := err.Error()
+	if m := yamlLineRE.FindStringSubmatch(msg); m != nil {
+		if name == "" {
+			return fmt.Errorf("line %s: not valid YAML: %s", m[1], m[2])
+		}
+		return fmt.Errorf("%s:%s: not valid YAML: %s", name, m[1], m[2])
+	}
+	return fmt.Errorf("%snot valid YAML: %s", filePrefix(name), strings.TrimPrefix(msg, "yaml: "))
+}
+
+// scenarioLoader walks the YAML tree into a Scenario, collecting errors.
+type scenarioLoader struct {
+	s    *Scenario
+	name string
+	dir  string
+	errs []loadError
+	text map[string]string // field path -> the value as written
+	ok   map[string]bool   // field path -> value read (or defaulted) and in range
+}
+
+type loadError struct {
+	pos Pos
+	msg string
+}
+
+const maxLoadErrors = 20
+
+func (l *scenarioLoader) joined() error {
+	sort.SliceStable(l.errs, func(i, j int) bool {
+		a, b := l.errs[i].pos, l.errs[j].pos
+		if a.Line != b.Line {
+			return a.Line < b.Line
+		}
+		return a.Column < b.Column
+	})
+	var msgs []string
+	seen := map[string]bool{}
+	for _, e := range l.errs {
+		if seen[e.msg] {
+			continue
+		}
+		seen[e.msg] = true
+		msgs = append(msgs, e.msg)
+	}
+	if len(msgs) > maxLoadErrors {
+		n := len(msgs) - maxLoadErrors
+		msgs = append(msgs[:maxLoadErrors], fmt.Sprintf("%s(%d more errors not shown)", filePrefix(l.name), n))
+	}
+	return errors.New(strings.Join(msgs, "\n"))
+}
+
+// errAt records an error about field at p (a zero p: the file alone),
+// in the same form as Scenario.Errorf.
+func (l *scenarioLoader) errAt(field string, p Pos, format string, args ...any) {
+	msg := fmt.Sprintf(format, args...)
+	var full string
+	switch {
+	case p.Line > 0 && l.name != "":
+		full = fmt.Sprintf("%s:%d:%d: %s: %s", l.name, p.Line, p.Column, field, msg)
+	case p.Line > 0:
+		full = fmt.Sprintf("line %d, column %d: %s: %s", p.Line, p.Column, field, msg)
+	default:
+		full = fmt.Sprintf("%s%s: %s", filePrefix(l.name), field, msg)
+	}
+	l.errs = append(l.errs, loadError{p, full})
+}
+
+// errf records an error at the recorded position of field.
+func (l *scenarioLoader) errf(field, format string, args ...any) {
+	l.errAt(field, l.s.pos[field], format, args...)
+}
+
+func nodePos(n *yaml.Node) Pos { return Pos{Line: n.Line, Column: n.Column} }
+
+// derefAlias follows YAML aliases (*name) to the node they stand for.
+func derefAlias(n *yaml.Node) *yaml.Node {
+	for i := 0; n != nil && n.Kind == yaml.AliasNode && n.Alias != nil && i < 100; i++ {
+		n = n.Alias
+	}
+	return n
+}
+
+func fieldPath(path, key string) string {
+	if path == "" {
+		return key
+	}
+	return path + "." + key
+}
+
+// describeNode names a node's kind for messages.
+func describeNode(n *yaml.Node) string {
+	switch n.Kind {
+	case yaml.SequenceNode:
+		return "a list"
+	case yaml.MappingNode:
+		return "a section of keys"
+	case yaml.ScalarNode:
+		if n.Tag == "!!null" {
+			return "nothing"
+		}
+		v := n.Value
+		if r := []rune(v); len(r) > 40 {
+			v = string(r[:40]) + "..."
+		}
+		return fmt.Sprintf("the value %q", v)
+	case yaml.AliasNode:
+		return "an unresolved alias"
+	}
+	return "something else"
+}
+
+// yamlSection is one YAML mapping of the scenario, checked for unknown and
+// duplicate keys.
+type yamlSection struct {
+	path string
+	pos  Pos // where the section's key was written (the root: its first key)
+	vals map[string]*yaml.Node
+}
+
+// section checks that n is a mapping whose keys are all in allowed and
+// records each key's position. n == nil or an empty value gives an empty
+// section. It returns nil when n is not a mapping (the error is recorded).
+func (l *scenarioLoader) section(path string, at Pos, n *yaml.Node, allowed []string) *yamlSection {
+	sec := &yamlSection{path: path, pos: at, vals: map[string]*yaml.Node{}}
+	if n == nil {
+		return sec
+	}
+	n = derefAlias(n)
+	if n.Kind == yaml.ScalarNode && n.Tag == "!!null" {
+		return sec
+	}
+	where := "section " + path
+	if path == "" {
+		where = "top level"
+	}
+	if n.Kind != yaml.MappingNode {
+		field := path
+		if field == "" {
+			field = "(top level)"
+		}
+		l.errAt(field, nodePos(n), "expected a section of keys (%s), got %s", strings.Join(allowed, ", "), describeNode(n))
+		return nil
+	}
+	keyPos := map[string]Pos{}
+	for i := 0; i+1 < len(n.Content); i += 2 {
+		k, v := derefAlias(n.Content[i]), derefAlias(n.Content[i+1])
+		if k.Kind != yaml.ScalarNode {
+			l.errAt(fieldPath(path, "?"), nodePos(k), "a key must be a plain word, got %s", describeNode(k))
+			continue
+		}
+		field := fieldPath(path, k.Value)
+		if first, dup := keyPos[k.Value]; dup {
+			l.errAt(field, nodePos(k), "duplicate key %q (first given at line %d)", k.Value, first.Line)
+			continue
+		}
+		keyPos[k.Value] = nodePos(k)
+		if !containsKey(allowed, k.Value) {
+			hint := ""
+			if h := suggestKey(k.Value, allowed); h != "" {
+				hint = fmt.Sprintf(" (did you mean %q?)", h)
+			}
+			l.errAt(field, nodePos(k), "unknown key %q in the %s%s; allowed keys: %s", k.Value, where, hint, strings.Join(allowed, ", "))
+			continue
+		}
+		// Point later checks at the value (a single value or a list), else
+		// at the key (sections, empty values).
+		p := nodePos(k)
+		if ((v.Kind == yaml.ScalarNode && v.Tag != "!!null") || v.Kind == yaml.SequenceNode) && v.Line > 0 {
+			p = nodePos(v)
+		}
+		l.s.pos[field] = p
+		sec.vals[k.Value] = v
+	}
+	return sec
+}
+
+func containsKey(list []string, s string) bool {
+	for _, x := range list {
+		if x == s {
+			return true
+		}
+	}
+	return false
+}
+
+// suggestKey finds an allowed key that differs from key only in case,
+// underscores or hyphens.
+func suggestKey(key string, allowed []string) string {
+	norm := func(s string) string {
+		return strings.NewReplacer("_", " ", "-", " ").Replace(strings.ToLower(strings.TrimSpace(s)))
+	}
+	for _, a := range allowed {
+		if norm(a) == norm(key) {
+			return a
+		}
+	}
+	return ""
+}
+
+// has reports whether the section gives key.
+func (sec *yamlSection) has(key string) bool {
+	if sec == nil {
+		return false
+	}
+	_, ok := sec.vals[key]
+	return ok
+}
+
+// sub returns the sub-section key of sec (nil when absent or not a map).
+func (l *scenarioLoader) sub(sec *yamlSection, key string, allowed []string) *yamlSection {
+	if sec == nil {
+		return nil
+	}
+	n, ok := sec.vals[key]
+	if !ok {
+		return nil
+	}
+	path := fieldPath(sec.path, key)
+	return l.section(path, l.s.pos[path], n, allowed)
+}
+
+// scalar returns the text of sec's key. Missing: "" and false, with an
+// error when required (want describes what is expected).
+func (l *scenarioLoader) scalar(sec *yamlSection, key string, required bool, want string) (string, bool) {
+	if sec == nil {
+		return "", false
+	}
+	path := fieldPath(sec.path, key)
+	n, ok := sec.vals[key]
+	if !ok {
+		if required {
+			l.errAt(path, sec.pos, "missing (required); expected %s", want)
+		}
+		return "", false
+	}
+	if n.Kind != yaml.ScalarNode {
+		l.errf(path, "expected %s, got %s", want, describeNode(n))
+		return "", false
+	}
+	if n.Tag == "!!null" {
+		l.errf(path, "has no value; expected %s", want)
+		return "", false
+	}
+	l.text[path] = n.Value
+	return n.Value, true
+}
+
+// quantity reads a quantity of dimension dim.
+func (l *scenarioLoader) quantity(sec *yamlSection, key string, dim Dim, required bool) (float64, bool) {
+	text, ok := l.scalar(sec, key, required, fmt.Sprintf("%s, e.g. %q", dim.Name(), dim.Example()))
+	if !ok {
+		return 0, false
+	}
+	path := fieldPath(sec.path, key)
+	v, err := ParseQuantity(text, dim)
+	if err != nil {
+		l.errf(path, "%v", err)
+		return 0, false
+	}
+	l.ok[path] = true
+	return v, true
+}
+
+// Range rules for a quantity read from path.
+type rangeRule int
+
+const (
+	ruleAny      rangeRule = iota
+	rulePositive           // > 0
+	ruleNonNeg             // >= 0
+)
+
+// get reads a quantity, checks rule, and stores it in *dst. An optional
+// missing key stores def (describing it as defText for messages).
+func (l *scenarioLoader) get(sec *yamlSection, key string, dim Dim, r rangeRule, dst *float64, required bool, def float64, defText string) bool {
+	if sec == nil {
+		return false
+	}
+	path := fieldPath(sec.path, key)
+	if !sec.has(key) && !required {
+		*dst = def
+		l.ok[path] = true
+		l.text[path] = "default " + defText
+		return true
+	}
+	v, ok := l.quantity(sec, key, dim, required)
+	if !ok {
+		return false
+	}
+	switch {
+	case r == rulePositive && !(v > 0):
+		l.errf(path, "%q must be greater than 0", l.text[path])
+		l.ok[path] = false
+		return false
+	case r == ruleNonNeg && v < 0:
+		l.errf(path, "%q must not be negative", l.text[path])
+		l.ok[path] = false
+		return false
+	}
+	*dst = v
+	return true
+}
+
+// show is how a checked value appears in a cross-field message.
+func (l *scenarioLoader) show(path string) string {
+	t := l.text[path]
+	if strings.HasPrefix(t, "default ") {
+		return "(" + t + ")"
+	}
+	return strconv.Quote(t)
+}
+
+// showAt is show plus the line where the value was written.
+func (l *scenarioLoader) showAt(path string) string {
+	if p, ok := l.s.pos[path]; ok && !strings.HasPrefix(l.text[path], "default ") {
+		return fmt.Sprintf("%s (line %d)", l.show(path), p.Line)
+	}
+	return l.show(path)
+}
+
+// later returns whichever of a and b was written later in the file.
+func (l *scenarioLoader) later(a, b string) string {
+	pa, oka := l.s.pos[a]
+	pb, okb := l.s.pos[b]
+	if strings.HasPrefix(l.text[a], "default ") {
+		oka = false
+	}
+	if strings.HasPrefix(l.text[b], "default ") {
+		okb = false
+	}
+	switch {
+	case !oka:
+		return b
+	case !okb:
+		return a
+	case pb.Line > pa.Line || (pb.Line == pa.Line && pb.Column > pa.Column):
+		return b
+	}
+	return a
+}
+
+// exceed checks vBig > vSmall (or >= when orEqual), reporting at the
+// field written later and naming both.
+func (l *scenarioLoader) exceed(big string, vBig float64, small string, vSmall float64, orEqual bool) {
+	if !l.ok[big] || !l.ok[small] {
+		return
+	}
+	if vBig > vSmall || (orEqual && vBig == vSmall) {
+		return
+	}
+	rel := "greater than"
+	inv := "less than"
+	if orEqual {
+		rel, inv = "at least", "at most"
+	}
+	if l.later(big, small) == big {
+		l.errf(big, "%s must be %s %s %s", l.show(big), rel, small, l.showAt(small))
+	} else {
+		l.errf(small, "%s must be %s %s %s", l.show(small), inv, big, l.showAt(big))
+	}
+}
+
+// Keys of each section.
+var (
+	topKeys         = []string{"name", "supply", "coil", "magnet", "plunger", "switch", "suppression", "timing", "ratings", "solver"}
+	supplyKeys      = []string{"voltage", "source resistance"}
+	coilKeys        = []string{"resistance", "reference temperature", "temperature", "temperature coefficient", "turns"}
+	magnetKeys      = []string{MagnetGapLaw, MagnetTable}
+	gapLawKeys      = []string{"closed inductance", "open inductance", "pole area"}
+	tableKeys       = []string{"file", "current unit", "gap unit", "flux linkage unit"}
+	plungerKeys     = []string{"mass", "rest gap", "seated gap", "spring preload", "spring rate", "damping", "restitution", "stick speed", "load"}
+	loadKeys        = []string{"constant force", "pressure", "orifice diameter", "orifice area", "seal travel"}
+	switchKeys      = []string{"on resistance", "output capacitance", "breakdown voltage", "body diode drop"}
+	suppressionKeys = []string{"type", "forward drop", "zener voltage", "clamp voltage", "resistance", "capacitance"}
+	timingKeys      = []string{"energize at", "de-energize at", "end"}
+	ratingsKeys     = []string{"switch voltage", "avalanche energy", "clamp energy", "clamp current", "pull-in time", "release time", "drop time"}
+	solverKeys      = []string{"tolerance", "max steps"}
+
+	suppressionTypes = []string{SuppressNone, SuppressFreewheel, SuppressDiodeZener, SuppressTVS, SuppressSnubber, SuppressSwitchClamp}
+	// keys that apply to each suppression type, besides "type"
+	suppressionTypeKeys = map[string][]string{
+		SuppressNone:        {},
+		SuppressFreewheel:   {"forward drop", "resistance"},
+		SuppressDiodeZener:  {"forward drop", "zener voltage", "resistance"},
+		SuppressTVS:         {"clamp voltage", "resistance"},
+		SuppressSnubber:     {"resistance", "capacitance"},
+		SuppressSwitchClamp: {"clamp voltage", "resistance"},
+	}
+)
+
+// Defaults of optional keys (see Parse).
+const (
+	defaultRefTemperature = 293.15  // K, 20 °C
+	defaultTempCoeff      = 0.00393 // 1/K, annealed copper at 20 °C (IEC 60028)
+	defaultStickSpeed     = 0.05    // m/s
+	defaultBodyDiodeDrop  = 0.7     // V
+)
+
+func (l *scenarioLoader) load(root *yaml.Node) {
+	top := l.section("", nodePos(root), root, topKeys)
+	if top == nil {
+		return
+	}
+	s := l.s
+	if text, ok := l.scalar(top, "name", false, "a name (text)"); ok {
+		s.Name = text
+	}
+	need := func(key string, keys []string) *yamlSection {
+		if !top.has(key) {
+			l.errAt(key, top.pos, "missing section (required); its keys: %s", strings.Join(keys, ", "))
+			return nil
+		}
+		return l.sub(top, key, keys)
+	}
+	supply := need("supply", supplyKeys)
+	coil := need("coil", coilKeys)
+	magnet := need("magnet", magnetKeys)
+	plunger := need("plunger", plungerKeys)
+	sw := need("switch", switchKeys)
+	supp := need("suppression", suppressionKeys)
+	timing := need("timing", timingKeys)
+	ratings := l.sub(top, "ratings", ratingsKeys)
+	solver := l.sub(top, "solver", solverKeys)
+
+	// supply
+	l.get(supply, "voltage", Voltage, rulePositive, &s.Supply.Voltage, true, 0, "")
+	l.get(supply, "source resistance", Resistance, ruleNonNeg, &s.Supply.SourceResistance, false, 0, "0 ohm")
+
+	l.loadCoil(coil)
+	l.loadMagnet(magnet)
+	l.loadPlunger(plunger)
+
+	// switch
+	l.get(sw, "on resistance", Resistance, ruleNonNeg, &s.Switch.OnResistance, true, 0, "")
+	l.get(sw, "output capacitance", Capacitance, ruleNonNeg, &s.Switch.OutputCapacitance, false, 0, "0 F")
+	l.get(sw, "breakdown voltage", Voltage, rulePositive, &s.Switch.BreakdownVoltage, true, 0, "")
+	l.get(sw, "body diode drop", Voltage, rulePositive, &s.Switch.BodyDiodeDrop, false, defaultBodyDiodeDrop, "0.7 V")
+	l.exceed("switch.breakdown voltage", s.Switch.BreakdownVoltage, "supply.voltage", s.Supply.Voltage, false)
+
+	l.loadSuppression(supp)
+
+	// timing
+	l.get(timing, "energize at", Time, ruleNonNeg, &s.Timing.EnergizeAt, false, 0, "0 s")
+	l.get(timing, "de-energize at", Time, rulePositive, &s.Timing.DeenergizeAt, true, 0, "")
+	l.get(timing, "end", Time, rulePositive, &s.Timing.End, true, 0, "")
+	l.exceed("timing.de-energize at", s.Timing.DeenergizeAt, "timing.energize at", s.Timing.EnergizeAt, false)
+	l.exceed("timing.end", s.Timing.End, "timing.de-energize at", s.Timing.DeenergizeAt, false)
+
+	// ratings: every key optional; a missing key stays 0 (not checked)
+	rating := func(key string, dim Dim, dst *float64) {
+		if ratings.has(key) {
+			l.get(ratings, key, dim, rulePositive, dst, true, 0, "")
+		}
+	}
+	rating("switch voltage", Voltage, &s.Limits.SwitchVoltage)
+	rating("avalanche energy", Energy, &s.Limits.AvalancheEnergy)
+	rating("clamp energy", Energy, &s.Limits.ClampEnergy)
+	rating("clamp current", Current, &s.Limits.ClampCurrent)
+	rating("pull-in time", Time, &s.Limits.MaxPullIn)
+	rating("release time", Time, &s.Limits.MaxRelease)
+	rating("drop time", Time, &s.Limits.MaxDrop)
+
+	// solver
+	if solver.has("tolerance") {
+		var tol float64
+		if l.get(solver, "tolerance", Dimensionless, ruleAny, &tol, true, 0, "") {
+			if tol < 1e-12 || tol > 1e-3 {
+				l.errf("solver.tolerance", "%q must be between 1e-12 and 1e-3", l.text["solver.tolerance"])
+			} else {
+				s.Solver.Tolerance = tol
+			}
+		}
+	}
+	if solver.has("max steps") {
+		var n float64
+		if l.get(solver, "max steps", Dimensionless, rulePositive, &n, true, 0, "") {
+			if n != math.Trunc(n) || n > 1<<53 {
+				l.errf("solver.max steps", "%q must be a whole number", l.text["solver.max steps"])
+			} else {
+				s.Solver.MaxSteps = int(n)
+			}
+		}
+	}
+}
+
+func (l *scenarioLoader) loadCoil(coil *yamlSection) {
+	if coil == nil {
+		return
+	}
+	c := &l.s.Coil
+	l.get(coil, "resistance", Resistance, rulePositive, &c.Resistance, true, 0, "")
+	l.get(coil, "reference temperature", Temperature, ruleAny, &c.RefTemperature, false, defaultRefTemperature, "20 degC")
+	if coil.has("temperature") {
+		l.get(coil, "temperature", Temperature, ruleAny, &c.Temperature, true, 0, "")
+	} else if l.ok["coil.reference temperature"] {
+		c.Temperature = c.RefTemperature
+		l.ok["coil.temperature"] = true
+		l.text["coil.temperature"] = "default reference temperature"
+	}
+	l.get(coil, "temperature coefficient", PerKelvin, ruleAny, &c.TempCoeff, false, defaultTempCoeff, "0.00393 /K")
+	if coil.has("turns") {
+		l.get(coil, "turns", Dimensionless, rulePositive, &c.Turns, true, 0, "")
+	}
+	// The winding resistance at the run temperature must stay positive.
+	if l.ok["coil.resistance"] && l.ok["coil.reference temperature"] && l.ok["coil.temperature"] && l.ok["coil.temperature coefficient"] {
+		if f := 1 + c.TempCoeff*(c.Temperature-c.RefTemperature); !(f > 0) {
+			at := l.later("coil.temperature coefficient", "coil.temperature")
+			l.errf(at, "coil.temperature coefficient %s at coil.temperature %s gives a resistance of zero or less",
+				l.show("coil.temperature coefficient"), l.show("coil.temperature"))
+		}
+	}
+}
+
+func (l *scenarioLoader) loadMagnet(magnet *yamlSection) {
+	if magnet == nil {
+		return
+	}
+	m := &l.s.Magnet
+	hasGap, hasTable := magnet.has(MagnetGapLaw), magnet.has(MagnetTable)
+	switch {
+	case !hasGap && !hasTable:
+		l.errAt("magnet", magnet.pos, "needs one of the sections %q or %q", MagnetGapLaw, MagnetTable)
+		return
+	case hasGap && hasTable:
+		at := l.later("magnet."+MagnetGapLaw, "magnet."+MagnetTable)
+		l.errf(at, "give either %q or %q, not both", MagnetGapLaw, MagnetTable)
+		return
+	}
+	if hasGap {
+		m.Kind = MagnetGapLaw
+		g := l.sub(magnet, MagnetGapLaw, gapLawKeys)
+		if g == nil {
+			return
+		}
+		l.get(g, "closed inductance", Inductance, rulePositive, &m.ClosedInductance, true, 0, "")
+		l.get(g, "open inductance", Inductance, rulePositive, &m.OpenInductance, true, 0, "")
+		l.exceed("magnet.gap law.closed inductance", m.ClosedInductance, "magnet.gap law.open inductance", m.OpenInductance, false)
+		if g.has("pole area") {
+			if l.get(g, "pole area", Area, rulePositive, &m.PoleArea, true, 0, "") && !l.ok["coil.turns"] {
+				l.errf("magnet.gap law.pole area", "needs coil.turns, which is not given")
+			}
+		}
+		return
+	}
+	m.Kind = MagnetTable
+	t := l.sub(magnet, MagnetTable, tableKeys)
+	if t == nil {
+		return
+	}
+	if file, ok := l.scalar(t, "file", true, `a file name, e.g. "valve_flux.csv"`); ok {
+		path := "magnet.table.file"
+		resolved := file
+		if !filepath.IsAbs(file) {
+			resolved = filepath.Join(l.dir, file)
+		}
+		switch fi, err := os.Stat(resolved); {
+		case strings.TrimSpace(file) == "":
+			l.errf(path, "is empty; expected a file name")
+		case err != nil:
+			l.errf(path, "table file %q not found (looked for %s, relative to the scenario file's folder)", file, resolved)
+		case fi.IsDir():
+			l.errf(path, "%q is a folder, not a table file", resolved)
+		default:
+			m.TableFile = resolved
+		}
+	}
+	l.unit(t, "current unit", Current, "A", &m.CurrentScale)
+	l.unit(t, "gap unit", Length, "mm", &m.GapScale)
+	l.unit(t, "flux linkage unit", FluxLinkage, "mWb", &m.FluxScale)
+}
+
+// unit reads a unit alone (such as "mWb") and stores its SI value.
+func (l *scenarioLoader) unit(sec *yamlSection, key string, dim Dim, example string, dst *float64) {
+	want := fmt.Sprintf("a unit of %s, e.g. %q", strings.SplitN(dim.Name(), " ", 2)[1], example)
+	text, ok := l.scalar(sec, key, true, want)
+	if !ok {
+		return
+	}
+	path := fieldPath(sec.path, key)
+	u := strings.TrimSpace(text)
+	if u == "" {
+		l.errf(path, "is empty; expected %s", want)
+		return
+	}
+	if _, _, _, isNum := splitNumber(u); isNum {
+		l.errf(path, "%q is not a unit; expected %s", text, want)
+		return
+	}
+	pu, err := parseUnit(u)
+	if err != nil {
+		l.errf(path, "%q: %v; expected %s", text, err, want)
+		return
+	}
+	if pu.dim != dim {
+		l.errf(path, "%q is a unit of %s; expected %s", text, strings.SplitN(pu.dim.Name(), " ", 2)[1], want)
+		return
+	}
+	v, err := ParseQuantity("1 "+u, dim)
+	if err != nil {
+		l.errf(path, "%q: %v", text, err)
+		return
+	}
+	*dst = v
+	l.ok[path] = true
+}
+
+func (l *scenarioLoader) loadPlunger(pl *yamlSection) {
+	if pl == nil {
+		return
+	}
+	p := &l.s.Plunger
+	l.get(pl, "mass", Mass, rulePositive, &p.Mass, true, 0, "")
+	l.get(pl, "rest gap", Length, rulePositive, &p.RestGap, true, 0, "")
+	l.get(pl, "seated gap", Length, ruleNonNeg, &p.SeatedGap, true, 0, "")
+	l.exceed("plunger.rest gap", p.RestGap, "plunger.seated gap", p.SeatedGap, false)
+	l.get(pl, "spring preload", Force, ruleNonNeg, &p.SpringPreload, true, 0, "")
+	l.get(pl, "spring rate", ForcePerLength, ruleNonNeg, &p.SpringRate, true, 0, "")
+	l.get(pl, "damping", Damping, ruleNonNeg, &p.Damping, false, 0, "0 N*s/m")
+	if pl.has("restitution") {
+		if l.get(pl, "restitution", Dimensionless, ruleNonNeg, &p.Restitution, true, 0, "") && p.Restitution > 1 {
+			l.errf("plunger.restitution", "%q must be between 0 and 1", l.text["plunger.restitution"])
+		}
+	}
+	l.get(pl, "stick speed", Velocity, rulePositive, &p.StickSpeed, false, defaultStickSpeed, "0.05 m/s")
+
+	ld := l.sub(pl, "load", loadKeys)
+	if ld == nil {
+		return
+	}
+	l.get(ld, "constant force", Force, ruleAny, &p.ConstantLoad, false, 0, "0 N")
+	if !ld.has("pressure") {
+		for _, k := range []string{"orifice diameter", "orifice area", "seal travel"} {
+			if ld.has(k) {
+				l.errf("plunger.load."+k, "applies only when plunger.load.pressure is given")
+			}
+		}
+		return
+	}
+	l.get(ld, "pressure", Pressure, ruleNonNeg, &p.Pressure, true, 0, "")
+	hasD, hasA := ld.has("orifice diameter"), ld.has("orifice area")
+	switch {
+	case hasD && hasA:
+		at := l.later("plunger.load.orifice diameter", "plunger.load.orifice area")
+		l.errf(at, "give either plunger.load.orifice diameter or plunger.load.orifice area, not both")
+	case hasD:
+		var d float64
+		if l.get(ld, "orifice diameter", Length, rulePositive, &d, true, 0, "") {
+			p.OrificeArea = math.Pi * d * d / 4
+		}
+	case hasA:
+		l.get(ld, "orifice area", Area, rulePositive, &p.OrificeArea, true, 0, "")
+	default:
+		l.errf("plunger.load.pressure", "needs plunger.load.orifice diameter or plunger.load.orifice area")
+	}
+	if !ld.has("seal travel") {
+		l.errf("plunger.load.pressure", "needs plunger.load.seal travel, e.g. \"0.3 mm\"")
+		return
+	}
+	if l.get(ld, "seal travel", Length, rulePositive, &p.SealTravel, true, 0, "") &&
+		l.ok["plunger.rest gap"] && l.ok["plunger.seated gap"] && p.RestGap > p.SeatedGap {
+		if stroke := p.RestGap - p.SeatedGap; p.SealTravel > stroke {
+			l.errf("plunger.load.seal travel", "%s must not exceed the stroke plunger.rest gap − plunger.seated gap = %s − %s (lines %d, %d)",
+				l.show("plunger.load.seal travel"), l.show("plunger.rest gap"), l.show("plunger.seated gap"),
+				l.s.pos["plunger.rest gap"].Line, l.s.pos["plunger.seated gap"].Line)
+		}
+	}
+}
+
+func (l *scenarioLoader) loadSuppression(sec *yamlSection) {
+	if sec == nil {
+		return
+	}
+	sp := &l.s.Suppression
+	kind, ok := l.scalar(sec, "type", true, "one of: "+strings.Join(suppressionTypes, ", "))
+	if !ok {
+		return
+	}
+	if !containsKey(suppressionTypes, kind) {
+		hint := ""
+		if h := suggestKey(kind, suppressionTypes); h != "" {
+			hint = fmt.Sprintf(" (did you mean %q?)", h)
+		}
+		l.errf("suppression.type", "unknown suppression type %q%s; expected one of: %s", kind, hint, strings.Join(suppressionTypes, ", "))
+		return
+	}
+	sp.Kind = kind
+	applies := suppressionTypeKeys[kind]
+	for _, k := range suppressionKeys[1:] {
+		if sec.has(k) && !containsKey(applies, k) {
+			list := "only type"
+			if len(applies) > 0 {
+				list = "type, " + strings.Join(applies, ", ")
+			}
+			l.errf("suppression."+k, "does not apply to suppression type %q (its keys: %s)", kind, list)
+		}
+	}
+	switch kind {
+	case SuppressFreewheel:
+		l.get(sec, "forward drop", Voltage, rulePositive, &sp.ForwardDrop, true, 0, "")
+		l.get(sec, "resistance", Resistance, ruleNonNeg, &sp.Resistance, false, 0, "0 ohm")
+	case SuppressDiodeZener:
+		l.get(sec, "forward drop", Voltage, rulePositive, &sp.ForwardDrop, true, 0, "")
+		l.get(sec, "zener voltage", Voltage, rulePositive, &sp.ZenerVoltage, true, 0, "")
+		l.get(sec, "resistance", Resistance, ruleNonNeg, &sp.Resistance, false, 0, "0 ohm")
+	case SuppressTVS:
+		l.get(sec, "clamp voltage", Voltage, rulePositive, &sp.ClampVoltage, true, 0, "")
+		l.get(sec, "resistance", Resistance, ruleNonNeg, &sp.Resistance, false, 0, "0 ohm")
+		l.exceed("suppression.clamp voltage", sp.ClampVoltage, "supply.voltage", l.s.Supply.Voltage, false)
+	case SuppressSwitchClamp:
+		l.get(sec, "clamp voltage", Voltage, rulePositive, &sp.ClampVoltage, true, 0, "")
+		l.get(sec, "resistance", Resistance, ruleNonNeg, &sp.Resistance, false, 0, "0 ohm")
+		l.exceed("suppression.clamp voltage", sp.ClampVoltage, "supply.voltage", l.s.Supply.Voltage, false)
+		l.exceed("switch.breakdown voltage", l.s.Switch.BreakdownVoltage, "suppression.clamp voltage", sp.ClampVoltage, false)
+	case SuppressSnubber:
+		l.get(sec, "resistance", Resistance, rulePositive, &sp.Resistance, true, 0, "")
+		l.get(sec, "capacitance", Capacitance, rulePositive, &sp.Capacitance, true, 0, "")
+	}
+}
