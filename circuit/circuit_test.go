@@ -651,7 +651,7 @@ func TestGuardsConducting(t *testing.T) {
 				if n != 1 {
 					t.Fatalf("Guards(%v, i=%g) = %d guards, want 1", tt.m, c.iL, n)
 				}
-				if math.Copysign(1, g[0])*math.Abs(math.Float64frombits(1)) == 0 || sgn(g[0]) != c.sign {
+				if sgn(g[0]) != c.sign {
 					t.Errorf("Guards(%v, i=%g) guard 0 = %g, want sign %g", tt.m, c.iL, g[0], c.sign)
 				}
 			}

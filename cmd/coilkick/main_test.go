@@ -1,0 +1,114 @@
+package main
+
+import (
+	"bytes"
+	"encoding/csv"
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+)
+
+func TestRunExitCodes(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
+	csvPath := filepath.Join(dir, "trace.csv")
+	cases := []struct {
+		name   string
+		args   []string
+		code   int
+		stdout []string // substrings
+		stderr []string
+	}{
+		{"demo passes", []string{"run", "../../scenarios/irrigation-valve.yaml"}, exitOK,
+			[]string{"pull-in time", "release time", "peak switch voltage", "Checks: 3 of 3 pass", "licensed practice"}, nil},
+		{"flags after the file", []string{"run", "../../scenarios/irrigation-valve.yaml", "--csv", csvPath}, exitOK,
+			[]string{"pull-in time"}, nil},
+		{"rating fails", []string{"run", "../../scenarios/door-latch.yaml"}, exitFailing,
+			[]string{"FAIL", "avalanche", "CAUTION"}, nil},
+		{"check ok", []string{"check", "../../scenarios/process-air-valve.yaml"}, exitOK, []string{": ok"}, nil},
+		{"check bad unit", []string{"check", "../../testdata/bad/wrong_unit.yaml"}, exitError, nil,
+			[]string{"wrong_unit.yaml:12:9", "plunger.mass", "expected a mass"}},
+		{"missing file", []string{"run", "nope.yaml"}, exitError, nil, []string{"nope.yaml"}},
+		{"no file", []string{"run"}, exitError, nil, []string{"exactly one scenario file"}},
+		{"unknown command", []string{"fly"}, exitError, nil, nil},
+	}
+	for _, c := range cases {
+		var out, errb bytes.Buffer
+		code := run(&out, &errb, append([]string{"coilkick"}, c.args...))
+		if code != c.code {
+			t.Errorf("%s: exit %d, want %d\nstdout:\n%s\nstderr:\n%s", c.name, code, c.code, out.String(), errb.String())
+			continue
+		}
+		for _, s := range c.stdout {
+			if !strings.Contains(out.String(), s) {
+				t.Errorf("%s: stdout lacks %q:\n%s", c.name, s, out.String())
+			}
+		}
+		for _, s := range c.stderr {
+			if !strings.Contains(errb.String(), s) {
+				t.Errorf("%s: stderr lacks %q:\n%s", c.name, s, errb.String())
+			}
+		}
+	}
+	// The CSV has the promised columns and finite numbers.
+	f, err := os.Open(csvPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	rows, err := csv.NewReader(f).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := "time_s,current_A,coil_voltage_V,switch_voltage_V,gap_m,velocity_m_per_s,magnetic_force_N,passive_force_N"
+	if got := strings.Join(rows[0], ","); got != want || len(rows) < 50 {
+		t.Fatalf("CSV header %q (%d rows), want %q", got, len(rows), want)
+	}
+	for _, r := range rows[1:] {
+		for _, cell := range r {
+			if _, err := strconv.ParseFloat(cell, 64); err != nil || strings.Contains(cell, "NaN") {
+				t.Fatalf("CSV cell %q is not a finite number", cell)
+			}
+		}
+	}
+}
+
+func TestRunJSON(t *testing.T) {
+	t.Parallel()
+	var out, errb bytes.Buffer
+	code := run(&out, &errb, []string{"coilkick", "run", "--json", "-", "../../scenarios/door-latch.yaml"})
+	if code != exitFailing {
+		t.Fatalf("exit %d, want %d; stderr %s", code, exitFailing, errb.String())
+	}
+	var doc map[string]any
+	if err := json.Unmarshal(out.Bytes(), &doc); err != nil {
+		t.Fatalf("--json - is not JSON: %v\n%s", err, out.String())
+	}
+	m := doc["metrics"].(map[string]any)
+	for _, k := range []string{"pull_in_time_s", "release_time_s", "peak_switch_voltage_V", "avalanche_energy_J", "energy_residual_J"} {
+		if _, ok := m[k]; !ok {
+			t.Errorf("metrics lack %q", k)
+		}
+	}
+	if doc["failed"] != true {
+		t.Errorf("failed = %v, want true", doc["failed"])
+	}
+}
+
+func TestSI(t *testing.T) {
+	t.Parallel()
+	for _, c := range []struct {
+		v    float64
+		unit string
+		want string
+	}{
+		{0.00763, "s", "7.63 ms"}, {24.8, "V", "24.8 V"}, {0, "J", "0 J"}, {1.5e-6, "J", "1.5 µJ"}, {-0.7, "V", "-700 mV"},
+	} {
+		if got := si(c.v, c.unit); got != c.want {
+			t.Errorf("si(%g, %q) = %q, want %q", c.v, c.unit, got, c.want)
+		}
+	}
+}
