@@ -144,6 +144,7 @@ func (in *odeIntegrator) run(t0 float64, y []float64) error {
 	g0 := make([]float64, maxGuardCount)
 	g1 := make([]float64, maxGuardCount)
 	gt := make([]float64, maxGuardCount)
+	gmid := [2][]float64{make([]float64, maxGuardCount), make([]float64, maxGuardCount)}
 	view := &stepView{m: in.m}
 	q := float64(in.m.order())
 	t := t0
@@ -195,15 +196,30 @@ func (in *odeIntegrator) run(t0 float64, y []float64) error {
 			h *= fac
 			continue
 		}
-		// Guards at the end of the step.
+		// Guards at the end of the step and at two interior points of the
+		// dense output, so that a guard that crosses zero and comes back
+		// within one step (a grazing ring) is still caught.
 		in.sys.guards(t+h, y1, g1)
+		for j, th := range [...]float64{1.0 / 3, 2.0 / 3} {
+			in.m.dense(th, ytmp)
+			in.sys.guards(t+th*h, ytmp, gmid[j])
+		}
 		kEv, tEv := -1, t+h
 		for k := 0; k < ng; k++ {
-			if g1[k] > 0 && g0[k] <= 0 {
-				te := in.locate(t, h, k, g0[k], g1[k], ytmp, gt)
-				if kEv < 0 || te < tEv {
-					kEv, tEv = k, te
+			a, ga := 0.0, g0[k]
+			for j, th := range [...]float64{1.0 / 3, 2.0 / 3, 1} {
+				gb := g1[k]
+				if j < 2 {
+					gb = gmid[j][k]
 				}
+				if gb > 0 && ga <= 0 {
+					te := in.locate(t, h, k, a, th, ga, gb, ytmp, gt)
+					if kEv < 0 || te < tEv {
+						kEv, tEv = k, te
+					}
+					break
+				}
+				a, ga = th, gb
 			}
 		}
 		view.t0, view.y0, view.h = t, y, h
@@ -272,11 +288,10 @@ func epsTime(t float64) float64 {
 }
 
 // locate finds the time at which guard k crosses zero inside the last
-// attempted step [t, t+h], given its values ga ≤ 0 at t and gb > 0 at
-// t+h, by the Illinois method on the dense output. It returns the right end
+// attempted step [t, t+h], between the fractions a and b of the step where
+// its values are ga ≤ 0 and gb > 0, by the Illinois method on the dense output. It returns the right end
 // of the final bracket, so the guard has (just) crossed there.
-func (in *odeIntegrator) locate(t, h float64, k int, ga, gb float64, ytmp, g []float64) float64 {
-	a, b := 0.0, 1.0
+func (in *odeIntegrator) locate(t, h float64, k int, a, b, ga, gb float64, ytmp, g []float64) float64 {
 	fa, fb := ga, gb
 	side := 0
 	tol := (1e-13 + 4*epsTime(t)) / h

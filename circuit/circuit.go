@@ -74,16 +74,18 @@ func (d *Drive) Validate() error {
 	switch {
 	case !(s.Voltage > 0):
 		return fmt.Errorf("circuit: supply voltage must be positive, got %g V", s.Voltage)
-	case s.SourceResistance < 0 || sw.OnResistance < 0:
+	case !(s.SourceResistance >= 0) || !(sw.OnResistance >= 0):
 		return errors.New("circuit: resistances must not be negative")
-	case sw.OutputCapacitance < 0:
+	case !(sw.OutputCapacitance >= 0):
 		return errors.New("circuit: switch output capacitance must not be negative")
 	case !(sw.BreakdownVoltage > s.Voltage):
 		return fmt.Errorf("circuit: switch breakdown %g V must exceed the supply %g V", sw.BreakdownVoltage, s.Voltage)
 	case !(sw.BodyDiodeDrop > 0):
 		return errors.New("circuit: body diode drop must be positive")
-	case p.Resistance < 0:
+	case !(p.Resistance >= 0):
 		return errors.New("circuit: suppressor resistance must not be negative")
+	case !(p.Capacitance >= 0):
+		return errors.New("circuit: suppressor capacitance must not be negative")
 	}
 	switch p.Kind {
 	case None:
@@ -342,22 +344,41 @@ func (d *Drive) Target(m Mode, k int) Mode {
 
 // TurnOffMode returns the mode the drive takes at the instant the switch
 // opens with coil current iL. With a switch capacitance or a snubber the
-// current has somewhere to go and the mode is Off; otherwise the path that
-// pins the switch node lowest takes the current at once.
+// current has somewhere to go and the mode is Off. Otherwise the current
+// must flow at once through the path that the switch node reaches first:
+// for a positive current the node rises, so the path that pins it lowest
+// (coil clamp at V0 + Vcl + R·i, switch clamp at Vcl + R·i, avalanche at
+// the breakdown voltage); for a negative current the node falls, so the
+// path that pins it highest (TVS reverse at V0 − Vcl − R·|i|, body diode at
+// −Vbd).
 func (d *Drive) TurnOffMode(iL float64) Mode {
 	if !d.Open() || iL == 0 {
 		return Off
 	}
+	sup := &d.Suppressor
+	v0 := d.Supply.Voltage
+	a := math.Abs(iL)
 	if iL < 0 {
-		return BodyDiode
+		best, pin := BodyDiode, -d.Switch.BodyDiodeDrop
+		if sup.Kind == TVS {
+			if v := v0 - sup.Voltage - sup.Resistance*a; v > pin {
+				best = CoilClampRev
+			}
+		}
+		return best
 	}
+	best, pin := Avalanche, d.Switch.BreakdownVoltage
 	switch {
-	case d.Suppressor.acrossCoil():
-		return CoilClamp
-	case d.Suppressor.Kind == SwitchClamp:
-		return SwClamp
+	case sup.acrossCoil():
+		if v := v0 + sup.Voltage + sup.Resistance*a; v < pin {
+			best = CoilClamp
+		}
+	case sup.Kind == SwitchClamp:
+		if v := sup.Voltage + sup.Resistance*a; v < pin {
+			best = SwClamp
+		}
 	}
-	return Avalanche
+	return best
 }
 
 // ClampName names the part that conducts in mode m, for event logs.

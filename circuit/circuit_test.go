@@ -3,7 +3,6 @@ package circuit
 import (
 	"fmt"
 	"math"
-	"os"
 	"testing"
 )
 
@@ -30,15 +29,6 @@ const (
 	tinyCoss = 1e-15
 )
 
-// knownBugsEnv, when set, runs the tests that are skipped for known bugs.
-const knownBugsEnv = "CIRCUIT_KNOWN_BUGS"
-
-func skipKnownBug(t *testing.T, msg string) {
-	t.Helper()
-	if os.Getenv(knownBugsEnv) == "" {
-		t.Skip("known bug: " + msg + " (set " + knownBugsEnv + "=1 to run)")
-	}
-}
 
 // closeTo reports |got−want| ≤ tol·scale.
 func closeTo(got, want, scale, tol float64) bool {
@@ -787,7 +777,7 @@ func TestTurnOffMode(t *testing.T) {
 // TestTurnOffModeLowestPin checks TurnOffMode on an open coil when the
 // suppressor's pin voltage lies beyond another device's threshold.
 //
-// Known bug: TurnOffMode ignores the thresholds of the other devices. With
+// Regression (fixed): TurnOffMode ignored the thresholds of the other devices. With
 // V0 = 24 V, breakdown 60 V and a diode + Zener of 50 V (Validate accepts
 // it), an open coil at i = 2 A goes to CoilClamp, where the switch node sits
 // at 74 V, 14 V above breakdown: the switch avalanches first (as the Off
@@ -809,7 +799,6 @@ func TestTurnOffModeLowestPin(t *testing.T) {
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			t.Parallel()
-			skipKnownBug(t, "TurnOffMode picks the suppressor's mode on an open coil even when the switch node would first reach another device's threshold (e.g. diode zener 50 V, V0 24 V, breakdown 60 V, i=2 A → coil clamp with the switch at 74 V)")
 			d := makeDrive(refRs0, refRon0, refC0, tt.sup)
 			if err := d.Validate(); err != nil {
 				t.Fatalf("Validate() = %v", err)
@@ -895,7 +884,7 @@ func TestValidate(t *testing.T) {
 	}
 }
 
-// TestValidateNaN: known bug. Validate tests the supply voltage NaN-safely
+// TestValidateNaN: regression (fixed). Validate tested the supply voltage NaN-safely
 // (!(v > 0)) but the resistances and capacitance with x < 0, which is false
 // for NaN, so a drive with SourceResistance = NaN passes and Solve then
 // returns NaN everywhere.
@@ -914,7 +903,6 @@ func TestValidateNaN(t *testing.T) {
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			t.Parallel()
-			skipKnownBug(t, "Validate accepts NaN resistances and capacitance (x < 0 is false for NaN)")
 			d := makeDrive(refRs, refRon, refCoss, Suppressor{Kind: Freewheel, Voltage: refVf, Resistance: refRd})
 			tt.f(&d)
 			// source: Validate doc: it reports a drive that cannot be simulated.
