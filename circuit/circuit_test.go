@@ -29,7 +29,6 @@ const (
 	tinyCoss = 1e-15
 )
 
-
 // closeTo reports |got−want| ≤ tol·scale.
 func closeTo(got, want, scale, tol float64) bool {
 	return math.Abs(got-want) <= tol*scale
