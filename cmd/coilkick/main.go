@@ -111,25 +111,31 @@ func oneFile(c *cli.Context) (string, error) {
 	return c.Args().First(), nil
 }
 
-func cmdCheck(c *cli.Context, w io.Writer) error {
+// loadArg loads the model named by the command's single argument.
+func loadArg(c *cli.Context) (string, *coilkick.Model, error) {
 	path, err := oneFile(c)
 	if err != nil {
-		return err
+		return "", nil, err
 	}
 	md, err := coilkick.LoadModel(path)
+	return path, md, err
+}
+
+func cmdCheck(c *cli.Context, w io.Writer) error {
+	path, md, err := loadArg(c)
 	if err != nil {
 		return err
 	}
-	fmt.Fprintf(w, "%s: ok (%s)\n", path, md.Name)
+	name := md.Name
+	if name == "" {
+		name = "no name"
+	}
+	fmt.Fprintf(w, "%s: ok (%s)\n", path, name)
 	return nil
 }
 
 func cmdRun(c *cli.Context, w io.Writer) error {
-	path, err := oneFile(c)
-	if err != nil {
-		return err
-	}
-	md, err := coilkick.LoadModel(path)
+	path, md, err := loadArg(c)
 	if err != nil {
 		return err
 	}

@@ -110,6 +110,10 @@ func printSummary(w io.Writer, path string, md *coilkick.Model, res *coilkick.Re
 	row("mechanical work", si(m.MechanicalWork, "J"))
 	row("stored change", si(m.StoredChange, "J"))
 	row("energy residual", fmt.Sprintf("%.2g of supply", m.EnergyResidualRel()))
+	fmt.Fprintln(b, "\nEvents")
+	for _, e := range res.Events {
+		fmt.Fprintf(b, "  %10.4f ms  %s\n", e.Time*1e3, e.What)
+	}
 	fmt.Fprintf(b, "\nSolver: %s, %d steps (%d rejected), %d events, %d evaluations\n",
 		res.Stats.Method, res.Stats.Steps, res.Stats.Rejected, res.Stats.Events, res.Stats.Evaluations)
 	if general := notes[""]; len(general) > 0 {
