@@ -212,3 +212,35 @@ func TestTableModelMatchesGapLawRun(t *testing.T) {
 		t.Errorf("table run energy residual %.3g", r)
 	}
 }
+
+func TestEddyCurrentsSlowPullIn(t *testing.T) {
+	t.Parallel()
+	md, err := LoadModel("scenarios/irrigation-valve.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	base, err := Simulate(md, &Options{NoTrace: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	// Eddy currents oppose any change of flux (Lenz's law): the flux, and
+	// so the force, builds up later and pull-in takes longer; the lower the
+	// equivalent turn's resistance, the stronger the effect.
+	prev := base.Metrics.PullIn.Seconds
+	for _, re := range []float64{2000, 500, 100} {
+		md.EddyResistance = re
+		res, err := Simulate(md, &Options{NoTrace: true})
+		if err != nil {
+			t.Fatal(err)
+		}
+		m := res.Metrics
+		if !m.PullIn.Happened || !(m.PullIn.Seconds > prev) {
+			t.Errorf("eddy %g ohm: pull-in %+v, want later than %.6g s", re, m.PullIn, prev)
+		}
+		if r := m.EnergyResidualRel(); r > 1e-4 {
+			t.Errorf("eddy %g ohm: energy residual %.3g", re, r)
+		}
+		t.Logf("eddy %g ohm: pull-in %.4g ms, release %.4g ms, eddy loss %.3g J", re, m.PullIn.Seconds*1e3, m.Release.Seconds*1e3, m.EddyLoss)
+		prev = m.PullIn.Seconds
+	}
+}

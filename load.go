@@ -57,6 +57,9 @@ func Load(path string) (*Scenario, error) {
 //	                                            temperature must stay > 0
 //	  turns: 1800                               optional plain number > 0; default 0 (not given)
 //	magnet:                                     exactly one of "gap law" and "table"
+//	  eddy resistance: 200 ohm                  optional, default none; > 0: equivalent
+//	                                            shorted turn for eddy currents, referred
+//	                                            to the coil's turns
 //	  gap law:
 //	    closed inductance: 250 mH               > 0, at the seated gap
 //	    open inductance: 120 mH                 > 0, < closed inductance
@@ -547,7 +550,7 @@ var (
 	topKeys         = []string{"name", "supply", "coil", "magnet", "plunger", "switch", "suppression", "timing", "ratings", "solver"}
 	supplyKeys      = []string{"voltage", "source resistance"}
 	coilKeys        = []string{"resistance", "reference temperature", "temperature", "temperature coefficient", "turns"}
-	magnetKeys      = []string{MagnetGapLaw, MagnetTable}
+	magnetKeys      = []string{MagnetGapLaw, MagnetTable, "eddy resistance"}
 	gapLawKeys      = []string{"closed inductance", "open inductance", "pole area"}
 	tableKeys       = []string{"file", "current unit", "gap unit", "flux linkage unit"}
 	plungerKeys     = []string{"mass", "rest gap", "seated gap", "spring preload", "spring rate", "damping", "restitution", "stick speed", "load"}
@@ -698,6 +701,7 @@ func (l *scenarioLoader) loadMagnet(magnet *yamlSection) {
 		return
 	}
 	m := &l.s.Magnet
+	l.get(magnet, "eddy resistance", Resistance, rulePositive, &m.EddyResistance, false, 0, "none")
 	hasGap, hasTable := magnet.has(MagnetGapLaw), magnet.has(MagnetTable)
 	switch {
 	case !hasGap && !hasTable:

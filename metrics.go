@@ -75,12 +75,13 @@ type Metrics struct {
 	DroppedOutEnergized bool
 
 	// Energy balance, J: SupplyEnergy = CoilLoss + SourceLoss + SwitchLoss
-	// + ClampEnergy + MechanicalWork + StoredChange + EnergyResidual.
+	// + ClampEnergy + MechanicalWork + EddyLoss + StoredChange + EnergyResidual.
 	SupplyEnergy   float64
 	CoilLoss       float64 // in the coil resistance
 	SourceLoss     float64 // in the supply's source resistance
 	SwitchLoss     float64 // conduction, capacitive turn-on, avalanche and body diode
 	MechanicalWork float64 // done by the magnetic force on the plunger
+	EddyLoss       float64 // in the equivalent eddy-current turn
 	StoredChange   float64 // change of magnetic and capacitor energy over the run
 	EnergyResidual float64 // what the balance leaves over (numerical error and omitted fast modes)
 }

@@ -17,11 +17,14 @@ type Model struct {
 	Coil        magnet.Coil
 	Temperature float64 // K, winding temperature during the run
 	Magnet      magnet.Model
-	Plunger     mech.Plunger
-	Drive       circuit.Drive
-	Timing      TimingSpec
-	Limits      LimitsSpec
-	Solver      SolverSpec
+	// EddyResistance (ohm) is the equivalent shorted turn for eddy currents
+	// in the steel, referred to the coil's turns; 0 for none.
+	EddyResistance float64
+	Plunger        mech.Plunger
+	Drive          circuit.Drive
+	Timing         TimingSpec
+	Limits         LimitsSpec
+	Solver         SolverSpec
 }
 
 // CoilResistance returns the coil resistance at the run's winding
@@ -29,10 +32,14 @@ type Model struct {
 func (m *Model) CoilResistance() float64 { return m.Coil.ResistanceAt(m.Temperature) }
 
 // Stiff reports whether the model has a fast mode that an explicit method
-// would have to resolve for the whole run (an RC snubber's time constant
-// against millisecond motion): it is then integrated with the L-stable
-// Rosenbrock pair.
-func (m *Model) Stiff() bool { return m.Drive.Suppressor.Kind == circuit.Snubber }
+// would have to resolve for the whole run: an RC snubber's time constant
+// against millisecond motion, or the switch capacitance discharging through
+// the eddy-current turn (C_oss·(Re + R), nanoseconds). Such models are
+// integrated with the L-stable Rosenbrock pair.
+func (m *Model) Stiff() bool {
+	return m.Drive.Suppressor.Kind == circuit.Snubber ||
+		(m.EddyResistance > 0 && m.Drive.Switch.OutputCapacitance > 0)
+}
 
 // scales returns the typical magnitude of each state, for the absolute
 // tolerances.
@@ -64,7 +71,8 @@ func (m *Model) scales() []float64 {
 // cannot check alone (model consistency). Errors point at the scenario
 // field concerned.
 func Build(s *Scenario) (*Model, error) {
-	md := &Model{Name: s.Name, Source: s.Source, Timing: s.Timing, Limits: s.Limits, Solver: s.Solver}
+	md := &Model{Name: s.Name, Source: s.Source, Timing: s.Timing, Limits: s.Limits, Solver: s.Solver,
+		EddyResistance: s.Magnet.EddyResistance}
 	md.Coil = magnet.Coil{Resistance: s.Coil.Resistance, RefTemperature: s.Coil.RefTemperature,
 		TempCoeff: s.Coil.TempCoeff, Turns: s.Coil.Turns}
 	if err := md.Coil.Validate(); err != nil {

@@ -54,6 +54,10 @@ const (
 type MagnetSpec struct {
 	Kind string // MagnetGapLaw or MagnetTable
 
+	// EddyResistance (ohm) is the equivalent shorted turn for eddy
+	// currents, referred to the coil's turns; 0 for none.
+	EddyResistance float64
+
 	// gap law
 	ClosedInductance float64 // H at the seated gap
 	OpenInductance   float64 // H at the rest gap

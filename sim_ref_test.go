@@ -205,3 +205,37 @@ func TestSnubberRLCResponse(t *testing.T) {
 	}
 	t.Logf("snubber: worst %.3g of I0 over %d samples; %+v", worst, n, res.Stats)
 }
+
+func TestEddyTurnStepResponse(t *testing.T) {
+	t.Parallel()
+	const v0, r, l, re = 24.0, 48.0, 0.1, 200.0
+	md := fixedModel(t, v0, r, l, circuit.Suppressor{Kind: circuit.Freewheel, Voltage: 0.7})
+	md.EddyResistance = re
+	res, err := Simulate(md, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// source: a coil perfectly coupled to a shorted turn of resistance Re
+	// (an ideal transformer with a resistive secondary; first-order circuit
+	// theory): the magnetizing current rises as im = (V/R)(1 − e^(−t/τ)) with
+	// τ = (L/R)(1 + R/Re), and the coil current is i = (V + Re·im)/(Re + R),
+	// which jumps to V/(R + Re) at switch-on.
+	tau := l / r * (1 + r/re)
+	worst, n := 0.0, 0
+	for k, tt := range res.Trace.Time {
+		if tt <= 0 || tt >= md.Timing.DeenergizeAt {
+			continue
+		}
+		im := v0 / r * (1 - math.Exp(-tt/tau))
+		want := (v0 + re*im) / (re + r)
+		worst = math.Max(worst, math.Abs(res.Trace.Current[k]-want)/want)
+		n++
+	}
+	if n < 10 || worst > 1e-6 {
+		t.Errorf("eddy step: worst relative error %.3g over %d samples, want <= 1e-6", worst, n)
+	}
+	m := res.Metrics
+	if !(m.EddyLoss > 0) || m.EnergyResidualRel() > 1e-6 {
+		t.Errorf("eddy loss %g J, residual %.3g", m.EddyLoss, m.EnergyResidualRel())
+	}
+}

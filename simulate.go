@@ -158,7 +158,7 @@ func (r *run) energize(t float64, y []float64) {
 }
 
 func (r *run) deenergize(t float64, y []float64) {
-	i := r.solve(y)
+	i := r.current(y)
 	vsw := r.pt.SwitchVoltage
 	r.res.Metrics.CurrentAtTurnOff = i
 	r.cmode = r.drive.TurnOffMode(i)
@@ -182,7 +182,7 @@ func (r *run) circuitChange(t float64, y []float64, to circuit.Mode) {
 	if to == circuit.Off {
 		r.solve(y)
 		y[sSwitchC] = r.pt.SwitchVoltage // capacitor leaves the pinned voltage
-		if r.drive.Suppressor.Kind != circuit.Snubber {
+		if r.drive.Suppressor.Kind != circuit.Snubber && r.eddy == 0 {
 			// The coil current itself reached zero (located to within
 			// ~1e-13 s): make it exactly zero, so that the pinned voltage
 			// the capacitor keeps is consistent. No permanent magnet:
@@ -326,7 +326,7 @@ func Simulate(md *Model, opt *Options) (*Result, error) {
 	if maxSteps <= 0 {
 		maxSteps = DefaultMaxSteps
 	}
-	sys := &system{mag: md.Magnet, plunger: md.Plunger, drive: md.Drive, r: md.CoilResistance()}
+	sys := &system{mag: md.Magnet, plunger: md.Plunger, drive: md.Drive, r: md.CoilResistance(), eddy: md.EddyResistance}
 	res := &Result{}
 	r := &run{system: sys, tOn: md.Timing.EnergizeAt, tOff: md.Timing.DeenergizeAt, tEnd: md.Timing.End,
 		res: res, noTrace: opt.NoTrace}
@@ -378,8 +378,9 @@ func (r *run) finish(y []float64) {
 	m.AvalancheEnergy = y[qAval]
 	m.ClampEnergy = y[qClamp]
 	m.MechanicalWork = y[qMech]
+	m.EddyLoss = y[qEddy]
 	m.StoredChange = r.fieldEnergy(y) - r.wf0 + r.storedCapEnergy(y) - r.capE0
-	m.EnergyResidual = m.SupplyEnergy - (m.CoilLoss + m.SourceLoss + m.SwitchLoss + m.ClampEnergy + m.MechanicalWork + m.StoredChange)
+	m.EnergyResidual = m.SupplyEnergy - (m.CoilLoss + m.SourceLoss + m.SwitchLoss + m.ClampEnergy + m.MechanicalWork + m.EddyLoss + m.StoredChange)
 }
 
 func firstPositive(v ...float64) float64 {

@@ -24,6 +24,7 @@ const (
 	qAval            // J of avalanche (part of qSwitch)
 	qClamp           // J in the suppression part
 	qMech            // J of mechanical work done by the magnetic force
+	qEddy            // J in the equivalent eddy-current turn
 	nState
 
 	stateJac = qSupply
@@ -49,6 +50,10 @@ type system struct {
 	plunger mech.Plunger
 	drive   circuit.Drive
 	r       float64 // ohm, coil resistance at the run's winding temperature
+	// eddy (ohm) is the resistance of the equivalent shorted turn that
+	// stands for eddy currents in the steel, referred to the coil's turns;
+	// 0 for none.
+	eddy float64
 
 	cmode circuit.Mode
 	mmode mechMode
@@ -61,30 +66,64 @@ type outputs struct {
 	Gap, Velocity, MagneticForce, PassiveForce                       float64
 }
 
+// current returns the coil current at y (and leaves the circuit solved
+// in s.pt).
 func (s *system) current(y []float64) float64 {
-	if s.cmode == circuit.Off && s.drive.Open() {
-		return 0
-	}
-	return s.mag.Current(y[sFlux], y[sGap])
-}
-
-// solve evaluates the circuit at y into s.pt and returns the coil current.
-func (s *system) solve(y []float64) float64 {
-	i := s.current(y)
-	s.drive.Solve(s.cmode, i, y[sSwitchC], y[sSnubberC], &s.pt)
+	i, _ := s.solve(y)
 	return i
 }
 
+// solve evaluates the circuit at y into s.pt and returns the coil current
+// i and the magnetizing current im, the magnetic model's current for the
+// flux linkage (the ampere-turns over N).
+//
+// Eddy currents are an equivalent shorted turn, perfectly coupled to the
+// coil, of resistance Re referred to the coil's turns (a transformer with a
+// resistive secondary, first-order circuit theory): the ampere-turns split
+// as im = i + ie, and the common flux obeys dλ/dt = v − R·i = −Re·ie. In
+// every circuit mode the coil voltage is affine in the coil current,
+// v = v0 − Ra·i, so i = (v0 + Re·im)/(Re + Ra + R) exactly. Without eddy
+// currents i = im.
+func (s *system) solve(y []float64) (i, im float64) {
+	im = s.mag.Current(y[sFlux], y[sGap])
+	vC, vS := y[sSwitchC], y[sSnubberC]
+	switch {
+	case s.cmode == circuit.Off && s.drive.Open():
+		i = 0
+	case s.eddy == 0:
+		i = im
+	default:
+		s.drive.Solve(s.cmode, 0, vC, vS, &s.pt)
+		v0 := s.pt.CoilVoltage
+		i1 := math.Abs(im)
+		if i1 < 1e-6 {
+			i1 = 1e-6
+		}
+		if s.cmode == circuit.CoilClampRev {
+			i1 = -i1
+		}
+		s.drive.Solve(s.cmode, i1, vC, vS, &s.pt)
+		ra := (v0 - s.pt.CoilVoltage) / i1
+		i = (v0 + s.eddy*im) / (s.eddy + ra + s.r)
+	}
+	s.drive.Solve(s.cmode, i, vC, vS, &s.pt)
+	return i, im
+}
+
 func (s *system) deriv(_ float64, y, dy []float64) {
-	i := s.solve(y)
+	i, im := s.solve(y)
 	pt := &s.pt
 	x, v := y[sGap], y[sVel]
-	pull := s.mag.Force(i, x)
-	if pt.CurrentPinned {
-		dy[sFlux] = 0
-	} else {
+	pull := s.mag.Force(im, x)
+	switch {
+	case !pt.CurrentPinned:
 		dy[sFlux] = pt.CoilVoltage - s.r*i
+	case s.eddy > 0:
+		dy[sFlux] = -s.eddy * im // open coil: the flux decays through the eddy path
+	default:
+		dy[sFlux] = 0
 	}
+	dy[qEddy] = s.eddy * (im - i) * (im - i)
 	if s.mmode == mechFree {
 		dy[sGap] = v
 		dy[sVel] = s.plunger.Acceleration(x, v, pull)
@@ -111,18 +150,18 @@ func (s *system) deriv(_ float64, y, dy []float64) {
 
 // out computes the algebraic outputs at y.
 func (s *system) out(y []float64) outputs {
-	i := s.solve(y)
+	i, im := s.solve(y)
 	x, v := y[sGap], y[sVel]
 	return outputs{
 		Current: i, CoilVoltage: s.pt.CoilVoltage, SwitchVoltage: s.pt.SwitchVoltage,
 		SupplyCurrent: s.pt.SupplyCurrent, ClampCurrent: math.Abs(s.pt.ClampCurrent),
-		Gap: x, Velocity: v, MagneticForce: s.mag.Force(i, x), PassiveForce: s.plunger.PassiveForce(x, v),
+		Gap: x, Velocity: v, MagneticForce: s.mag.Force(im, x), PassiveForce: s.plunger.PassiveForce(x, v),
 	}
 }
 
 // Guard layout: circuit guards first, then mechanical ones.
 func (s *system) guardsAt(y, g []float64) (nc, n int) {
-	i := s.solve(y)
+	i, im := s.solve(y)
 	nc = s.drive.Guards(s.cmode, i, &s.pt, g)
 	n = nc
 	x := y[sGap]
@@ -133,10 +172,10 @@ func (s *system) guardsAt(y, g []float64) (nc, n int) {
 		n += 2
 	case mechSeated:
 		// Leaves when the passive force exceeds the pull.
-		g[n] = s.plunger.PassiveForce(s.plunger.GapMin, 0) - s.mag.Force(i, s.plunger.GapMin)
+		g[n] = s.plunger.PassiveForce(s.plunger.GapMin, 0) - s.mag.Force(im, s.plunger.GapMin)
 		n++
 	case mechRest:
-		g[n] = s.mag.Force(i, s.plunger.GapMax) - s.plunger.PassiveForce(s.plunger.GapMax, 0)
+		g[n] = s.mag.Force(im, s.plunger.GapMax) - s.plunger.PassiveForce(s.plunger.GapMax, 0)
 		n++
 	}
 	return nc, n
@@ -144,8 +183,8 @@ func (s *system) guardsAt(y, g []float64) (nc, n int) {
 
 // fieldEnergy returns the magnetic energy stored at y (J).
 func (s *system) fieldEnergy(y []float64) float64 {
-	i := s.current(y)
-	return magnet.FieldEnergy(s.mag, i, y[sGap])
+	_, im := s.solve(y)
+	return magnet.FieldEnergy(s.mag, im, y[sGap])
 }
 
 // storedCapEnergy returns the energy in the drive's capacitors at y (J);

@@ -210,8 +210,14 @@ func (d *Drive) Solve(m Mode, iL, vC, vS float64, pt *Point) {
 			pt.SwitchVoltage = v0
 		}
 	case CoilClamp, CoilClampRev:
-		// Suppressor across the coil carries the whole coil current.
-		a := math.Abs(iL)
+		// Suppressor across the coil carries the whole coil current. The
+		// laws are written for the conducting direction and continued
+		// analytically past zero current (no |i|), so that the integrator
+		// sees a smooth right-hand side up to the located end of conduction.
+		a := iL
+		if m == CoilClampRev {
+			a = -iL
+		}
 		vcl := sup.Voltage + sup.Resistance*a
 		pt.CoilVoltage = -vcl
 		if m == CoilClampRev {

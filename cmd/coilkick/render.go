@@ -108,6 +108,9 @@ func printSummary(w io.Writer, path string, md *coilkick.Model, res *coilkick.Re
 	row("switch", si(m.SwitchLoss, "J"))
 	row("suppression", si(m.ClampEnergy, "J"))
 	row("mechanical work", si(m.MechanicalWork, "J"))
+	if m.EddyLoss > 0 {
+		row("eddy currents", si(m.EddyLoss, "J"))
+	}
 	row("stored change", si(m.StoredChange, "J"))
 	row("energy residual", fmt.Sprintf("%.2g of supply", m.EnergyResidualRel()))
 	fmt.Fprintln(b, "\nEvents")
@@ -199,6 +202,7 @@ type jsonMetrics struct {
 	SourceLoss        float64           `json:"source_loss_J"`
 	SwitchLoss        float64           `json:"switch_loss_J"`
 	MechanicalWork    float64           `json:"mechanical_work_J"`
+	EddyLoss          float64           `json:"eddy_loss_J"`
 	StoredChange      float64           `json:"stored_energy_change_J"`
 	EnergyResidual    float64           `json:"energy_residual_J"`
 }
@@ -214,7 +218,7 @@ func writeJSON(w io.Writer, md *coilkick.Model, res *coilkick.Result, as *coilki
 			PeakSwitchVoltage: m.PeakSwitchVoltage, MinSwitchVoltage: m.MinSwitchVoltage, PeakClampCurrent: m.PeakClampCurrent,
 			ClampEnergy: m.ClampEnergy, AvalancheEnergy: m.AvalancheEnergy, DroppedOut: m.DroppedOutEnergized,
 			SupplyEnergy: m.SupplyEnergy, CoilLoss: m.CoilLoss, SourceLoss: m.SourceLoss, SwitchLoss: m.SwitchLoss,
-			MechanicalWork: m.MechanicalWork, StoredChange: m.StoredChange, EnergyResidual: m.EnergyResidual,
+			MechanicalWork: m.MechanicalWork, EddyLoss: m.EddyLoss, StoredChange: m.StoredChange, EnergyResidual: m.EnergyResidual,
 		},
 		Checks: []jsonCheck{}, Notes: []coilkickNote{}, Events: []jsonEvent{},
 	}
