@@ -547,10 +547,15 @@ func (l *scenarioLoader) exceed(big string, vBig float64, small string, vSmall f
 
 // Keys of each section.
 var (
-	topKeys         = []string{"name", "supply", "coil", "magnet", "plunger", "switch", "suppression", "timing", "ratings", "solver"}
-	supplyKeys      = []string{"voltage", "source resistance"}
-	coilKeys        = []string{"resistance", "reference temperature", "temperature", "temperature coefficient", "turns"}
-	magnetKeys      = []string{MagnetGapLaw, MagnetTable, "eddy resistance"}
+	topKeys       = []string{"name", "supply", "coil", "magnet", "plunger", "switch", "suppression", "timing", "ratings", "solver"}
+	supplyKeys    = []string{"voltage", "source resistance"}
+	coilKeys      = []string{"resistance", "reference temperature", "temperature", "temperature coefficient", "turns", "build"}
+	coilBuildKeys = []string{"inner diameter", "outer diameter", "length", "wire gauge", "wire diameter", "overall diameter", "insulation grade", "turns", "fill factor"}
+	magnetKeys    = []string{MagnetGapLaw, MagnetTable, MagnetGeom, "eddy resistance"}
+	geometryKeys  = []string{"plunger diameter", "plunger length", "pole diameter", "pole length", "shell outer diameter", "shell wall",
+		"shell length", "end plate thickness", "sliding gap", "sliding length", "steel saturation", "steel permeability", "steel curve",
+		"table currents", "table gaps", "max current"}
+	steelCurveKeys  = []string{"file", "field unit", "flux density unit"}
 	gapLawKeys      = []string{"closed inductance", "open inductance", "pole area"}
 	tableKeys       = []string{"file", "current unit", "gap unit", "flux linkage unit"}
 	plungerKeys     = []string{"mass", "rest gap", "seated gap", "spring preload", "spring rate", "damping", "restitution", "stick speed", "load"}
@@ -673,7 +678,17 @@ func (l *scenarioLoader) loadCoil(coil *yamlSection) {
 		return
 	}
 	c := &l.s.Coil
-	l.get(coil, "resistance", Resistance, rulePositive, &c.Resistance, true, 0, "")
+	switch hasR, hasB := coil.has("resistance"), coil.has("build"); {
+	case hasR && hasB:
+		l.errf(l.later("coil.resistance", "coil.build"), "give either coil.resistance (measured) or coil.build (bobbin and wire), not both")
+	case hasB:
+		l.loadCoilBuild(coil)
+		if coil.has("turns") {
+			l.errf("coil.turns", "with coil.build, give the turns (or a fill factor) inside the build")
+		}
+	default:
+		l.get(coil, "resistance", Resistance, rulePositive, &c.Resistance, true, 0, "")
+	}
 	l.get(coil, "reference temperature", Temperature, ruleAny, &c.RefTemperature, false, defaultRefTemperature, "20 degC")
 	if coil.has("temperature") {
 		l.get(coil, "temperature", Temperature, ruleAny, &c.Temperature, true, 0, "")
@@ -687,7 +702,7 @@ func (l *scenarioLoader) loadCoil(coil *yamlSection) {
 		l.get(coil, "turns", Dimensionless, rulePositive, &c.Turns, true, 0, "")
 	}
 	// The winding resistance at the run temperature must stay positive.
-	if l.ok["coil.resistance"] && l.ok["coil.reference temperature"] && l.ok["coil.temperature"] && l.ok["coil.temperature coefficient"] {
+	if (l.ok["coil.resistance"] || c.Build != nil) && l.ok["coil.reference temperature"] && l.ok["coil.temperature"] && l.ok["coil.temperature coefficient"] {
 		if f := 1 + c.TempCoeff*(c.Temperature-c.RefTemperature); !(f > 0) {
 			at := l.later("coil.temperature coefficient", "coil.temperature")
 			l.errf(at, "coil.temperature coefficient %s at coil.temperature %s gives a resistance of zero or less",
@@ -702,14 +717,24 @@ func (l *scenarioLoader) loadMagnet(magnet *yamlSection) {
 	}
 	m := &l.s.Magnet
 	l.get(magnet, "eddy resistance", Resistance, rulePositive, &m.EddyResistance, false, 0, "none")
-	hasGap, hasTable := magnet.has(MagnetGapLaw), magnet.has(MagnetTable)
+	var given []string
+	for _, k := range []string{MagnetGapLaw, MagnetTable, MagnetGeom} {
+		if magnet.has(k) {
+			given = append(given, k)
+		}
+	}
 	switch {
-	case !hasGap && !hasTable:
-		l.errAt("magnet", magnet.pos, "needs one of the sections %q or %q", MagnetGapLaw, MagnetTable)
+	case len(given) == 0:
+		l.errAt("magnet", magnet.pos, "needs one of the sections %q, %q or %q", MagnetGapLaw, MagnetTable, MagnetGeom)
 		return
-	case hasGap && hasTable:
-		at := l.later("magnet."+MagnetGapLaw, "magnet."+MagnetTable)
-		l.errf(at, "give either %q or %q, not both", MagnetGapLaw, MagnetTable)
+	case len(given) > 1:
+		at := l.later("magnet."+given[0], "magnet."+given[1])
+		l.errf(at, "give only one of %q, %q and %q", MagnetGapLaw, MagnetTable, MagnetGeom)
+		return
+	}
+	hasGap := given[0] == MagnetGapLaw
+	if given[0] == MagnetGeom {
+		l.loadGeometry(magnet)
 		return
 	}
 	if hasGap {
@@ -901,4 +926,137 @@ func (l *scenarioLoader) loadSuppression(sec *yamlSection) {
 		l.get(sec, "resistance", Resistance, rulePositive, &sp.Resistance, true, 0, "")
 		l.get(sec, "capacitance", Capacitance, rulePositive, &sp.Capacitance, true, 0, "")
 	}
+}
+
+// loadCoilBuild reads coil.build: a winding from bobbin and wire.
+func (l *scenarioLoader) loadCoilBuild(coil *yamlSection) {
+	b := l.sub(coil, "build", coilBuildKeys)
+	if b == nil {
+		return
+	}
+	cb := &CoilBuildSpec{}
+	l.s.Coil.Build = cb
+	l.get(b, "inner diameter", Length, rulePositive, &cb.InnerDiameter, true, 0, "")
+	l.get(b, "outer diameter", Length, rulePositive, &cb.OuterDiameter, true, 0, "")
+	l.get(b, "length", Length, rulePositive, &cb.Length, true, 0, "")
+	l.exceed("coil.build.outer diameter", cb.OuterDiameter, "coil.build.inner diameter", cb.InnerDiameter, false)
+	switch g, d := b.has("wire gauge"), b.has("wire diameter"); {
+	case g && d:
+		l.errf(l.later("coil.build.wire gauge", "coil.build.wire diameter"), "give either a wire gauge (AWG) or a wire diameter, not both")
+	case g:
+		var v float64
+		if l.get(b, "wire gauge", Dimensionless, ruleNonNeg, &v, true, 0, "") {
+			if v != math.Trunc(v) || v > 46 {
+				l.errf("coil.build.wire gauge", "%q must be a whole AWG number from 0 to 46", l.text["coil.build.wire gauge"])
+			} else {
+				cb.WireGauge = int(v)
+			}
+		}
+	case d:
+		l.get(b, "wire diameter", Length, rulePositive, &cb.WireDiameter, true, 0, "")
+	default:
+		l.errAt("coil.build.wire gauge", b.pos, "missing: give a wire gauge (AWG number) or a bare wire diameter")
+	}
+	switch o, gr := b.has("overall diameter"), b.has("insulation grade"); {
+	case o && gr:
+		l.errf(l.later("coil.build.overall diameter", "coil.build.insulation grade"), "give either the insulated overall diameter or the insulation grade, not both")
+	case o:
+		l.get(b, "overall diameter", Length, rulePositive, &cb.OverallDiameter, true, 0, "")
+	case gr:
+		var v float64
+		if l.get(b, "insulation grade", Dimensionless, rulePositive, &v, true, 0, "") {
+			if v != 1 && v != 2 && v != 3 {
+				l.errf("coil.build.insulation grade", "%q must be 1, 2 or 3 (enamel grade)", l.text["coil.build.insulation grade"])
+			} else {
+				cb.Grade = int(v)
+			}
+		}
+	default:
+		l.errAt("coil.build.insulation grade", b.pos, "missing: give the enamel insulation grade (1, 2 or 3) or the insulated overall diameter")
+	}
+	switch t, f := b.has("turns"), b.has("fill factor"); {
+	case t && f:
+		l.errf(l.later("coil.build.turns", "coil.build.fill factor"), "give either the turns or a fill factor, not both")
+	case t:
+		l.get(b, "turns", Dimensionless, rulePositive, &cb.Turns, true, 0, "")
+	case f:
+		if l.get(b, "fill factor", Dimensionless, rulePositive, &cb.FillFactor, true, 0, "") && cb.FillFactor >= 0.91 {
+			l.errf("coil.build.fill factor", "%q is not possible with round wire (at most about 0.9)", l.text["coil.build.fill factor"])
+		}
+	default:
+		l.errAt("coil.build.turns", b.pos, "missing: give the turns or a copper fill factor")
+	}
+}
+
+// Defaults of the geometry section.
+const (
+	defaultTableCurrents = 40
+	defaultTableGaps     = 40
+)
+
+// loadGeometry reads magnet.geometry: a plunger magnet from dimensions.
+func (l *scenarioLoader) loadGeometry(magnet *yamlSection) {
+	m := &l.s.Magnet
+	m.Kind = MagnetGeom
+	g := l.sub(magnet, MagnetGeom, geometryKeys)
+	if g == nil {
+		return
+	}
+	gs := &m.Geometry
+	for _, f := range []struct {
+		key string
+		dst *float64
+	}{
+		{"plunger diameter", &gs.PlungerDiameter}, {"plunger length", &gs.PlungerLength},
+		{"pole diameter", &gs.PoleDiameter}, {"pole length", &gs.PoleLength},
+		{"shell outer diameter", &gs.ShellOuterDiameter}, {"shell wall", &gs.ShellWall},
+		{"shell length", &gs.ShellLength}, {"end plate thickness", &gs.EndPlateThickness},
+		{"sliding gap", &gs.SlidingGap}, {"sliding length", &gs.SlidingLength},
+	} {
+		l.get(g, f.key, Length, rulePositive, f.dst, true, 0, "")
+	}
+	if l.s.Coil.Build == nil {
+		l.errAt("magnet.geometry", g.pos, "needs coil.build: the winding space and turns come from the bobbin")
+	}
+	switch a, c := g.has("steel saturation") || g.has("steel permeability"), g.has("steel curve"); {
+	case a && c:
+		l.errf("magnet.geometry.steel curve", "give either the analytic steel law (steel saturation, steel permeability) or a steel curve file, not both")
+	case c:
+		sc := l.sub(g, "steel curve", steelCurveKeys)
+		if sc != nil {
+			if file, ok := l.scalar(sc, "file", true, `a file name, e.g. "steel_bh.csv"`); ok {
+				resolved := file
+				if !filepath.IsAbs(file) {
+					resolved = filepath.Join(l.dir, file)
+				}
+				if fi, err := os.Stat(resolved); err != nil || fi.IsDir() {
+					l.errf("magnet.geometry.steel curve.file", "steel curve file %q not found (looked for %s)", file, resolved)
+				} else {
+					gs.SteelCurveFile = resolved
+				}
+			}
+			l.unit(sc, "field unit", FieldStrength, "A/m", &gs.HScale)
+			l.unit(sc, "flux density unit", FluxDensity, "T", &gs.BScale)
+		}
+	default:
+		l.get(g, "steel saturation", FluxDensity, rulePositive, &gs.SteelSaturation, true, 0, "")
+		if l.get(g, "steel permeability", Dimensionless, rulePositive, &gs.SteelPermeability, true, 0, "") && gs.SteelPermeability <= 1 {
+			l.errf("magnet.geometry.steel permeability", "%q must exceed 1 (relative permeability of steel)", l.text["magnet.geometry.steel permeability"])
+		}
+	}
+	for _, f := range []struct {
+		key string
+		dst *int
+		def int
+	}{{"table currents", &gs.TableCurrents, defaultTableCurrents}, {"table gaps", &gs.TableGaps, defaultTableGaps}} {
+		var v float64
+		if l.get(g, f.key, Dimensionless, rulePositive, &v, false, float64(f.def), strconv.Itoa(f.def)) {
+			if v != math.Trunc(v) || v < 4 || v > 400 {
+				l.errf("magnet.geometry."+f.key, "%q must be a whole number from 4 to 400", l.text["magnet.geometry."+f.key])
+			} else {
+				*f.dst = int(v)
+			}
+		}
+	}
+	l.get(g, "max current", Current, rulePositive, &gs.MaxCurrent, false, 0, "3 × supply voltage / coil resistance")
 }

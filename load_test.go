@@ -363,7 +363,7 @@ func TestLoadEdits(t *testing.T) {
 		{"mass: 6 g", "mass: [6 g]", []string{"e.yaml:12:9: plunger.mass: expected a mass", "got a list"}},
 		{"resistance: 48 ohm", "resistance: 48 ohm\n  temperature coefficient: 0.004 /degC", []string{"e.yaml:7:28: coil.temperature coefficient", "degC can only stand alone"}},
 		{"resistance: 48 ohm", "resistance: 48 ohm\n  temperature: -300 degC", []string{"coil.temperature", "below absolute zero"}},
-		{"    open inductance: 120 mH\n", "    open inductance: 120 mH\n  table:\n    file: x.csv\n", []string{"e.yaml:11:3: magnet.table", `give either "gap law" or "table", not both`}},
+		{"    open inductance: 120 mH\n", "    open inductance: 120 mH\n  table:\n    file: x.csv\n", []string{"e.yaml:11:3: magnet.table", `give only one of "gap law", "table" and "geometry"`}},
 		{"  gap law:\n    closed inductance: 250 mH\n    open inductance: 120 mH\n", "", []string{"e.yaml:7:1: magnet", "needs one of"}},
 		{"  spring rate: 0.8 N/mm\n", "  spring rate: 0.8 N/mm\n  restitution: 1.5\n", []string{"plunger.restitution", "between 0 and 1"}},
 		{"  spring rate: 0.8 N/mm\n", "  spring rate: 0.8 N/mm\n  load:\n    seal travel: 0.3 mm\n", []string{"plunger.load.seal travel", "applies only when plunger.load.pressure is given"}},
@@ -396,6 +396,53 @@ func TestLoadEdits(t *testing.T) {
 			if !strings.Contains(err.Error(), w) {
 				t.Errorf("case %d: error does not contain %q:\n%s", i, w, err)
 			}
+		}
+	}
+}
+
+func TestLoadCoilBuild(t *testing.T) {
+	t.Parallel()
+	md, err := LoadModel(filepath.Join("testdata", "good", "coilbuild.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	// source: R = ρ·ℓ/A with ρ = 1/58 Ω·mm²/m (IEC 60028), ℓ = N·π·(Di + Do)/2
+	// for a full window (mean turn length of a round bobbin).
+	const n, di, do, d = 2500.0, 10e-3, 26e-3, 0.2e-3
+	want := (1 / 58e6) * n * math.Pi * (di + do) / 2 / (math.Pi * d * d / 4)
+	if got := md.Coil.Resistance; math.Abs(got-want)/want > 1e-12 || md.Coil.Turns != n {
+		t.Errorf("coil from build: R20 = %g ohm, turns %g; want %g ohm, %g", got, md.Coil.Turns, want, n)
+	}
+	if md.CoilBuild == nil || md.EddyResistance != 300 {
+		t.Errorf("CoilBuild %v, eddy %g", md.CoilBuild, md.EddyResistance)
+	}
+}
+
+func TestLoadCoilBuildErrors(t *testing.T) {
+	t.Parallel()
+	good, err := os.ReadFile(filepath.Join("testdata", "good", "coilbuild.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	cases := []struct{ from, to, want string }{
+		{"    turns: 2500\n", "    turns: 2500\n    fill factor: 0.5\n", "coil.build.fill factor: give either the turns or a fill factor"},
+		{"    turns: 2500\n", "", "coil.build.turns: missing"},
+		{"    wire diameter: 0.2 mm\n", "    wire diameter: 0.2 mm\n    wire gauge: 32\n", "give either a wire gauge"},
+		{"    wire diameter: 0.2 mm\n", "    wire gauge: 32.5\n", "whole AWG number"},
+		{"    overall diameter: 0.23 mm\n", "    insulation grade: 4\n", "must be 1, 2 or 3"},
+		{"  build:\n", "  resistance: 48 ohm\n  build:\n", "not both"},
+		{"    outer diameter: 26 mm\n", "    outer diameter: 8 mm\n", "coil.build.outer diameter"},
+		{"  eddy resistance: 300 ohm\n", "  eddy resistance: 300 mH\n", "expected a resistance"},
+		{"    turns: 2500\n", "    turns: 25000\n", "do not fit"},
+	}
+	for _, c := range cases {
+		text := strings.Replace(string(good), c.from, c.to, 1)
+		s, err := Parse([]byte(text), "cb.yaml")
+		if err == nil {
+			_, err = Build(s)
+		}
+		if err == nil || !strings.Contains(err.Error(), c.want) || !strings.Contains(err.Error(), "cb.yaml:") {
+			t.Errorf("edit %q → %q: error %v, want one naming cb.yaml and containing %q", c.from, c.to, err, c.want)
 		}
 	}
 }

@@ -12,9 +12,12 @@ import (
 
 // Model is a scenario turned into the domain models, ready to simulate.
 type Model struct {
-	Name        string
-	Source      string
-	Coil        magnet.Coil
+	Name   string
+	Source string
+	Coil   magnet.Coil
+	// CoilBuild holds the winding figures when the coil was given as a
+	// bobbin and wire; nil when given as a measured resistance.
+	CoilBuild   *magnet.CoilFigures
 	Temperature float64 // K, winding temperature during the run
 	Magnet      magnet.Model
 	// EddyResistance (ohm) is the equivalent shorted turn for eddy currents
@@ -75,6 +78,15 @@ func Build(s *Scenario) (*Model, error) {
 		EddyResistance: s.Magnet.EddyResistance}
 	md.Coil = magnet.Coil{Resistance: s.Coil.Resistance, RefTemperature: s.Coil.RefTemperature,
 		TempCoeff: s.Coil.TempCoeff, Turns: s.Coil.Turns}
+	if cb := s.Coil.Build; cb != nil {
+		fig, err := buildCoil(cb)
+		if err != nil {
+			return nil, s.Errorf("coil.build", "%v", err)
+		}
+		md.CoilBuild = &fig
+		// The build gives the resistance at 20 °C (IEC 60028 resistivity).
+		md.Coil = magnet.Coil{Resistance: fig.Resistance20, RefTemperature: 293.15, TempCoeff: s.Coil.TempCoeff, Turns: fig.Turns}
+	}
 	if err := md.Coil.Validate(); err != nil {
 		return nil, s.Errorf("coil", "%v", err)
 	}
@@ -180,3 +192,17 @@ func LoadModel(path string) (*Model, error) {
 }
 
 var _ = fmt.Sprintf
+
+// buildCoil computes the winding figures of a coil given by bobbin and wire.
+func buildCoil(cb *CoilBuildSpec) (magnet.CoilFigures, error) {
+	d := cb.WireDiameter
+	if cb.WireGauge > 0 || d == 0 {
+		var err error
+		if d, err = magnet.AWGDiameter(cb.WireGauge); err != nil {
+			return magnet.CoilFigures{}, err
+		}
+	}
+	b := magnet.CoilBuild{InnerDiameter: cb.InnerDiameter, OuterDiameter: cb.OuterDiameter, Length: cb.Length,
+		WireDiameter: d, OverallDiameter: cb.OverallDiameter, Grade: cb.Grade, Turns: cb.Turns, FillFactor: cb.FillFactor}
+	return b.Figures()
+}

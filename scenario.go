@@ -42,12 +42,27 @@ type CoilSpec struct {
 	Temperature    float64 // K, winding temperature during the run
 	TempCoeff      float64 // 1/K at RefTemperature
 	Turns          float64 // 0 when not given
+	// Build is the winding from bobbin and wire; nil when the coil is
+	// given by its measured resistance.
+	Build *CoilBuildSpec
+}
+
+// CoilBuildSpec is a winding described by its bobbin and wire (m).
+type CoilBuildSpec struct {
+	InnerDiameter, OuterDiameter, Length float64 // winding space
+	WireGauge                            int     // AWG, 0 when a diameter is given
+	WireDiameter                         float64 // bare copper; 0 when a gauge is given
+	OverallDiameter                      float64 // insulated; 0: from the insulation grade
+	Grade                                int     // enamel grade 1..3 (0 with OverallDiameter)
+	Turns                                float64 // 0: from FillFactor
+	FillFactor                           float64 // copper area ÷ winding window
 }
 
 // Magnet model kinds.
 const (
 	MagnetGapLaw = "gap law"
 	MagnetTable  = "table"
+	MagnetGeom   = "geometry"
 )
 
 // MagnetSpec selects and parameterises the magnetic model.
@@ -68,6 +83,25 @@ type MagnetSpec struct {
 	CurrentScale float64 // SI value of one table current unit (A)
 	GapScale     float64 // SI value of one table gap unit (m)
 	FluxScale    float64 // SI value of one table flux-linkage unit (Wb)
+
+	// geometry
+	Geometry GeometrySpec
+}
+
+// GeometrySpec is a plunger magnet described by its dimensions (m) and
+// steel, from which the flux-linkage table is built.
+type GeometrySpec struct {
+	PlungerDiameter, PlungerLength float64
+	PoleDiameter, PoleLength       float64
+	ShellOuterDiameter, ShellWall  float64
+	ShellLength, EndPlateThickness float64
+	SlidingGap, SlidingLength      float64
+	SteelSaturation                float64 // T, saturation polarization of the analytic law
+	SteelPermeability              float64 // initial relative permeability of the analytic law
+	SteelCurveFile                 string  // B–H table instead of the analytic law ("" for none)
+	HScale, BScale                 float64 // SI value of one file unit (A/m, T)
+	TableCurrents, TableGaps       int     // grid size of the built table
+	MaxCurrent                     float64 // A, top of the table's current range; 0: 3 × rated
 }
 
 // PlungerSpec is the moving part. Gap convention: x is the working air

@@ -57,6 +57,8 @@ var (
 	Capacitance    = Dim{-1, -2, 4, 2, 0} // F
 	FluxLinkage    = Dim{1, 2, -2, -1, 0} // Wb
 	PerKelvin      = Dim{0, 0, 0, 0, -1}  // 1/K
+	FluxDensity    = Dim{1, 0, -2, -1, 0} // T
+	FieldStrength  = Dim{0, -1, 0, 1, 0}  // A/m
 )
 
 type dimInfo struct {
@@ -85,6 +87,8 @@ var dimInfos = map[Dim]dimInfo{
 	Capacitance:    {"a capacitance", "100 nF"},
 	FluxLinkage:    {"a flux linkage", "12 mWb"},
 	PerKelvin:      {"a temperature coefficient (per kelvin)", "0.00393 /K"},
+	FluxDensity:    {"a flux density", "1.8 T"},
+	FieldStrength:  {"a magnetic field strength", "400 A/m"},
 }
 
 var baseSymbols = [5]string{"kg", "m", "s", "A", "K"}
@@ -154,6 +158,7 @@ var unitDefs = map[string]unitDef{
 	"H":       {dim: Inductance, mult: 1, prefix: true},
 	"F":       {dim: Capacitance, mult: 1, prefix: true},
 	"Wb":      {dim: FluxLinkage, mult: 1, prefix: true},
+	"T":       {dim: FluxDensity, mult: 1, prefix: true},
 	"m":       {dim: Length, mult: 1, prefix: true},
 	"g":       {dim: Mass, mult: 1, exp10: -3, prefix: true},
 	"s":       {dim: Time, mult: 1, prefix: true},
@@ -219,7 +224,7 @@ type unitValue struct {
 //
 //	"6 N" is a force; expected a mass, e.g. "6 g"
 //
-// Supported units: V A ohm Ω H F Wb m g s N Pa bar J W K (all with the
+// Supported units: V A ohm Ω H F Wb T m g s N Pa bar J W K (all with the
 // prefixes p n u µ m c k M G), and min (60 s), psi, degC, °C (no prefixes).
 func ParseQuantity(s string, dim Dim) (float64, error) {
 	t := strings.TrimSpace(s)

@@ -33,7 +33,7 @@ const (
 var errFailing = errors.New("a rating or requirement fails")
 
 // valueFlags are the flags that take a value, for reordering arguments.
-var valueFlags = map[string]bool{"csv": true, "json": true, "tolerance": true}
+var valueFlags = map[string]bool{"csv": true, "json": true, "tolerance": true, "curves": true, "currents": true}
 
 // permute moves flags written after positional arguments in front of them,
 // so that "coilkick run valve.yaml --csv out.csv" works: the flag parser
@@ -82,6 +82,16 @@ func run(stdout, stderr io.Writer, args []string) int {
 					&cli.Float64Flag{Name: "tolerance", Usage: "relative tolerance of the integrator (default: scenario's, else 1e-8)"},
 				},
 				Action: func(c *cli.Context) error { return cmdRun(c, stdout) },
+			},
+			{
+				Name:      "magnet",
+				Usage:     "print the coil and magnet figures (inductance, force, saturation) without simulating",
+				ArgsUsage: "SCENARIO.yaml",
+				Flags: []cli.Flag{
+					&cli.StringFlag{Name: "curves", Usage: "write force versus gap for a family of currents to `FILE` (CSV)"},
+					&cli.StringFlag{Name: "currents", Usage: "currents of the family, in A, comma-separated (default: 0.25 to 1.5 × rated)"},
+				},
+				Action: func(c *cli.Context) error { return cmdMagnet(c, stdout) },
 			},
 			{
 				Name:      "check",
