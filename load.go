@@ -56,7 +56,18 @@ func Load(path string) (*Scenario, error) {
 //	                                            IEC 60028); the resistance at the run
 //	                                            temperature must stay > 0
 //	  turns: 1800                               optional plain number > 0; default 0 (not given)
-//	magnet:                                     exactly one of "gap law" and "table"
+//	  build:                                    instead of resistance: the winding from bobbin
+//	                                            and wire (resistance at 20 degC from IEC 60028)
+//	    inner diameter: 10 mm                   > 0, winding space
+//	    outer diameter: 26 mm                   > inner diameter
+//	    length: 22 mm                           > 0
+//	    wire gauge: 32                          AWG 0..46, or
+//	    wire diameter: 0.2 mm                   bare copper
+//	    insulation grade: 2                     enamel grade 1, 2 or 3, or
+//	    overall diameter: 0.23 mm               insulated diameter
+//	    turns: 2500                             or
+//	    fill factor: 0.5                        copper area / winding window, < 0.91
+//	magnet:                                     exactly one of "gap law", "table", "geometry"
 //	  eddy resistance: 200 ohm                  optional, default none; > 0: equivalent
 //	                                            shorted turn for eddy currents, referred
 //	                                            to the coil's turns
@@ -69,6 +80,18 @@ func Load(path string) (*Scenario, error) {
 //	    current unit: A                         unit of the table's currents
 //	    gap unit: mm                            unit of the table's gaps
 //	    flux linkage unit: mWb                  unit of the table's flux linkages
+//	  geometry:                                 a plunger magnet from its dimensions; needs coil.build
+//	    plunger diameter, plunger length, pole diameter, pole length, shell outer diameter,
+//	    shell wall, shell length, end plate thickness, sliding gap, sliding length: lengths > 0
+//	    steel saturation: 2.0 T                 saturation polarization (analytic law), with
+//	    steel permeability: 1500                initial relative permeability > 1, or
+//	    steel curve:                            a measured B–H curve
+//	      file: steel.csv                       rows "H, B"
+//	      field unit: A/m
+//	      flux density unit: T
+//	    table currents: 40                      optional, default 40 (4..400)
+//	    table gaps: 40                          optional, default 40 (4..400)
+//	    max current: 2 A                        optional, default 3 × supply voltage / coil resistance
 //	plunger:
 //	  mass: 6 g                                 > 0
 //	  rest gap: 1.2 mm                          > seated gap

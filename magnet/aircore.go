@@ -66,29 +66,40 @@ func WheelerMultilayer(turns, meanRadius, length, depth float64) float64 {
 //
 //	M = µ0·√(r1·r2)·[(2/k − k)·K(k) − (2/k)·E(k)],  k² = 4·r1·r2/((r1 + r2)² + z²),
 //
-// with K, E the complete elliptic integrals of modulus k; gonum's
-// mathext.CompleteK and CompleteE take the parameter m = k². It returns 0
-// when k = 0 (a zero radius) and +Inf for coincident filaments (k = 1).
+// with K, E the complete elliptic integrals of modulus k (gonum's
+// mathext.CompleteK and CompleteE take the parameter m = k²). That form
+// loses accuracy for distant filaments (the bracket is of order k³ while
+// its terms are of order 1/k: 1e-3 relative error at z = 1000·r). It is
+// evaluated here in Maxwell's equivalent Landen-transformed form (same
+// article; Grover 1946, the formula in terms of the greatest and least
+// distances r₁ = √((r1+r2)² + z²), r₂ = √((r1−r2)² + z²)):
+//
+//	M = µ0·(r₁ + r₂)·[K(k₁) − E(k₁)],  k₁ = (r₁ − r₂)/(r₁ + r₂) = 4·r1·r2/(r₁ + r₂)²,
+//
+// with K(k₁) − E(k₁) = k₁²·D(k₁) computed as mathext.CompleteD(k₁²)·k₁², so
+// nothing cancels; the two forms agree to rounding where both are accurate
+// (checked in the tests). It returns 0 when a radius is 0 and +Inf for
+// coincident filaments.
 func loopMutual(r1, r2, z float64) float64 {
-	s := r1 + r2
-	den := s*s + z*z
-	m := 4 * r1 * r2 / den
-	if !(m > 0) {
+	s := math.Hypot(r1+r2, z) + math.Hypot(r1-r2, z)
+	k1 := 4 * r1 * r2 / (s * s)
+	if !(k1 > 0) {
 		return 0
 	}
-	if m >= 1 {
+	if k1 >= 1 {
 		return math.Inf(1)
 	}
-	k := math.Sqrt(m)
-	return Mu0 * math.Sqrt(r1*r2) * ((2/k-k)*mathext.CompleteK(m) - 2/k*mathext.CompleteE(m))
+	m1 := k1 * k1
+	return Mu0 * s * m1 * mathext.CompleteD(m1)
 }
 
 // rectGMDFactor is the factor of the geometric mean distance of a rectangle
-// from itself, g ≈ 0.2235·(w + h) (Maxwell, Treatise, art. 692; E. B. Rosa
-// & F. W. Grover, "Formulas and tables for the calculation of mutual and
-// self-inductance", Bull. Bureau of Standards 8, 1912). It is within about
-// 0.5 % of the exact GMD for any aspect ratio: the exact values are
-// 0.2231·w for a line (h → 0) and 0.44705·w for a square.
+// w × h from itself, g ≈ 0.2235·(w + h) (Maxwell, Treatise, art. 692; E. B.
+// Rosa & F. W. Grover, "Formulas and tables for the calculation of mutual
+// and self-inductance", Bull. Bureau of Standards 8, 1912). The exact GMD
+// is e^(−3/2)·w = 0.22313·w for a line (h → 0) and 0.44705·w for a square;
+// the approximation is within 0.2 % for every aspect ratio (checked by
+// quadrature in the tests).
 const rectGMDFactor = 0.2235
 
 // AirCoreInductance returns the self-inductance (H) of the air-core coil in
@@ -101,7 +112,8 @@ const rectGMDFactor = 0.2235
 //	L = Σ_i Σ_j n²·M_ij
 //
 // with M_ij the mutual inductance of filaments i ≠ j by Maxwell's formula
-// (see loopMutual: Maxwell 1873, as in Grover 1946), and the self term of a
+// (see loopMutual: Maxwell 1873, as in Grover 1946, evaluated with gonum's
+// complete elliptic integrals), and the self term of a
 // cell by the geometric-mean-distance method (Maxwell, Treatise, art. 691;
 // Rosa & Grover 1912): the self-inductance of a cell of radius r is the
 // mutual inductance of two filaments of radius r one GMD g = 0.2235·(w + h)
@@ -111,12 +123,18 @@ const rectGMDFactor = 0.2235
 // coarse grids.
 //
 // Accuracy: the result is the low-frequency inductance of a uniform current
-// density over the window (the winding's wire structure, insulation and the
-// lead-outs are ignored). The discretisation error falls about as
-// 1/(nr²·nz²)-like with the cell size; nr = nz = 16 is within about 0.1 %
-// for compact coils, and a single-layer (thin) coil needs nr = 1 with nz
-// large. The work is about nr²·nz elliptic-integral pairs: nr = nz = 100 is
-// 10⁶ evaluations.
+// density over the window (the wire structure, insulation and lead-outs are
+// ignored; so are nearby iron and eddy currents). With cells about square
+// (nz/nr ≈ Length/depth) the discretisation error falls as the square of
+// the cell size: measured in the tests, about 1e-3 relative with 4 cells
+// across the smaller side of the window and 1e-4 with 16. Elongated cells
+// converge more slowly: for a single-layer coil of negligible depth use
+// nr = 1 and cells 2e-4 of the radius high for 1e-4. Against Wheeler's
+// formula (inside its range) and Nagaoka's coefficient for current sheets
+// the tests find agreement within 0.6 % and 2e-4.
+//
+// The work is about nr²·nz/2 evaluations of the elliptic integral:
+// nr = nz = 100 takes 5·10⁵, a few tens of milliseconds.
 //
 // It returns 0 for turns ≤ 0 or non-finite, nr or nz < 1, and a window
 // with InnerDiameter < 0, OuterDiameter ≤ InnerDiameter or Length ≤ 0 (or

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"strings"
 )
 
 // CopperResistivity20 is the resistivity of annealed copper at 20 °C, Ω·m
@@ -144,10 +145,11 @@ type CoilFigures struct {
 // InnerDiameter < 0, OuterDiameter ≤ InnerDiameter or Length ≤ 0; a bare
 // diameter ≤ 0; an overall diameter below the bare one; a grade outside
 // 1..3 when OverallDiameter is 0; Turns < 0 or above 1e9; Turns 0 with a
-// FillFactor outside (0, 1) or one that gives less than one turn; and a wire
-// thicker than the bobbin length. When the turns do not fit the window the
-// error wraps ErrCoilOverfull and the figures are still returned, with
-// WindowFits false, so the caller can see by how much.
+// FillFactor outside (0, 1) or one that gives less than one turn; a wire
+// thicker than the bobbin length; and figures that overflow float64. When
+// the turns do not fit the window the error wraps ErrCoilOverfull and the
+// figures are still returned, with WindowFits false, so the caller can see
+// by how much.
 func (b CoilBuild) Figures() (CoilFigures, error) {
 	if err := b.check(); err != nil {
 		return CoilFigures{}, err
@@ -156,7 +158,8 @@ func (b CoilBuild) Figures() (CoilFigures, error) {
 	if overall == 0 {
 		var err error
 		if overall, err = EnamelledDiameter(b.WireDiameter, b.Grade); err != nil {
-			return CoilFigures{}, fmt.Errorf("magnet: coil build: overall diameter 0 and %w", err)
+			return CoilFigures{}, fmt.Errorf("magnet: coil build: no overall diameter given, and from the grade: %s",
+				strings.TrimPrefix(err.Error(), "magnet: "))
 		}
 	}
 	depth := (b.OuterDiameter - b.InnerDiameter) / 2
@@ -191,6 +194,11 @@ func (b CoilBuild) Figures() (CoilFigures, error) {
 		Layers:         int(layers),
 		FillFactor:     turns * area / window,
 		LayerFill:      layers * overall / depth,
+	}
+	for _, v := range []float64{wireLen, f.Resistance20, f.CopperMass, f.LayerFill} {
+		if !isFinite(v) {
+			return CoilFigures{}, fmt.Errorf("magnet: coil build: figures overflow for %g turns of %g m mean length; check the units (m)", turns, mlt)
+		}
 	}
 	f.WindowFits = layers*overall <= depth*(1+fitTol)
 	if !f.WindowFits {
