@@ -90,7 +90,7 @@ func Load(path string) (*Scenario, error) {
 //	      field unit: A/m
 //	      flux density unit: T
 //	    table currents: 40                      optional, default 40 (4..400)
-//	    table gaps: 40                          optional, default 40 (4..400)
+//	    table gaps: 60                          optional, default 60 (4..400)
 //	    max current: 2 A                        optional, default 3 × supply voltage / coil resistance
 //	plunger:
 //	  mass: 6 g                                 > 0
@@ -1014,7 +1014,7 @@ func (l *scenarioLoader) loadCoilBuild(coil *yamlSection) {
 // Defaults of the geometry section.
 const (
 	defaultTableCurrents = 40
-	defaultTableGaps     = 40
+	defaultTableGaps     = 60
 )
 
 // loadGeometry reads magnet.geometry: a plunger magnet from dimensions.

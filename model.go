@@ -19,7 +19,11 @@ type Model struct {
 	// bobbin and wire; nil when given as a measured resistance.
 	CoilBuild   *magnet.CoilFigures
 	Temperature float64 // K, winding temperature during the run
-	Magnet      magnet.Model
+	// Geometry is the magnetic circuit from dimensions when the magnet was
+	// given as geometry (Magnet is then its flux-linkage table); nil
+	// otherwise.
+	Geometry *magnet.PlungerMagnet
+	Magnet   magnet.Model
 	// EddyResistance (ohm) is the equivalent shorted turn for eddy currents
 	// in the steel, referred to the coil's turns; 0 for none.
 	EddyResistance float64
@@ -143,6 +147,12 @@ func Build(s *Scenario) (*Model, error) {
 				lo*1e3, hi*1e3, p.SeatedGap*1e3, p.RestGap*1e3)
 		}
 		md.Magnet = tb
+	case MagnetGeom:
+		pm, tb, err := buildGeometry(s, md)
+		if err != nil {
+			return nil, err
+		}
+		md.Geometry, md.Magnet = pm, tb
 	default:
 		return nil, s.Errorf("magnet", "unknown magnetic model %q", s.Magnet.Kind)
 	}
@@ -205,4 +215,73 @@ func buildCoil(cb *CoilBuildSpec) (magnet.CoilFigures, error) {
 	b := magnet.CoilBuild{InnerDiameter: cb.InnerDiameter, OuterDiameter: cb.OuterDiameter, Length: cb.Length,
 		WireDiameter: d, OverallDiameter: cb.OverallDiameter, Grade: cb.Grade, Turns: cb.Turns, FillFactor: cb.FillFactor}
 	return b.Figures()
+}
+
+// buildGeometry solves the plunger magnet from its dimensions and samples
+// it into a flux-linkage table over the plunger's stroke.
+func buildGeometry(s *Scenario, md *Model) (*magnet.PlungerMagnet, *magnet.Table, error) {
+	gs := s.Magnet.Geometry
+	cb := s.Coil.Build
+	if cb == nil || md.CoilBuild == nil {
+		return nil, nil, s.Errorf("magnet.geometry", "needs coil.build: the winding space and turns come from the bobbin")
+	}
+	p := s.Plunger
+	if !(p.SeatedGap > 0) {
+		return nil, nil, s.Errorf("plunger.seated gap", "a magnet from geometry needs a residual gap > 0 at the seat (a shim or the surface finish, e.g. 0.02 mm)")
+	}
+	g := magnet.PlungerGeometry{
+		PlungerDiameter: gs.PlungerDiameter, PlungerLength: gs.PlungerLength,
+		PoleDiameter: gs.PoleDiameter, PoleLength: gs.PoleLength,
+		ShellOuterDiameter: gs.ShellOuterDiameter, ShellWall: gs.ShellWall,
+		ShellLength: gs.ShellLength, EndPlateThickness: gs.EndPlateThickness,
+		SlidingGap: gs.SlidingGap, SlidingLength: gs.SlidingLength,
+		WindingInnerRadius: cb.InnerDiameter / 2, WindingOuterRadius: cb.OuterDiameter / 2, WindingLength: cb.Length,
+	}
+	var steel magnet.BHCurve
+	if gs.SteelCurveFile != "" {
+		f, err := os.Open(gs.SteelCurveFile)
+		if err != nil {
+			return nil, nil, s.Errorf("magnet.geometry.steel curve.file", "%v", err)
+		}
+		defer f.Close()
+		bh, err := magnet.ReadBHCSV(f, gs.SteelCurveFile, gs.HScale, gs.BScale)
+		if err != nil {
+			return nil, nil, s.Errorf("magnet.geometry.steel curve.file", "%v", err)
+		}
+		steel = bh
+	} else {
+		fk, err := magnet.NewFrohlichKennelly(gs.SteelSaturation, gs.SteelPermeability)
+		if err != nil {
+			return nil, nil, s.Errorf("magnet.geometry.steel saturation", "%v", err)
+		}
+		steel = fk
+	}
+	pm, err := magnet.NewPlungerMagnet(g, steel, md.CoilBuild.Turns)
+	if err != nil {
+		return nil, nil, s.Errorf("magnet.geometry", "%v", err)
+	}
+	maxI := gs.MaxCurrent
+	if maxI == 0 {
+		r := math.Min(md.Coil.Resistance, md.CoilResistance())
+		maxI = 3 * s.Supply.Voltage / r
+	}
+	nI, nX := gs.TableCurrents, gs.TableGaps
+	// Currents spaced quadratically: at small gaps the steel saturates at
+	// a small fraction of the rated current, where λ(i) bends sharply.
+	currents := make([]float64, nI)
+	for k := range currents {
+		u := float64(k) / float64(nI-1)
+		currents[k] = maxI * u * u
+	}
+	// Gaps spaced geometrically: the permeance varies as 1/x.
+	gaps := make([]float64, nX)
+	for j := range gaps {
+		gaps[j] = p.SeatedGap * math.Pow(p.RestGap/p.SeatedGap, float64(j)/float64(nX-1))
+	}
+	gaps[nX-1] = p.RestGap
+	tb, err := pm.BuildTable(currents, gaps)
+	if err != nil {
+		return nil, nil, s.Errorf("magnet.geometry", "%v", err)
+	}
+	return pm, tb, nil
 }

@@ -86,6 +86,16 @@ func printMagnet(w io.Writer, path string, md *coilkick.Model, s *coilkick.Magne
 	row("saturation onset, seated gap", sat(s.SaturationSeated))
 	row("saturation onset, rest gap", sat(s.SaturationRest))
 	fmt.Fprintf(b, "  (saturation onset: incremental inductance below %.0f %% of its zero-current value)\n", 100*coilkick.SaturationFraction)
+	if g := md.Geometry; g != nil {
+		for _, at := range []struct {
+			name string
+			x    float64
+		}{{"seated", md.Plunger.GapMin}, {"rest", md.Plunger.GapMax}} {
+			if bmax, part, err := g.SteelFluxDensity(s.RatedCurrent, at.x); err == nil {
+				row("steel flux density, "+at.name+" gap", fmt.Sprintf("%.2f T at rated current, highest in the %s", bmax, part))
+			}
+		}
+	}
 	if s.ForceAtRest <= s.SpringAtRest {
 		fmt.Fprintln(b, "\n  WARNING: at rated current the pull at the rest gap does not exceed the spring and load: it will not pull in")
 	}

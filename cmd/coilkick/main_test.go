@@ -34,6 +34,9 @@ func TestRunExitCodes(t *testing.T) {
 		{"missing file", []string{"run", "nope.yaml"}, exitError, nil, []string{"nope.yaml"}},
 		{"no file", []string{"run"}, exitError, nil, []string{"exactly one scenario file"}},
 		{"unknown command", []string{"fly"}, exitError, nil, nil},
+		{"magnet from geometry", []string{"magnet", "../../scenarios/dosing-valve-geometry.yaml", "--curves", filepath.Join(dir, "f.csv")}, exitOK,
+			[]string{"turns", "copper mass", "saturation onset, seated gap", "steel flux density"}, nil},
+		{"magnet bad currents", []string{"magnet", "../../scenarios/irrigation-valve.yaml", "--currents", "0.1,x"}, exitError, nil, []string{"--currents"}},
 	}
 	for _, c := range cases {
 		var out, errb bytes.Buffer

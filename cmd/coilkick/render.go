@@ -26,6 +26,9 @@ func si(v float64, unit string) string {
 		f float64
 	}{{"G", 1e9}, {"M", 1e6}, {"k", 1e3}, {"", 1}, {"m", 1e-3}, {"µ", 1e-6}, {"n", 1e-9}, {"p", 1e-12}}
 	a := math.Abs(v)
+	if a < 1e-12 {
+		return strconv.FormatFloat(v, 'e', 2, 64) + " " + unit
+	}
 	for _, p := range prefixes {
 		if a >= p.f*0.9995 || p.p == "p" {
 			return strconv.FormatFloat(v/p.f, 'g', 3, 64) + " " + p.p + unit
