@@ -244,3 +244,23 @@ func TestEddyCurrentsSlowPullIn(t *testing.T) {
 		prev = m.PullIn.Seconds
 	}
 }
+
+// Loading the geometry demo: parse, coil build, and the magnetic circuit
+// solved on the 40 × 60 table grid.
+func BenchmarkBuildGeometryScenario(b *testing.B) {
+	s, err := Load("scenarios/dosing-valve-geometry.yaml")
+	if err != nil {
+		b.Fatal(err)
+	}
+	for b.Loop() {
+		if _, err := Build(s); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// One actuation of the geometry demo (Rosenbrock: eddy turn with switch
+// capacitance).
+func BenchmarkActuationDosingValveGeometry(b *testing.B) {
+	benchActuation(b, "scenarios/dosing-valve-geometry.yaml")
+}

@@ -446,3 +446,65 @@ func TestLoadCoilBuildErrors(t *testing.T) {
 		}
 	}
 }
+
+func TestLoadGeometryErrors(t *testing.T) {
+	t.Parallel()
+	good, err := os.ReadFile(filepath.Join("scenarios", "dosing-valve-geometry.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	cases := []struct{ from, to, want string }{
+		{"  seated gap: 0.05 mm\n", "  seated gap: 0 mm\n", "plunger.seated gap: a magnet from geometry needs a residual gap"},
+		{"    steel permeability: 1500", "    steel permeability: 0.5", "must exceed 1"},
+		{"    steel saturation: 2.0 T", "    steel saturation: 2.0 A", "expected a flux density"},
+		{"    steel saturation: 2.0 T", "    steel saturation: 2.0 T\n    steel curve:\n      file: nope.csv\n      field unit: A/m\n      flux density unit: T", "not both"},
+		{"    sliding gap: 0.05 mm\n", "", "magnet.geometry.sliding gap: missing"},
+		{"    pole diameter: 8 mm\n", "    pole diameter: 12 mm\n", "magnet.geometry"},
+	}
+	for _, c := range cases {
+		text := strings.Replace(string(good), c.from, c.to, 1)
+		if text == string(good) {
+			t.Fatalf("edit %q did not apply", c.from)
+		}
+		s, err := Parse([]byte(text), filepath.Join("scenarios", "g.yaml"))
+		if err == nil {
+			_, err = Build(s)
+		}
+		if err == nil || !strings.Contains(err.Error(), c.want) || !strings.Contains(err.Error(), "g.yaml:") {
+			t.Errorf("edit %q → %q: error %v, want one naming g.yaml and containing %q", c.from, c.to, err, c.want)
+		}
+	}
+	// Geometry without a coil build.
+	text := strings.Replace(string(good), "coil:\n  build:", "coil:\n  resistance: 87 ohm\n  turns: 2800\n  unused:", 1)
+	if _, err := Parse([]byte(text), "g.yaml"); err == nil || !strings.Contains(err.Error(), "needs coil.build") {
+		t.Errorf("geometry without coil.build: %v", err)
+	}
+}
+
+func TestLoadGeometrySteelCurve(t *testing.T) {
+	t.Parallel()
+	good, err := os.ReadFile(filepath.Join("scenarios", "dosing-valve-geometry.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	text := strings.Replace(string(good), "    steel saturation: 2.0 T        # typical of low-carbon steel, from memory\n    steel permeability: 1500       # initial relative permeability, from memory\n",
+		"    steel curve:\n      file: ../magnet/steel_bh.csv\n      field unit: kA/m\n      flux density unit: T\n", 1)
+	if text == string(good) {
+		t.Fatal("edit did not apply")
+	}
+	s, err := Parse([]byte(text), filepath.Join("testdata", "good", "curve.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	md, err := Build(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := Simulate(md, &Options{NoTrace: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !res.Metrics.PullIn.Happened || res.Metrics.EnergyResidualRel() > 1e-4 {
+		t.Errorf("steel-curve magnet: %+v", res.Metrics)
+	}
+}

@@ -355,9 +355,9 @@ func (t *Table) checkMonotone() *gridErr {
 						dl += g.phi[c] * d
 					}
 					if !(dl > 0) {
-						return newGridErr(noRow, "interpolated flux linkage is not increasing in current at gap %g m, current %g A "+
-							"(∂λ/∂i = %g H): the gap interpolation overshoots between columns; refine the gap grid near %g m",
-							x, t.cur[k]+s, dl, x)
+						return newGridErr(noRow, "interpolated flux linkage is not increasing in current at gap %.4g mm, current %.4g A "+
+							"(∂λ/∂i = %.3g H): the gap interpolation overshoots between columns; refine the gap grid near %.4g mm",
+							x*1e3, t.cur[k]+s, dl, x*1e3)
 					}
 				}
 			}

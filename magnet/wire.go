@@ -203,8 +203,8 @@ func (b CoilBuild) Figures() (CoilFigures, error) {
 	f.WindowFits = layers*overall <= depth*(1+fitTol)
 	if !f.WindowFits {
 		maxLayers := math.Floor(depth/overall + fitTol)
-		return f, fmt.Errorf("%w: %g turns need %d layers of %d turns of %g m wire, %g m deep, but the radial depth is %g m; at most %g turns fit with perfect layers",
-			ErrCoilOverfull, turns, f.Layers, f.TurnsPerLayer, overall, layers*overall, depth, maxLayers*perLayer)
+		return f, fmt.Errorf("%w: %g turns need %d layers of %d turns of %.4g mm wire, %.4g mm deep, but the radial depth is %.4g mm; at most %g turns fit with perfect layers",
+			ErrCoilOverfull, turns, f.Layers, f.TurnsPerLayer, overall*1e3, layers*overall*1e3, depth*1e3, maxLayers*perLayer)
 	}
 	return f, nil
 }
