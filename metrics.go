@@ -74,6 +74,22 @@ type Metrics struct {
 	// energized.
 	DroppedOutEnergized bool
 
+	// PeakSupplyCurrent: largest current drawn from the supply rail, A.
+	PeakSupplyCurrent float64
+	// MinRailVoltage: lowest voltage at the drive's supply terminals (the
+	// bulk capacitor, or the source behind its resistance), V.
+	MinRailVoltage float64
+	// SwitchingLossEstimate: the switch's edge losses over the run from
+	// the rise and fall times, ½·V·I·t per edge (J); an estimate outside
+	// the energy balance.
+	SwitchingLossEstimate float64
+	// DiodeLoss: energy in the recirculation path and bridge diodes, J.
+	DiodeLoss float64
+	// EnergyReturned: energy a bridge returned to the supply rail, J.
+	EnergyReturned float64
+	// Hold: figures over the hold window.
+	Hold HoldMetrics
+
 	// Energy balance, J: SupplyEnergy = CoilLoss + SourceLoss + SwitchLoss
 	// + ClampEnergy + MechanicalWork + EddyLoss + StoredChange + EnergyResidual.
 	SupplyEnergy   float64
@@ -86,7 +102,29 @@ type Metrics struct {
 	EnergyResidual float64 // what the balance leaves over (numerical error and omitted fast modes)
 }
 
+// HoldMetrics describe the hold: measured over the hold window, the
+// second half of the time from the end of the peak or boost phase (the
+// energize command for constant and PWM drive) to the de-energize command,
+// when the drive has settled. Powers are means over the window (W).
+type HoldMetrics struct {
+	Measured                          bool
+	Start, End                        float64 // s, the window
+	MeanCurrent, MinCurrent           float64 // A
+	MaxCurrent, Ripple                float64 // A, ripple = max − min
+	ChoppingFrequency                 float64 // Hz, switch turn-on edges per second
+	CoilPower                         float64 // in the coil resistance
+	FullVoltageCoilPower              float64 // the coil held at the full supply voltage, V²/R
+	SwitchConductionPower, DiodePower float64
+	SwitchingPower                    float64 // estimated from the edge times
+	SupplyMeanCurrent                 float64 // A
+	SupplyPower                       float64
+	// ForceMargin: magnetic pull at the lowest hold current over the
+	// passive force (spring + load) at the seat; 0 when not seated.
+	ForceMargin float64
+}
+
 func (m *Metrics) init() {
+	m.MinRailVoltage = math.Inf(1)
 	m.MinSwitchVoltage = math.Inf(1)
 	m.PeakSwitchVoltage = math.Inf(-1)
 }

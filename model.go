@@ -29,9 +29,16 @@ type Model struct {
 	EddyResistance float64
 	Plunger        mech.Plunger
 	Drive          circuit.Drive
-	Timing         TimingSpec
-	Limits         LimitsSpec
-	Solver         SolverSpec
+	Control        circuit.Control // how the driver drives the coil while energized
+	// BulkCapacitance (F) at the drive's supply terminals, fed through the
+	// source resistance; 0 for none.
+	BulkCapacitance float64
+	// RiseTime, FallTime (s) of the switch's edges, for the switching-loss
+	// estimate; 0 for ideal edges.
+	RiseTime, FallTime float64
+	Timing             TimingSpec
+	Limits             LimitsSpec
+	Solver             SolverSpec
 }
 
 // CoilResistance returns the coil resistance at the run's winding

@@ -75,6 +75,21 @@ type run struct {
 	res             *Result
 	noTrace         bool
 
+	ctl      circuit.Controller
+	baseV0   float64 // V, the normal supply voltage
+	tRevEnd  float64 // end of a timed reverse pulse (+Inf: none)
+	tWin     float64 // start of the hold window (its end is tOff)
+	inWindow bool
+	win      [nState]float64 // state at the window start
+	edges    int             // switch turn-on edges inside the window
+	swEst    float64         // J, estimated switching loss (edge times), not in the balance
+	swEstWin float64         // J, the same at the window start
+	winMin   float64         // A, coil current extremes in the window
+	winMax   float64
+	quiet    bool // chopping: mode changes are not logged
+
+	riseTime, fallTime float64
+
 	decayArmed     bool
 	decayThreshold float64
 	decaySign      float64 // sign of the turn-off current
@@ -91,16 +106,18 @@ func (r *run) note(t float64, format string, args ...any) {
 }
 
 func (r *run) nextTimeEvent(t float64) float64 {
-	for _, te := range [...]float64{r.tOn, r.tOff, r.tEnd} {
-		if te > t {
-			return te
+	next := math.Inf(1)
+	for _, te := range [...]float64{r.tOn, r.tWin, r.tOff, r.tRevEnd, r.tEnd, r.ctl.NextTime(t)} {
+		if te > t && te < next {
+			next = te
 		}
 	}
-	return math.Inf(1)
+	return next
 }
 
-func (r *run) guards(_ float64, y, g []float64) int {
+func (r *run) guards(t float64, y, g []float64) int {
 	_, n := r.guardsAt(y, g)
+	n += r.ctl.Guards(t, r.current(y), g[n:])
 	if r.decayArmed {
 		g[n] = r.decayThreshold - r.decaySign*r.current(y) // signed: the current may overshoot zero within a step
 		n++
@@ -115,21 +132,39 @@ const settleTol = 1e-9
 func (r *run) event(t float64, y []float64, k int) (bool, error) {
 	m := &r.res.Metrics
 	if k < 0 {
-		switch t {
-		case r.tEnd:
-			return true, nil
-		case r.tOn:
+		// Several commands may fall on the same instant: apply them all.
+		if t == r.tOn {
 			r.energize(t, y)
-		case r.tOff:
+		}
+		if r.ctl.Active() {
+			r.ctl.AtTime(t)
+			r.applyCommand(t, y)
+		}
+		if t == r.tWin {
+			r.openWindow(t, y)
+		}
+		if t == r.tOff {
 			r.deenergize(t, y)
+		}
+		if t == r.tRevEnd && r.cmode == circuit.BridgeReverse {
+			i := r.current(y)
+			r.cmode = r.drive.TurnOffMode(i)
+			r.note(t, "reverse pulse ends at %.4g A", i)
+		}
+		if t == r.tEnd {
+			return true, nil
 		}
 	} else {
 		nc, n := r.guardsAt(y, r.g[:])
+		nctl := r.ctl.Guards(t, r.current(y), r.g[n:])
 		switch {
 		case k < nc:
 			r.circuitChange(t, y, r.drive.Target(r.cmode, k))
 		case k < n:
 			r.mechEvent(t, y)
+		case k < n+nctl:
+			r.ctl.AtGuard(k - n)
+			r.applyCommand(t, y)
 		default: // the decay monitor
 			r.decayArmed = false
 			m.CurrentDecay = Interval{true, t - r.tOff}
@@ -146,25 +181,113 @@ func (r *run) event(t float64, y []float64, k int) (bool, error) {
 	return false, nil
 }
 
-func (r *run) energize(t float64, y []float64) {
+// applyCommand makes the switch follow the controller while energized.
+func (r *run) applyCommand(t float64, y []float64) {
+	want := r.ctl.On()
+	r.v0 = r.ctl.SupplyVoltage(t, r.baseV0)
+	switch {
+	case want && r.cmode != circuit.On:
+		r.switchOn(t, y)
+		if r.inWindow {
+			r.edges++
+		}
+	case !want && r.cmode == circuit.On:
+		i := r.current(y)
+		r.swEst += 0.5 * r.edgeVoltageOff(i, y) * math.Abs(i) * r.fallTime
+		vsw := r.pt.SwitchVoltage
+		switch {
+		case r.ctl.FastDecay:
+			r.cmode = r.drive.TurnOffMode(i)
+		case i > 0:
+			r.cmode = circuit.Recirc
+		default:
+			r.cmode = circuit.Off
+		}
+		y[sSwitchC] = vsw
+	}
+}
+
+// edgeVoltageOff returns the switch voltage just after a turn-off edge in
+// the mode the current will take (for the switching-loss estimate).
+func (r *run) edgeVoltageOff(i float64, y []float64) float64 {
+	keep := r.cmode
+	switch {
+	case r.ctl.FastDecay:
+		r.cmode = r.drive.TurnOffMode(i)
+	case i > 0:
+		r.cmode = circuit.Recirc
+	default:
+		r.cmode = circuit.Off
+	}
+	r.solve(y)
+	v := math.Abs(r.pt.SwitchVoltage)
+	r.cmode = keep
+	r.solve(y)
+	return v
+}
+
+// switchOn turns the switch on, booking the capacitive turn-on loss and
+// the estimated edge loss.
+func (r *run) switchOn(t float64, y []float64) {
+	r.solve(y)
+	vBefore := math.Abs(r.pt.SwitchVoltage)
 	before := r.storedCapEnergy(y)
 	r.cmode = circuit.On
 	after := r.storedCapEnergy(y)
 	if before > after {
 		y[qSwitch] += before - after // switch capacitance discharged by the switch: turn-on loss
 	}
+	i := r.current(y)
+	// Linear-ramp switching-loss estimate: E = ½·V·I·t_edge per edge
+	// (idealised switching waveforms, e.g. Mohan, Undeland & Robbins,
+	// Power Electronics, ch. 2; from memory).
+	r.swEst += 0.5 * vBefore * math.Abs(i) * r.riseTime
+}
+
+// openWindow starts the hold window: the second half of the hold phase.
+func (r *run) openWindow(t float64, y []float64) {
+	r.inWindow = true
+	copy(r.win[:], y)
+	r.swEstWin = r.swEst
+	i := r.current(y)
+	r.winMin, r.winMax = i, i
+	r.edges = 0
+}
+
+func (r *run) energize(t float64, y []float64) {
 	r.energized = true
-	r.note(t, "energize")
+	r.ctl.Start(t)
+	r.v0 = r.ctl.SupplyVoltage(t, r.baseV0)
+	r.switchOn(t, y)
+	r.note(t, "energize (%v drive)", r.ctl.Mode)
 }
 
 func (r *run) deenergize(t float64, y []float64) {
 	i := r.current(y)
+	r.closeWindow(t, y)
+	wasOn := r.cmode == circuit.On
+	r.solve(y)
 	vsw := r.pt.SwitchVoltage
 	r.res.Metrics.CurrentAtTurnOff = i
-	r.cmode = r.drive.TurnOffMode(i)
-	y[sSwitchC] = vsw
+	r.ctl.Stop()
+	r.v0 = r.baseV0
 	r.energized = false
 	r.offDone = true
+	if r.drive.Suppressor.Kind == circuit.Bridge && r.ctl.ReversePulse > 0 {
+		r.cmode = circuit.BridgeReverse
+		r.tRevEnd = t + r.ctl.ReversePulse
+	} else {
+		r.cmode = r.drive.TurnOffMode(i)
+	}
+	y[sSwitchC] = vsw
+	if wasOn {
+		r.solve(y)
+		vEdge := math.Abs(r.pt.SwitchVoltage)
+		if r.cmode == circuit.Off {
+			vEdge = math.Max(vEdge, r.baseV0) // the node must reach the rail before anything conducts
+		}
+		r.swEst += 0.5 * vEdge * math.Abs(i) * r.fallTime
+	}
 	if i != 0 {
 		r.decayArmed = true
 		r.decayThreshold = DecayFraction * math.Abs(i)
@@ -191,7 +314,11 @@ func (r *run) circuitChange(t float64, y []float64, to circuit.Mode) {
 			r.solve(y)
 			y[sSwitchC] = r.pt.SwitchVoltage
 		}
-		r.note(t, "%s stops conducting", r.drive.ClampName(from))
+		if r.energized && from == circuit.Recirc {
+			// chopping: the current ran out between pulses (not logged)
+		} else {
+			r.note(t, "%s stops conducting", r.drive.ClampName(from))
+		}
 		if m := &r.res.Metrics; r.offDone && !m.ClampConduction.Happened {
 			m.ClampConduction = Interval{true, t - r.tOff}
 		}
@@ -281,6 +408,17 @@ func (r *run) settle(t float64, y []float64) error {
 			changed = true
 		}
 		if !changed {
+			nctl := r.ctl.Guards(t, r.current(y), r.g[n:])
+			for k := 0; k < nctl; k++ {
+				if r.g[n+k] > settleTol {
+					r.ctl.AtGuard(k)
+					r.applyCommand(t, y)
+					changed = true
+					break
+				}
+			}
+		}
+		if !changed {
 			return nil
 		}
 	}
@@ -292,6 +430,12 @@ func (r *run) settle(t float64, y []float64) error {
 func (r *run) peaks(o outputs) {
 	m := &r.res.Metrics
 	m.PeakCurrent = math.Max(m.PeakCurrent, math.Abs(o.Current))
+	m.PeakSupplyCurrent = math.Max(m.PeakSupplyCurrent, o.SupplyCurrent)
+	m.MinRailVoltage = math.Min(m.MinRailVoltage, o.RailVoltage)
+	if r.inWindow {
+		r.winMin = math.Min(r.winMin, o.Current)
+		r.winMax = math.Max(r.winMax, o.Current)
+	}
 	m.PeakSwitchVoltage = math.Max(m.PeakSwitchVoltage, o.SwitchVoltage)
 	m.MinSwitchVoltage = math.Min(m.MinSwitchVoltage, o.SwitchVoltage)
 	if r.cmode != circuit.On {
@@ -326,15 +470,29 @@ func Simulate(md *Model, opt *Options) (*Result, error) {
 	if maxSteps <= 0 {
 		maxSteps = DefaultMaxSteps
 	}
-	sys := &system{mag: md.Magnet, plunger: md.Plunger, drive: md.Drive, r: md.CoilResistance(), eddy: md.EddyResistance}
+	sys := &system{mag: md.Magnet, plunger: md.Plunger, drive: md.Drive, r: md.CoilResistance(), eddy: md.EddyResistance,
+		v0: md.Drive.Supply.Voltage, rs: md.Drive.Supply.SourceResistance, bulkC: md.BulkCapacitance}
 	res := &Result{}
 	r := &run{system: sys, tOn: md.Timing.EnergizeAt, tOff: md.Timing.DeenergizeAt, tEnd: md.Timing.End,
-		res: res, noTrace: opt.NoTrace}
+		res: res, noTrace: opt.NoTrace, baseV0: md.Drive.Supply.Voltage, tRevEnd: math.Inf(1),
+		riseTime: md.RiseTime, fallTime: md.FallTime}
+	r.ctl.Control = md.Control
+	// The hold window: the second half of the hold phase (after the peak
+	// or boost phase, if any).
+	holdStart := r.tOn
+	if pe := md.Control.PhaseTime(); pe > 0 {
+		holdStart += pe
+	}
+	r.tWin = math.Inf(1)
+	if holdStart < r.tOff {
+		r.tWin = holdStart + 0.5*(r.tOff-holdStart)
+	}
 	res.Metrics.init()
 
 	y := make([]float64, nState)
 	y[sGap] = md.Plunger.GapMax
 	y[sSwitchC] = md.Drive.Supply.Voltage // at rest the switch node sits at the rail
+	y[sBus] = md.Drive.Supply.Voltage
 	sys.cmode = circuit.Off
 	sys.mmode = mechRest
 	if err := r.settle(0, y); err != nil {
@@ -379,8 +537,11 @@ func (r *run) finish(y []float64) {
 	m.ClampEnergy = y[qClamp]
 	m.MechanicalWork = y[qMech]
 	m.EddyLoss = y[qEddy]
+	m.DiodeLoss = y[qDiode]
+	m.EnergyReturned = y[qReturned]
+	m.SwitchingLossEstimate = r.swEst
 	m.StoredChange = r.fieldEnergy(y) - r.wf0 + r.storedCapEnergy(y) - r.capE0
-	m.EnergyResidual = m.SupplyEnergy - (m.CoilLoss + m.SourceLoss + m.SwitchLoss + m.ClampEnergy + m.MechanicalWork + m.EddyLoss + m.StoredChange)
+	m.EnergyResidual = m.SupplyEnergy - (m.CoilLoss + m.SourceLoss + m.SwitchLoss + m.ClampEnergy + m.DiodeLoss + m.MechanicalWork + m.EddyLoss + m.StoredChange)
 }
 
 func firstPositive(v ...float64) float64 {
@@ -397,3 +558,38 @@ func firstPositive(v ...float64) float64 {
 var ErrStepBudget = errStepBudget
 
 var _ = errors.Is
+
+// closeWindow computes the hold figures at the end of the hold window.
+func (r *run) closeWindow(t float64, y []float64) {
+	if !r.inWindow {
+		return
+	}
+	r.inWindow = false
+	m := &r.res.Metrics
+	h := &m.Hold
+	T := t - r.tWin
+	if !(T > 0) {
+		return
+	}
+	h.Measured = true
+	h.Start, h.End = r.tWin, t
+	h.MeanCurrent = (y[qCharge] - r.win[qCharge]) / T
+	h.MinCurrent, h.MaxCurrent = r.winMin, r.winMax
+	h.Ripple = r.winMax - r.winMin
+	h.ChoppingFrequency = float64(r.edges) / T
+	h.CoilPower = (y[qCoilR] - r.win[qCoilR]) / T
+	h.FullVoltageCoilPower = r.baseV0 * r.baseV0 / r.r
+	h.SwitchConductionPower = (y[qSwitch] - r.win[qSwitch]) / T
+	h.DiodePower = (y[qDiode] - r.win[qDiode]) / T
+	h.SwitchingPower = (r.swEst - r.swEstWin) / T
+	h.SupplyMeanCurrent = (y[qSupplyQ] - r.win[qSupplyQ]) / T
+	h.SupplyPower = (y[qSupply] - r.win[qSupply]) / T
+	if r.mmode == mechSeated {
+		p := &r.plunger
+		need := p.PassiveForce(p.GapMin, 0)
+		if need > 0 {
+			// The weakest point of the ripple holds the plunger.
+			h.ForceMargin = r.mag.Force(r.winMin, p.GapMin) / need
+		}
+	}
+}

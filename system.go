@@ -17,6 +17,7 @@ const (
 	sVel             // v = dx/dt, m/s
 	sSwitchC         // V: switch output capacitor voltage (used in circuit mode Off)
 	sSnubberC        // V: snubber capacitor voltage
+	sBus             // V: supply bulk capacitor voltage (when fitted)
 	qSupply          // J delivered by the ideal source
 	qCoilR           // J in the coil resistance
 	qSource          // J in the source resistance
@@ -25,9 +26,15 @@ const (
 	qClamp           // J in the suppression part
 	qMech            // J of mechanical work done by the magnetic force
 	qEddy            // J in the equivalent eddy-current turn
+	qDiode           // J in the recirculation path and bridge diodes
+	qReturned        // J returned to the supply rail by a bridge
+	qCharge          // C: ∫ coil current dt
+	qSupplyQ         // C: ∫ supply current dt
 	nState
 
 	stateJac = qSupply
+
+	nQuad = nState - qSupply
 )
 
 // Mechanical modes.
@@ -55,6 +62,10 @@ type system struct {
 	// 0 for none.
 	eddy float64
 
+	v0    float64 // V, present source voltage (the boost voltage while boosting)
+	rs    float64 // ohm, source resistance
+	bulkC float64 // F, bulk capacitor at the rail behind rs (0: none)
+
 	cmode circuit.Mode
 	mmode mechMode
 	pt    circuit.Point // scratch
@@ -64,6 +75,16 @@ type system struct {
 type outputs struct {
 	Current, CoilVoltage, SwitchVoltage, SupplyCurrent, ClampCurrent float64
 	Gap, Velocity, MagneticForce, PassiveForce                       float64
+	RailVoltage                                                      float64 // V at the drive's supply terminals
+}
+
+// rail returns the voltage and resistance the drive sees at its supply
+// terminals: the source behind its resistance, or the bulk capacitor.
+func (s *system) rail(y []float64) (v0, rs float64) {
+	if s.bulkC > 0 {
+		return y[sBus], 0
+	}
+	return s.v0, s.rs
 }
 
 // current returns the coil current at y (and leaves the circuit solved
@@ -87,14 +108,15 @@ func (s *system) current(y []float64) float64 {
 func (s *system) solve(y []float64) (i, im float64) {
 	im = s.mag.Current(y[sFlux], y[sGap])
 	vC, vS := y[sSwitchC], y[sSnubberC]
+	v0, rs := s.rail(y)
 	switch {
 	case s.cmode == circuit.Off && s.drive.Open():
 		i = 0
 	case s.eddy == 0:
 		i = im
 	default:
-		s.drive.Solve(s.cmode, 0, vC, vS, &s.pt)
-		v0 := s.pt.CoilVoltage
+		s.drive.SolveRail(s.cmode, v0, rs, 0, vC, vS, &s.pt)
+		vc0 := s.pt.CoilVoltage
 		i1 := math.Abs(im)
 		if i1 < 1e-6 {
 			i1 = 1e-6
@@ -102,11 +124,11 @@ func (s *system) solve(y []float64) (i, im float64) {
 		if s.cmode == circuit.CoilClampRev {
 			i1 = -i1
 		}
-		s.drive.Solve(s.cmode, i1, vC, vS, &s.pt)
-		ra := (v0 - s.pt.CoilVoltage) / i1
-		i = (v0 + s.eddy*im) / (s.eddy + ra + s.r)
+		s.drive.SolveRail(s.cmode, v0, rs, i1, vC, vS, &s.pt)
+		ra := (vc0 - s.pt.CoilVoltage) / i1
+		i = (vc0 + s.eddy*im) / (s.eddy + ra + s.r)
 	}
-	s.drive.Solve(s.cmode, i, vC, vS, &s.pt)
+	s.drive.SolveRail(s.cmode, v0, rs, i, vC, vS, &s.pt)
 	return i, im
 }
 
@@ -135,9 +157,26 @@ func (s *system) deriv(_ float64, y, dy []float64) {
 		dy[sSwitchC] = pt.DSwitchCap
 	}
 	dy[sSnubberC] = pt.DSnubberCap
-	dy[qSupply] = pt.PSupply
+	if s.bulkC > 0 {
+		// Source behind rs charging the bulk capacitor, which feeds the drive.
+		iin := (s.v0 - y[sBus]) / s.rs
+		dy[sBus] = (iin - pt.SupplyCurrent) / s.bulkC
+		dy[qSupply] = s.v0 * iin
+		dy[qSource] = s.rs * iin * iin
+	} else {
+		dy[sBus] = 0
+		dy[qSupply] = pt.PSupply
+		dy[qSource] = pt.PSource
+	}
 	dy[qCoilR] = s.r * i * i
-	dy[qSource] = pt.PSource
+	dy[qDiode] = pt.PDiode
+	dy[qReturned] = 0
+	if s.cmode == circuit.BridgeReturn || s.cmode == circuit.BridgeReturnRev || s.cmode == circuit.BridgeReverse {
+		v0, _ := s.rail(y)
+		dy[qReturned] = -v0 * pt.SupplyCurrent
+	}
+	dy[qCharge] = i
+	dy[qSupplyQ] = pt.SupplyCurrent
 	dy[qSwitch] = pt.PSwitch
 	dy[qAval] = pt.PAvalanche
 	dy[qClamp] = pt.PClamp
@@ -156,6 +195,7 @@ func (s *system) out(y []float64) outputs {
 		Current: i, CoilVoltage: s.pt.CoilVoltage, SwitchVoltage: s.pt.SwitchVoltage,
 		SupplyCurrent: s.pt.SupplyCurrent, ClampCurrent: math.Abs(s.pt.ClampCurrent),
 		Gap: x, Velocity: v, MagneticForce: s.mag.Force(im, x), PassiveForce: s.plunger.PassiveForce(x, v),
+		RailVoltage: s.railVoltage(y),
 	}
 }
 
@@ -204,5 +244,15 @@ func (s *system) storedCapEnergy(y []float64) float64 {
 		v := y[sSnubberC]
 		e += 0.5 * s.drive.Suppressor.Capacitance * v * v
 	}
+	if s.bulkC > 0 {
+		e += 0.5 * s.bulkC * y[sBus] * y[sBus]
+	}
 	return e
+}
+
+// railVoltage returns the voltage at the drive's supply terminals (V),
+// after s.solve.
+func (s *system) railVoltage(y []float64) float64 {
+	v0, rs := s.rail(y)
+	return v0 - rs*s.pt.SupplyCurrent
 }

@@ -31,9 +31,10 @@ const (
 	TVS                     // bidirectional TVS across the coil
 	Snubber                 // series R–C across the coil
 	SwitchClamp             // Zener or TVS from the switch node to ground
+	Bridge                  // H-bridge drive: at turn-off the bridge's diodes return the coil current to the supply (reverse drive)
 )
 
-var kindNames = [...]string{"none", "freewheel diode", "diode zener", "tvs", "rc snubber", "switch clamp"}
+var kindNames = [...]string{"none", "freewheel diode", "diode zener", "tvs", "rc snubber", "switch clamp", "reverse drive"}
 
 func (k Kind) String() string {
 	if k < 0 || int(k) >= len(kindNames) {
@@ -61,11 +62,20 @@ func (s Suppressor) acrossCoil() bool {
 	return s.Kind == Freewheel || s.Kind == DiodeZener || s.Kind == TVS
 }
 
+// Recirculation is the slow-decay path of a chopping driver: a freewheel
+// diode (or a synchronous switch) across the coil that carries the current
+// while the switch is off between chopping pulses.
+type Recirculation struct {
+	Drop       float64 // V
+	Resistance float64 // ohm
+}
+
 // Drive is the whole drive circuit.
 type Drive struct {
 	Supply     Supply
 	Switch     Switch
 	Suppressor Suppressor
+	Recirc     Recirculation
 }
 
 // Validate reports a drive that cannot be simulated.
@@ -105,6 +115,10 @@ func (d *Drive) Validate() error {
 		if !(p.Resistance > 0) || !(p.Capacitance > 0) {
 			return errors.New("circuit: snubber needs a positive resistance and capacitance")
 		}
+	case Bridge:
+		if !(p.Voltage > 0) {
+			return errors.New("circuit: reverse drive needs the bridge diodes' forward drop")
+		}
 	default:
 		return fmt.Errorf("circuit: unknown suppressor kind %d", int(p.Kind))
 	}
@@ -116,16 +130,21 @@ type Mode int
 
 // Modes.
 const (
-	On           Mode = iota // switch conducting
-	Off                      // switch off, nothing pinned: switch capacitance (or the snubber) carries the coil current; with neither, the coil is open and its current is zero
-	CoilClamp                // switch off, suppressor across the coil conducting
-	SwClamp                  // switch off, clamp across the switch conducting
-	Avalanche                // switch off, switch in avalanche at its breakdown voltage
-	BodyDiode                // switch off, body diode conducting (switch node below ground)
-	CoilClampRev             // switch off, bidirectional TVS across the coil conducting a reversed coil current
+	On              Mode = iota // switch conducting
+	Off                         // switch off, nothing pinned: switch capacitance (or the snubber) carries the coil current; with neither, the coil is open and its current is zero
+	CoilClamp                   // switch off, suppressor across the coil conducting
+	SwClamp                     // switch off, clamp across the switch conducting
+	Avalanche                   // switch off, switch in avalanche at its breakdown voltage
+	BodyDiode                   // switch off, body diode conducting (switch node below ground)
+	CoilClampRev                // switch off, bidirectional TVS across the coil conducting a reversed coil current
+	Recirc                      // switch off between chopping pulses, the slow-decay path carrying the coil current
+	BridgeReturn                // H-bridge off: the bridge diodes return the coil current to the supply
+	BridgeReverse               // H-bridge driving the coil in reverse (a timed reverse pulse)
+	BridgeReturnRev             // H-bridge off after a reverse pulse: the diodes return a reversed coil current
 )
 
-var modeNames = [...]string{"on", "off", "coil clamp", "switch clamp", "avalanche", "body diode", "coil clamp (reverse)"}
+var modeNames = [...]string{"on", "off", "coil clamp", "switch clamp", "avalanche", "body diode", "coil clamp (reverse)",
+	"recirculation", "bridge return", "bridge reverse", "bridge return (reverse)"}
 
 func (m Mode) String() string {
 	if m < 0 || int(m) >= len(modeNames) {
@@ -150,6 +169,7 @@ type Point struct {
 	PSwitch       float64 // in the switch: conduction, avalanche and body diode
 	PAvalanche    float64 // the avalanche part of PSwitch
 	PClamp        float64 // in the suppressor (snubber: its resistor)
+	PDiode        float64 // in the recirculation path and the bridge diodes
 	CurrentPinned bool    // the coil has no path: its current is held at zero
 }
 
@@ -163,16 +183,26 @@ func (d *Drive) Open() bool {
 func (d *Drive) HasSwitchCap() bool { return d.Switch.OutputCapacitance > 0 }
 
 // Solve fills pt for mode m, coil current iL (A), switch capacitor voltage
-// vC and snubber capacitor voltage vS (V). It does not allocate.
+// vC and snubber capacitor voltage vS (V), with the supply as specified.
+// It does not allocate.
 func (d *Drive) Solve(m Mode, iL, vC, vS float64, pt *Point) {
+	d.SolveRail(m, d.Supply.Voltage, d.Supply.SourceResistance, iL, vC, vS, pt)
+}
+
+// SolveRail is Solve with the supply's source voltage v0 (V) and source
+// resistance rs (ohm) given: a boosted supply, or the bulk capacitor's
+// voltage behind no resistance.
+func (d *Drive) SolveRail(m Mode, v0, rs, iL, vC, vS float64, pt *Point) {
 	*pt = Point{}
-	v0, rs := d.Supply.Voltage, d.Supply.SourceResistance
 	sup := &d.Suppressor
 	snub := sup.Kind == Snubber
 	var ip float64 // snubber current, rail to switch node
 	switch m {
 	case On:
 		ron := d.Switch.OnResistance
+		if sup.Kind == Bridge {
+			ron *= 2 // two switches of the bridge in series with the coil
+		}
 		rt := rs + ron
 		var vcoil float64
 		if snub {
@@ -226,6 +256,43 @@ func (d *Drive) Solve(m Mode, iL, vC, vS float64, pt *Point) {
 		pt.SwitchVoltage = v0 - pt.CoilVoltage
 		pt.ClampCurrent = a
 		pt.PClamp = vcl * a
+	case Recirc:
+		// The slow-decay path across the coil, written for the conducting
+		// direction (continued analytically past zero).
+		vd := d.Recirc.Drop + d.Recirc.Resistance*iL
+		pt.CoilVoltage = -vd
+		pt.SwitchVoltage = v0 + vd
+		pt.PDiode = vd * iL
+	case BridgeReturn, BridgeReturnRev:
+		// Two bridge diodes in series return the coil current to the rail:
+		// v_coil = −(v_rail + 2·(Vd + Rd·i)) with v_rail = v0 + rs·i.
+		a := iL
+		if m == BridgeReturnRev {
+			a = -iL
+		}
+		vd := sup.Voltage + sup.Resistance*a
+		is := -iL
+		vrail := v0 - rs*is
+		pt.SupplyCurrent = is
+		if m == BridgeReturn {
+			pt.CoilVoltage = -(vrail + 2*vd)
+			pt.SwitchVoltage = vrail + vd
+		} else {
+			pt.CoilVoltage = vrail + 2*vd
+			pt.SwitchVoltage = -vd
+		}
+		pt.ClampCurrent = a
+		pt.PDiode = 2 * vd * a
+	case BridgeReverse:
+		// The opposite pair of bridge switches drives the coil in reverse.
+		ron := d.Switch.OnResistance
+		is := -iL
+		vrail := v0 - rs*is
+		pt.SupplyCurrent = is
+		pt.CoilVoltage = -vrail - 2*ron*iL
+		pt.SwitchVoltage = vrail + ron*iL
+		pt.SwitchCurrent = iL
+		pt.PSwitch = 2 * ron * iL * iL
 	case SwClamp, Avalanche, BodyDiode:
 		var vpin, rpin float64
 		switch m {
@@ -316,9 +383,14 @@ func (d *Drive) Guards(m Mode, iL float64, pt *Point, g []float64) int {
 		// Conduction ends when the current falls to zero.
 		g[0] = -iL
 		return 1
-	case CoilClampRev:
+	case CoilClampRev, BridgeReturnRev:
 		g[0] = iL
 		return 1
+	case Recirc, BridgeReturn:
+		g[0] = -iL
+		return 1
+	case BridgeReverse:
+		return 0
 	case SwClamp, Avalanche:
 		g[0] = -pt.SupplyCurrent
 		return 1
@@ -358,6 +430,17 @@ func (d *Drive) Target(m Mode, k int) Mode {
 // path that pins it highest (TVS reverse at V0 − Vcl − R·|i|, body diode at
 // −Vbd).
 func (d *Drive) TurnOffMode(iL float64) Mode {
+	if d.Suppressor.Kind == Bridge {
+		// The bridge diodes take the current at once (their switching is
+		// taken as ideal; the switch capacitance is not modelled here).
+		switch {
+		case iL > 0:
+			return BridgeReturn
+		case iL < 0:
+			return BridgeReturnRev
+		}
+		return Off
+	}
 	if !d.Open() || iL == 0 {
 		return Off
 	}
@@ -392,6 +475,12 @@ func (d *Drive) ClampName(m Mode) string {
 	switch m {
 	case CoilClamp, CoilClampRev, SwClamp:
 		return d.Suppressor.Kind.String()
+	case Recirc:
+		return "recirculation path"
+	case BridgeReturn, BridgeReturnRev:
+		return "bridge diodes"
+	case BridgeReverse:
+		return "bridge reverse drive"
 	case Avalanche:
 		return "switch avalanche"
 	case BodyDiode:

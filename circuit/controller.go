@@ -1,0 +1,249 @@
+package circuit
+
+import (
+	"errors"
+	"fmt"
+	"math"
+)
+
+// ControlMode is how the driver drives the coil while it is energized.
+type ControlMode int
+
+// Control modes.
+const (
+	Constant  ControlMode = iota // switch on for the whole energized time
+	PWM                          // fixed-frequency voltage PWM at a duty
+	PeakHold                     // regulate a peak current for a time, then a hold current
+	BoostHold                    // a boost supply voltage for a time, then the normal supply
+)
+
+var controlNames = [...]string{"constant", "pwm", "peak and hold", "boost then hold"}
+
+func (m ControlMode) String() string {
+	if m < 0 || int(m) >= len(controlNames) {
+		return fmt.Sprintf("ControlMode(%d)", int(m))
+	}
+	return controlNames[m]
+}
+
+// Regulation is how a peak-and-hold driver keeps the current at its target.
+type Regulation int
+
+// Regulations.
+const (
+	// Hysteresis: switch off when the current reaches target + band/2,
+	// on again when it falls to target − band/2.
+	Hysteresis Regulation = iota
+	// FixedFrequency: switch on at the start of every period, off when the
+	// current reaches the target (peak-current cut-off).
+	FixedFrequency
+)
+
+// Control is the driver's control law (SI units).
+type Control struct {
+	Mode      ControlMode
+	Frequency float64 // Hz: PWM frequency, or the chopping frequency of FixedFrequency
+	Duty      float64 // PWM on-time fraction, 0..1
+
+	PeakCurrent float64 // A
+	PeakTime    float64 // s, from the energize command
+	HoldCurrent float64 // A
+	Regulation  Regulation
+	Band        float64 // A, full hysteresis band
+	// FastDecay: between chopping pulses (and PWM off-times) the current
+	// decays through the turn-off path (the suppression part or the bridge);
+	// otherwise through the slow recirculation path.
+	FastDecay bool
+
+	BoostVoltage float64 // V
+	BoostTime    float64 // s, from the energize command
+
+	// ReversePulse (s): with a bridge, drive the coil in reverse for this
+	// long after the de-energize command (0: just let the diodes return
+	// the current).
+	ReversePulse float64
+}
+
+// Validate reports a control law that cannot run.
+func (c *Control) Validate(d *Drive) error {
+	switch c.Mode {
+	case Constant:
+	case PWM:
+		if !(c.Frequency > 0) || !(c.Duty > 0 && c.Duty <= 1) {
+			return errors.New("circuit: pwm needs a frequency > 0 and a duty in (0, 1]")
+		}
+	case PeakHold:
+		switch {
+		case !(c.PeakCurrent > 0) || !(c.HoldCurrent > 0) || !(c.PeakTime > 0):
+			return errors.New("circuit: peak and hold needs a peak current, a peak time and a hold current")
+		case c.HoldCurrent > c.PeakCurrent:
+			return errors.New("circuit: the hold current must not exceed the peak current")
+		case c.Regulation == Hysteresis && !(c.Band > 0 && c.Band < 2*c.HoldCurrent):
+			return errors.New("circuit: hysteresis needs a band > 0 and below twice the hold current")
+		case c.Regulation == FixedFrequency && !(c.Frequency > 0):
+			return errors.New("circuit: fixed-frequency chopping needs a frequency > 0")
+		}
+	case BoostHold:
+		if !(c.BoostVoltage > d.Supply.Voltage) || !(c.BoostTime > 0) {
+			return errors.New("circuit: boost then hold needs a boost voltage above the supply and a boost time > 0")
+		}
+	default:
+		return fmt.Errorf("circuit: unknown control mode %d", int(c.Mode))
+	}
+	if !(c.ReversePulse >= 0) {
+		return errors.New("circuit: reverse pulse must not be negative")
+	}
+	if c.ReversePulse > 0 && d.Suppressor.Kind != Bridge {
+		return errors.New("circuit: a reverse pulse needs the reverse drive (H-bridge)")
+	}
+	if !c.FastDecay && c.Mode != Constant && c.Mode != BoostHold && !(d.Recirc.Drop >= 0 && d.Recirc.Resistance >= 0) {
+		return errors.New("circuit: slow decay needs a recirculation path")
+	}
+	return nil
+}
+
+// PhaseTime returns the length of the peak or boost phase (s), 0 when the
+// mode has none.
+func (c *Control) PhaseTime() float64 {
+	switch c.Mode {
+	case PeakHold:
+		return c.PeakTime
+	case BoostHold:
+		return c.BoostTime
+	}
+	return 0
+}
+
+// Chops reports whether the control switches during the energized time.
+func (c *Control) Chops() bool { return c.Mode == PWM || c.Mode == PeakHold }
+
+// Controller runs a Control during one energized interval. It is a small
+// state machine driven by time events (PWM edges, chopping periods, phase
+// ends) and by current guards (hysteresis thresholds, peak cut-off).
+type Controller struct {
+	Control
+	t0     float64 // energize time
+	active bool
+	on     bool    // switch commanded on
+	period int     // index of the current PWM/chopping period
+	edgeAt float64 // next PWM or chopping edge
+}
+
+// Start begins the energized interval at time t: the switch turns on.
+func (c *Controller) Start(t float64) {
+	c.t0, c.active, c.on, c.period = t, true, true, 0
+	c.edgeAt = math.Inf(1)
+	switch {
+	case c.Mode == PWM:
+		if c.Duty < 1 {
+			c.edgeAt = t + c.Duty/c.Frequency
+		}
+	case c.Mode == PeakHold && c.Regulation == FixedFrequency:
+		c.edgeAt = t + 1/c.Frequency
+	}
+}
+
+// Stop ends the energized interval.
+func (c *Controller) Stop() { c.active, c.on = false, false }
+
+// On reports whether the switch is commanded on.
+func (c *Controller) On() bool { return c.on }
+
+// Active reports whether the interval is running.
+func (c *Controller) Active() bool { return c.active }
+
+// PhaseEnd returns the end of the peak or boost phase (+Inf when the mode
+// has none).
+func (c *Controller) PhaseEnd() float64 {
+	switch c.Mode {
+	case PeakHold:
+		return c.t0 + c.PeakTime
+	case BoostHold:
+		return c.t0 + c.BoostTime
+	}
+	return math.Inf(1)
+}
+
+// SupplyVoltage returns the source voltage at time t (V): the boost
+// voltage during the boost phase, else the normal supply v.
+func (c *Controller) SupplyVoltage(t, v float64) float64 {
+	if c.active && c.Mode == BoostHold && t < c.t0+c.BoostTime {
+		return c.BoostVoltage
+	}
+	return v
+}
+
+// Target returns the regulated current at time t (A).
+func (c *Controller) Target(t float64) float64 {
+	if t < c.t0+c.PeakTime {
+		return c.PeakCurrent
+	}
+	return c.HoldCurrent
+}
+
+// NextTime returns the controller's first scheduled event strictly after
+// t (+Inf for none).
+func (c *Controller) NextTime(t float64) float64 {
+	if !c.active {
+		return math.Inf(1)
+	}
+	next := math.Inf(1)
+	if c.edgeAt > t {
+		next = c.edgeAt
+	}
+	if pe := c.PhaseEnd(); pe > t && pe < next {
+		next = pe
+	}
+	return next
+}
+
+// AtTime applies the scheduled events at time t.
+func (c *Controller) AtTime(t float64) {
+	if !c.active || t != c.edgeAt {
+		return
+	}
+	switch c.Mode {
+	case PWM:
+		// Edges are computed from the period index, not accumulated, so
+		// that they do not drift over thousands of periods.
+		if c.on {
+			c.on = false
+			c.period++
+			c.edgeAt = c.t0 + float64(c.period)/c.Frequency
+		} else {
+			c.on = true
+			c.edgeAt = c.t0 + (float64(c.period)+c.Duty)/c.Frequency
+		}
+	case PeakHold:
+		c.on = true // a new chopping period starts
+		c.period++
+		c.edgeAt = c.t0 + float64(c.period+1)/c.Frequency
+	}
+}
+
+// MaxControlGuards is the largest number of guards a Controller reports.
+const MaxControlGuards = 1
+
+// Guards writes the current guards at time t and coil current i into g
+// and returns how many there are. A guard reaching zero from below is an
+// event for AtGuard.
+func (c *Controller) Guards(t, i float64, g []float64) int {
+	if !c.active || c.Mode != PeakHold {
+		return 0
+	}
+	target := c.Target(t)
+	switch {
+	case c.on && c.Regulation == Hysteresis:
+		g[0] = i - (target + c.Band/2)
+	case c.on:
+		g[0] = i - target
+	case c.Regulation == Hysteresis:
+		g[0] = (target - c.Band/2) - i
+	default:
+		return 0 // off until the next period starts
+	}
+	return 1
+}
+
+// AtGuard applies guard k: the switch toggles.
+func (c *Controller) AtGuard(int) { c.on = !c.on }
