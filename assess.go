@@ -17,6 +17,15 @@ type Check struct {
 	// pulled in, say); such a check fails.
 	Happened bool
 	Pass     bool
+	// Min: the limit is a minimum (a margin), not a maximum.
+	Min bool
+}
+
+func boolFigure(b bool) float64 {
+	if b {
+		return 1
+	}
+	return 0
 }
 
 // Note is a safety caution or a warning attached to a figure.
@@ -38,6 +47,9 @@ const (
 	// ResidualWarning: an energy-balance residual above this fraction of the
 	// supply energy is flagged as a numerical problem.
 	ResidualWarning = 1e-4
+	// AudibleLimit: chopping below this frequency is flagged as audible
+	// (common practice, no source).
+	AudibleLimit = 20e3 // Hz
 )
 
 // Assessment holds the checks and notes of a run.
@@ -76,6 +88,16 @@ func (md *Model) Assess(res *Result) Assessment {
 	maxCheck("avalanche energy", "J", m.AvalancheEnergy, lim.AvalancheEnergy, true)
 	maxCheck("clamp energy", "J", m.ClampEnergy, lim.ClampEnergy, true)
 	maxCheck("peak clamp current", "A", m.PeakClampCurrent, lim.ClampCurrent, true)
+	if lim.MinHoldMargin > 0 {
+		a.Checks = append(a.Checks, Check{Name: "hold force margin", Unit: "", Value: m.Hold.ForceMargin, Limit: lim.MinHoldMargin,
+			Happened: m.Hold.Measured && m.Hold.ForceMargin > 0, Min: true,
+			Pass: m.Hold.Measured && m.Hold.ForceMargin >= lim.MinHoldMargin})
+	}
+	if m.PullIn.Happened {
+		// A plunger that drops out while energized fails whatever the ratings.
+		a.Checks = append(a.Checks, Check{Name: "stays seated while energized", Happened: true,
+			Value: boolFigure(!m.DroppedOutEnergized), Min: true, Pass: !m.DroppedOutEnergized})
+	}
 
 	note := func(fig, level, format string, args ...any) {
 		a.Notes = append(a.Notes, Note{Figure: fig, Level: level, Text: fmt.Sprintf(format, args...)})
@@ -84,9 +106,6 @@ func (md *Model) Assess(res *Result) Assessment {
 		note("pull-in time", "warning", "the plunger did not pull in: the magnetic force never overcame the spring and load before the run ended")
 	} else if !m.Release.Happened {
 		note("release time", "warning", "the plunger did not release before the run ended (residual flux or a weak spring holds it)")
-	}
-	if m.DroppedOutEnergized {
-		note("pull-in time", "warning", "the plunger left the energized stop while the coil was still energized")
 	}
 	if m.PeakSwitchVoltage > KickCautionVoltage {
 		note("peak switch voltage", "caution", "the switch node kicks to %.0f V at turn-off: above %.0f V, treat the coil terminals and switch node as hazardous to touch, and use probes and insulation rated for it", m.PeakSwitchVoltage, KickCautionVoltage)
@@ -100,6 +119,12 @@ func (md *Model) Assess(res *Result) Assessment {
 	}
 	if lim.SwitchVoltage > 0 && m.PeakSwitchVoltage > 0.8*lim.SwitchVoltage && m.PeakSwitchVoltage <= lim.SwitchVoltage {
 		note("peak switch voltage", "warning", "the switch voltage peak is within 20 %% of its rating (common derating practice, no source)")
+	}
+	if h := m.Hold; h.Measured && md.Control.Chops() && h.ChoppingFrequency > 0 && h.ChoppingFrequency < AudibleLimit {
+		note("chopping frequency", "warning", "the driver chops at %.3g kHz, inside the audible range (below %.0f kHz, common practice, no source): the coil may whine", h.ChoppingFrequency/1e3, AudibleLimit/1e3)
+	}
+	if m.DroppedOutEnergized {
+		note("hold force margin", "warning", "the hold does not keep the plunger seated: raise the hold current or duty")
 	}
 	if md.Temperature > HotSurfaceCaution {
 		note("", "caution", "the winding runs at %.0f degC: its surface may be hot enough to burn", md.Temperature-273.15)

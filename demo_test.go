@@ -264,3 +264,23 @@ func BenchmarkBuildGeometryScenario(b *testing.B) {
 func BenchmarkActuationDosingValveGeometry(b *testing.B) {
 	benchActuation(b, "scenarios/dosing-valve-geometry.yaml")
 }
+
+// One second of peak-and-hold at 20 kHz fixed-frequency chopping (about
+// 20 000 switching periods): design target under 100 ms.
+func BenchmarkPeakHold1s20kHz(b *testing.B) {
+	md, err := LoadModel("scenarios/peak-hold-valve.yaml")
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.ReportAllocs()
+	var res *Result
+	for b.Loop() {
+		if res, err = Simulate(md, &Options{NoTrace: true}); err != nil {
+			b.Fatal(err)
+		}
+	}
+	st := res.Stats
+	span := md.Timing.End - md.Timing.EnergizeAt
+	b.ReportMetric(float64(st.Events)/span, "events/s-simulated")
+	b.ReportMetric(float64(st.Steps)/float64(st.Events), "steps/event")
+}

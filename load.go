@@ -570,8 +570,17 @@ func (l *scenarioLoader) exceed(big string, vBig float64, small string, vSmall f
 
 // Keys of each section.
 var (
-	topKeys       = []string{"name", "supply", "coil", "magnet", "plunger", "switch", "suppression", "timing", "ratings", "solver"}
-	supplyKeys    = []string{"voltage", "source resistance"}
+	topKeys    = []string{"name", "supply", "coil", "magnet", "plunger", "switch", "suppression", "drive", "timing", "ratings", "solver"}
+	supplyKeys = []string{"voltage", "source resistance", "bulk capacitance"}
+	driveKeys  = []string{"mode", "frequency", "duty", "peak current", "peak time", "hold current", "regulation", "band",
+		"decay", "recirculation drop", "recirculation resistance", "boost voltage", "boost time"}
+	driveModes    = []string{DriveConstant, DrivePWM, DrivePeakHold, DriveBoostHold}
+	driveModeKeys = map[string][]string{
+		DriveConstant:  {},
+		DrivePWM:       {"frequency", "duty", "decay", "recirculation drop", "recirculation resistance"},
+		DrivePeakHold:  {"frequency", "peak current", "peak time", "hold current", "regulation", "band", "decay", "recirculation drop", "recirculation resistance"},
+		DriveBoostHold: {"boost voltage", "boost time"},
+	}
 	coilKeys      = []string{"resistance", "reference temperature", "temperature", "temperature coefficient", "turns", "build"}
 	coilBuildKeys = []string{"inner diameter", "outer diameter", "length", "wire gauge", "wire diameter", "overall diameter", "insulation grade", "turns", "fill factor"}
 	magnetKeys    = []string{MagnetGapLaw, MagnetTable, MagnetGeom, "eddy resistance"}
@@ -583,13 +592,13 @@ var (
 	tableKeys       = []string{"file", "current unit", "gap unit", "flux linkage unit"}
 	plungerKeys     = []string{"mass", "rest gap", "seated gap", "spring preload", "spring rate", "damping", "restitution", "stick speed", "load"}
 	loadKeys        = []string{"constant force", "pressure", "orifice diameter", "orifice area", "seal travel"}
-	switchKeys      = []string{"on resistance", "output capacitance", "breakdown voltage", "body diode drop"}
-	suppressionKeys = []string{"type", "forward drop", "zener voltage", "clamp voltage", "resistance", "capacitance"}
+	switchKeys      = []string{"on resistance", "output capacitance", "breakdown voltage", "body diode drop", "rise time", "fall time"}
+	suppressionKeys = []string{"type", "forward drop", "zener voltage", "clamp voltage", "resistance", "capacitance", "reverse pulse"}
 	timingKeys      = []string{"energize at", "de-energize at", "end"}
-	ratingsKeys     = []string{"switch voltage", "avalanche energy", "clamp energy", "clamp current", "pull-in time", "release time", "drop time"}
+	ratingsKeys     = []string{"switch voltage", "avalanche energy", "clamp energy", "clamp current", "pull-in time", "release time", "drop time", "hold force margin"}
 	solverKeys      = []string{"tolerance", "max steps"}
 
-	suppressionTypes = []string{SuppressNone, SuppressFreewheel, SuppressDiodeZener, SuppressTVS, SuppressSnubber, SuppressSwitchClamp}
+	suppressionTypes = []string{SuppressNone, SuppressFreewheel, SuppressDiodeZener, SuppressTVS, SuppressSnubber, SuppressSwitchClamp, SuppressBridge}
 	// keys that apply to each suppression type, besides "type"
 	suppressionTypeKeys = map[string][]string{
 		SuppressNone:        {},
@@ -598,6 +607,7 @@ var (
 		SuppressTVS:         {"clamp voltage", "resistance"},
 		SuppressSnubber:     {"resistance", "capacitance"},
 		SuppressSwitchClamp: {"clamp voltage", "resistance"},
+		SuppressBridge:      {"forward drop", "resistance", "reverse pulse"},
 	}
 )
 
@@ -638,6 +648,11 @@ func (l *scenarioLoader) load(root *yaml.Node) {
 	// supply
 	l.get(supply, "voltage", Voltage, rulePositive, &s.Supply.Voltage, true, 0, "")
 	l.get(supply, "source resistance", Resistance, ruleNonNeg, &s.Supply.SourceResistance, false, 0, "0 ohm")
+	if supply != nil && supply.has("bulk capacitance") {
+		if l.get(supply, "bulk capacitance", Capacitance, rulePositive, &s.Supply.BulkCapacitance, true, 0, "") && !(s.Supply.SourceResistance > 0) {
+			l.errf("supply.bulk capacitance", "needs a supply.source resistance > 0 (the capacitor would be tied to an ideal source)")
+		}
+	}
 
 	l.loadCoil(coil)
 	l.loadMagnet(magnet)
@@ -648,9 +663,12 @@ func (l *scenarioLoader) load(root *yaml.Node) {
 	l.get(sw, "output capacitance", Capacitance, ruleNonNeg, &s.Switch.OutputCapacitance, false, 0, "0 F")
 	l.get(sw, "breakdown voltage", Voltage, rulePositive, &s.Switch.BreakdownVoltage, true, 0, "")
 	l.get(sw, "body diode drop", Voltage, rulePositive, &s.Switch.BodyDiodeDrop, false, defaultBodyDiodeDrop, "0.7 V")
+	l.get(sw, "rise time", Time, ruleNonNeg, &s.Switch.RiseTime, false, 0, "0 s")
+	l.get(sw, "fall time", Time, ruleNonNeg, &s.Switch.FallTime, false, 0, "0 s")
 	l.exceed("switch.breakdown voltage", s.Switch.BreakdownVoltage, "supply.voltage", s.Supply.Voltage, false)
 
 	l.loadSuppression(supp)
+	l.loadDrive(l.sub(top, "drive", driveKeys))
 
 	// timing
 	l.get(timing, "energize at", Time, ruleNonNeg, &s.Timing.EnergizeAt, false, 0, "0 s")
@@ -672,6 +690,7 @@ func (l *scenarioLoader) load(root *yaml.Node) {
 	rating("pull-in time", Time, &s.Limits.MaxPullIn)
 	rating("release time", Time, &s.Limits.MaxRelease)
 	rating("drop time", Time, &s.Limits.MaxDrop)
+	rating("hold force margin", Dimensionless, &s.Limits.MinHoldMargin)
 
 	// solver
 	if solver.has("tolerance") {
@@ -948,6 +967,10 @@ func (l *scenarioLoader) loadSuppression(sec *yamlSection) {
 	case SuppressSnubber:
 		l.get(sec, "resistance", Resistance, rulePositive, &sp.Resistance, true, 0, "")
 		l.get(sec, "capacitance", Capacitance, rulePositive, &sp.Capacitance, true, 0, "")
+	case SuppressBridge:
+		l.get(sec, "forward drop", Voltage, rulePositive, &sp.ForwardDrop, true, 0, "")
+		l.get(sec, "resistance", Resistance, ruleNonNeg, &sp.Resistance, false, 0, "0 ohm")
+		l.get(sec, "reverse pulse", Time, ruleNonNeg, &sp.ReversePulse, false, 0, "0 s")
 	}
 }
 
@@ -1082,4 +1105,88 @@ func (l *scenarioLoader) loadGeometry(magnet *yamlSection) {
 		}
 	}
 	l.get(g, "max current", Current, rulePositive, &gs.MaxCurrent, false, 0, "3 × supply voltage / coil resistance")
+}
+
+// loadDrive reads the optional drive section (default: constant drive).
+func (l *scenarioLoader) loadDrive(sec *yamlSection) {
+	d := &l.s.Drive
+	d.Mode = DriveConstant
+	if sec == nil {
+		return
+	}
+	mode, ok := l.scalar(sec, "mode", true, "one of: "+strings.Join(driveModes, ", "))
+	if !ok {
+		return
+	}
+	if !containsKey(driveModes, mode) {
+		l.errf("drive.mode", "unknown drive mode %q; expected one of: %s", mode, strings.Join(driveModes, ", "))
+		return
+	}
+	d.Mode = mode
+	applies := driveModeKeys[mode]
+	for _, k := range driveKeys[1:] {
+		if sec.has(k) && !containsKey(applies, k) {
+			l.errf("drive."+k, "does not apply to drive mode %q (its keys: mode, %s)", mode, strings.Join(applies, ", "))
+		}
+	}
+	decay := func() {
+		text, ok := l.scalar(sec, "decay", false, `"slow" or "fast"`)
+		switch {
+		case !ok && !sec.has("decay"):
+			d.Decay = "slow"
+		case text == "slow" || text == "fast":
+			d.Decay = text
+		case ok:
+			l.errf("drive.decay", "%q: expected \"slow\" (through the recirculation path) or \"fast\" (through the suppression part)", text)
+		}
+		if d.Decay == "slow" {
+			l.get(sec, "recirculation drop", Voltage, ruleNonNeg, &d.RecirculationDrop, true, 0, "")
+			l.get(sec, "recirculation resistance", Resistance, ruleNonNeg, &d.RecirculationResistance, false, 0, "0 ohm")
+		} else {
+			for _, k := range []string{"recirculation drop", "recirculation resistance"} {
+				if sec.has(k) {
+					l.errf("drive."+k, "applies to slow decay only")
+				}
+			}
+		}
+	}
+	switch mode {
+	case DrivePWM:
+		l.get(sec, "frequency", Frequency, rulePositive, &d.Frequency, true, 0, "")
+		if l.get(sec, "duty", Dimensionless, rulePositive, &d.Duty, true, 0, "") && d.Duty > 1 {
+			l.errf("drive.duty", "%q must be a fraction in (0, 1]", l.text["drive.duty"])
+		}
+		decay()
+	case DrivePeakHold:
+		l.get(sec, "peak current", Current, rulePositive, &d.PeakCurrent, true, 0, "")
+		l.get(sec, "peak time", Time, rulePositive, &d.PeakTime, true, 0, "")
+		l.get(sec, "hold current", Current, rulePositive, &d.HoldCurrent, true, 0, "")
+		l.exceed("drive.peak current", d.PeakCurrent, "drive.hold current", d.HoldCurrent, true)
+		reg, ok := l.scalar(sec, "regulation", true, `"hysteresis" or "fixed frequency"`)
+		switch {
+		case !ok:
+		case reg == "hysteresis":
+			d.Regulation = reg
+			l.get(sec, "band", Current, rulePositive, &d.Band, true, 0, "")
+			if sec.has("frequency") {
+				l.errf("drive.frequency", "applies to fixed-frequency regulation only")
+			}
+			if d.Band >= 2*d.HoldCurrent && d.HoldCurrent > 0 {
+				l.errf("drive.band", "%q must be below twice the hold current", l.text["drive.band"])
+			}
+		case reg == "fixed frequency":
+			d.Regulation = reg
+			l.get(sec, "frequency", Frequency, rulePositive, &d.Frequency, true, 0, "")
+			if sec.has("band") {
+				l.errf("drive.band", "applies to hysteresis regulation only")
+			}
+		default:
+			l.errf("drive.regulation", "%q: expected \"hysteresis\" or \"fixed frequency\"", reg)
+		}
+		decay()
+	case DriveBoostHold:
+		l.get(sec, "boost voltage", Voltage, rulePositive, &d.BoostVoltage, true, 0, "")
+		l.get(sec, "boost time", Time, rulePositive, &d.BoostTime, true, 0, "")
+		l.exceed("drive.boost voltage", d.BoostVoltage, "supply.voltage", l.s.Supply.Voltage, false)
+	}
 }

@@ -39,6 +39,7 @@ func TestLoadMinimal(t *testing.T) {
 		},
 		Switch:      SwitchSpec{OnResistance: 0.05, BreakdownVoltage: 60, BodyDiodeDrop: 0.7},
 		Suppression: SuppressionSpec{Kind: SuppressFreewheel, ForwardDrop: 0.8},
+		Drive:       DriveSpec{Mode: DriveConstant}, // default: constant drive
 		Timing:      TimingSpec{DeenergizeAt: 0.1, End: 0.2},
 	}
 	got := *s

@@ -166,7 +166,7 @@ func Build(s *Scenario) (*Model, error) {
 
 	kinds := map[string]circuit.Kind{SuppressNone: circuit.None, SuppressFreewheel: circuit.Freewheel,
 		SuppressDiodeZener: circuit.DiodeZener, SuppressTVS: circuit.TVS, SuppressSnubber: circuit.Snubber,
-		SuppressSwitchClamp: circuit.SwitchClamp}
+		SuppressSwitchClamp: circuit.SwitchClamp, SuppressBridge: circuit.Bridge}
 	k, ok := kinds[s.Suppression.Kind]
 	if !ok {
 		return nil, s.Errorf("suppression.type", "unknown suppression type %q", s.Suppression.Kind)
@@ -179,6 +179,8 @@ func Build(s *Scenario) (*Model, error) {
 		sup.Voltage = s.Suppression.ForwardDrop + s.Suppression.ZenerVoltage
 	case circuit.TVS, circuit.SwitchClamp:
 		sup.Voltage = s.Suppression.ClampVoltage
+	case circuit.Bridge:
+		sup.Voltage = s.Suppression.ForwardDrop
 	}
 	md.Drive = circuit.Drive{
 		Supply: circuit.Supply{Voltage: s.Supply.Voltage, SourceResistance: s.Supply.SourceResistance},
@@ -188,6 +190,25 @@ func Build(s *Scenario) (*Model, error) {
 	}
 	if err := md.Drive.Validate(); err != nil {
 		return nil, s.Errorf("suppression", "%v", err)
+	}
+	md.BulkCapacitance = s.Supply.BulkCapacitance
+	md.RiseTime, md.FallTime = s.Switch.RiseTime, s.Switch.FallTime
+	dr := s.Drive
+	md.Drive.Recirc = circuit.Recirculation{Drop: dr.RecirculationDrop, Resistance: dr.RecirculationResistance}
+	modes := map[string]circuit.ControlMode{"": circuit.Constant, DriveConstant: circuit.Constant, DrivePWM: circuit.PWM,
+		DrivePeakHold: circuit.PeakHold, DriveBoostHold: circuit.BoostHold}
+	cm, ok := modes[dr.Mode]
+	if !ok {
+		return nil, s.Errorf("drive.mode", "unknown drive mode %q", dr.Mode)
+	}
+	md.Control = circuit.Control{Mode: cm, Frequency: dr.Frequency, Duty: dr.Duty, PeakCurrent: dr.PeakCurrent,
+		PeakTime: dr.PeakTime, HoldCurrent: dr.HoldCurrent, Band: dr.Band, FastDecay: dr.Decay == "fast",
+		BoostVoltage: dr.BoostVoltage, BoostTime: dr.BoostTime, ReversePulse: s.Suppression.ReversePulse}
+	if dr.Regulation == "fixed frequency" {
+		md.Control.Regulation = circuit.FixedFrequency
+	}
+	if err := md.Control.Validate(&md.Drive); err != nil {
+		return nil, s.Errorf("drive", "%v", err)
 	}
 	t := s.Timing
 	if !(t.EnergizeAt >= 0 && t.DeenergizeAt > t.EnergizeAt && t.End > t.DeenergizeAt) {

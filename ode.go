@@ -101,16 +101,17 @@ type stepper interface {
 }
 
 type odeIntegrator struct {
-	sys   odeSystem
-	set   odeSettings
-	n     int
-	m     stepper
-	stats odeStats
-	norm  func(err, y0, y1 []float64) float64
+	scratch []float64 // for initialStep
+	sys     odeSystem
+	set     odeSettings
+	n       int
+	m       stepper
+	stats   odeStats
+	norm    func(err, y0, y1 []float64) float64
 }
 
 func newODE(sys odeSystem, n int, set odeSettings) *odeIntegrator {
-	in := &odeIntegrator{sys: sys, set: set, n: n}
+	in := &odeIntegrator{sys: sys, set: set, n: n, scratch: make([]float64, n)}
 	if set.NJac == 0 {
 		in.set.NJac = n
 	}
@@ -168,6 +169,7 @@ func (in *odeIntegrator) run(t0 float64, y []float64) error {
 		if h > in.set.MaxStep {
 			h = in.set.MaxStep
 		}
+		hNatural := h
 		if t+h >= tNext || t+1.01*h >= tNext {
 			h = tNext - t
 			landing = true
@@ -243,6 +245,14 @@ func (in *odeIntegrator) run(t0 float64, y []float64) error {
 			if stop || err != nil {
 				return err
 			}
+			if landing && t >= tNext {
+				// The state event fell on the time event's instant: apply
+				// the time event too, or it would be skipped.
+				t = tNext
+				if stop, err := in.timeEvent(t, y); stop || err != nil {
+					return err
+				}
+			}
 			hOld := h
 			h = math.Min(restart(), hOld)
 			ng = in.sys.guards(t, y, g0)
@@ -271,7 +281,13 @@ func (in *odeIntegrator) run(t0 float64, y []float64) error {
 			if stop || err != nil {
 				return err
 			}
-			h = math.Min(restart(), math.Max(hOld, 1e-9))
+			// Restart with the step the controller wanted before it was
+			// shortened to land here: time events (switch edges) recur, and
+			// the first step's error test catches a change of pace.
+			_ = hOld
+			in.sys.deriv(t, y, f0)
+			in.stats.Evals++
+			h = hNatural
 			ng = in.sys.guards(t, y, g0)
 		}
 	}
@@ -332,7 +348,7 @@ func (in *odeIntegrator) initialStep(t float64, y, f0, ytmp []float64, q float64
 	}
 	h0 = math.Min(h0, in.set.MaxStep)
 	h0 = math.Max(h0, 1e-12)
-	f1 := make([]float64, len(y)) // restart only: not the hot loop
+	f1 := in.scratch
 	for i := range y {
 		zero[i] = y[i] + h0*f0[i]
 	}

@@ -15,6 +15,7 @@ type Scenario struct {
 	Plunger     PlungerSpec
 	Switch      SwitchSpec
 	Suppression SuppressionSpec
+	Drive       DriveSpec
 	Timing      TimingSpec
 	Limits      LimitsSpec
 	Solver      SolverSpec
@@ -33,6 +34,7 @@ type Pos struct {
 type SupplySpec struct {
 	Voltage          float64 // V
 	SourceResistance float64 // ohm, 0 for a stiff supply
+	BulkCapacitance  float64 // F at the drive's terminals, behind the source resistance; 0 for none
 }
 
 // CoilSpec is the winding's electrical data.
@@ -128,6 +130,8 @@ type SwitchSpec struct {
 	OutputCapacitance float64 // F, 0 for ideal edges
 	BreakdownVoltage  float64 // V, where the switch avalanches
 	BodyDiodeDrop     float64 // V
+	RiseTime          float64 // s, turn-on edge, for the switching-loss estimate
+	FallTime          float64 // s, turn-off edge
 }
 
 // Suppression kinds.
@@ -138,6 +142,7 @@ const (
 	SuppressTVS         = "tvs"
 	SuppressSnubber     = "rc snubber"
 	SuppressSwitchClamp = "switch clamp"
+	SuppressBridge      = "reverse drive" // H-bridge: reverse voltage at turn-off
 )
 
 // SuppressionSpec is the inductive-kick suppression part.
@@ -148,6 +153,32 @@ type SuppressionSpec struct {
 	ClampVoltage float64 // V (tvs, switch clamp)
 	Resistance   float64 // ohm: dynamic resistance of diode/zener/tvs, or the snubber resistor
 	Capacitance  float64 // F (rc snubber)
+	ReversePulse float64 // s (reverse drive): drive the coil in reverse this long after turn-off
+}
+
+// Drive modes.
+const (
+	DriveConstant  = "constant"
+	DrivePWM       = "pwm"
+	DrivePeakHold  = "peak and hold"
+	DriveBoostHold = "boost then hold"
+)
+
+// DriveSpec is how the driver drives the coil while energized.
+type DriveSpec struct {
+	Mode                    string  // one of the Drive* constants
+	Frequency               float64 // Hz (pwm; fixed-frequency chopping)
+	Duty                    float64 // pwm, 0..1
+	PeakCurrent             float64 // A
+	PeakTime                float64 // s
+	HoldCurrent             float64 // A
+	Regulation              string  // "hysteresis" or "fixed frequency"
+	Band                    float64 // A, hysteresis band (full width)
+	Decay                   string  // "slow" or "fast"
+	RecirculationDrop       float64 // V, slow-decay path
+	RecirculationResistance float64 // ohm
+	BoostVoltage            float64 // V
+	BoostTime               float64 // s
 }
 
 // TimingSpec is when the drive is commanded on and off.
@@ -166,6 +197,7 @@ type LimitsSpec struct {
 	MaxPullIn       float64 // s, requirement
 	MaxRelease      float64 // s, requirement
 	MaxDrop         float64 // s, requirement
+	MinHoldMargin   float64 // requirement: hold force margin at least this
 }
 
 // SolverSpec tunes the integrator; zero fields take the defaults.

@@ -59,6 +59,7 @@ var (
 	PerKelvin      = Dim{0, 0, 0, 0, -1}  // 1/K
 	FluxDensity    = Dim{1, 0, -2, -1, 0} // T
 	FieldStrength  = Dim{0, -1, 0, 1, 0}  // A/m
+	Frequency      = Dim{0, 0, -1, 0, 0}  // Hz
 )
 
 type dimInfo struct {
@@ -89,6 +90,7 @@ var dimInfos = map[Dim]dimInfo{
 	PerKelvin:      {"a temperature coefficient (per kelvin)", "0.00393 /K"},
 	FluxDensity:    {"a flux density", "1.8 T"},
 	FieldStrength:  {"a magnetic field strength", "400 A/m"},
+	Frequency:      {"a frequency", "20 kHz"},
 }
 
 var baseSymbols = [5]string{"kg", "m", "s", "A", "K"}
@@ -159,6 +161,7 @@ var unitDefs = map[string]unitDef{
 	"F":       {dim: Capacitance, mult: 1, prefix: true},
 	"Wb":      {dim: FluxLinkage, mult: 1, prefix: true},
 	"T":       {dim: FluxDensity, mult: 1, prefix: true},
+	"Hz":      {dim: Frequency, mult: 1, prefix: true},
 	"m":       {dim: Length, mult: 1, prefix: true},
 	"g":       {dim: Mass, mult: 1, exp10: -3, prefix: true},
 	"s":       {dim: Time, mult: 1, prefix: true},

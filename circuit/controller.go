@@ -127,11 +127,14 @@ type Controller struct {
 	on     bool    // switch commanded on
 	period int     // index of the current PWM/chopping period
 	edgeAt float64 // next PWM or chopping edge
+	// held: the peak or boost phase is over. It changes only at the
+	// phase-end time event, so that the guards are smooth between events.
+	held bool
 }
 
 // Start begins the energized interval at time t: the switch turns on.
 func (c *Controller) Start(t float64) {
-	c.t0, c.active, c.on, c.period = t, true, true, 0
+	c.t0, c.active, c.on, c.period, c.held = t, true, true, 0, false
 	c.edgeAt = math.Inf(1)
 	switch {
 	case c.Mode == PWM:
@@ -167,15 +170,15 @@ func (c *Controller) PhaseEnd() float64 {
 // SupplyVoltage returns the source voltage at time t (V): the boost
 // voltage during the boost phase, else the normal supply v.
 func (c *Controller) SupplyVoltage(t, v float64) float64 {
-	if c.active && c.Mode == BoostHold && t < c.t0+c.BoostTime {
+	if c.active && c.Mode == BoostHold && !c.held {
 		return c.BoostVoltage
 	}
 	return v
 }
 
-// Target returns the regulated current at time t (A).
-func (c *Controller) Target(t float64) float64 {
-	if t < c.t0+c.PeakTime {
+// Target returns the regulated current (A) in the present phase.
+func (c *Controller) Target(float64) float64 {
+	if !c.held {
 		return c.PeakCurrent
 	}
 	return c.HoldCurrent
@@ -191,7 +194,7 @@ func (c *Controller) NextTime(t float64) float64 {
 	if c.edgeAt > t {
 		next = c.edgeAt
 	}
-	if pe := c.PhaseEnd(); pe > t && pe < next {
+	if pe := c.PhaseEnd(); !c.held && pe > t && pe < next {
 		next = pe
 	}
 	return next
@@ -199,7 +202,13 @@ func (c *Controller) NextTime(t float64) float64 {
 
 // AtTime applies the scheduled events at time t.
 func (c *Controller) AtTime(t float64) {
-	if !c.active || t != c.edgeAt {
+	if !c.active {
+		return
+	}
+	if t == c.PhaseEnd() {
+		c.held = true
+	}
+	if t != c.edgeAt {
 		return
 	}
 	switch c.Mode {

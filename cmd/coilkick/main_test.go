@@ -23,7 +23,7 @@ func TestRunExitCodes(t *testing.T) {
 		stderr []string
 	}{
 		{"demo passes", []string{"run", "../../scenarios/irrigation-valve.yaml"}, exitOK,
-			[]string{"pull-in time", "release time", "peak switch voltage", "Checks: 3 of 3 pass", "licensed practice"}, nil},
+			[]string{"pull-in time", "release time", "peak switch voltage", "Checks: 4 of 4 pass", "licensed practice"}, nil},
 		{"flags after the file", []string{"run", "../../scenarios/irrigation-valve.yaml", "--csv", csvPath}, exitOK,
 			[]string{"pull-in time"}, nil},
 		{"rating fails", []string{"run", "../../scenarios/door-latch.yaml"}, exitFailing,

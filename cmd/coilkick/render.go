@@ -62,17 +62,28 @@ func printSummary(w io.Writer, path string, md *coilkick.Model, res *coilkick.Re
 		notes[n.Figure] = append(notes[n.Figure], n)
 	}
 	row := func(name, value string) {
-		line := fmt.Sprintf("  %-26s %-14s", name, value)
+		line := fmt.Sprintf("  %-29s %-14s", name, value)
 		if c, ok := checks[name]; ok {
 			verdict := "pass"
 			if !c.Pass {
 				verdict = "FAIL"
 			}
-			kind := "rating"
-			if c.Unit == "s" {
+			kind, op := "rating", "<="
+			if c.Unit == "s" || c.Min {
 				kind = "required"
 			}
-			line += fmt.Sprintf(" %s <= %-10s %s", kind, si(c.Limit, c.Unit), verdict)
+			if c.Min {
+				op = ">="
+			}
+			lim := si(c.Limit, c.Unit)
+			if c.Unit == "" {
+				lim = strconv.FormatFloat(c.Limit, 'g', 3, 64)
+			}
+			if c.Min && c.Limit == 0 {
+				line += " " + verdict // a yes/no requirement
+			} else {
+				line += fmt.Sprintf(" %s %s %-10s %s", kind, op, lim, verdict)
+			}
 		}
 		fmt.Fprintln(b, strings.TrimRight(line, " "))
 		for _, n := range notes[name] {
@@ -88,6 +99,38 @@ func printSummary(w io.Writer, path string, md *coilkick.Model, res *coilkick.Re
 		row("current at seating", si(m.CurrentAtSeating, "A"))
 	}
 	row("peak current", si(m.PeakCurrent, "A"))
+	if h := m.Hold; h.Measured {
+		fmt.Fprintf(b, "Hold (%v drive; window %s to %s)\n", md.Control.Mode, si(h.Start, "s"), si(h.End, "s"))
+		row("hold current mean", si(h.MeanCurrent, "A"))
+		row("hold current ripple", fmt.Sprintf("%s (%s to %s)", si(h.Ripple, "A"), si(h.MinCurrent, "A"), si(h.MaxCurrent, "A")))
+		if md.Control.Chops() {
+			row("chopping frequency", si(h.ChoppingFrequency, "Hz"))
+		}
+		row("coil power in hold", fmt.Sprintf("%s (full voltage: %s)", si(h.CoilPower, "W"), si(h.FullVoltageCoilPower, "W")))
+		row("switch conduction power", si(h.SwitchConductionPower, "W"))
+		if h.DiodePower > 0 {
+			row("recirculation diode power", si(h.DiodePower, "W"))
+		}
+		if h.SwitchingPower > 0 {
+			row("switching power (estimate)", si(h.SwitchingPower, "W"))
+		}
+		row("supply current mean", si(h.SupplyMeanCurrent, "A"))
+		margin := "not seated"
+		if h.ForceMargin > 0 {
+			margin = fmt.Sprintf("%.2f", h.ForceMargin)
+		}
+		row("hold force margin", margin)
+		row("stays seated while energized", map[bool]string{true: "yes", false: "NO"}[!m.DroppedOutEnergized])
+		for _, n := range notes["chopping frequency"] {
+			fmt.Fprintf(b, "    %s: %s\n", strings.ToUpper(n.Level), n.Text)
+		}
+	}
+	fmt.Fprintln(b, "Supply")
+	row("peak supply current", si(m.PeakSupplyCurrent, "A"))
+	row("lowest rail voltage", si(m.MinRailVoltage, "V"))
+	if m.EnergyReturned > 0 {
+		row("energy returned to supply", si(m.EnergyReturned, "J"))
+	}
 	fmt.Fprintln(b, "Release")
 	row("current at turn-off", si(m.CurrentAtTurnOff, "A"))
 	if m.PullIn.Happened {
@@ -110,12 +153,18 @@ func printSummary(w io.Writer, path string, md *coilkick.Model, res *coilkick.Re
 	}
 	row("switch", si(m.SwitchLoss, "J"))
 	row("suppression", si(m.ClampEnergy, "J"))
+	if m.DiodeLoss > 0 {
+		row("recirculation / bridge diodes", si(m.DiodeLoss, "J"))
+	}
 	row("mechanical work", si(m.MechanicalWork, "J"))
 	if m.EddyLoss > 0 {
 		row("eddy currents", si(m.EddyLoss, "J"))
 	}
 	row("stored change", si(m.StoredChange, "J"))
 	row("energy residual", fmt.Sprintf("%.2g of supply", m.EnergyResidualRel()))
+	if m.SwitchingLossEstimate > 0 {
+		row("switching loss (estimate)", si(m.SwitchingLossEstimate, "J")+", from edge times, outside the balance")
+	}
 	fmt.Fprintln(b, "\nEvents")
 	for _, e := range res.Events {
 		fmt.Fprintf(b, "  %10.4f ms  %s\n", e.Time*1e3, e.What)
@@ -208,6 +257,30 @@ type jsonMetrics struct {
 	EddyLoss          float64           `json:"eddy_loss_J"`
 	StoredChange      float64           `json:"stored_energy_change_J"`
 	EnergyResidual    float64           `json:"energy_residual_J"`
+	DiodeLoss         float64           `json:"diode_loss_J"`
+	EnergyReturned    float64           `json:"energy_returned_J"`
+	SwitchingLoss     float64           `json:"switching_loss_estimate_J"`
+	PeakSupplyCurrent float64           `json:"peak_supply_current_A"`
+	MinRailVoltage    float64           `json:"lowest_rail_voltage_V"`
+	Hold              *jsonHold         `json:"hold"`
+}
+
+type jsonHold struct {
+	Start                float64 `json:"window_start_s"`
+	End                  float64 `json:"window_end_s"`
+	MeanCurrent          float64 `json:"mean_current_A"`
+	MinCurrent           float64 `json:"min_current_A"`
+	MaxCurrent           float64 `json:"max_current_A"`
+	Ripple               float64 `json:"ripple_A"`
+	ChoppingFrequency    float64 `json:"chopping_frequency_Hz"`
+	CoilPower            float64 `json:"coil_power_W"`
+	FullVoltageCoilPower float64 `json:"full_voltage_coil_power_W"`
+	SwitchConduction     float64 `json:"switch_conduction_power_W"`
+	DiodePower           float64 `json:"diode_power_W"`
+	SwitchingPower       float64 `json:"switching_power_estimate_W"`
+	SupplyMeanCurrent    float64 `json:"supply_mean_current_A"`
+	SupplyPower          float64 `json:"supply_power_W"`
+	ForceMargin          float64 `json:"force_margin"`
 }
 
 func writeJSON(w io.Writer, md *coilkick.Model, res *coilkick.Result, as *coilkick.Assessment) error {
@@ -224,6 +297,13 @@ func writeJSON(w io.Writer, md *coilkick.Model, res *coilkick.Result, as *coilki
 			MechanicalWork: m.MechanicalWork, EddyLoss: m.EddyLoss, StoredChange: m.StoredChange, EnergyResidual: m.EnergyResidual,
 		},
 		Checks: []jsonCheck{}, Notes: []coilkickNote{}, Events: []jsonEvent{},
+	}
+	doc.Metrics.DiodeLoss, doc.Metrics.EnergyReturned, doc.Metrics.SwitchingLoss = m.DiodeLoss, m.EnergyReturned, m.SwitchingLossEstimate
+	doc.Metrics.PeakSupplyCurrent, doc.Metrics.MinRailVoltage = m.PeakSupplyCurrent, m.MinRailVoltage
+	if h := m.Hold; h.Measured {
+		doc.Metrics.Hold = &jsonHold{h.Start, h.End, h.MeanCurrent, h.MinCurrent, h.MaxCurrent, h.Ripple, h.ChoppingFrequency,
+			h.CoilPower, h.FullVoltageCoilPower, h.SwitchConductionPower, h.DiodePower, h.SwitchingPower,
+			h.SupplyMeanCurrent, h.SupplyPower, h.ForceMargin}
 	}
 	for _, c := range as.Checks {
 		jc := jsonCheck{Name: c.Name, Unit: c.Unit, Limit: c.Limit, Pass: c.Pass}
