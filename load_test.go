@@ -509,3 +509,36 @@ func TestLoadGeometrySteelCurve(t *testing.T) {
 		t.Errorf("steel-curve magnet: %+v", res.Metrics)
 	}
 }
+
+func TestLoadDriveErrors(t *testing.T) {
+	t.Parallel()
+	good, err := os.ReadFile(filepath.Join("scenarios", "peak-hold-valve.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := Parse(good, "d.yaml"); err != nil {
+		t.Fatal(err)
+	}
+	cases := []struct{ from, to, want string }{
+		{"  mode: peak and hold", "  mode: peak hold", "unknown drive mode"},
+		{"  frequency: 20 kHz", "  frequency: 20 kV", "expected a frequency"},
+		{"  hold current: 0.4 A", "  hold current: 2 A", "drive.hold current"},
+		{"  regulation: fixed frequency", "  regulation: hysteresis", "drive.band: missing"},
+		{"  decay: slow", "  decay: medium", "expected \"slow\""},
+		{"  recirculation drop: 0.7 V\n", "", "drive.recirculation drop: missing"},
+		{"  peak time: 30 ms", "  peak time: 30 ms\n  duty: 0.5", "does not apply to drive mode"},
+		{"  bulk capacitance: 470 uF", "  bulk capacitance: 470 uH", "expected a capacitance"},
+		{"  source resistance: 0.3 ohm\n", "", "needs a supply.source resistance"},
+		{"  rise time: 100 ns", "  rise time: -1 ns", "must not be negative"},
+	}
+	for _, c := range cases {
+		text := strings.Replace(string(good), c.from, c.to, 1)
+		if text == string(good) {
+			t.Fatalf("edit %q did not apply", c.from)
+		}
+		_, err := Parse([]byte(text), "d.yaml")
+		if err == nil || !strings.Contains(err.Error(), c.want) || !strings.Contains(err.Error(), "d.yaml:") {
+			t.Errorf("edit %q → %q: error %v, want one naming d.yaml and containing %q", c.from, c.to, err, c.want)
+		}
+	}
+}

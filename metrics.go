@@ -111,7 +111,7 @@ type HoldMetrics struct {
 	Start, End                        float64 // s, the window
 	MeanCurrent, MinCurrent           float64 // A
 	MaxCurrent, Ripple                float64 // A, ripple = max − min
-	ChoppingFrequency                 float64 // Hz, switch turn-on edges per second
+	ChoppingFrequency                 float64 // Hz, turn-on edges: (n − 1) over the time from the first to the last in the window
 	CoilPower                         float64 // in the coil resistance
 	FullVoltageCoilPower              float64 // the coil held at the full supply voltage, V²/R
 	SwitchConductionPower, DiodePower float64

@@ -75,18 +75,19 @@ type run struct {
 	res             *Result
 	noTrace         bool
 
-	ctl      circuit.Controller
-	baseV0   float64 // V, the normal supply voltage
-	tRevEnd  float64 // end of a timed reverse pulse (+Inf: none)
-	tWin     float64 // start of the hold window (its end is tOff)
-	inWindow bool
-	win      [nState]float64 // state at the window start
-	edges    int             // switch turn-on edges inside the window
-	swEst    float64         // J, estimated switching loss (edge times), not in the balance
-	swEstWin float64         // J, the same at the window start
-	winMin   float64         // A, coil current extremes in the window
-	winMax   float64
-	quiet    bool // chopping: mode changes are not logged
+	ctl                 circuit.Controller
+	baseV0              float64 // V, the normal supply voltage
+	tRevEnd             float64 // end of a timed reverse pulse (+Inf: none)
+	tWin                float64 // start of the hold window (its end is tOff)
+	inWindow            bool
+	win                 [nState]float64 // state at the window start
+	edges               int             // switch turn-on edges inside the window
+	firstEdge, lastEdge float64
+	swEst               float64 // J, estimated switching loss (edge times), not in the balance
+	swEstWin            float64 // J, the same at the window start
+	winMin              float64 // A, coil current extremes in the window
+	winMax              float64
+	quiet               bool // chopping: mode changes are not logged
 
 	riseTime, fallTime float64
 
@@ -189,6 +190,10 @@ func (r *run) applyCommand(t float64, y []float64) {
 	case want && r.cmode != circuit.On:
 		r.switchOn(t, y)
 		if r.inWindow {
+			if r.edges == 0 {
+				r.firstEdge = t
+			}
+			r.lastEdge = t
 			r.edges++
 		}
 	case !want && r.cmode == circuit.On:
@@ -576,7 +581,10 @@ func (r *run) closeWindow(t float64, y []float64) {
 	h.MeanCurrent = (y[qCharge] - r.win[qCharge]) / T
 	h.MinCurrent, h.MaxCurrent = r.winMin, r.winMax
 	h.Ripple = r.winMax - r.winMin
-	h.ChoppingFrequency = float64(r.edges) / T
+	if r.edges >= 2 {
+		// whole periods between the first and last turn-on in the window
+		h.ChoppingFrequency = float64(r.edges-1) / (r.lastEdge - r.firstEdge)
+	}
 	h.CoilPower = (y[qCoilR] - r.win[qCoilR]) / T
 	h.FullVoltageCoilPower = r.baseV0 * r.baseV0 / r.r
 	h.SwitchConductionPower = (y[qSwitch] - r.win[qSwitch]) / T
