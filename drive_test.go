@@ -233,3 +233,30 @@ func TestHoldTooWeakDropsOut(t *testing.T) {
 		t.Error("a drop-out during the hold must fail the assessment")
 	}
 }
+
+func TestBulkCapacitorSteadyStateAndDroop(t *testing.T) {
+	t.Parallel()
+	const v0, r, l, rs, c = 24.0, 12.0, 0.05, 0.5, 470e-6
+	md := fixedModel(t, v0, r, l, circuit.Suppressor{Kind: circuit.Freewheel, Voltage: 0.8})
+	md.Drive.Supply.SourceResistance = rs
+	md.BulkCapacitance = c
+	md.Timing = TimingSpec{EnergizeAt: 0.001, DeenergizeAt: 0.1, End: 0.12}
+	res, err := Simulate(md, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	m := res.Metrics
+	// source: DC steady state (Ohm's law): the capacitor carries no current,
+	// so the coil current is V/(R + Rs) and the rail sits at V·R/(R + Rs).
+	wantI := v0 / (r + rs)
+	if e := math.Abs(m.Hold.MeanCurrent-wantI) / wantI; e > 1e-6 {
+		t.Errorf("steady current %.9g A, want %.9g A", m.Hold.MeanCurrent, wantI)
+	}
+	wantRail := v0 * r / (r + rs)
+	if e := math.Abs(m.MinRailVoltage-wantRail) / wantRail; e > 1e-6 {
+		t.Errorf("lowest rail %.9g V, want %.9g V (no overshoot below the DC value for this overdamped loop)", m.MinRailVoltage, wantRail)
+	}
+	if r := m.EnergyResidualRel(); r > 1e-6 {
+		t.Errorf("energy residual %.3g", r)
+	}
+}
