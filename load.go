@@ -570,9 +570,13 @@ func (l *scenarioLoader) exceed(big string, vBig float64, small string, vSmall f
 
 // Keys of each section.
 var (
-	topKeys    = []string{"name", "supply", "coil", "magnet", "plunger", "switch", "suppression", "drive", "timing", "ratings", "solver"}
-	supplyKeys = []string{"voltage", "source resistance", "bulk capacitance"}
-	driveKeys  = []string{"mode", "frequency", "duty", "peak current", "peak time", "hold current", "regulation", "band",
+	topKeys     = []string{"name", "supply", "coil", "magnet", "plunger", "switch", "suppression", "drive", "timing", "thermal", "duty", "ratings", "solver"}
+	supplyKeys  = []string{"voltage", "source resistance", "bulk capacitance", "low voltage"}
+	thermalKeys = []string{"ambient", "insulation class", "temperature rise", "at power", "time constant",
+		"surface area", "convection coefficient", "heat capacity",
+		"winding heat capacity", "winding to housing", "housing heat capacity", "housing to ambient"}
+	dutyKeys  = []string{"on time", "period", "duration"}
+	driveKeys = []string{"mode", "frequency", "duty", "peak current", "peak time", "hold current", "regulation", "band",
 		"decay", "recirculation drop", "recirculation resistance", "boost voltage", "boost time"}
 	driveModes    = []string{DriveConstant, DrivePWM, DrivePeakHold, DriveBoostHold}
 	driveModeKeys = map[string][]string{
@@ -648,6 +652,11 @@ func (l *scenarioLoader) load(root *yaml.Node) {
 	// supply
 	l.get(supply, "voltage", Voltage, rulePositive, &s.Supply.Voltage, true, 0, "")
 	l.get(supply, "source resistance", Resistance, ruleNonNeg, &s.Supply.SourceResistance, false, 0, "0 ohm")
+	if supply != nil && supply.has("low voltage") {
+		if l.get(supply, "low voltage", Voltage, rulePositive, &s.Supply.LowVoltage, true, 0, "") {
+			l.exceed("supply.voltage", s.Supply.Voltage, "supply.low voltage", s.Supply.LowVoltage, true)
+		}
+	}
 	if supply != nil && supply.has("bulk capacitance") {
 		if l.get(supply, "bulk capacitance", Capacitance, rulePositive, &s.Supply.BulkCapacitance, true, 0, "") && !(s.Supply.SourceResistance > 0) {
 			l.errf("supply.bulk capacitance", "needs a supply.source resistance > 0 (the capacitor would be tied to an ideal source)")
@@ -669,6 +678,15 @@ func (l *scenarioLoader) load(root *yaml.Node) {
 
 	l.loadSuppression(supp)
 	l.loadDrive(l.sub(top, "drive", driveKeys))
+	l.loadThermal(l.sub(top, "thermal", thermalKeys))
+	if duty := l.sub(top, "duty", dutyKeys); duty != nil {
+		d := &DutySpec{}
+		s.Duty = d
+		l.get(duty, "on time", Time, rulePositive, &d.OnTime, true, 0, "")
+		l.get(duty, "period", Time, rulePositive, &d.Period, true, 0, "")
+		l.get(duty, "duration", Time, ruleNonNeg, &d.Duration, false, 0, "until the periodic steady state")
+		l.exceed("duty.period", d.Period, "duty.on time", d.OnTime, false)
+	}
 
 	// timing
 	l.get(timing, "energize at", Time, ruleNonNeg, &s.Timing.EnergizeAt, false, 0, "0 s")
@@ -1188,5 +1206,57 @@ func (l *scenarioLoader) loadDrive(sec *yamlSection) {
 		l.get(sec, "boost voltage", Voltage, rulePositive, &d.BoostVoltage, true, 0, "")
 		l.get(sec, "boost time", Time, rulePositive, &d.BoostTime, true, 0, "")
 		l.exceed("drive.boost voltage", d.BoostVoltage, "supply.voltage", l.s.Supply.Voltage, false)
+	}
+}
+
+// loadThermal reads the optional thermal section: one of three ways to give
+// the network (a datasheet rating, a surface, or an explicit two-node
+// network).
+func (l *scenarioLoader) loadThermal(sec *yamlSection) {
+	if sec == nil {
+		return
+	}
+	t := &ThermalSpec{}
+	l.s.Thermal = t
+	l.get(sec, "ambient", Temperature, ruleAny, &t.Ambient, true, 0, "")
+	if text, ok := l.scalar(sec, "insulation class", false, "an IEC 60085 class letter: A, E, B, F, H, N or R"); ok {
+		t.Class = strings.TrimSpace(text)
+	}
+	rating := sec.has("temperature rise") || sec.has("at power") || sec.has("time constant")
+	surface := sec.has("surface area") || sec.has("convection coefficient") || sec.has("heat capacity")
+	network := sec.has("winding heat capacity") || sec.has("winding to housing") || sec.has("housing heat capacity") || sec.has("housing to ambient")
+	n := 0
+	for _, b := range []bool{rating, surface, network} {
+		if b {
+			n++
+		}
+	}
+	if n != 1 {
+		l.errAt("thermal", sec.pos, "give exactly one of: a rating (temperature rise, at power, time constant), a surface (surface area, convection coefficient, heat capacity) or a two-node network (winding heat capacity, winding to housing, housing heat capacity, housing to ambient)")
+		return
+	}
+	switch {
+	case rating:
+		t.Kind = "rating"
+		if l.get(sec, "temperature rise", Temperature, rulePositive, &t.Rise, true, 0, "") {
+			if txt := l.text["thermal.temperature rise"]; strings.Contains(txt, "C") {
+				l.errf("thermal.temperature rise", "%q: a temperature rise is written in K, e.g. \"60 K\"", txt)
+			}
+		}
+		l.get(sec, "at power", Power, rulePositive, &t.AtPower, true, 0, "")
+		l.get(sec, "time constant", Time, rulePositive, &t.TimeConstant, true, 0, "")
+	case surface:
+		t.Kind = "surface"
+		l.get(sec, "surface area", Area, rulePositive, &t.SurfaceArea, true, 0, "")
+		l.get(sec, "convection coefficient", HeatTransfer, rulePositive, &t.Convection, true, 0, "")
+		if l.s.Coil.Build == nil || sec.has("heat capacity") {
+			l.get(sec, "heat capacity", HeatCapacity, rulePositive, &t.HeatCapacity, true, 0, "")
+		}
+	case network:
+		t.Kind = "network"
+		l.get(sec, "winding heat capacity", HeatCapacity, rulePositive, &t.HeatCapacity, true, 0, "")
+		l.get(sec, "winding to housing", ThermalResistance, rulePositive, &t.WindingToHousing, true, 0, "")
+		l.get(sec, "housing heat capacity", HeatCapacity, rulePositive, &t.HousingCapacity, true, 0, "")
+		l.get(sec, "housing to ambient", ThermalResistance, rulePositive, &t.HousingToAmbient, true, 0, "")
 	}
 }

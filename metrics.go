@@ -87,6 +87,9 @@ type Metrics struct {
 	DiodeLoss float64
 	// EnergyReturned: energy a bridge returned to the supply rail, J.
 	EnergyReturned float64
+	// FinalWindingTemperature, FinalHousingTemperature (K) at the end of the
+	// run (equal to the starting ones without a thermal model).
+	FinalWindingTemperature, FinalHousingTemperature float64
 	// Hold: figures over the hold window.
 	Hold HoldMetrics
 

@@ -30,6 +30,15 @@ type Model struct {
 	Plunger        mech.Plunger
 	Drive          circuit.Drive
 	Control        circuit.Control // how the driver drives the coil while energized
+	// Thermal is the coil's thermal network; nil without a thermal section
+	// (the winding then stays at Temperature).
+	Thermal *magnet.Thermal
+	Ambient float64 // K
+	// InsulationLimit (K) and InsulationClass from IEC 60085; 0 and "" when not given.
+	InsulationLimit float64
+	InsulationClass string
+	// LowSupply (V): the lowest supply in tolerance; 0 when not given.
+	LowSupply float64
 	// BulkCapacitance (F) at the drive's supply terminals, fed through the
 	// source resistance; 0 for none.
 	BulkCapacitance float64
@@ -73,6 +82,8 @@ func (m *Model) scales() []float64 {
 	sc[sVel] = stroke / tau
 	sc[sSwitchC] = v0
 	sc[sSnubberC] = v0
+	sc[sBus] = v0
+	sc[sWinding], sc[sHousing] = 100, 100 // K
 	// Energies: the magnetic energy stored at that current.
 	e := 0.5 * lam * iScale
 	for k := qSupply; k < nState; k++ {
@@ -209,6 +220,43 @@ func Build(s *Scenario) (*Model, error) {
 	}
 	if err := md.Control.Validate(&md.Drive); err != nil {
 		return nil, s.Errorf("drive", "%v", err)
+	}
+	md.LowSupply = s.Supply.LowVoltage
+	if th := s.Thermal; th != nil {
+		md.Ambient = th.Ambient
+		var net magnet.Thermal
+		var err error
+		switch th.Kind {
+		case "rating":
+			net, err = magnet.FromRating(th.Rise, th.AtPower, th.TimeConstant)
+		case "surface":
+			c := th.HeatCapacity
+			if c == 0 && md.CoilBuild != nil {
+				// copper only: a conservative (fast-heating) estimate
+				c = md.CoilBuild.CopperMass * magnet.CopperSpecificHeat
+			}
+			net, err = magnet.FromSurface(th.SurfaceArea, th.Convection, c)
+		case "network":
+			net = magnet.Thermal{WindingCapacity: th.HeatCapacity, WindingToHousing: th.WindingToHousing,
+				HousingCapacity: th.HousingCapacity, HousingToAmbient: th.HousingToAmbient}
+			err = net.Validate()
+		}
+		if err != nil {
+			return nil, s.Errorf("thermal", "%v", err)
+		}
+		md.Thermal = &net
+		if th.Class != "" {
+			lim, err := magnet.InsulationClassLimit(th.Class)
+			if err != nil {
+				return nil, s.Errorf("thermal.insulation class", "%v", err)
+			}
+			md.InsulationClass, md.InsulationLimit = th.Class, lim
+		}
+		// With a thermal model the run starts at the coil temperature when
+		// one is written, else at the ambient.
+		if _, written := s.pos["coil.temperature"]; !written {
+			md.Temperature = th.Ambient
+		}
 	}
 	t := s.Timing
 	if !(t.EnergizeAt >= 0 && t.DeenergizeAt > t.EnergizeAt && t.End > t.DeenergizeAt) {

@@ -16,6 +16,8 @@ type Scenario struct {
 	Switch      SwitchSpec
 	Suppression SuppressionSpec
 	Drive       DriveSpec
+	Thermal     *ThermalSpec // nil: no thermal model
+	Duty        *DutySpec    // nil: no operating pattern
 	Timing      TimingSpec
 	Limits      LimitsSpec
 	Solver      SolverSpec
@@ -35,6 +37,27 @@ type SupplySpec struct {
 	Voltage          float64 // V
 	SourceResistance float64 // ohm, 0 for a stiff supply
 	BulkCapacitance  float64 // F at the drive's terminals, behind the source resistance; 0 for none
+	LowVoltage       float64 // V, lowest supply in tolerance (hot-coil check); 0 when not given
+}
+
+// ThermalSpec is the coil's thermal network.
+type ThermalSpec struct {
+	Ambient float64 // K
+	Class   string  // IEC 60085 insulation class, "" when not given
+	Kind    string  // "rating", "surface" or "network"
+	// rating: steady rise (K) at a power (W), time constant (s)
+	Rise, AtPower, TimeConstant float64
+	// surface: area (m²), convection coefficient (W/(m²·K)), heat capacity (J/K;
+	// 0: from the coil build's copper mass)
+	SurfaceArea, Convection, HeatCapacity float64
+	// network (two nodes): HeatCapacity is the winding's (J/K); resistances K/W
+	WindingToHousing, HousingCapacity, HousingToAmbient float64
+}
+
+// DutySpec is the operating pattern of a heat study.
+type DutySpec struct {
+	OnTime, Period float64 // s
+	Duration       float64 // s; 0: until the periodic steady state
 }
 
 // CoilSpec is the winding's electrical data.

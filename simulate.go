@@ -20,6 +20,16 @@ type Options struct {
 	Tolerance float64 // relative tolerance of the integrator
 	MaxSteps  int
 	NoTrace   bool // skip recording the time series (faster for sweeps)
+	// WindingTemperature, HousingTemperature (K): starting temperatures of
+	// the thermal model; 0 takes the model's (Model.Temperature, and the
+	// ambient for the housing).
+	WindingTemperature, HousingTemperature float64
+	// Overrides for studies: a supply voltage (V), or a fixed winding
+	// temperature (K) with the thermal model switched off; 0 keeps the
+	// model's.
+	SupplyVoltage, FixedTemperature float64
+	// Energize, Deenergize, End (s) override the scenario's timing when End > 0.
+	Energize, Deenergize, End float64
 }
 
 // Trace is the recorded time series, one sample per accepted step and one
@@ -475,11 +485,29 @@ func Simulate(md *Model, opt *Options) (*Result, error) {
 	if maxSteps <= 0 {
 		maxSteps = DefaultMaxSteps
 	}
-	sys := &system{mag: md.Magnet, plunger: md.Plunger, drive: md.Drive, r: md.CoilResistance(), eddy: md.EddyResistance,
-		v0: md.Drive.Supply.Voltage, rs: md.Drive.Supply.SourceResistance, bulkC: md.BulkCapacitance}
+	drive := md.Drive
+	if opt.SupplyVoltage > 0 {
+		drive.Supply.Voltage = opt.SupplyVoltage
+	}
+	timing := md.Timing
+	if opt.End > 0 {
+		timing = TimingSpec{EnergizeAt: opt.Energize, DeenergizeAt: opt.Deenergize, End: opt.End}
+	}
+	tWinding := md.Temperature
+	if opt.FixedTemperature > 0 {
+		tWinding = opt.FixedTemperature
+	} else if opt.WindingTemperature > 0 {
+		tWinding = opt.WindingTemperature
+	}
+	sys := &system{mag: md.Magnet, plunger: md.Plunger, drive: drive, r: md.Coil.ResistanceAt(tWinding), eddy: md.EddyResistance,
+		v0: drive.Supply.Voltage, rs: drive.Supply.SourceResistance, bulkC: md.BulkCapacitance,
+		coil: md.Coil, ambient: md.Ambient}
+	if md.Thermal != nil && opt.FixedTemperature == 0 {
+		sys.thermal = md.Thermal
+	}
 	res := &Result{}
-	r := &run{system: sys, tOn: md.Timing.EnergizeAt, tOff: md.Timing.DeenergizeAt, tEnd: md.Timing.End,
-		res: res, noTrace: opt.NoTrace, baseV0: md.Drive.Supply.Voltage, tRevEnd: math.Inf(1),
+	r := &run{system: sys, tOn: timing.EnergizeAt, tOff: timing.DeenergizeAt, tEnd: timing.End,
+		res: res, noTrace: opt.NoTrace, baseV0: drive.Supply.Voltage, tRevEnd: math.Inf(1),
 		riseTime: md.RiseTime, fallTime: md.FallTime}
 	r.ctl.Control = md.Control
 	// The hold window: the second half of the hold phase (after the peak
@@ -497,7 +525,15 @@ func Simulate(md *Model, opt *Options) (*Result, error) {
 	y := make([]float64, nState)
 	y[sGap] = md.Plunger.GapMax
 	y[sSwitchC] = md.Drive.Supply.Voltage // at rest the switch node sits at the rail
-	y[sBus] = md.Drive.Supply.Voltage
+	y[sBus] = drive.Supply.Voltage
+	y[sWinding] = tWinding
+	y[sHousing] = tWinding
+	if md.Thermal != nil {
+		y[sHousing] = md.Ambient
+	}
+	if opt.HousingTemperature > 0 {
+		y[sHousing] = opt.HousingTemperature
+	}
 	sys.cmode = circuit.Off
 	sys.mmode = mechRest
 	if err := r.settle(0, y); err != nil {
@@ -545,6 +581,8 @@ func (r *run) finish(y []float64) {
 	m.DiodeLoss = y[qDiode]
 	m.EnergyReturned = y[qReturned]
 	m.SwitchingLossEstimate = r.swEst
+	m.FinalWindingTemperature = y[sWinding]
+	m.FinalHousingTemperature = y[sHousing]
 	m.StoredChange = r.fieldEnergy(y) - r.wf0 + r.storedCapEnergy(y) - r.capE0
 	m.EnergyResidual = m.SupplyEnergy - (m.CoilLoss + m.SourceLoss + m.SwitchLoss + m.ClampEnergy + m.DiodeLoss + m.MechanicalWork + m.EddyLoss + m.StoredChange)
 }

@@ -18,6 +18,8 @@ const (
 	sSwitchC         // V: switch output capacitor voltage (used in circuit mode Off)
 	sSnubberC        // V: snubber capacitor voltage
 	sBus             // V: supply bulk capacitor voltage (when fitted)
+	sWinding         // K: winding temperature (when a thermal model is given)
+	sHousing         // K: housing temperature (two-node thermal model)
 	qSupply          // J delivered by the ideal source
 	qCoilR           // J in the coil resistance
 	qSource          // J in the source resistance
@@ -62,6 +64,12 @@ type system struct {
 	// 0 for none.
 	eddy float64
 
+	// thermal, when not nil, makes the winding temperature a state: the
+	// coil resistance follows it and the coil's losses heat it.
+	thermal *magnet.Thermal
+	coil    magnet.Coil
+	ambient float64 // K
+
 	v0    float64 // V, present source voltage (the boost voltage while boosting)
 	rs    float64 // ohm, source resistance
 	bulkC float64 // F, bulk capacitor at the rail behind rs (0: none)
@@ -76,6 +84,14 @@ type outputs struct {
 	Current, CoilVoltage, SwitchVoltage, SupplyCurrent, ClampCurrent float64
 	Gap, Velocity, MagneticForce, PassiveForce                       float64
 	RailVoltage                                                      float64 // V at the drive's supply terminals
+}
+
+// resistance returns the coil resistance at y (ohm).
+func (s *system) resistance(y []float64) float64 {
+	if s.thermal == nil {
+		return s.r
+	}
+	return s.coil.ResistanceAt(y[sWinding])
 }
 
 // rail returns the voltage and resistance the drive sees at its supply
@@ -126,7 +142,7 @@ func (s *system) solve(y []float64) (i, im float64) {
 		}
 		s.drive.SolveRail(s.cmode, v0, rs, i1, vC, vS, &s.pt)
 		ra := (vc0 - s.pt.CoilVoltage) / i1
-		i = (vc0 + s.eddy*im) / (s.eddy + ra + s.r)
+		i = (vc0 + s.eddy*im) / (s.eddy + ra + s.resistance(y))
 	}
 	s.drive.SolveRail(s.cmode, v0, rs, i, vC, vS, &s.pt)
 	return i, im
@@ -139,7 +155,7 @@ func (s *system) deriv(_ float64, y, dy []float64) {
 	pull := s.mag.Force(im, x)
 	switch {
 	case !pt.CurrentPinned:
-		dy[sFlux] = pt.CoilVoltage - s.r*i
+		dy[sFlux] = pt.CoilVoltage - s.resistance(y)*i
 	case s.eddy > 0:
 		dy[sFlux] = -s.eddy * im // open coil: the flux decays through the eddy path
 	default:
@@ -168,7 +184,14 @@ func (s *system) deriv(_ float64, y, dy []float64) {
 		dy[qSupply] = pt.PSupply
 		dy[qSource] = pt.PSource
 	}
-	dy[qCoilR] = s.r * i * i
+	r := s.resistance(y)
+	dy[qCoilR] = r * i * i
+	dy[sWinding], dy[sHousing] = 0, 0
+	if s.thermal != nil {
+		// Copper and eddy losses heat the winding node.
+		p := r*i*i + s.eddy*(im-i)*(im-i)
+		dy[sWinding], dy[sHousing] = s.thermal.Deriv(y[sWinding], y[sHousing], p, s.ambient)
+	}
 	dy[qDiode] = pt.PDiode
 	dy[qReturned] = 0
 	if s.cmode == circuit.BridgeReturn || s.cmode == circuit.BridgeReturnRev || s.cmode == circuit.BridgeReverse {

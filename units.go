@@ -37,29 +37,32 @@ type Dim [5]int8
 // Named dimensions. Temperature is an absolute temperature (K); the same
 // exponent vector also serves temperature differences, which take only K.
 var (
-	Dimensionless  = Dim{0, 0, 0, 0, 0}
-	Mass           = Dim{1, 0, 0, 0, 0}
-	Length         = Dim{0, 1, 0, 0, 0}
-	Time           = Dim{0, 0, 1, 0, 0}
-	Current        = Dim{0, 0, 0, 1, 0}
-	Temperature    = Dim{0, 0, 0, 0, 1}
-	Area           = Dim{0, 2, 0, 0, 0}
-	Velocity       = Dim{0, 1, -1, 0, 0}
-	Force          = Dim{1, 1, -2, 0, 0}
-	ForcePerLength = Dim{1, 0, -2, 0, 0}  // spring rate, N/m
-	Damping        = Dim{1, 0, -1, 0, 0}  // N·s/m
-	Pressure       = Dim{1, -1, -2, 0, 0} // Pa
-	Energy         = Dim{1, 2, -2, 0, 0}  // J
-	Power          = Dim{1, 2, -3, 0, 0}  // W
-	Voltage        = Dim{1, 2, -3, -1, 0} // V
-	Resistance     = Dim{1, 2, -3, -2, 0} // Ω
-	Inductance     = Dim{1, 2, -2, -2, 0} // H
-	Capacitance    = Dim{-1, -2, 4, 2, 0} // F
-	FluxLinkage    = Dim{1, 2, -2, -1, 0} // Wb
-	PerKelvin      = Dim{0, 0, 0, 0, -1}  // 1/K
-	FluxDensity    = Dim{1, 0, -2, -1, 0} // T
-	FieldStrength  = Dim{0, -1, 0, 1, 0}  // A/m
-	Frequency      = Dim{0, 0, -1, 0, 0}  // Hz
+	Dimensionless     = Dim{0, 0, 0, 0, 0}
+	Mass              = Dim{1, 0, 0, 0, 0}
+	Length            = Dim{0, 1, 0, 0, 0}
+	Time              = Dim{0, 0, 1, 0, 0}
+	Current           = Dim{0, 0, 0, 1, 0}
+	Temperature       = Dim{0, 0, 0, 0, 1}
+	Area              = Dim{0, 2, 0, 0, 0}
+	Velocity          = Dim{0, 1, -1, 0, 0}
+	Force             = Dim{1, 1, -2, 0, 0}
+	ForcePerLength    = Dim{1, 0, -2, 0, 0}  // spring rate, N/m
+	Damping           = Dim{1, 0, -1, 0, 0}  // N·s/m
+	Pressure          = Dim{1, -1, -2, 0, 0} // Pa
+	Energy            = Dim{1, 2, -2, 0, 0}  // J
+	Power             = Dim{1, 2, -3, 0, 0}  // W
+	Voltage           = Dim{1, 2, -3, -1, 0} // V
+	Resistance        = Dim{1, 2, -3, -2, 0} // Ω
+	Inductance        = Dim{1, 2, -2, -2, 0} // H
+	Capacitance       = Dim{-1, -2, 4, 2, 0} // F
+	FluxLinkage       = Dim{1, 2, -2, -1, 0} // Wb
+	PerKelvin         = Dim{0, 0, 0, 0, -1}  // 1/K
+	FluxDensity       = Dim{1, 0, -2, -1, 0} // T
+	FieldStrength     = Dim{0, -1, 0, 1, 0}  // A/m
+	Frequency         = Dim{0, 0, -1, 0, 0}  // Hz
+	HeatCapacity      = Dim{1, 2, -2, 0, -1} // J/K
+	ThermalResistance = Dim{-1, -2, 3, 0, 1} // K/W
+	HeatTransfer      = Dim{1, 0, -3, 0, -1} // W/(m²·K)
 )
 
 type dimInfo struct {
@@ -68,29 +71,32 @@ type dimInfo struct {
 }
 
 var dimInfos = map[Dim]dimInfo{
-	Dimensionless:  {"a plain number", "0.3"},
-	Mass:           {"a mass", "6 g"},
-	Length:         {"a length", "1.2 mm"},
-	Time:           {"a time", "200 ms"},
-	Current:        {"a current", "2 A"},
-	Temperature:    {"a temperature", "20 degC"},
-	Area:           {"an area", "1.5 mm2"},
-	Velocity:       {"a velocity", "0.05 m/s"},
-	Force:          {"a force", "2 N"},
-	ForcePerLength: {"a spring rate (force per length)", "0.8 N/mm"},
-	Damping:        {"a damping coefficient (force per velocity)", "0.5 N*s/m"},
-	Pressure:       {"a pressure", "3 bar"},
-	Energy:         {"an energy", "50 mJ"},
-	Power:          {"a power", "10 W"},
-	Voltage:        {"a voltage", "24 V"},
-	Resistance:     {"a resistance", "48 ohm"},
-	Inductance:     {"an inductance", "250 mH"},
-	Capacitance:    {"a capacitance", "100 nF"},
-	FluxLinkage:    {"a flux linkage", "12 mWb"},
-	PerKelvin:      {"a temperature coefficient (per kelvin)", "0.00393 /K"},
-	FluxDensity:    {"a flux density", "1.8 T"},
-	FieldStrength:  {"a magnetic field strength", "400 A/m"},
-	Frequency:      {"a frequency", "20 kHz"},
+	Dimensionless:     {"a plain number", "0.3"},
+	Mass:              {"a mass", "6 g"},
+	Length:            {"a length", "1.2 mm"},
+	Time:              {"a time", "200 ms"},
+	Current:           {"a current", "2 A"},
+	Temperature:       {"a temperature", "20 degC"},
+	Area:              {"an area", "1.5 mm2"},
+	Velocity:          {"a velocity", "0.05 m/s"},
+	Force:             {"a force", "2 N"},
+	ForcePerLength:    {"a spring rate (force per length)", "0.8 N/mm"},
+	Damping:           {"a damping coefficient (force per velocity)", "0.5 N*s/m"},
+	Pressure:          {"a pressure", "3 bar"},
+	Energy:            {"an energy", "50 mJ"},
+	Power:             {"a power", "10 W"},
+	Voltage:           {"a voltage", "24 V"},
+	Resistance:        {"a resistance", "48 ohm"},
+	Inductance:        {"an inductance", "250 mH"},
+	Capacitance:       {"a capacitance", "100 nF"},
+	FluxLinkage:       {"a flux linkage", "12 mWb"},
+	PerKelvin:         {"a temperature coefficient (per kelvin)", "0.00393 /K"},
+	FluxDensity:       {"a flux density", "1.8 T"},
+	FieldStrength:     {"a magnetic field strength", "400 A/m"},
+	Frequency:         {"a frequency", "20 kHz"},
+	HeatCapacity:      {"a heat capacity", "150 J/K"},
+	ThermalResistance: {"a thermal resistance", "4 K/W"},
+	HeatTransfer:      {"a heat-transfer coefficient", "12 W*m^-2*K^-1"},
 }
 
 var baseSymbols = [5]string{"kg", "m", "s", "A", "K"}

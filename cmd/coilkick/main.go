@@ -94,6 +94,15 @@ func run(stdout, stderr io.Writer, args []string) int {
 				Action: func(c *cli.Context) error { return cmdMagnet(c, stdout) },
 			},
 			{
+				Name:      "heat",
+				Usage:     "duty-cycle heating study: winding temperature, insulation class, hot-coil pull-in",
+				ArgsUsage: "SCENARIO.yaml",
+				Flags: []cli.Flag{
+					&cli.StringFlag{Name: "csv", Usage: "write the temperature history (peak and valley per cycle) to `FILE`"},
+				},
+				Action: func(c *cli.Context) error { return cmdHeat(c, stdout) },
+			},
+			{
 				Name:      "check",
 				Usage:     "validate a scenario file without simulating",
 				ArgsUsage: "SCENARIO.yaml",

@@ -1,0 +1,355 @@
+package coilkick
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"sort"
+)
+
+// DutyPattern is an intermittent operation: the coil is energized for
+// OnTime at the start of every Period.
+type DutyPattern struct {
+	OnTime, Period float64 // s
+	// Duration (s) of the study; 0: until the periodic steady state.
+	Duration float64
+}
+
+// RelativeOnTime is the duty as solenoid standards state it (ED %), as a
+// fraction: OnTime / Period.
+func (d DutyPattern) RelativeOnTime() float64 { return d.OnTime / d.Period }
+
+// HeatPoint is one cycle of the temperature history.
+type HeatPoint struct {
+	Time         float64 // s, at the end of the cycle
+	Peak, Valley float64 // K, winding temperature at the end of the on-time and of the cycle
+}
+
+// HeatResult is a duty-cycle heating study.
+type HeatResult struct {
+	Pattern DutyPattern
+	Ambient float64 // K
+	// Winding temperature over the last cycle (K): the periodic steady
+	// state when Steady, else at the end of Duration.
+	Peak, Valley, Mean float64
+	Ripple             float64 // K, Peak − Valley
+	Steady             bool
+	Cycles             int
+	SteadyAfter        float64 // s, time at which the peak settled within SteadyTol
+	History            []HeatPoint
+	// HotResistance (ohm) at the peak temperature.
+	HotResistance float64
+	// Pull-in with the coil at the peak temperature, at the nominal and
+	// at the lowest supply in tolerance (LowSupply; not Happened when no
+	// low supply is given or it does not pull in).
+	HotPullIn, HotPullInLow Interval
+	LowSupply               float64 // V
+	// LowestPullInSupply (V): the lowest supply that still pulls in with the
+	// coil hot (bisection on full simulations, to 0.05 %); 0 when even the
+	// nominal supply does not.
+	LowestPullInSupply float64
+	// Insulation class (IEC 60085) and its limit (K); Limit 0 when none given.
+	Class string
+	Limit float64
+	// HeldOn: held on continuously from ambient, the time to reach the
+	// class limit (not Happened: it never does) and the final temperature.
+	HeldToLimit       Interval
+	HeldSteady        float64 // K, steady winding temperature when held on
+	MaxRelativeOnTime float64 // largest OnTime/Period that keeps the peak within the class limit (1 when always)
+	Simulations       int     // electrical simulations used
+}
+
+// Heat study settings.
+const (
+	SteadyTol     = 0.01 // K: the periodic steady state is reached when a cycle's peak moves less than this
+	heatGrid      = 5.0  // K: the electrical cycle is re-simulated on this temperature grid
+	maxHeatCycles = 2e6  // safety bound on the cycle loop
+	historyPoints = 2000 // at most this many history points are kept
+	dutyTol       = 1e-4 // bisection tolerance on the relative on-time
+	supplyTol     = 5e-4 // relative bisection tolerance on the supply voltage
+)
+
+// cycleLoss is the electrical cycle at one winding temperature.
+type cycleLoss struct {
+	temp   float64 // K
+	energy float64 // J dissipated in the coil (copper and eddy) over one cycle
+	hold   float64 // W, coil loss at the end of the on-time (held on)
+}
+
+// heatModel holds the cached electrical cycles of a study.
+type heatModel struct {
+	md     *Model
+	pat    DutyPattern
+	onRef  float64 // on-time the cycles were simulated with
+	cache  []cycleLoss
+	sims   int
+	simErr error
+}
+
+// loss returns the cycle at temperature t, interpolating between cycles
+// simulated on a heatGrid-kelvin grid (simulating the missing ones).
+func (h *heatModel) loss(t float64) cycleLoss {
+	lo := math.Floor(t/heatGrid) * heatGrid
+	a, b := h.at(lo), h.at(lo+heatGrid)
+	w := (t - lo) / heatGrid
+	return cycleLoss{temp: t, energy: a.energy + w*(b.energy-a.energy), hold: a.hold + w*(b.hold-a.hold)}
+}
+
+func (h *heatModel) at(t float64) cycleLoss {
+	k := sort.Search(len(h.cache), func(i int) bool { return h.cache[i].temp >= t })
+	if k < len(h.cache) && h.cache[k].temp == t {
+		return h.cache[k]
+	}
+	c := h.simulate(t)
+	h.cache = append(h.cache, cycleLoss{})
+	copy(h.cache[k+1:], h.cache[k:])
+	h.cache[k] = c
+	return c
+}
+
+// simulate runs one electrical cycle with the winding fixed at t: energize
+// at 0, de-energize at the on-time, end after the release has settled.
+func (h *heatModel) simulate(t float64) cycleLoss {
+	h.sims++
+	md := h.md
+	settle := math.Min(h.pat.Period-h.onRef, md.Timing.End-md.Timing.DeenergizeAt)
+	res, err := Simulate(md, &Options{NoTrace: true, FixedTemperature: t, Energize: 0, Deenergize: h.onRef, End: h.onRef + settle})
+	if err != nil {
+		h.simErr = err
+		return cycleLoss{temp: t}
+	}
+	m := res.Metrics
+	hold := m.Hold.CoilPower
+	if !m.Hold.Measured {
+		hold = (m.CoilLoss + m.EddyLoss) / h.onRef
+	}
+	return cycleLoss{temp: t, energy: m.CoilLoss + m.EddyLoss, hold: hold}
+}
+
+// energyAt returns the cycle energy at temperature t for on-time on: the
+// simulated cycle, lengthened or shortened in its settled hold (the hold
+// power times the difference in on-time).
+func (h *heatModel) energyAt(t, on float64) float64 {
+	c := h.loss(t)
+	return math.Max(c.energy+c.hold*(on-h.onRef), 0)
+}
+
+// Heat runs the duty-cycle study of the two-time-scale method: the
+// electrical cycle is simulated at a few winding temperatures (re-simulated
+// as the resistance rises, on a 5 K grid, interpolated between), its loss is
+// applied as a constant power over the on-time, and the thermal network is
+// stepped cycle by cycle with its exact solution (Thermal.Advance) until the
+// periodic steady state or the end of the study.
+func Heat(md *Model, pat DutyPattern) (*HeatResult, error) {
+	if md.Thermal == nil {
+		return nil, errors.New("coilkick: a heat study needs a thermal section in the scenario")
+	}
+	if !(pat.OnTime > 0 && pat.Period > pat.OnTime) {
+		return nil, fmt.Errorf("coilkick: duty pattern needs 0 < on time < period, got %g s of %g s", pat.OnTime, pat.Period)
+	}
+	hm := &heatModel{md: md, pat: pat, onRef: pat.OnTime}
+	res := &HeatResult{Pattern: pat, Ambient: md.Ambient, Class: md.InsulationClass, Limit: md.InsulationLimit}
+
+	cr := hm.run(pat.OnTime, pat.Duration, true)
+	if hm.simErr != nil {
+		return nil, hm.simErr
+	}
+	peak := cr.peak
+	res.Peak, res.Valley, res.Mean, res.Steady, res.Cycles, res.SteadyAfter, res.History = cr.peak, cr.valley, cr.mean, cr.steady, cr.cycles, cr.steadyAt, cr.hist
+	res.Ripple = cr.peak - cr.valley
+	res.HotResistance = md.Coil.ResistanceAt(peak)
+
+	// Held on continuously.
+	res.HeldToLimit, res.HeldSteady = hm.heldOn()
+
+	// Largest relative on-time within the class limit.
+	if res.Limit > 0 {
+		res.MaxRelativeOnTime = hm.maxDuty()
+	}
+
+	// Hot-coil checks.
+	hot := &Options{NoTrace: true, FixedTemperature: peak}
+	r, err := Simulate(md, hot)
+	if err != nil {
+		return nil, err
+	}
+	res.HotPullIn = r.Metrics.PullIn
+	res.LowSupply = md.LowSupply
+	if md.LowSupply > 0 {
+		lo := *hot
+		lo.SupplyVoltage = md.LowSupply
+		r, err := Simulate(md, &lo)
+		if err != nil {
+			return nil, err
+		}
+		res.HotPullInLow = r.Metrics.PullIn
+	}
+	v, err := lowestPullIn(md, peak)
+	if err != nil {
+		return nil, err
+	}
+	res.LowestPullInSupply = v
+	res.Simulations = hm.sims
+	if hm.simErr != nil {
+		return nil, hm.simErr
+	}
+	return res, nil
+}
+
+// cycleRun is the outcome of stepping the thermal network.
+type cycleRun struct {
+	peak, valley, mean float64 // K, last cycle
+	steady             bool
+	cycles             int
+	steadyAt           float64 // s
+	hist               []HeatPoint
+}
+
+// run steps the thermal network cycle by cycle at on-time on, for duration
+// (0: until the periodic steady state).
+func (h *heatModel) run(on, duration float64, keep bool) cycleRun {
+	th, ta := h.md.Thermal, h.md.Ambient
+	off := h.pat.Period - on
+	tw, thh := ta, ta
+	maxCycles := int(maxHeatCycles)
+	if duration > 0 {
+		maxCycles = int(math.Ceil(duration / h.pat.Period))
+	}
+	stride := 1
+	if keep && maxCycles < int(maxHeatCycles) && maxCycles > historyPoints {
+		stride = maxCycles/historyPoints + 1
+	}
+	var out cycleRun
+	var peaks []float64
+	var startW, startH float64
+	for c := 1; c <= maxCycles; c++ {
+		startW, startH = tw, thh
+		p := h.energyAt(tw, on) / on
+		tw, thh = th.Advance(tw, thh, p, ta, on)
+		peak := tw
+		tw, thh = th.Advance(tw, thh, 0, ta, off)
+		out.peak, out.valley, out.cycles = peak, tw, c
+		peaks = append(peaks, peak)
+		if keep && (c%stride == 0 || c == 1) {
+			out.hist = append(out.hist, HeatPoint{Time: float64(c) * h.pat.Period, Peak: peak, Valley: tw})
+		}
+		// Settled far below the reporting tolerance: the periodic steady state.
+		if n := len(peaks); n > 1 && math.Abs(peaks[n-1]-peaks[n-2]) < SteadyTol*1e-3 {
+			out.steady = true
+			if duration == 0 {
+				break
+			}
+		}
+		if h.simErr != nil {
+			break
+		}
+	}
+	// When the peaks came within SteadyTol of the final one for good.
+	k := len(peaks)
+	for k > 0 && math.Abs(peaks[k-1]-out.peak) < SteadyTol {
+		k--
+	}
+	out.steadyAt = float64(k+1) * h.pat.Period
+	// Time-mean winding temperature over the last cycle, by the exact
+	// solution on sub-intervals (the power is piecewise constant).
+	const n = 100
+	tw, thh = startW, startH
+	p := h.energyAt(startW, on) / on
+	sum := 0.0
+	for _, seg := range [2]struct{ p, d float64 }{{p, on}, {0, off}} {
+		for j := 0; j < n; j++ {
+			tw2, th2 := th.Advance(tw, thh, seg.p, ta, seg.d/n)
+			sum += 0.5 * (tw + tw2) * seg.d / n
+			tw, thh = tw2, th2
+		}
+	}
+	out.mean = sum / h.pat.Period
+	return out
+}
+
+// heldOn integrates the network from ambient with the coil held on (its
+// hold power at the present temperature) until the class limit or the
+// steady state.
+func (h *heatModel) heldOn() (Interval, float64) {
+	th, ta := h.md.Thermal, h.md.Ambient
+	slow, fast := th.TimeConstants()
+	dt := slow / 200
+	if fast > 0 {
+		dt = math.Min(dt, fast/200)
+	}
+	tw, thh := ta, ta
+	limit := h.md.InsulationLimit
+	var reached Interval
+	for k := 0; k < 400000; k++ {
+		p := h.loss(tw).hold
+		tw2, th2 := th.Advance(tw, thh, p, ta, dt)
+		if limit > 0 && !reached.Happened && tw2 >= limit && tw < limit {
+			// linear interpolation inside the step
+			reached = Interval{true, (float64(k) + (limit-tw)/(tw2-tw)) * dt}
+		}
+		if math.Abs(tw2-tw) < 1e-7 && math.Abs(th2-thh) < 1e-7 {
+			return reached, tw2
+		}
+		tw, thh = tw2, th2
+		if h.simErr != nil || tw > 1200 {
+			break // far beyond any insulation class: thermal runaway
+		}
+	}
+	return reached, tw
+}
+
+// maxDuty finds the largest relative on-time whose periodic peak stays
+// within the class limit, by bisection on the shortcut.
+func (h *heatModel) maxDuty() float64 {
+	limit := h.md.InsulationLimit
+	peakAt := func(d float64) float64 { return h.run(d*h.pat.Period, 0, false).peak }
+	if peakAt(0.999) <= limit {
+		return 1
+	}
+	lo, hi := 0.0, 0.999
+	for hi-lo > dutyTol {
+		mid := 0.5 * (lo + hi)
+		if peakAt(mid) <= limit {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	return lo
+}
+
+// lowestPullIn finds the lowest supply voltage at which the plunger still
+// pulls in with the winding at temperature t, by bisection.
+func lowestPullIn(md *Model, t float64) (float64, error) {
+	pulls := func(v float64) (bool, error) {
+		r, err := Simulate(md, &Options{NoTrace: true, FixedTemperature: t, SupplyVoltage: v})
+		if err != nil {
+			return false, err
+		}
+		return r.Metrics.PullIn.Happened, nil
+	}
+	hi := md.Drive.Supply.Voltage
+	ok, err := pulls(hi)
+	if err != nil || !ok {
+		return 0, err
+	}
+	lo := 0.0
+	for (hi-lo)/hi > supplyTol {
+		mid := 0.5 * (lo + hi)
+		if mid <= 0 {
+			break
+		}
+		ok, err := pulls(mid)
+		if err != nil {
+			// a supply too low for the drive (below a clamp, say) does not pull in
+			lo = mid
+			continue
+		}
+		if ok {
+			hi = mid
+		} else {
+			lo = mid
+		}
+	}
+	return hi, nil
+}

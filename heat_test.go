@@ -1,0 +1,176 @@
+package coilkick
+
+import (
+	"math"
+	"testing"
+
+	"coilkick/circuit"
+	"coilkick/magnet"
+)
+
+// thermalFixed is fixedModel with a one-node thermal network of the given
+// resistance (K/W) and time constant (s), at ambient ta (K).
+func thermalFixed(t *testing.T, v0, r, l, rth, tau, ta float64) *Model {
+	md := fixedModel(t, v0, r, l, circuit.Suppressor{Kind: circuit.Freewheel, Voltage: 0.7})
+	th, err := magnet.FromRating(rth, 1, tau)
+	if err != nil {
+		t.Fatal(err)
+	}
+	md.Thermal, md.Ambient, md.Temperature = &th, ta, ta
+	md.Coil.RefTemperature = ta // R = r at the ambient
+	return md
+}
+
+func TestConstantVoltageSelfLimiting(t *testing.T) {
+	t.Parallel()
+	const v0, r, l, rth, tau, ta = 24.0, 24.0, 0.05, 20.0, 0.5, 293.15
+	md := thermalFixed(t, v0, r, l, rth, tau, ta)
+	md.Timing = TimingSpec{EnergizeAt: 0, DeenergizeAt: 20 * tau, End: 20*tau + 1e-7}
+	res, err := Simulate(md, &Options{NoTrace: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	// source: steady state of C dT/dt = V²/(R0(1 + αθ)) − θ/Rth, θ = T − Ta
+	// (lumped thermal node, Newton's cooling; copper R(T), IEC 60028):
+	// αθ² + θ − Rth·V²/R0 = 0, θ = (−1 + √(1 + 4α·Rth·V²/R0))/(2α).
+	a := md.Coil.TempCoeff
+	theta := (-1 + math.Sqrt(1+4*a*rth*v0*v0/r)) / (2 * a)
+	got := res.Metrics.Hold.MaxCurrent
+	wantI := v0 / (r * (1 + a*theta))
+	if e := math.Abs(res.Metrics.FinalWindingTemperature-(ta+theta)) - 0; e > 1e-3 {
+		t.Errorf("constant voltage: final winding %.6f K, want %.6f K", res.Metrics.FinalWindingTemperature, ta+theta)
+	}
+	if e := math.Abs(res.Metrics.CurrentAtTurnOff-wantI) / wantI; e > 1e-5 {
+		t.Errorf("constant voltage: current %.9g A, want %.9g A (hot coil)", res.Metrics.CurrentAtTurnOff, wantI)
+	}
+	// Self-limiting: the power at the end is below the cold power V²/R0.
+	if pEnd := v0 * res.Metrics.CurrentAtTurnOff; !(pEnd < v0*v0/r) || got > v0/r {
+		t.Errorf("constant voltage should draw less power hot: %g W vs %g W cold", pEnd, v0*v0/r)
+	}
+}
+
+func TestConstantCurrentNotSelfLimiting(t *testing.T) {
+	t.Parallel()
+	const v0, r, l, rth, tau, ta = 48.0, 24.0, 0.05, 5.0, 0.1, 293.15
+	const ih = 0.8 // regulated with a 20 mA band: R·mean(i²) exceeds R·I² by band²/12, 5e-5 relative
+	md := thermalFixed(t, v0, r, l, rth, tau, ta)
+	md.Control = circuit.Control{Mode: circuit.PeakHold, PeakCurrent: ih, PeakTime: 1e-3, HoldCurrent: ih,
+		Regulation: circuit.Hysteresis, Band: 0.02}
+	md.Drive.Recirc = circuit.Recirculation{Drop: 0.7}
+	md.Timing = TimingSpec{EnergizeAt: 0, DeenergizeAt: 20 * tau, End: 20*tau + 1e-7}
+	res, err := Simulate(md, &Options{NoTrace: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	// source: steady state of C dT/dt = I²R0(1 + αθ) − θ/Rth (same model):
+	// θ = Rth·I²R0/(1 − α·Rth·I²R0), finite only while α·Rth·I²R0 < 1
+	// (beyond, thermal runaway). The regulated current is the band's mean.
+	a := md.Coil.TempCoeff
+	k := rth * ih * ih * r
+	theta := k / (1 - a*k)
+	if e := math.Abs(res.Metrics.FinalWindingTemperature - (ta + theta)); e > 0.05 {
+		t.Errorf("constant current: final winding %.4f K, want %.4f K", res.Metrics.FinalWindingTemperature, ta+theta)
+	}
+	// Not self-limiting: the coil loss rises with temperature.
+	if p := res.Metrics.Hold.CoilPower; !(p > ih*ih*r) {
+		t.Errorf("constant current: hot coil power %g W, want above the cold %g W", p, ih*ih*r)
+	}
+}
+
+func TestHeatShortcutMatchesBruteForce(t *testing.T) {
+	t.Parallel()
+	md, err := LoadModel("scenarios/door-strike-duty.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	// A short case: a fast thermal node (τ = 30 s) and 40 cycles of 2 s.
+	th, err := magnet.FromRating(80, 10, 30)
+	if err != nil {
+		t.Fatal(err)
+	}
+	md.Thermal = &th
+	pat := DutyPattern{OnTime: 0.6, Period: 2, Duration: 80}
+	short, err := Heat(md, pat)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// Brute force: every cycle simulated in full with the thermal state in
+	// the coupled equations (resistance following the temperature within
+	// each cycle), chained cycle to cycle.
+	tw, thh := md.Ambient, md.Ambient
+	var peak float64
+	for c := 0; c < 40; c++ {
+		res, err := Simulate(md, &Options{NoTrace: true, WindingTemperature: tw, HousingTemperature: thh,
+			Energize: 0, Deenergize: pat.OnTime, End: pat.Period})
+		if err != nil {
+			t.Fatal(err)
+		}
+		// peak: the winding at the de-energize command, from a second run
+		// ending there (the release transient is short)
+		on, err := Simulate(md, &Options{NoTrace: true, WindingTemperature: tw, HousingTemperature: thh,
+			Energize: 0, Deenergize: pat.OnTime * (1 - 1e-9), End: pat.OnTime})
+		if err != nil {
+			t.Fatal(err)
+		}
+		peak = on.Metrics.FinalWindingTemperature
+		tw, thh = res.Metrics.FinalWindingTemperature, res.Metrics.FinalHousingTemperature
+	}
+	// The design's bar: the shortcut within 0.5 K of brute force.
+	if d := math.Abs(short.Peak - peak); d > 0.5 {
+		t.Errorf("shortcut peak %.3f K, brute force %.3f K (diff %.3f K)", short.Peak, peak, d)
+	}
+	if d := math.Abs(short.Valley - tw); d > 0.5 {
+		t.Errorf("shortcut valley %.3f K, brute force %.3f K (diff %.3f K)", short.Valley, tw, d)
+	}
+	t.Logf("after 40 cycles: peak %.4f vs %.4f K, valley %.4f vs %.4f K", short.Peak, peak, short.Valley, tw)
+}
+
+func TestHeatDemo(t *testing.T) {
+	t.Parallel()
+	md, err := LoadModel("scenarios/door-strike-duty.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := Heat(md, DutyPattern{OnTime: 1.25, Period: 5})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !res.Steady || !(res.Peak < res.Limit) || !res.HeldToLimit.Happened {
+		t.Errorf("demo: steady %v, peak %.1f K vs limit %.1f K, held to limit %+v", res.Steady, res.Peak, res.Limit, res.HeldToLimit)
+	}
+	// The largest allowed duty puts the periodic peak on the class limit.
+	if !(res.MaxRelativeOnTime > 0.25 && res.MaxRelativeOnTime < 1) {
+		t.Fatalf("max relative on-time %g", res.MaxRelativeOnTime)
+	}
+	at, err := Heat(md, DutyPattern{OnTime: res.MaxRelativeOnTime * 5, Period: 5})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if d := math.Abs(at.Peak - res.Limit); d > 0.5 {
+		t.Errorf("at the largest duty the peak is %.2f K, the limit %.2f K", at.Peak, res.Limit)
+	}
+	// source: resistance method (IEEE Std 112/119, k = 234.5 for copper):
+	// the hot resistance read back gives the model's temperature.
+	back := magnet.ResistanceMethodTemperature(md.Coil.ResistanceAt(md.Ambient), md.Ambient, res.HotResistance)
+	if d := math.Abs(back - res.Peak); d > 0.05 {
+		t.Errorf("resistance method gives %.3f K for a model peak of %.3f K", back, res.Peak)
+	}
+	// Hot and at the low supply it still pulls in; the lowest supply that
+	// does is below the low supply.
+	if !res.HotPullInLow.Happened || !(res.LowestPullInSupply < md.LowSupply) {
+		t.Errorf("hot pull-in at low supply %+v, lowest supply %g V", res.HotPullInLow, res.LowestPullInSupply)
+	}
+}
+
+// An 8-hour duty-cycle study at one operation every 5 s: target under 1 s.
+func BenchmarkHeat8h(b *testing.B) {
+	md, err := LoadModel("scenarios/door-strike-duty.yaml")
+	if err != nil {
+		b.Fatal(err)
+	}
+	for b.Loop() {
+		if _, err := Heat(md, DutyPattern{OnTime: 1.25, Period: 5, Duration: 8 * 3600}); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
