@@ -215,7 +215,7 @@ func (d *Drive) SolveRail(m Mode, v0, rs, iL, vC, vS float64, pt *Point) {
 		}
 		isw := iL + ip
 		pt.CoilVoltage = vcoil
-		pt.SwitchVoltage = ron * isw
+		pt.SwitchVoltage = d.Switch.OnResistance * isw // the low-side switch's node (one switch of a bridge)
 		pt.SupplyCurrent = isw
 		pt.SwitchCurrent = isw
 		pt.PSwitch = ron * isw * isw
@@ -258,11 +258,18 @@ func (d *Drive) SolveRail(m Mode, v0, rs, iL, vC, vS float64, pt *Point) {
 		pt.PClamp = vcl * a
 	case Recirc:
 		// The slow-decay path across the coil, written for the conducting
-		// direction (continued analytically past zero).
-		vd := d.Recirc.Drop + d.Recirc.Resistance*iL
+		// direction (continued analytically past zero). A snubber across the
+		// coil shares the loop: the diode carries iL + ip, and
+		// ip = (−Vd − Rd·iL − vS)/(Rsn + Rd) from KVL round coil and snubber.
+		rd := d.Recirc.Resistance
+		if snub {
+			ip = (-d.Recirc.Drop - rd*iL - vS) / (sup.Resistance + rd)
+		}
+		id := iL + ip
+		vd := d.Recirc.Drop + rd*id
 		pt.CoilVoltage = -vd
 		pt.SwitchVoltage = v0 + vd
-		pt.PDiode = vd * iL
+		pt.PDiode = vd * id
 	case BridgeReturn, BridgeReturnRev:
 		// Two bridge diodes in series return the coil current to the rail:
 		// v_coil = −(v_rail + 2·(Vd + Rd·i)) with v_rail = v0 + rs·i.
@@ -271,7 +278,9 @@ func (d *Drive) SolveRail(m Mode, v0, rs, iL, vC, vS float64, pt *Point) {
 			a = -iL
 		}
 		vd := sup.Voltage + sup.Resistance*a
-		is := -iL
+		// The diodes return the coil current to the source in either
+		// direction: the source current is −|iL|.
+		is := -a
 		vrail := v0 - rs*is
 		pt.SupplyCurrent = is
 		if m == BridgeReturn {

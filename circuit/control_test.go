@@ -133,10 +133,6 @@ func newModeDrives() []driveCase {
 	return out
 }
 
-// bugReturnRev describes the BridgeReturnRev supply-current bug (see the
-// report in TestSolveBridgeReturnRevSupply).
-const bugReturnRev = "known bug: SolveRail(BridgeReturnRev) takes SupplyCurrent = −iL = +|iL| (the source delivering) instead of iL = −|iL| (the diodes return the current to the source), so PSupply has the wrong sign and v_rail = v0 − rs·|iL| instead of v0 + rs·|iL|"
-
 // TestSolveNewModesPowerBalance checks the power balance in Recirc,
 // BridgeReturn, BridgeReturnRev, BridgeReverse (and On with a bridge), with
 // Solve and with SolveRail at source voltages other than Supply.Voltage.
@@ -147,7 +143,6 @@ func TestSolveNewModesPowerBalance(t *testing.T) {
 			t.Run(dc.name+"/"+mc.m.String(), func(t *testing.T) {
 				t.Parallel()
 				if mc.m == BridgeReturnRev {
-					t.Skip(bugReturnRev)
 				}
 				d := dc.d
 				if err := d.Validate(); err != nil {
@@ -246,7 +241,6 @@ func TestSolveBridgeReturnRevSupply(t *testing.T) {
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			t.Parallel()
-			t.Skip(bugReturnRev)
 			d := makeDriveRC(tt.rs, refRon, refC0, bridgeSup())
 			var pt Point
 			d.Solve(BridgeReturnRev, tt.iL, 0, 0, &pt)
@@ -313,7 +307,6 @@ func TestSolveNewModesKirchhoff(t *testing.T) {
 			t.Run(dc.name+"/"+mc.m.String(), func(t *testing.T) {
 				t.Parallel()
 				if mc.m == BridgeReturnRev {
-					t.Skip(bugReturnRev)
 				}
 				d := dc.d
 				ron := d.Switch.OnResistance
@@ -339,8 +332,11 @@ func TestSolveNewModesKirchhoff(t *testing.T) {
 							// circulates in the path across the coil.
 							wantIs, lumped = 0, true
 						case On:
-							// source: KCL: the coil current comes from the source.
-							wantIs, lumped = iL, true
+							// source: KCL: the coil current comes from the source
+							// through the upper switch of leg A and returns through
+							// the lower switch of leg B (Ohm's law, Ron each).
+							wantIs = iL
+							vA, vB = vrail-ron*iL, ron*iL
 						case BridgeReturn:
 							// source: KCL: the coil current returns to the source
 							// through the upper diode of leg B; node A is fed from
@@ -408,7 +404,6 @@ func TestSolveNewModesKirchhoff(t *testing.T) {
 // voltage after an On → Off change), but the meaning changes with the mode.
 func TestSolveBridgeOnSwitchNode(t *testing.T) {
 	t.Parallel()
-	t.Skip("known bug: SolveRail(On) with a Bridge reports SwitchVoltage = 2·Ron·i (both bridge switches) instead of node B = Ron·i, unlike the other bridge modes")
 	d := makeDriveRC(refRs, refRon, refC0, bridgeSup())
 	var pt Point
 	d.Solve(On, refIL, 0, 0, &pt)
@@ -432,7 +427,6 @@ func TestSolveBridgeOnSwitchNode(t *testing.T) {
 // snubber capacitor's voltage across every recirculation interval.
 func TestSolveRecircSnubber(t *testing.T) {
 	t.Parallel()
-	t.Skip("known bug: SolveRail(Recirc) with a Snubber leaves the snubber current at 0 although the snubber sits across the pinned coil voltage")
 	sup := Suppressor{Kind: Snubber, Resistance: refRsn, Capacitance: refCsn}
 	d := makeDriveRC(refRs, refRon, refCoss, sup)
 	var pt Point
@@ -1228,8 +1222,7 @@ func TestControlValidate(t *testing.T) {
 		// Guards treats it as peak cut-off while on but gives no guard while
 		// off: the switch turns off at the first peak and never turns on
 		// again (the coil drops out silently).
-		{"bad/peakhold unknown regulation", ph(func(c *Control) { c.Regulation = Regulation(2) }), rc, true,
-			"known bug: Control.Validate accepts an undefined Regulation (e.g. 2); the controller then cuts off at the first peak and never turns on again"},
+		{"bad/peakhold unknown regulation", ph(func(c *Control) { c.Regulation = Regulation(2) }), rc, true, ""},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {

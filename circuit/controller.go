@@ -78,6 +78,8 @@ func (c *Control) Validate(d *Drive) error {
 			return errors.New("circuit: peak and hold needs a peak current, a peak time and a hold current")
 		case c.HoldCurrent > c.PeakCurrent:
 			return errors.New("circuit: the hold current must not exceed the peak current")
+		case c.Regulation != Hysteresis && c.Regulation != FixedFrequency:
+			return fmt.Errorf("circuit: unknown regulation %d", int(c.Regulation))
 		case c.Regulation == Hysteresis && !(c.Band > 0 && c.Band < 2*c.HoldCurrent):
 			return errors.New("circuit: hysteresis needs a band > 0 and below twice the hold current")
 		case c.Regulation == FixedFrequency && !(c.Frequency > 0):
