@@ -542,3 +542,36 @@ func TestLoadDriveErrors(t *testing.T) {
 		}
 	}
 }
+
+func TestLoadThermalErrors(t *testing.T) {
+	t.Parallel()
+	good, err := os.ReadFile(filepath.Join("scenarios", "door-strike-duty.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := LoadModel(filepath.Join("scenarios", "door-strike-duty.yaml")); err != nil {
+		t.Fatal(err)
+	}
+	cases := []struct{ from, to, want string }{
+		{"  ambient: 40 degC\n", "", "thermal.ambient: missing"},
+		{"  temperature rise: 80 K ", "  temperature rise: 80 degC ", "written in K"},
+		{"  time constant: 12 min", "  time constant: 12 min\n  surface area: 40 mm2", "give exactly one of"},
+		{"  insulation class: F", "  insulation class: Q", "thermal.insulation class"},
+		{"  on time: 1.25 s", "  on time: 6 s", "duty.period"},
+		{"  low voltage: 21.6 V ", "  low voltage: 26 V ", "supply.low voltage"},
+		{"  at power: 10 W", "  at power: 10 V", "expected a power"},
+	}
+	for _, c := range cases {
+		text := strings.Replace(string(good), c.from, c.to, 1)
+		if text == string(good) {
+			t.Fatalf("edit %q did not apply", c.from)
+		}
+		s, err := Parse([]byte(text), "h.yaml")
+		if err == nil {
+			_, err = Build(s)
+		}
+		if err == nil || !strings.Contains(err.Error(), c.want) || !strings.Contains(err.Error(), "h.yaml:") {
+			t.Errorf("edit %q → %q: error %v, want one naming h.yaml and containing %q", c.from, c.to, err, c.want)
+		}
+	}
+}

@@ -21,8 +21,8 @@ func cmdHeat(c *cli.Context, w io.Writer) error {
 	if err != nil {
 		return err
 	}
-	if s.Duty == nil {
-		return fmt.Errorf("%s: a heat study needs a duty section (on time, period)", path)
+	if s.Thermal == nil || s.Duty == nil {
+		return fmt.Errorf("%s: a heat study needs a thermal section (ambient and the network) and a duty section (on time, period)", path)
 	}
 	pat := coilkick.DutyPattern{OnTime: s.Duty.OnTime, Period: s.Duty.Period, Duration: s.Duty.Duration}
 	res, err := coilkick.Heat(md, pat)

@@ -36,6 +36,9 @@ func TestRunExitCodes(t *testing.T) {
 		{"unknown command", []string{"fly"}, exitError, nil, nil},
 		{"magnet from geometry", []string{"magnet", "../../scenarios/dosing-valve-geometry.yaml", "--curves", filepath.Join(dir, "f.csv")}, exitOK,
 			[]string{"turns", "copper mass", "saturation onset, seated gap", "steel flux density"}, nil},
+		{"heat study", []string{"heat", "../../scenarios/door-strike-duty.yaml", "--csv", filepath.Join(dir, "h.csv")}, exitOK,
+			[]string{"periodic steady state", "insulation class F", "largest relative on-time", "pull-in, hot, low supply"}, nil},
+		{"heat without duty", []string{"heat", "../../scenarios/irrigation-valve.yaml"}, exitError, nil, []string{"thermal"}},
 		{"magnet bad currents", []string{"magnet", "../../scenarios/irrigation-valve.yaml", "--currents", "0.1,x"}, exitError, nil, []string{"--currents"}},
 	}
 	for _, c := range cases {
