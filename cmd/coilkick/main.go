@@ -33,7 +33,8 @@ const (
 var errFailing = errors.New("a rating or requirement fails")
 
 // valueFlags are the flags that take a value, for reordering arguments.
-var valueFlags = map[string]bool{"csv": true, "json": true, "tolerance": true, "curves": true, "currents": true}
+var valueFlags = map[string]bool{"csv": true, "json": true, "tolerance": true, "curves": true, "currents": true,
+	"plot": true, "o": true, "output": true, "vary": true, "seed": true, "samples": true, "workers": true}
 
 // permute moves flags written after positional arguments in front of them,
 // so that "coilkick run valve.yaml --csv out.csv" works: the flag parser
@@ -71,7 +72,7 @@ func run(stdout, stderr io.Writer, args []string) int {
 		ErrWriter: stderr,
 		// Exit codes are decided here, not by the library.
 		ExitErrHandler: func(*cli.Context, error) {},
-		Commands: []*cli.Command{
+		Commands: append([]*cli.Command{
 			{
 				Name:      "run",
 				Usage:     "simulate one actuation and print the figures, checks and safety notes",
@@ -80,6 +81,7 @@ func run(stdout, stderr io.Writer, args []string) int {
 					&cli.StringFlag{Name: "csv", Usage: "write the time series to `FILE`"},
 					&cli.StringFlag{Name: "json", Usage: "write the summary to `FILE` (- for standard output)"},
 					&cli.Float64Flag{Name: "tolerance", Usage: "relative tolerance of the integrator (default: scenario's, else 1e-8)"},
+					&cli.StringFlag{Name: "plot", Usage: "write the waveform plot to `FILE` (.png or .svg)"},
 				},
 				Action: func(c *cli.Context) error { return cmdRun(c, stdout) },
 			},
@@ -108,7 +110,7 @@ func run(stdout, stderr io.Writer, args []string) int {
 				ArgsUsage: "SCENARIO.yaml",
 				Action:    func(c *cli.Context) error { return cmdCheck(c, stdout) },
 			},
-		},
+		}, append(studyCommands(stdout), reportCommands(stdout)...)...),
 	}
 	err := app.Run(args)
 	switch {
@@ -170,6 +172,11 @@ func cmdRun(c *cli.Context, w io.Writer) error {
 	}
 	if f := c.String("json"); f != "" {
 		if err := writeFile(f, w, func(out io.Writer) error { return writeJSON(out, md, res, &as) }); err != nil {
+			return err
+		}
+	}
+	if f := c.String("plot"); f != "" {
+		if err := plotRun(f, path, md, res); err != nil {
 			return err
 		}
 	}
