@@ -570,13 +570,14 @@ func (l *scenarioLoader) exceed(big string, vBig float64, small string, vSmall f
 
 // Keys of each section.
 var (
-	topKeys     = []string{"name", "supply", "coil", "magnet", "plunger", "switch", "suppression", "drive", "timing", "thermal", "duty", "ratings", "solver"}
+	topKeys     = []string{"name", "supply", "coil", "magnet", "plunger", "switch", "suppression", "drive", "timing", "thermal", "duty", "tolerances", "ratings", "solver"}
 	supplyKeys  = []string{"voltage", "source resistance", "bulk capacitance", "low voltage"}
 	thermalKeys = []string{"ambient", "insulation class", "temperature rise", "at power", "time constant",
 		"surface area", "convection coefficient", "heat capacity",
 		"winding heat capacity", "winding to housing", "housing heat capacity", "housing to ambient"}
-	dutyKeys  = []string{"on time", "period", "duration"}
-	driveKeys = []string{"mode", "frequency", "duty", "peak current", "peak time", "hold current", "regulation", "band",
+	dutyKeys      = []string{"on time", "period", "duration"}
+	toleranceKeys = []string{"supply", "coil resistance", "spring", "load", "ambient", "hot winding"}
+	driveKeys     = []string{"mode", "frequency", "duty", "peak current", "peak time", "hold current", "regulation", "band",
 		"decay", "recirculation drop", "recirculation resistance", "boost voltage", "boost time"}
 	driveModes    = []string{DriveConstant, DrivePWM, DrivePeakHold, DriveBoostHold}
 	driveModeKeys = map[string][]string{
@@ -679,6 +680,26 @@ func (l *scenarioLoader) load(root *yaml.Node) {
 	l.loadSuppression(supp)
 	l.loadDrive(l.sub(top, "drive", driveKeys))
 	l.loadThermal(l.sub(top, "thermal", thermalKeys))
+	if tol := l.sub(top, "tolerances", toleranceKeys); tol != nil {
+		t := &s.Tolerances
+		frac := func(key string, dst *float64) {
+			if l.get(tol, key, Dimensionless, ruleNonNeg, dst, false, 0, "0 %") && *dst >= 1 {
+				l.errf("tolerances."+key, "%q must be below 100 %%", l.text["tolerances."+key])
+			}
+		}
+		frac("supply", &t.Supply)
+		frac("coil resistance", &t.CoilResistance)
+		frac("spring", &t.Spring)
+		frac("load", &t.Load)
+		if l.get(tol, "ambient", Temperature, ruleNonNeg, &t.Ambient, false, 0, "0 K") {
+			if txt := l.text["tolerances.ambient"]; strings.Contains(txt, "C") {
+				l.errf("tolerances.ambient", "%q: a temperature spread is written in K, e.g. \"10 K\"", txt)
+			}
+		}
+		if tol.has("hot winding") {
+			l.get(tol, "hot winding", Temperature, rulePositive, &t.HotWinding, true, 0, "")
+		}
+	}
 	if duty := l.sub(top, "duty", dutyKeys); duty != nil {
 		d := &DutySpec{}
 		s.Duty = d

@@ -37,6 +37,10 @@ type Model struct {
 	// InsulationLimit (K) and InsulationClass from IEC 60085; 0 and "" when not given.
 	InsulationLimit float64
 	InsulationClass string
+	// DiodeDrop (V): the forward drop of a diode + Zener's diode, as given.
+	DiodeDrop float64
+	// Tolerances for worst-case corners (zero when not given).
+	Tolerances Tolerances
 	// LowSupply (V): the lowest supply in tolerance; 0 when not given.
 	LowSupply float64
 	// BulkCapacitance (F) at the drive's supply terminals, fed through the
@@ -188,6 +192,7 @@ func Build(s *Scenario) (*Model, error) {
 		sup.Voltage = s.Suppression.ForwardDrop
 	case circuit.DiodeZener:
 		sup.Voltage = s.Suppression.ForwardDrop + s.Suppression.ZenerVoltage
+		md.DiodeDrop = s.Suppression.ForwardDrop
 	case circuit.TVS, circuit.SwitchClamp:
 		sup.Voltage = s.Suppression.ClampVoltage
 	case circuit.Bridge:
@@ -222,6 +227,7 @@ func Build(s *Scenario) (*Model, error) {
 		return nil, s.Errorf("drive", "%v", err)
 	}
 	md.LowSupply = s.Supply.LowVoltage
+	md.Tolerances = s.Tolerances
 	if th := s.Thermal; th != nil {
 		md.Ambient = th.Ambient
 		var net magnet.Thermal

@@ -18,6 +18,7 @@ type Scenario struct {
 	Drive       DriveSpec
 	Thermal     *ThermalSpec // nil: no thermal model
 	Duty        *DutySpec    // nil: no operating pattern
+	Tolerances  Tolerances   // zero: no spread
 	Timing      TimingSpec
 	Limits      LimitsSpec
 	Solver      SolverSpec

@@ -168,6 +168,7 @@ var unitDefs = map[string]unitDef{
 	"Wb":      {dim: FluxLinkage, mult: 1, prefix: true},
 	"T":       {dim: FluxDensity, mult: 1, prefix: true},
 	"Hz":      {dim: Frequency, mult: 1, prefix: true},
+	"%":       {dim: Dimensionless, mult: 0.01},
 	"m":       {dim: Length, mult: 1, prefix: true},
 	"g":       {dim: Mass, mult: 1, exp10: -3, prefix: true},
 	"s":       {dim: Time, mult: 1, prefix: true},
@@ -382,7 +383,7 @@ func (p *unitExprParser) skipSpace() bool {
 	return skipped
 }
 
-func isUnitLetter(r rune) bool { return unicode.IsLetter(r) || r == '°' }
+func isUnitLetter(r rune) bool { return unicode.IsLetter(r) || r == '°' || r == '%' }
 
 func isUnitProductOp(r rune) bool { return r == '*' || r == '.' || r == '·' || r == '⋅' }
 

@@ -1,12 +1,331 @@
 package main
 
 import (
+	"bufio"
+	"encoding/csv"
+	"encoding/json"
+	"fmt"
 	"io"
+	"os"
+	"strconv"
+	"strings"
+	"text/tabwriter"
 
 	"github.com/urfave/cli/v2"
+
+	"coilkick"
 )
 
-// studyCommands are the design-study commands (sweep, corners, clamps, solve).
+// studyCommands are the design-study commands.
 func studyCommands(stdout io.Writer) []*cli.Command {
+	return []*cli.Command{
+		{
+			Name:      "sweep",
+			Usage:     "run the scenario over a grid of values of its keys, in parallel",
+			ArgsUsage: "SCENARIO.yaml --vary KEY=FROM:TO:STEPS [--vary ...]",
+			Flags: []cli.Flag{
+				&cli.StringSliceFlag{Name: "vary", Usage: "a scenario key and its values: \"supply.voltage=18 V:30 V:13\" or \"plunger.mass=5 g,8 g\" (repeat for a grid)"},
+				&cli.StringFlag{Name: "csv", Usage: "write the results to `FILE` (CSV)"},
+				&cli.StringFlag{Name: "json", Usage: "write the results to `FILE` (JSON)"},
+				&cli.IntFlag{Name: "workers", Usage: "parallel simulations (default: all cores)"},
+			},
+			Action: func(c *cli.Context) error { return cmdSweep(c, stdout) },
+		},
+		{
+			Name:      "corners",
+			Usage:     "worst case over the scenario's tolerances (and an optional Monte Carlo yield)",
+			ArgsUsage: "SCENARIO.yaml",
+			Flags: []cli.Flag{
+				&cli.IntFlag{Name: "samples", Usage: "Monte Carlo samples for a yield estimate (0: none)"},
+				&cli.Uint64Flag{Name: "seed", Value: 1, Usage: "Monte Carlo seed"},
+			},
+			Action: func(c *cli.Context) error { return cmdCorners(c, stdout) },
+		},
+		{
+			Name:      "clamps",
+			Usage:     "compare suppression options for the scenario's actuation and recommend one",
+			ArgsUsage: "SCENARIO.yaml",
+			Action:    func(c *cli.Context) error { return cmdClamps(c, stdout) },
+		},
+		{
+			Name:      "solve",
+			Usage:     "solve for the lowest supply that pulls in, the lowest hold, and the lowest clamp voltage that meets the release time",
+			ArgsUsage: "SCENARIO.yaml",
+			Flags: []cli.Flag{
+				&cli.Float64Flag{Name: "margin", Value: 1.2, Usage: "holding force margin the hold must keep"},
+			},
+			Action: func(c *cli.Context) error { return cmdSolve(c, stdout) },
+		},
+	}
+}
+
+// isTerminal reports whether w is a character device (a terminal).
+func isTerminal(w io.Writer) bool {
+	f, ok := w.(*os.File)
+	if !ok {
+		return false
+	}
+	st, err := f.Stat()
+	return err == nil && st.Mode()&os.ModeCharDevice != 0
+}
+
+func interval2(iv coilkick.Interval) string { return interval(iv, "never") }
+
+func cmdSweep(c *cli.Context, w io.Writer) error {
+	path, err := oneFile(c)
+	if err != nil {
+		return err
+	}
+	var vs []coilkick.Vary
+	for _, spec := range c.StringSlice("vary") {
+		v, err := coilkick.ParseVary(spec)
+		if err != nil {
+			return err
+		}
+		vs = append(vs, v)
+	}
+	if len(vs) == 0 {
+		return fmt.Errorf("sweep needs at least one --vary KEY=FROM:TO:STEPS")
+	}
+	sw, err := coilkick.NewSweeper(path)
+	if err != nil {
+		return err
+	}
+	// Check the first point before running them all: a bad key fails at once.
+	if _, err := sw.Model(vs, coilkick.Points(vs)[0]); err != nil {
+		return err
+	}
+	var progress func(done, total int)
+	if errw := c.App.ErrWriter; isTerminal(errw) {
+		progress = func(done, total int) {
+			const width = 40
+			n := width * done / total
+			fmt.Fprintf(errw, "\r[%s%s] %d/%d", strings.Repeat("#", n), strings.Repeat(".", width-n), done, total)
+			if done == total {
+				fmt.Fprintln(errw)
+			}
+		}
+	}
+	pts := sw.Sweep(vs, c.Int("workers"), progress)
+	header := []string{}
+	for _, v := range vs {
+		header = append(header, v.Key)
+	}
+	header = append(header, "pull-in", "release", "drop", "peak current", "hold current", "peak switch V", "clamp energy", "avalanche energy", "checks")
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	fmt.Fprintln(tw, strings.Join(header, "\t"))
+	failed := false
+	for _, p := range pts {
+		row := append([]string{}, p.Values...)
+		if p.Err != "" {
+			row = append(row, "error: "+p.Err)
+			failed = true
+		} else {
+			f := p.Figures
+			verdict := "pass"
+			if f.Failed {
+				verdict, failed = "FAIL", true
+			}
+			row = append(row, interval2(f.PullIn), interval2(f.Release), interval2(f.Drop), si(f.PeakCurrent, "A"),
+				si(f.HoldCurrent, "A"), si(f.PeakSwitchVoltage, "V"), si(f.ClampEnergy, "J"), si(f.AvalancheEnergy, "J"), verdict)
+		}
+		fmt.Fprintln(tw, strings.Join(row, "\t"))
+	}
+	tw.Flush()
+	if f := c.String("csv"); f != "" {
+		if err := writeFile(f, w, func(out io.Writer) error { return writeSweepCSV(out, vs, pts) }); err != nil {
+			return err
+		}
+	}
+	if f := c.String("json"); f != "" {
+		if err := writeFile(f, w, func(out io.Writer) error {
+			enc := json.NewEncoder(out)
+			enc.SetIndent("", "  ")
+			return enc.Encode(pts)
+		}); err != nil {
+			return err
+		}
+	}
+	if failed {
+		return errFailing
+	}
+	return nil
+}
+
+func writeSweepCSV(w io.Writer, vs []coilkick.Vary, pts []coilkick.SweepPoint) error {
+	cw := csv.NewWriter(w)
+	var h []string
+	for _, v := range vs {
+		h = append(h, v.Key)
+	}
+	h = append(h, "pull_in_time_s", "release_time_s", "drop_time_s", "peak_current_A", "hold_current_A",
+		"peak_switch_voltage_V", "clamp_energy_J", "avalanche_energy_J", "failed", "error")
+	cw.Write(h)
+	num := func(v float64) string { return strconv.FormatFloat(v, 'g', 10, 64) }
+	iv := func(x coilkick.Interval) string {
+		if !x.Happened {
+			return ""
+		}
+		return num(x.Seconds)
+	}
+	for _, p := range pts {
+		f := p.Figures
+		row := append(append([]string{}, p.Values...), iv(f.PullIn), iv(f.Release), iv(f.Drop), num(f.PeakCurrent),
+			num(f.HoldCurrent), num(f.PeakSwitchVoltage), num(f.ClampEnergy), num(f.AvalancheEnergy),
+			strconv.FormatBool(f.Failed), p.Err)
+		cw.Write(row)
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+func cmdCorners(c *cli.Context, w io.Writer) error {
+	path, md, err := loadArg(c)
+	if err != nil {
+		return err
+	}
+	if md.Tolerances == (coilkick.Tolerances{}) {
+		return fmt.Errorf("%s: corners needs a tolerances section (supply, coil resistance, spring, load, ambient, hot winding)", path)
+	}
+	res, err := coilkick.Corners(md, md.Tolerances, c.Int("samples"), c.Uint64("seed"))
+	if err != nil {
+		return err
+	}
+	b := bufio.NewWriter(w)
+	defer b.Flush()
+	fmt.Fprintf(b, "coilkick corners: %s\nscenario: %s\n%d corners\n\n", md.Name, path, len(res.Corners))
+	failed := false
+	for _, ch := range res.Checks {
+		verdict := "pass"
+		if !ch.Pass {
+			verdict, failed = "FAIL", true
+		}
+		worst := "did not happen"
+		switch {
+		case ch.Min && ch.Limit == 0:
+			worst = map[bool]string{true: "yes", false: "no"}[ch.Worst != 0]
+		case ch.Happened:
+			worst = si(ch.Worst, ch.Unit)
+			if ch.Unit == "" {
+				worst = strconv.FormatFloat(ch.Worst, 'g', 3, 64)
+			}
+		}
+		lim := ""
+		switch {
+		case ch.Min && ch.Limit == 0:
+		case ch.Min:
+			lim = ">= " + strconv.FormatFloat(ch.Limit, 'g', 3, 64)
+		default:
+			lim = "<= " + si(ch.Limit, ch.Unit)
+		}
+		fmt.Fprintf(b, "  %-30s worst %-14s %-12s %s\n      at: %s\n", ch.Name, worst, lim, verdict, ch.Corner)
+		if len(ch.Failing) > 0 && len(ch.Failing) < len(res.Corners) {
+			fmt.Fprintf(b, "      fails at %d of %d corners\n", len(ch.Failing), len(res.Corners))
+		}
+	}
+	if res.Samples > 0 {
+		fmt.Fprintf(b, "\nMonte Carlo: %d samples (seed %d), uniform within the tolerances: yield %.1f %%\n", res.Samples, res.Seed, 100*res.Yield)
+	}
+	if failed {
+		return errFailing
+	}
+	return nil
+}
+
+func cmdClamps(c *cli.Context, w io.Writer) error {
+	path, md, err := loadArg(c)
+	if err != nil {
+		return err
+	}
+	rate := 0.0
+	if s, err := coilkick.Load(path); err == nil && s.Duty != nil {
+		rate = 1 / s.Duty.Period
+	}
+	cmp, err := coilkick.CompareClamps(md, rate)
+	if err != nil {
+		return err
+	}
+	b := bufio.NewWriter(w)
+	defer b.Flush()
+	fmt.Fprintf(b, "coilkick clamps: %s\nscenario: %s\nswitch rating %s, derated to %.0f %%: %s\n\n", md.Name, path,
+		si(cmp.SwitchRating, "V"), 100*coilkick.ClampDerating, si(coilkick.ClampDerating*cmp.SwitchRating, "V"))
+	tw := tabwriter.NewWriter(b, 0, 0, 2, ' ', 0)
+	req := "release"
+	if md.Limits.MaxRelease > 0 {
+		req = "release <= " + si(md.Limits.MaxRelease, "s")
+	}
+	fmt.Fprintf(tw, "option\trelease\tdrop\tpeak switch V\tclamp energy\tclamp power\t%s\twithin rating\n", req)
+	yes := map[bool]string{true: "yes", false: "no"}
+	for k, o := range cmp.Options {
+		mark := ""
+		if k == cmp.Recommended {
+			mark = "  <- recommended"
+		}
+		if o.Err != "" {
+			fmt.Fprintf(tw, "%s\terror: %s\n", o.Name, o.Err)
+			continue
+		}
+		power := "n/a (no duty)"
+		if cmp.Rate > 0 {
+			power = si(o.ClampPower, "W")
+		}
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s%s\n", o.Name, interval2(o.Release), interval2(o.Drop), si(o.PeakSwitchVoltage, "V"),
+			si(o.ClampEnergy, "J"), power, yes[o.MeetsRelease], yes[o.WithinRating], mark)
+	}
+	tw.Flush()
+	if cmp.Recommended < 0 {
+		fmt.Fprintln(b, "\nNo option meets the release requirement within the derated switch rating.")
+		return errFailing
+	}
+	r := cmp.Options[cmp.Recommended]
+	fmt.Fprintf(b, "\nRecommended: %s (least switch stress that meets the requirement).\n", r.Name)
+	fmt.Fprintf(b, "Part ratings needed: peak current %s, energy per pulse %s", si(cmp.PartPeakCurrent, "A"), si(cmp.PartEnergy, "J"))
+	if cmp.Rate > 0 {
+		fmt.Fprintf(b, ", average power %s at %.3g operations/s", si(cmp.PartPower, "W"), cmp.Rate)
+	}
+	fmt.Fprintln(b, "; choose parts with margin over these (derating per your practice).")
+	fmt.Fprintf(b, "Assumptions: added diodes drop %.1f V; RC snubber sized so I0·√(L/C) stays within the derated rating, R = √(L/C) (common practice, no source).\n", coilkick.AssumedDiodeDrop)
+	return nil
+}
+
+func cmdSolve(c *cli.Context, w io.Writer) error {
+	path, md, err := loadArg(c)
+	if err != nil {
+		return err
+	}
+	b := bufio.NewWriter(w)
+	defer b.Flush()
+	fmt.Fprintf(b, "coilkick solve: %s\nscenario: %s\n\n", md.Name, path)
+	show := func(s coilkick.Solution, err error) {
+		if err != nil {
+			fmt.Fprintf(b, "  %s: %v\n", s.What, err)
+			return
+		}
+		v := "none in the searched range"
+		if s.Found {
+			v = si(s.Value, s.Unit)
+			if s.Unit == "" {
+				v = strconv.FormatFloat(s.Value, 'f', 3, 64)
+			}
+		}
+		fmt.Fprintf(b, "  %-58s %s", s.What, v)
+		if s.Note != "" {
+			fmt.Fprintf(b, "  (%s)", s.Note)
+		}
+		fmt.Fprintln(b)
+	}
+	show(coilkick.LowestSupply(md, 0))
+	hot := md.Tolerances.HotWinding
+	if hot > 0 {
+		show(coilkick.LowestSupply(md, hot))
+	}
+	show(coilkick.LowestHold(md, c.Float64("margin")))
+	if md.Limits.MaxRelease > 0 {
+		if s, err := coilkick.LowestClamp(md); err == nil || s.What != "" {
+			show(s, err)
+		} else {
+			fmt.Fprintf(b, "  lowest clamp voltage: %v\n", err)
+		}
+	}
 	return nil
 }

@@ -1,0 +1,389 @@
+package coilkick
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"strings"
+
+	"coilkick/circuit"
+	"coilkick/mech"
+)
+
+// Tolerances are the spreads of a design's parameters (fractions, K).
+type Tolerances struct {
+	Supply         float64 // ± fraction of the supply voltage
+	CoilResistance float64 // ± fraction of the coil resistance
+	Spring         float64 // ± fraction of spring preload and rate
+	Load           float64 // ± fraction of the load (pressure, constant force)
+	Ambient        float64 // ± K on the winding temperature
+	HotWinding     float64 // K, the hot-coil winding temperature (0: no hot corner)
+}
+
+// Corner is one combination of parameter extremes.
+type Corner struct {
+	Supply, Resistance, Spring, Load float64 // signed fractions applied
+	Temperature                      float64 // K, winding
+	Label                            string
+}
+
+// CornerCheck is the worst case of one check over the corners.
+type CornerCheck struct {
+	Name     string
+	Unit     string
+	Limit    float64
+	Min      bool     // the limit is a minimum
+	Worst    float64  // the worst value (meaningless when !Happened)
+	Happened bool     // false: at the worst corner the figure did not exist (did not pull in, say)
+	Corner   string   // label of the corner that produced the worst value
+	Pass     bool     // every corner passes
+	Failing  []string // labels of the failing corners
+}
+
+// CornerResult is a worst-case study.
+type CornerResult struct {
+	Corners []Corner
+	Checks  []CornerCheck
+	// Monte Carlo yield (fraction of samples passing every check); Samples 0 when not run.
+	Samples int
+	Seed    uint64
+	Yield   float64
+}
+
+// scaledLoad multiplies a load by a factor.
+type scaledLoad struct {
+	mech.Load
+	k float64
+}
+
+func (s scaledLoad) Force(x float64) float64 { return s.k * s.Load.Force(x) }
+
+// apply returns the model and options of a corner.
+func applyCorner(md *Model, c Corner) (*Model, *Options) {
+	v := *md
+	v.Coil.Resistance *= 1 + c.Resistance
+	v.Plunger.Spring.Preload *= 1 + c.Spring
+	v.Plunger.Spring.Rate *= 1 + c.Spring
+	if v.Plunger.Load != nil {
+		v.Plunger.Load = scaledLoad{v.Plunger.Load, 1 + c.Load}
+	}
+	return &v, &Options{NoTrace: true, SupplyVoltage: md.Drive.Supply.Voltage * (1 + c.Supply), FixedTemperature: c.Temperature}
+}
+
+func cornerLabel(c Corner, tol Tolerances) string {
+	var parts []string
+	pct := func(name string, f, t float64) {
+		if t > 0 {
+			parts = append(parts, fmt.Sprintf("%s %+.0f %%", name, 100*f))
+		}
+	}
+	pct("supply", c.Supply, tol.Supply)
+	pct("R", c.Resistance, tol.CoilResistance)
+	pct("spring", c.Spring, tol.Spring)
+	pct("load", c.Load, tol.Load)
+	parts = append(parts, fmt.Sprintf("winding %.0f degC", c.Temperature-273.15))
+	return strings.Join(parts, ", ")
+}
+
+// corners lists the full factorial of the toleranced parameters' extremes
+// and the cold and hot winding.
+func corners(md *Model, tol Tolerances) []Corner {
+	type axis struct {
+		vals []float64
+	}
+	ext := func(t float64) []float64 {
+		if t > 0 {
+			return []float64{-t, t}
+		}
+		return []float64{0}
+	}
+	temps := []float64{md.Temperature - tol.Ambient}
+	if tol.HotWinding > 0 {
+		temps = append(temps, tol.HotWinding+tol.Ambient)
+	} else if tol.Ambient > 0 {
+		temps = append(temps, md.Temperature+tol.Ambient)
+	}
+	var out []Corner
+	for _, s := range ext(tol.Supply) {
+		for _, r := range ext(tol.CoilResistance) {
+			for _, k := range ext(tol.Spring) {
+				for _, l := range ext(tol.Load) {
+					for _, t := range temps {
+						c := Corner{Supply: s, Resistance: r, Spring: k, Load: l, Temperature: t}
+						c.Label = cornerLabel(c, tol)
+						out = append(out, c)
+					}
+				}
+			}
+		}
+	}
+	return out
+}
+
+// Corners evaluates every corner of the tolerances and reports, for each
+// rating and requirement of the scenario, the worst value and the corner
+// that produced it. samples > 0 adds a Monte Carlo yield estimate with
+// parameters drawn uniformly within their tolerances (seeded, repeatable).
+func Corners(md *Model, tol Tolerances, samples int, seed uint64) (*CornerResult, error) {
+	if tol.Supply < 0 || tol.CoilResistance < 0 || tol.Spring < 0 || tol.Load < 0 || tol.Ambient < 0 {
+		return nil, errors.New("coilkick: tolerances must not be negative")
+	}
+	res := &CornerResult{Corners: corners(md, tol), Samples: samples, Seed: seed}
+	index := map[string]int{}
+	for _, c := range res.Corners {
+		v, opt := applyCorner(md, c)
+		r, err := Simulate(v, opt)
+		if err != nil {
+			return nil, fmt.Errorf("corner %s: %w", c.Label, err)
+		}
+		as := v.Assess(r)
+		for _, ch := range as.Checks {
+			k, ok := index[ch.Name]
+			if !ok {
+				k = len(res.Checks)
+				index[ch.Name] = k
+				res.Checks = append(res.Checks, CornerCheck{Name: ch.Name, Unit: ch.Unit, Limit: ch.Limit, Min: ch.Min,
+					Worst: ch.Value, Happened: ch.Happened, Corner: c.Label, Pass: true})
+			}
+			cc := &res.Checks[k]
+			if !ch.Pass {
+				cc.Pass = false
+				cc.Failing = append(cc.Failing, c.Label)
+			}
+			worse := false
+			switch {
+			case !cc.Happened:
+			case !ch.Happened:
+				worse = true
+			case ch.Min:
+				worse = ch.Value < cc.Worst
+			default:
+				worse = ch.Value > cc.Worst
+			}
+			if worse {
+				cc.Worst, cc.Happened, cc.Corner = ch.Value, ch.Happened, c.Label
+			}
+		}
+	}
+	if samples > 0 {
+		rng := rand.New(rand.NewPCG(seed, 0x636f696c6b69636b))
+		pass := 0
+		lo := md.Temperature - tol.Ambient
+		hi := md.Temperature + tol.Ambient
+		if tol.HotWinding > 0 {
+			hi = tol.HotWinding + tol.Ambient
+		}
+		u := func(t float64) float64 { return t * (2*rng.Float64() - 1) }
+		for n := 0; n < samples; n++ {
+			c := Corner{Supply: u(tol.Supply), Resistance: u(tol.CoilResistance), Spring: u(tol.Spring), Load: u(tol.Load),
+				Temperature: lo + (hi-lo)*rng.Float64()}
+			v, opt := applyCorner(md, c)
+			r, err := Simulate(v, opt)
+			if err != nil {
+				return nil, err
+			}
+			if as := v.Assess(r); !as.Failed() {
+				pass++
+			}
+		}
+		res.Yield = float64(pass) / float64(samples)
+	}
+	return res, nil
+}
+
+// Solution is a solve-for answer.
+type Solution struct {
+	What  string  // what was solved for
+	Value float64 // SI, in Unit
+	Unit  string
+	Found bool   // false: no value in the searched range works
+	Note  string // the criterion, and a rounding hint
+}
+
+// bisect finds the boundary in [lo, hi] between failing (at lo) and
+// passing (at hi) to a relative tolerance.
+func bisect(lo, hi, rel float64, pass func(float64) (bool, error)) (float64, error) {
+	for (hi-lo) > rel*math.Abs(hi) && hi-lo > 1e-15 {
+		mid := 0.5 * (lo + hi)
+		ok, err := pass(mid)
+		if err != nil {
+			return 0, err
+		}
+		if ok {
+			hi = mid
+		} else {
+			lo = mid
+		}
+	}
+	return hi, nil
+}
+
+// SolveRel is the relative tolerance of the solve-for bisections.
+const SolveRel = 1e-3
+
+// LowestSupply returns the lowest supply voltage that still pulls in with
+// the winding at temperature t (K; 0: the model's).
+func LowestSupply(md *Model, t float64) (Solution, error) {
+	if t == 0 {
+		t = md.Temperature
+	}
+	sol := Solution{What: fmt.Sprintf("lowest supply that pulls in (winding %.0f degC)", t-273.15), Unit: "V",
+		Note: "pull-in within the energized time"}
+	pulls := func(v float64) (bool, error) {
+		r, err := Simulate(md, &Options{NoTrace: true, FixedTemperature: t, SupplyVoltage: v})
+		if err != nil {
+			return false, nil // a supply the drive cannot run on does not pull in
+		}
+		return r.Metrics.PullIn.Happened, nil
+	}
+	hi := md.Drive.Supply.Voltage
+	if ok, _ := pulls(hi); !ok {
+		return sol, nil
+	}
+	v, err := bisect(0, hi, SolveRel, pulls)
+	if err != nil {
+		return sol, err
+	}
+	sol.Value, sol.Found = v, true
+	return sol, nil
+}
+
+// LowestHold returns the lowest hold setting that keeps the plunger
+// seated with a force margin of at least margin: the hold current of a
+// peak-and-hold drive, the duty of a PWM drive, or for a constant drive
+// the current (from the magnet alone) whose pull is margin × the spring
+// and load at the seat.
+func LowestHold(md *Model, margin float64) (Solution, error) {
+	if !(margin > 0) {
+		return Solution{}, errors.New("coilkick: the hold margin must be positive")
+	}
+	p := md.Plunger
+	need := p.PassiveForce(p.GapMin, 0) * margin
+	holds := func(v *Model) (bool, error) {
+		r, err := Simulate(v, &Options{NoTrace: true})
+		if err != nil {
+			return false, err
+		}
+		m := &r.Metrics
+		return m.PullIn.Happened && !m.DroppedOutEnergized && m.Hold.Measured && m.Hold.ForceMargin >= margin, nil
+	}
+	switch md.Control.Mode {
+	case circuit.PeakHold:
+		sol := Solution{What: fmt.Sprintf("lowest hold current with force margin %.2f", margin), Unit: "A",
+			Note: "peak-and-hold hold current; margin at the lowest current of the ripple"}
+		x, err := bisect(0, md.Control.PeakCurrent, SolveRel, func(i float64) (bool, error) {
+			v := *md
+			v.Control.HoldCurrent = i
+			if v.Control.Regulation == circuit.Hysteresis && v.Control.Band >= 2*i {
+				return false, nil
+			}
+			return holds(&v)
+		})
+		if err != nil {
+			return sol, err
+		}
+		v := *md
+		v.Control.HoldCurrent = x
+		ok, _ := holds(&v)
+		sol.Value, sol.Found = x, ok
+		return sol, nil
+	case circuit.PWM:
+		sol := Solution{What: fmt.Sprintf("lowest PWM duty with force margin %.2f", margin), Unit: "",
+			Note: "duty of the whole energized time (PWM from the start)"}
+		x, err := bisect(0, 1, SolveRel, func(d float64) (bool, error) {
+			v := *md
+			v.Control.Duty = d
+			return holds(&v)
+		})
+		if err != nil {
+			return sol, err
+		}
+		v := *md
+		v.Control.Duty = x
+		ok, _ := holds(&v)
+		sol.Value, sol.Found = x, ok
+		return sol, nil
+	}
+	sol := Solution{What: fmt.Sprintf("lowest holding current with force margin %.2f", margin), Unit: "A",
+		Note: "from the magnet's pull at the seat (no simulation)"}
+	iMax := 10 * md.Drive.Supply.Voltage / md.CoilResistance()
+	if md.Magnet.Force(iMax, p.GapMin) < need {
+		return sol, nil
+	}
+	x, err := bisect(0, iMax, 1e-9, func(i float64) (bool, error) { return md.Magnet.Force(i, p.GapMin) >= need, nil })
+	sol.Value, sol.Found = x, err == nil
+	return sol, err
+}
+
+// LowestClamp returns the lowest clamp voltage of the model's clamp
+// (diode + Zener: the Zener voltage; TVS, switch clamp: the clamp
+// voltage) that meets the release-time requirement, and notes the next
+// E24 value at or above it.
+func LowestClamp(md *Model) (Solution, error) {
+	req := md.Limits.MaxRelease
+	if req == 0 {
+		return Solution{}, errors.New("coilkick: solving for the clamp voltage needs ratings.release time")
+	}
+	sup := md.Drive.Suppressor
+	v0 := md.Drive.Supply.Voltage
+	var lo, hi float64
+	var set func(v *Model, x float64)
+	what := ""
+	switch sup.Kind {
+	case circuit.DiodeZener:
+		lo, hi = 0, md.Drive.Switch.BreakdownVoltage-v0
+		set = func(v *Model, x float64) { v.Drive.Suppressor.Voltage = AssumedDiodeDropOf(md) + x }
+		what = "Zener voltage"
+	case circuit.TVS:
+		lo, hi = v0, md.Drive.Switch.BreakdownVoltage-v0
+		set = func(v *Model, x float64) { v.Drive.Suppressor.Voltage = x }
+		what = "TVS clamp voltage"
+	case circuit.SwitchClamp:
+		lo, hi = v0, md.Drive.Switch.BreakdownVoltage
+		set = func(v *Model, x float64) { v.Drive.Suppressor.Voltage = x }
+		what = "switch clamp voltage"
+	default:
+		return Solution{}, fmt.Errorf("coilkick: solving for the clamp voltage needs a diode zener, tvs or switch clamp suppression, not %v", sup.Kind)
+	}
+	sol := Solution{What: "lowest " + what + " meeting the release requirement", Unit: "V"}
+	meets := func(x float64) (bool, error) {
+		v := *md
+		set(&v, x)
+		if v.Drive.Validate() != nil {
+			return false, nil
+		}
+		r, err := Simulate(&v, &Options{NoTrace: true})
+		if err != nil {
+			return false, err
+		}
+		return r.Metrics.Release.Happened && r.Metrics.Release.Seconds <= req, nil
+	}
+	if ok, err := meets(hi * 0.999); err != nil || !ok {
+		sol.Note = "even the highest clamp below the switch breakdown does not meet it"
+		return sol, err
+	}
+	if ok, err := meets(lo); err != nil || ok {
+		sol.Value, sol.Found = lo, err == nil
+		sol.Note = "already met at the lowest clamp the drive allows"
+		return sol, err
+	}
+	x, err := bisect(lo, hi*0.999, SolveRel, meets)
+	if err != nil {
+		return sol, err
+	}
+	sol.Value, sol.Found = x, true
+	if e := E24Values(x, 1e5); len(e) > 0 {
+		sol.Note = fmt.Sprintf("next E24 value (IEC 60063): %g V", e[0])
+	}
+	return sol, nil
+}
+
+// AssumedDiodeDropOf returns the forward drop of the model's diode + Zener
+// as given in the scenario when known, else AssumedDiodeDrop.
+func AssumedDiodeDropOf(md *Model) float64 {
+	if md.DiodeDrop > 0 {
+		return md.DiodeDrop
+	}
+	return AssumedDiodeDrop
+}
