@@ -39,6 +39,14 @@ func TestRunExitCodes(t *testing.T) {
 		{"heat study", []string{"heat", "../../scenarios/door-strike-duty.yaml", "--csv", filepath.Join(dir, "h.csv")}, exitOK,
 			[]string{"periodic steady state", "insulation class F", "largest relative on-time", "pull-in, hot, low supply"}, nil},
 		{"heat without duty", []string{"heat", "../../scenarios/irrigation-valve.yaml"}, exitError, nil, []string{"thermal"}},
+		{"sweep", []string{"sweep", "../../scenarios/irrigation-valve.yaml", "--vary", "supply.voltage=22 V:26 V:3", "--csv", filepath.Join(dir, "s.csv")}, exitOK,
+			[]string{"supply.voltage", "22 V", "26 V", "pull-in"}, nil},
+		{"sweep bad key", []string{"sweep", "../../scenarios/irrigation-valve.yaml", "--vary", "supply.volts=22 V:26 V:3"}, exitError, nil, []string{"supply.volts"}},
+		{"clamps", []string{"clamps", "../../scenarios/process-air-valve.yaml"}, exitOK, []string{"recommended", "diode + 33 V Zener", "reverse drive"}, nil},
+		{"corners", []string{"corners", "../../scenarios/door-strike-duty.yaml", "--samples", "10"}, exitFailing,
+			[]string{"16 corners", "winding 110 degC", "Monte Carlo: 10 samples"}, nil},
+		{"corners without tolerances", []string{"corners", "../../scenarios/irrigation-valve.yaml"}, exitError, nil, []string{"tolerances"}},
+		{"solve", []string{"solve", "../../scenarios/process-air-valve.yaml"}, exitOK, []string{"lowest supply that pulls in", "lowest holding current"}, nil},
 		{"magnet bad currents", []string{"magnet", "../../scenarios/irrigation-valve.yaml", "--currents", "0.1,x"}, exitError, nil, []string{"--currents"}},
 	}
 	for _, c := range cases {
