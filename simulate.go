@@ -30,6 +30,10 @@ type Options struct {
 	SupplyVoltage, FixedTemperature float64
 	// Energize, Deenergize, End (s) override the scenario's timing when End > 0.
 	Energize, Deenergize, End float64
+	// SampleTimes (s, ascending): the coil current is also recorded at
+	// these instants from the integrator's dense output, into
+	// Result.Samples.
+	SampleTimes []float64
 }
 
 // Trace is the recorded time series, one sample per accepted step and one
@@ -70,6 +74,8 @@ type SolverStats struct {
 
 // Result is the outcome of one simulated actuation.
 type Result struct {
+	// Samples is the coil current (A) at Options.SampleTimes.
+	Samples []float64
 	Metrics Metrics
 	Events  []Event
 	Trace   Trace
@@ -100,6 +106,9 @@ type run struct {
 	quiet               bool // chopping: mode changes are not logged
 
 	riseTime, fallTime float64
+
+	sampleTimes []float64
+	sampleNext  int
 
 	decayArmed     bool
 	decayThreshold float64
@@ -459,6 +468,11 @@ func (r *run) peaks(o outputs) {
 }
 
 func (r *run) accepted(s *stepView) {
+	for r.sampleNext < len(r.sampleTimes) && r.sampleTimes[r.sampleNext] <= s.t1 {
+		s.interp(r.sampleTimes[r.sampleNext], r.ys[:])
+		r.res.Samples = append(r.res.Samples, r.current(r.ys[:]))
+		r.sampleNext++
+	}
 	// Sample inside the step for the peaks.
 	for _, th := range [...]float64{0.25, 0.5, 0.75, 1} {
 		tt := s.t0 + th*(s.t1-s.t0)
@@ -508,7 +522,7 @@ func Simulate(md *Model, opt *Options) (*Result, error) {
 	res := &Result{}
 	r := &run{system: sys, tOn: timing.EnergizeAt, tOff: timing.DeenergizeAt, tEnd: timing.End,
 		res: res, noTrace: opt.NoTrace, baseV0: drive.Supply.Voltage, tRevEnd: math.Inf(1),
-		riseTime: md.RiseTime, fallTime: md.FallTime}
+		riseTime: md.RiseTime, fallTime: md.FallTime, sampleTimes: opt.SampleTimes}
 	r.ctl.Control = md.Control
 	// The hold window: the second half of the hold phase (after the peak
 	// or boost phase, if any).
