@@ -4,6 +4,7 @@ go 1.26.0
 
 require (
 	github.com/urfave/cli/v2 v2.27.7
+	golang.org/x/net v0.62.0
 	gonum.org/v1/gonum v0.17.0
 	gonum.org/v1/plot v0.17.0
 	gopkg.in/yaml.v3 v3.0.1

@@ -34,7 +34,8 @@ var errFailing = errors.New("a rating or requirement fails")
 
 // valueFlags are the flags that take a value, for reordering arguments.
 var valueFlags = map[string]bool{"csv": true, "json": true, "tolerance": true, "curves": true, "currents": true,
-	"plot": true, "o": true, "output": true, "vary": true, "seed": true, "samples": true, "workers": true}
+	"plot": true, "o": true, "output": true, "vary": true, "seed": true, "samples": true, "workers": true,
+	"trace": true, "params": true, "margin": true}
 
 // permute moves flags written after positional arguments in front of them,
 // so that "coilkick run valve.yaml --csv out.csv" works: the flag parser

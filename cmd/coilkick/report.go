@@ -1,20 +1,569 @@
 package main
 
 import (
-	"errors"
+	"bytes"
+	"encoding/json"
+	"fmt"
 	"io"
+	"math"
+	"path/filepath"
+	"sort"
+	"strconv"
+	"strings"
 
 	"github.com/urfave/cli/v2"
 
 	"coilkick"
+	"coilkick/cmd/coilkick/plot"
 )
 
 // reportCommands are the plotting and report commands.
 func reportCommands(stdout io.Writer) []*cli.Command {
-	return nil
+	return []*cli.Command{{
+		Name:      "report",
+		Usage:     "simulate one actuation and write a self-contained HTML report (figures, checks, notes, plots)",
+		ArgsUsage: "SCENARIO.yaml",
+		Flags: []cli.Flag{
+			&cli.StringFlag{Name: "output", Aliases: []string{"o"}, Usage: "write the report to `FILE` (- for standard output)", Required: true},
+			&cli.Float64Flag{Name: "tolerance", Usage: "relative tolerance of the integrator (default: scenario's, else 1e-8)"},
+		},
+		Action: func(c *cli.Context) error { return cmdReport(c, stdout) },
+	}}
 }
 
 // plotRun writes the waveform plot of a run to file (.png or .svg).
 func plotRun(file, path string, md *coilkick.Model, res *coilkick.Result) error {
-	return errors.New("plots are not implemented yet")
+	return waveformFigure(path, md, res).Save(file)
+}
+
+func waveformFigure(path string, md *coilkick.Model, res *coilkick.Result) *plot.Figure {
+	return plot.Waveform(&res.Trace, plot.EventMarkers(res.Events), plot.WaveformOptions{
+		Title:    displayName(path, md),
+		Subtitle: runLine(md, res),
+	})
+}
+
+// displayName is the scenario's name, or its file name when it has none.
+func displayName(path string, md *coilkick.Model) string {
+	if md.Name != "" {
+		return md.Name
+	}
+	return filepath.Base(path)
+}
+
+// runLine is a one-line description of the drive for a figure's subtitle.
+func runLine(md *coilkick.Model, res *coilkick.Result) string {
+	s := fmt.Sprintf("supply %s · coil %s at %.0f °C · %v drive · suppression: %v",
+		si(md.Drive.Supply.Voltage, "V"), si(md.CoilResistance(), "Ω"), md.Temperature-273.15, md.Control.Mode, md.Drive.Suppressor.Kind)
+	if md.Thermal != nil {
+		// The trace has no temperature; say where the winding ended.
+		s += fmt.Sprintf(" · winding %.1f °C at the end", res.Metrics.FinalWindingTemperature-273.15)
+	}
+	return s
+}
+
+func cmdReport(c *cli.Context, w io.Writer) error {
+	path, md, err := loadArg(c)
+	if err != nil {
+		return err
+	}
+	sc, err := coilkick.Load(path)
+	if err != nil {
+		return err
+	}
+	res, err := coilkick.Simulate(md, &coilkick.Options{Tolerance: c.Float64("tolerance")})
+	if err != nil {
+		return err
+	}
+	as := md.Assess(res)
+	rep, failed, err := buildReport(path, md, sc, res, &as)
+	if err != nil {
+		return err
+	}
+	if err := writeFile(c.String("output"), w, func(out io.Writer) error { return plot.WriteHTML(out, rep) }); err != nil {
+		return err
+	}
+	if failed {
+		return errFailing
+	}
+	return nil
+}
+
+// figureRow names a metric of the JSON summary for the report.
+type figureRow struct {
+	key, name string
+}
+
+// reportGroups lay out the JSON summary's metrics (keys as in --json;
+// "hold." for the hold object) under the headings of the text summary,
+// with its names. A metric missing here still appears, under "Other
+// figures".
+var reportGroups = []struct {
+	name string
+	rows []figureRow
+}{
+	{"Pull-in", []figureRow{
+		{"motion_delay_s", "motion delay"}, {"pull_in_time_s", "pull-in time"},
+		{"seat_impact_speed_m_per_s", "seat impact speed"}, {"bounces", "bounces"},
+		{"current_at_seating_A", "current at seating"}, {"peak_current_A", "peak current"},
+		{"dropped_out_while_energized", "dropped out while energized"},
+	}},
+	{"Hold", []figureRow{
+		{"hold.window_start_s", "hold window start"}, {"hold.window_end_s", "hold window end"},
+		{"hold.mean_current_A", "hold current mean"}, {"hold.min_current_A", "hold current min"},
+		{"hold.max_current_A", "hold current max"}, {"hold.ripple_A", "hold current ripple"},
+		{"hold.chopping_frequency_Hz", "chopping frequency"}, {"hold.coil_power_W", "coil power in hold"},
+		{"hold.full_voltage_coil_power_W", "coil power at full voltage"},
+		{"hold.switch_conduction_power_W", "switch conduction power"}, {"hold.diode_power_W", "recirculation diode power"},
+		{"hold.switching_power_estimate_W", "switching power (estimate)"}, {"hold.supply_mean_current_A", "supply current mean"},
+		{"hold.supply_power_W", "supply power mean"}, {"hold.force_margin", "hold force margin"},
+	}},
+	{"Supply", []figureRow{
+		{"peak_supply_current_A", "peak supply current"}, {"lowest_rail_voltage_V", "lowest rail voltage"},
+		{"energy_returned_J", "energy returned to supply"},
+	}},
+	{"Release", []figureRow{
+		{"current_at_turn_off_A", "current at turn-off"}, {"release_time_s", "release time"}, {"drop_time_s", "drop time"},
+		{"current_decay_time_s", fmt.Sprintf("current decay (to %g %%)", 100*coilkick.DecayFraction)},
+		{"clamp_conduction_time_s", "clamp conduction"},
+	}},
+	{"Switch and suppression", []figureRow{
+		{"peak_switch_voltage_V", "peak switch voltage"}, {"lowest_switch_voltage_V", "lowest switch voltage"},
+		{"peak_clamp_current_A", "peak clamp current"}, {"clamp_energy_J", "clamp energy"}, {"avalanche_energy_J", "avalanche energy"},
+	}},
+	{"Energy balance (whole run)", []figureRow{
+		{"supply_energy_J", "supply"}, {"coil_loss_J", "coil resistance"}, {"source_loss_J", "source resistance"},
+		{"switch_loss_J", "switch"}, {"diode_loss_J", "recirculation / bridge diodes"}, {"mechanical_work_J", "mechanical work"},
+		{"eddy_loss_J", "eddy currents"}, {"stored_energy_change_J", "stored change"}, {"energy_residual_J", "energy residual"},
+		{"switching_loss_estimate_J", "switching loss (estimate, outside the balance)"},
+	}},
+}
+
+// checkFigure is the metric each check of the assessment concerns.
+var checkFigure = map[string]string{
+	"pull-in time": "pull_in_time_s", "release time": "release_time_s", "drop time": "drop_time_s",
+	"peak switch voltage": "peak_switch_voltage_V", "avalanche energy": "avalanche_energy_J",
+	"clamp energy": "clamp_energy_J", "peak clamp current": "peak_clamp_current_A",
+	"hold force margin": "hold.force_margin", "stays seated while energized": "dropped_out_while_energized",
+}
+
+// noteFigure maps the figure a note names to a metric key when the names
+// differ from the report's row names.
+var noteFigure = map[string]string{"energy residual": "energy_residual_J"}
+
+// missingText is what a time that did not happen (null in JSON) reads as.
+var missingText = map[string]string{
+	"motion_delay_s": "did not move", "pull_in_time_s": "did not pull in", "release_time_s": "did not release",
+	"drop_time_s": "did not return", "current_decay_time_s": "did not decay", "clamp_conduction_time_s": "still conducting",
+}
+
+// figureText formats a metric of the JSON summary for the report, by its
+// key's unit suffix, with si() as in the text summary: "_s" seconds, "_A",
+// "_V", "_J", "_W", "_Hz"; "_m_per_s" as %.3g m/s; a plain number with 3
+// significant digits (whole numbers in full); booleans yes/no; null (a time
+// that did not happen) as words.
+func figureText(key string, v any) string {
+	switch x := v.(type) {
+	case nil:
+		if t, ok := missingText[key[strings.LastIndex(key, ".")+1:]]; ok {
+			return t
+		}
+		return "n/a"
+	case bool:
+		if x {
+			return "yes"
+		}
+		return "no"
+	case float64:
+		if strings.HasSuffix(key, "_m_per_s") {
+			return fmt.Sprintf("%.3g m/s", x)
+		}
+		for _, u := range []string{"s", "A", "V", "J", "W", "Hz"} {
+			if strings.HasSuffix(key, "_"+u) {
+				return si(x, u)
+			}
+		}
+		if x == math.Trunc(x) && math.Abs(x) < 1e9 {
+			return strconv.FormatFloat(x, 'f', 0, 64)
+		}
+		return strconv.FormatFloat(x, 'g', 3, 64)
+	}
+	return fmt.Sprint(v)
+}
+
+// flattenMetrics returns the metrics object of a JSON summary as key →
+// value, the hold's keys prefixed "hold." (absent when not measured).
+func flattenMetrics(raw map[string]any) map[string]any {
+	out := map[string]any{}
+	for k, v := range raw {
+		if obj, ok := v.(map[string]any); ok {
+			for k2, v2 := range obj {
+				out[k+"."+k2] = v2
+			}
+			continue
+		}
+		if k == "hold" && v == nil {
+			continue
+		}
+		out[k] = v
+	}
+	return out
+}
+
+// requirementText describes a check's limit as the text summary does.
+func requirementText(c jsonCheck, min bool) string {
+	if c.Name == "stays seated while energized" {
+		return "required: stays seated"
+	}
+	kind, op := "rating", "≤"
+	if c.Unit == "s" || min {
+		kind = "required"
+	}
+	if min {
+		op = "≥"
+	}
+	lim := si(c.Limit, c.Unit)
+	if c.Unit == "" {
+		lim = strconv.FormatFloat(c.Limit, 'g', 3, 64)
+	}
+	return kind + " " + op + " " + lim
+}
+
+// buildReport assembles the report from the same JSON document that
+// "run --json" writes, so that both show the same figures.
+func buildReport(path string, md *coilkick.Model, sc *coilkick.Scenario, res *coilkick.Result, as *coilkick.Assessment) (*plot.Report, bool, error) {
+	var buf bytes.Buffer
+	if err := writeJSON(&buf, md, res, as); err != nil {
+		return nil, false, err
+	}
+	// The summary's own types, but the metrics as a generic object (an
+	// Interval reads back as a number or null): every metric is shown.
+	var doc struct {
+		Metrics map[string]any       `json:"metrics"`
+		Checks  []jsonCheck          `json:"checks"`
+		Notes   []coilkickNote       `json:"notes"`
+		Events  []jsonEvent          `json:"events"`
+		Solver  coilkick.SolverStats `json:"solver"`
+		Failed  bool                 `json:"failed"`
+	}
+	if err := json.Unmarshal(buf.Bytes(), &doc); err != nil {
+		return nil, false, err
+	}
+	metrics := flattenMetrics(doc.Metrics)
+
+	minChecks := map[string]bool{}
+	for _, c := range as.Checks {
+		minChecks[c.Name] = c.Min
+	}
+	checkOf := map[string]jsonCheck{}
+	var unmatched []jsonCheck
+	for _, c := range doc.Checks {
+		if k, ok := checkFigure[c.Name]; ok {
+			if _, shown := metrics[k]; shown {
+				checkOf[k] = c
+				continue
+			}
+		}
+		unmatched = append(unmatched, c)
+	}
+	nameOf := map[string]string{}
+	for _, g := range reportGroups {
+		for _, r := range g.rows {
+			nameOf[r.name] = r.key
+		}
+	}
+	caution := map[string]bool{}
+	for _, n := range doc.Notes {
+		if n.Level != "caution" {
+			continue
+		}
+		if k, ok := noteFigure[n.Figure]; ok {
+			caution[k] = true
+		} else if k, ok := nameOf[n.Figure]; ok {
+			caution[k] = true
+		}
+	}
+
+	rep := &plot.Report{Title: displayName(path, md), Source: path, Summary: scenarioSummary(md, sc)}
+	used := map[string]bool{}
+	row := func(key, name string) plot.Row {
+		used[key] = true
+		r := plot.Row{Key: key, Name: name, Value: figureText(key, metrics[key]), Caution: caution[key]}
+		if c, ok := checkOf[key]; ok {
+			r.Checked, r.Pass, r.Requirement = true, c.Pass, requirementText(c, minChecks[c.Name])
+		}
+		return r
+	}
+	for _, g := range reportGroups {
+		grp := plot.Group{Name: g.name}
+		for _, r := range g.rows {
+			if _, ok := metrics[r.key]; ok {
+				grp.Rows = append(grp.Rows, row(r.key, r.name))
+			}
+		}
+		if len(grp.Rows) > 0 {
+			rep.Groups = append(rep.Groups, grp)
+		}
+	}
+	var rest []string
+	for k := range metrics {
+		if !used[k] {
+			rest = append(rest, k)
+		}
+	}
+	sort.Strings(rest)
+	if len(rest) > 0 || len(unmatched) > 0 {
+		grp := plot.Group{Name: "Other figures and checks"}
+		for _, k := range rest {
+			grp.Rows = append(grp.Rows, row(k, strings.ReplaceAll(k, "_", " ")))
+		}
+		for _, c := range unmatched {
+			v := "did not happen"
+			if c.Value != nil {
+				v = si(*c.Value, c.Unit)
+			}
+			grp.Rows = append(grp.Rows, plot.Row{Key: "check:" + c.Name, Name: c.Name, Value: v,
+				Requirement: requirementText(c, minChecks[c.Name]), Checked: true, Pass: c.Pass})
+		}
+		rep.Groups = append(rep.Groups, grp)
+	}
+
+	// Verdict.
+	var failedNames []string
+	for _, c := range doc.Checks {
+		if !c.Pass {
+			failedNames = append(failedNames, c.Name)
+		}
+	}
+	switch {
+	case len(doc.Checks) == 0:
+		rep.Verdict = "no ratings or requirements given"
+	case len(failedNames) == 0:
+		rep.Verdict = fmt.Sprintf("all %d checks pass", len(doc.Checks))
+	default:
+		rep.Verdict = fmt.Sprintf("%d of %d checks FAIL: %s", len(failedNames), len(doc.Checks), strings.Join(failedNames, ", "))
+	}
+	rep.Failed = doc.Failed
+
+	// Notes, cautions first.
+	rank := map[string]int{"caution": 0, "warning": 1}
+	notes := append([]coilkickNote(nil), doc.Notes...)
+	sort.SliceStable(notes, func(i, j int) bool {
+		ri, ok := rank[notes[i].Level]
+		if !ok {
+			ri = 2
+		}
+		rj, ok := rank[notes[j].Level]
+		if !ok {
+			rj = 2
+		}
+		return ri < rj
+	})
+	for _, n := range notes {
+		rep.Notes = append(rep.Notes, plot.ReportNote{Figure: n.Figure, Level: n.Level, Text: n.Text})
+	}
+	for _, e := range doc.Events {
+		rep.Events = append(rep.Events, plot.ReportEvent{Time: fmt.Sprintf("%.4f ms", e.Time*1e3), What: e.What})
+	}
+
+	// Figures.
+	rep.Figures = append(rep.Figures, plot.ReportFigure{ID: "waveforms", Heading: "Waveforms",
+		Caption: "Coil current, coil and switch voltage, air gap, and the forces on the plunger over the run; " +
+			"dashed lines mark energize, the plunger leaving the rest stop (moves), the first seat impact (seated), " +
+			"de-energize and the plunger leaving the seat (released). Fast chopping is drawn as its envelope.",
+		Figure: waveformFigure(path, md, res)})
+	ms := md.MagnetSummary()
+	var currents []float64
+	for _, k := range []float64{0.25, 0.5, 0.75, 1, 1.25, 1.5} {
+		currents = append(currents, k*ms.RatedCurrent)
+	}
+	curves, err := md.ForceCurves(currents, 41)
+	if err != nil {
+		return nil, false, err
+	}
+	var passive []float64
+	if len(curves) > 0 {
+		for _, x := range curves[0].Gap {
+			passive = append(passive, md.Plunger.PassiveForce(x, 0))
+		}
+	}
+	rep.Figures = append(rep.Figures, plot.ReportFigure{ID: "magnet", Heading: "Magnet: pull versus air gap",
+		Caption: fmt.Sprintf("Magnetic pull over the stroke at 0.25 to 1.5 × the rated current (%s = supply ÷ coil resistance at %.0f °C), "+
+			"against the spring and load (dashed). The plunger pulls in where the pull at the rest gap exceeds the dashed line.",
+			si(ms.RatedCurrent, "A"), md.Temperature-273.15),
+		Figure: plot.ForceVsGap("Pull versus air gap, one line per coil current", curves, passive)})
+
+	failed := doc.Failed
+	if sc.Thermal != nil && sc.Duty != nil {
+		pat := coilkick.DutyPattern{OnTime: sc.Duty.OnTime, Period: sc.Duty.Period, Duration: sc.Duty.Duration}
+		hr, err := coilkick.Heat(md, pat)
+		if err != nil {
+			return nil, false, err
+		}
+		hs, hotFail := heatSection(hr)
+		rep.Heat = hs
+		if hotFail {
+			failed = true
+			rep.Failed = true
+			rep.Verdict += "; the duty-cycle heating study FAILS"
+		}
+	}
+
+	rep.Footer = []string{
+		fmt.Sprintf("Solver: %s, %d steps (%d rejected), %d events, %d evaluations.",
+			doc.Solver.Method, doc.Solver.Steps, doc.Solver.Rejected, doc.Solver.Events, doc.Solver.Evaluations),
+		"Figures are rounded to 3 significant digits as in the text summary; coilkick run --json gives them in full.",
+		"coilkick's results are model estimates from the data in the scenario. The cautions are reminders, not a safety assessment: " +
+			"confirm on the bench, and follow local electrical codes and licensed practice for wiring, insulation and protection.",
+	}
+	return rep, failed, nil
+}
+
+func celsius(k float64) string { return strconv.FormatFloat(k-273.15, 'f', 1, 64) + " °C" }
+
+// heatSection lays out a duty-cycle study as printHeat does; failed when
+// the class limit is exceeded or the hot coil does not pull in.
+func heatSection(r *coilkick.HeatResult) (*plot.HeatSection, bool) {
+	p := r.Pattern
+	failed := false
+	state := "periodic steady state"
+	if !r.Steady {
+		state = fmt.Sprintf("after %s, not yet steady", si(float64(r.Cycles)*p.Period, "s"))
+	}
+	temp := plot.Group{Name: "Winding temperature (" + state + ")"}
+	add := func(g *plot.Group, key, name, value string) *plot.Row {
+		g.Rows = append(g.Rows, plot.Row{Key: "heat." + key, Name: name, Value: value})
+		return &g.Rows[len(g.Rows)-1]
+	}
+	add(&temp, "peak", "peak", celsius(r.Peak)).Caution = r.Peak > coilkick.HotSurfaceCaution
+	add(&temp, "mean", "mean", celsius(r.Mean))
+	add(&temp, "valley", "valley", celsius(r.Valley))
+	add(&temp, "ripple", "ripple", fmt.Sprintf("%.2f K", r.Ripple))
+	if r.Steady {
+		add(&temp, "settled", "settled (within 0.01 K) after", si(r.SteadyAfter, "s"))
+	}
+	add(&temp, "hot_resistance", "coil resistance at the peak", si(r.HotResistance, "Ω"))
+	if r.Limit > 0 {
+		row := add(&temp, "class_margin", "insulation class "+r.Class+" (IEC 60085) margin", fmt.Sprintf("%.1f K", r.Limit-r.Peak))
+		row.Checked, row.Pass, row.Requirement = true, r.Peak <= r.Limit, "peak ≤ "+celsius(r.Limit)
+		failed = failed || !row.Pass
+		held := "never reaches the limit"
+		if r.HeldToLimit.Happened {
+			held = "limit after " + si(r.HeldToLimit.Seconds, "s")
+		}
+		add(&temp, "held_on", "held on continuously", fmt.Sprintf("%s (steady %s)", held, celsius(r.HeldSteady)))
+		add(&temp, "max_relative_on_time", "largest relative on-time within class", fmt.Sprintf("%.1f %%", 100*r.MaxRelativeOnTime))
+	}
+	hot := plot.Group{Name: "Hot coil"}
+	pull := func(key, name string, iv coilkick.Interval) {
+		row := add(&hot, key, name, "did not pull in")
+		row.Checked, row.Requirement, row.Pass = true, "required: pulls in", iv.Happened
+		if iv.Happened {
+			row.Value = si(iv.Seconds, "s")
+		}
+		failed = failed || !iv.Happened
+	}
+	pull("hot_pull_in", "pull-in, hot, nominal supply", r.HotPullIn)
+	if r.LowSupply > 0 {
+		pull("hot_pull_in_low", "pull-in, hot, low supply "+si(r.LowSupply, "V"), r.HotPullInLow)
+	}
+	lowest := "none up to the nominal supply"
+	if r.LowestPullInSupply > 0 {
+		lowest = si(r.LowestPullInSupply, "V")
+	}
+	add(&hot, "lowest_pull_in_supply", "lowest supply that pulls in, hot", lowest)
+
+	intro := fmt.Sprintf("%s on every %s (relative on-time %.1f %%), ambient %s; %d cycles stepped with the exact thermal solution, %d electrical simulations.",
+		si(p.OnTime, "s"), si(p.Period, "s"), 100*p.RelativeOnTime(), celsius(r.Ambient), r.Cycles, r.Simulations)
+	if r.Peak > coilkick.HotSurfaceCaution {
+		intro += fmt.Sprintf(" CAUTION: the winding reaches %s; the coil surface may be hot enough to burn: guard it and label it.", celsius(r.Peak))
+	}
+	return &plot.HeatSection{Intro: intro, Groups: []plot.Group{temp, hot}, Figure: plot.ReportFigure{
+		ID: "heat-history", Heading: "Duty-cycle temperature history",
+		Caption: "Winding temperature at the end of each on-time (peak) and of each cycle (valley).",
+		Figure:  plot.HeatHistory("Winding temperature over the duty cycle", r),
+	}}, failed
+}
+
+// scenarioSummary describes the scenario in a few labelled lines.
+func scenarioSummary(md *coilkick.Model, sc *coilkick.Scenario) []plot.Item {
+	var out []plot.Item
+	add := func(label, value string) { out = append(out, plot.Item{Label: label, Value: value}) }
+	join := func(parts ...string) string {
+		var keep []string
+		for _, p := range parts {
+			if p != "" {
+				keep = append(keep, p)
+			}
+		}
+		return strings.Join(keep, ", ")
+	}
+	opt := func(v float64, format string, args ...any) string {
+		if v == 0 {
+			return ""
+		}
+		return fmt.Sprintf(format, args...)
+	}
+	sp := sc.Supply
+	add("supply", join(si(sp.Voltage, "V"), opt(sp.SourceResistance, "source resistance %s", si(sp.SourceResistance, "Ω")),
+		opt(sp.BulkCapacitance, "bulk capacitor %s", si(sp.BulkCapacitance, "F")), opt(sp.LowVoltage, "lowest in tolerance %s", si(sp.LowVoltage, "V"))))
+	coil := fmt.Sprintf("%s at %.0f °C (%s at 20 °C)", si(md.CoilResistance(), "Ω"), md.Temperature-273.15, si(md.Coil.ResistanceAt(293.15), "Ω"))
+	if md.Coil.Turns > 0 {
+		coil += fmt.Sprintf(", %.0f turns", md.Coil.Turns)
+	}
+	if md.CoilBuild != nil {
+		coil += ", from bobbin and wire"
+	}
+	add("coil", coil)
+	mg := sc.Magnet
+	magnet := mg.Kind
+	switch mg.Kind {
+	case coilkick.MagnetGapLaw:
+		magnet = fmt.Sprintf("gap law: %s seated, %s at rest", si(mg.ClosedInductance, "H"), si(mg.OpenInductance, "H"))
+	case coilkick.MagnetTable:
+		magnet = "flux-linkage table " + filepath.Base(mg.TableFile)
+	case coilkick.MagnetGeom:
+		magnet = "plunger magnet from its dimensions (lumped magnetic circuit)"
+	}
+	add("magnet", join(magnet, opt(mg.EddyResistance, "eddy currents as %s shorted turn", si(mg.EddyResistance, "Ω"))))
+	pl := sc.Plunger
+	add("plunger", join(fmt.Sprintf("%.3g g, air gap %.3g mm at rest, %.3g mm seated", pl.Mass*1e3, pl.RestGap*1e3, pl.SeatedGap*1e3),
+		fmt.Sprintf("spring %.3g N preload, %.3g N/mm", pl.SpringPreload, pl.SpringRate*1e-3),
+		opt(pl.Pressure, "pressure %s", si(pl.Pressure, "Pa")), opt(pl.ConstantLoad, "load %s", si(pl.ConstantLoad, "N"))))
+	sw := sc.Switch
+	add("switch", join(fmt.Sprintf("low side, %s on", si(sw.OnResistance, "Ω")), fmt.Sprintf("breakdown %s", si(sw.BreakdownVoltage, "V")),
+		opt(sw.OutputCapacitance, "%s output capacitance", si(sw.OutputCapacitance, "F"))))
+	su := sc.Suppression
+	add("suppression", join(su.Kind, opt(su.ForwardDrop, "forward drop %s", si(su.ForwardDrop, "V")),
+		opt(su.ZenerVoltage, "Zener %s", si(su.ZenerVoltage, "V")), opt(su.ClampVoltage, "clamp %s", si(su.ClampVoltage, "V")),
+		opt(su.Resistance, "resistance %s", si(su.Resistance, "Ω")), opt(su.Capacitance, "%s", si(su.Capacitance, "F")),
+		opt(su.ReversePulse, "reverse pulse %s", si(su.ReversePulse, "s"))))
+	dr := sc.Drive
+	drive := fmt.Sprint(md.Control.Mode)
+	switch dr.Mode {
+	case coilkick.DrivePWM:
+		drive = join(drive, si(dr.Frequency, "Hz"), fmt.Sprintf("duty %.2g", dr.Duty))
+	case coilkick.DrivePeakHold:
+		drive = join(drive, fmt.Sprintf("%s for %s, hold %s", si(dr.PeakCurrent, "A"), si(dr.PeakTime, "s"), si(dr.HoldCurrent, "A")),
+			dr.Regulation, opt(dr.Frequency, "%s", si(dr.Frequency, "Hz")), opt(boolFloat(dr.Decay != ""), "%s decay", dr.Decay))
+	case coilkick.DriveBoostHold:
+		drive = join(drive, fmt.Sprintf("%s for %s", si(dr.BoostVoltage, "V"), si(dr.BoostTime, "s")))
+	}
+	add("drive", drive)
+	tm := sc.Timing
+	add("timing", fmt.Sprintf("energize at %s, de-energize at %s, end %s", si(tm.EnergizeAt, "s"), si(tm.DeenergizeAt, "s"), si(tm.End, "s")))
+	if th := sc.Thermal; th != nil {
+		add("thermal", join(fmt.Sprintf("ambient %s", celsius(th.Ambient)), opt(boolFloat(th.Class != ""), "insulation class %s", th.Class)))
+	}
+	if du := sc.Duty; du != nil {
+		add("duty", fmt.Sprintf("%s on every %s", si(du.OnTime, "s"), si(du.Period, "s")))
+	}
+	return out
+}
+
+func boolFloat(b bool) float64 {
+	if b {
+		return 1
+	}
+	return 0
 }

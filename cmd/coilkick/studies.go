@@ -19,6 +19,7 @@ import (
 // studyCommands are the design-study commands.
 func studyCommands(stdout io.Writer) []*cli.Command {
 	return []*cli.Command{
+		fitCommand(stdout),
 		{
 			Name:      "sweep",
 			Usage:     "run the scenario over a grid of values of its keys, in parallel",

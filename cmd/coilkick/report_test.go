@@ -1,0 +1,390 @@
+package main
+
+import (
+	"bytes"
+	"encoding/json"
+	"encoding/xml"
+	"image/png"
+	"io"
+	"os"
+	"path/filepath"
+	"regexp"
+	"sort"
+	"strings"
+	"sync"
+	"testing"
+
+	"golang.org/x/net/html"
+
+	"coilkick/cmd/coilkick/plot"
+)
+
+func demos(t *testing.T) []string {
+	t.Helper()
+	files, err := filepath.Glob("../../scenarios/*.yaml")
+	if err != nil || len(files) == 0 {
+		t.Fatalf("no demo scenarios: %v", err)
+	}
+	return files
+}
+
+// runCLI runs the command line and returns its exit status and output.
+func runCLI(args ...string) (int, string, string) {
+	var out, errb bytes.Buffer
+	code := run(&out, &errb, append([]string{"coilkick"}, args...))
+	return code, out.String(), errb.String()
+}
+
+// runStatus is the exit status of "run" on a scenario (0 or 2).
+func runStatus(t *testing.T, file string) int {
+	code, _, stderr := runCLI("run", file, "--json", filepath.Join(t.TempDir(), "s.json"))
+	if code != exitOK && code != exitFailing {
+		t.Fatalf("run %s: exit %d: %s", file, code, stderr)
+	}
+	return code
+}
+
+func TestRunPlotEveryDemo(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
+	w, h := (&plot.Figure{Width: plot.WaveformWidth, Height: plot.WaveformHeight}).PixelSize()
+	var wg sync.WaitGroup
+	for _, f := range demos(t) {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			base := strings.TrimSuffix(filepath.Base(f), ".yaml")
+			pngFile, svgFile := filepath.Join(dir, base+".png"), filepath.Join(dir, base+".svg")
+			code, _, stderr := runCLI("run", f, "--plot", pngFile)
+			if code != exitOK && code != exitFailing {
+				t.Errorf("%s: run --plot png: exit %d: %s", base, code, stderr)
+				return
+			}
+			if code, _, stderr := runCLI("run", f, "--plot", svgFile); code != exitOK && code != exitFailing {
+				t.Errorf("%s: run --plot svg: exit %d: %s", base, code, stderr)
+				return
+			}
+			pf, err := os.Open(pngFile)
+			if err != nil {
+				t.Error(err)
+				return
+			}
+			defer pf.Close()
+			img, err := png.Decode(pf)
+			if err != nil {
+				t.Errorf("%s: PNG does not decode: %v", base, err)
+			} else if b := img.Bounds(); b.Dx() != w || b.Dy() != h {
+				t.Errorf("%s: PNG is %dx%d, want %dx%d", base, b.Dx(), b.Dy(), w, h)
+			}
+			sb, err := os.ReadFile(svgFile)
+			if err != nil {
+				t.Error(err)
+				return
+			}
+			d := xml.NewDecoder(bytes.NewReader(sb))
+			for {
+				_, err := d.Token()
+				if err == io.EOF {
+					break
+				}
+				if err != nil {
+					t.Errorf("%s: SVG is not well-formed XML: %v", base, err)
+					break
+				}
+			}
+		}()
+	}
+	wg.Wait()
+	if code, _, stderr := runCLI("run", "../../scenarios/irrigation-valve.yaml", "--plot", filepath.Join(dir, "x.pdf")); code != exitError ||
+		!strings.Contains(stderr, ".png or .svg") {
+		t.Errorf("--plot x.pdf: exit %d, %q; want an error naming the formats", code, stderr)
+	}
+}
+
+// htmlDoc is a parsed report: its text, the text of each figure row by
+// data-key, the class of each row, and its attributes for the reference
+// check.
+type htmlDoc struct {
+	text     string
+	rows     map[string][]string // data-key → cell texts
+	rowClass map[string]string
+	external []string // src/href/url() pointing outside the file
+	scripts  int
+}
+
+var externalURL = regexp.MustCompile(`(?i)url\(\s*['"]?(https?:|//)`)
+
+func parseReport(t *testing.T, b []byte) *htmlDoc {
+	t.Helper()
+	root, err := html.Parse(bytes.NewReader(b))
+	if err != nil {
+		t.Fatalf("report does not parse: %v", err)
+	}
+	d := &htmlDoc{rows: map[string][]string{}, rowClass: map[string]string{}}
+	var text strings.Builder
+	var textOf func(n *html.Node) string
+	textOf = func(n *html.Node) string {
+		var s strings.Builder
+		for c := n.FirstChild; c != nil; c = c.NextSibling {
+			if c.Type == html.TextNode {
+				s.WriteString(c.Data)
+			} else {
+				s.WriteString(textOf(c))
+			}
+		}
+		return s.String()
+	}
+	var walk func(n *html.Node)
+	walk = func(n *html.Node) {
+		switch n.Type {
+		case html.TextNode:
+			if p := n.Parent; p == nil || (p.Data != "style" && p.Data != "script") {
+				text.WriteString(n.Data)
+				text.WriteString(" ")
+			} else if p.Data == "style" && externalURL.MatchString(n.Data) {
+				d.external = append(d.external, "style url()")
+			}
+		case html.ElementNode:
+			if n.Data == "script" {
+				d.scripts++
+			}
+			for _, a := range n.Attr {
+				v := strings.ToLower(strings.TrimSpace(a.Val))
+				switch a.Key {
+				case "src", "href", "xlink:href", "action", "poster", "srcset":
+					if strings.HasPrefix(v, "http:") || strings.HasPrefix(v, "https:") || strings.HasPrefix(v, "//") {
+						d.external = append(d.external, a.Key+"="+a.Val)
+					}
+				case "style":
+					if externalURL.MatchString(v) {
+						d.external = append(d.external, "style="+a.Val)
+					}
+				}
+				if n.Data == "link" && a.Key == "href" {
+					d.external = append(d.external, "link href="+a.Val)
+				}
+			}
+			if n.Data == "tr" {
+				for _, a := range n.Attr {
+					if a.Key == "data-key" {
+						var cells []string
+						for c := n.FirstChild; c != nil; c = c.NextSibling {
+							if c.Type == html.ElementNode && c.Data == "td" {
+								cells = append(cells, strings.TrimSpace(textOf(c)))
+							}
+						}
+						d.rows[a.Val] = cells
+						for _, b := range n.Attr {
+							if b.Key == "class" {
+								d.rowClass[a.Val] = b.Val
+							}
+						}
+					}
+				}
+			}
+		}
+		for c := n.FirstChild; c != nil; c = c.NextSibling {
+			walk(c)
+		}
+	}
+	walk(root)
+	d.text = strings.Join(strings.Fields(text.String()), " ")
+	return d
+}
+
+// flatJSON returns the metrics of a --json summary, decoded on its own,
+// as key → value ("hold." for the hold's keys).
+func flatJSON(t *testing.T, b []byte) (map[string]any, []map[string]any, []map[string]any) {
+	t.Helper()
+	var doc struct {
+		Metrics map[string]any   `json:"metrics"`
+		Checks  []map[string]any `json:"checks"`
+		Notes   []map[string]any `json:"notes"`
+	}
+	if err := json.Unmarshal(b, &doc); err != nil {
+		t.Fatal(err)
+	}
+	out := map[string]any{}
+	for k, v := range doc.Metrics {
+		if obj, ok := v.(map[string]any); ok {
+			for k2, v2 := range obj {
+				out[k+"."+k2] = v2
+			}
+		} else if k != "hold" {
+			out[k] = v
+		}
+	}
+	return out, doc.Checks, doc.Notes
+}
+
+// TestReportEveryDemo: the report of each demo parses as HTML, shows every
+// metric of the --json summary with the same value (formatted with
+// figureText: si() by the key's unit suffix, as the text summary), every
+// check with its verdict, the safety notes, and references nothing
+// outside the file; its exit status is run's.
+func TestReportEveryDemo(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
+	var mu sync.Mutex
+	seen := map[string]bool{}
+	var wg sync.WaitGroup
+	for _, f := range demos(t) {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			base := strings.TrimSuffix(filepath.Base(f), ".yaml")
+			out, js := filepath.Join(dir, base+".html"), filepath.Join(dir, base+".json")
+			want := runStatus(t, f)
+			code, _, stderr := runCLI("report", f, "-o", out)
+			if code != want {
+				t.Errorf("%s: report exit %d, run exit %d: %s", base, code, want, stderr)
+			}
+			if code, _, stderr := runCLI("run", f, "--json", js); code != want {
+				t.Errorf("%s: run --json exit %d: %s", base, code, stderr)
+				return
+			}
+			hb, err := os.ReadFile(out)
+			if err != nil {
+				t.Error(err)
+				return
+			}
+			jb, err := os.ReadFile(js)
+			if err != nil {
+				t.Error(err)
+				return
+			}
+			doc := parseReport(t, hb)
+			metrics, checks, notes := flatJSON(t, jb)
+			if len(metrics) < 25 {
+				t.Errorf("%s: only %d metrics in the JSON summary", base, len(metrics))
+			}
+			var keys []string
+			for k := range metrics {
+				keys = append(keys, k)
+			}
+			sort.Strings(keys)
+			for _, k := range keys {
+				cells, ok := doc.rows[k]
+				if !ok || len(cells) < 2 {
+					t.Errorf("%s: metric %s is not in the report", base, k)
+					continue
+				}
+				if w := figureText(k, metrics[k]); cells[1] != w {
+					t.Errorf("%s: %s shows %q, JSON %v formats as %q", base, k, cells[1], metrics[k], w)
+				}
+				if !strings.Contains(doc.text, cells[1]) {
+					t.Errorf("%s: %q not in the report's text", base, cells[1])
+				}
+			}
+			// Checks: each with its verdict beside its figure.
+			for _, c := range checks {
+				name := c["name"].(string)
+				key, ok := checkFigure[name]
+				if !ok {
+					key = "check:" + name
+				}
+				cells := doc.rows[key]
+				verdict := "pass"
+				if !c["pass"].(bool) {
+					verdict = "FAIL"
+					if !strings.Contains(doc.rowClass[key], "failed") {
+						t.Errorf("%s: failing check %s not highlighted", base, name)
+					}
+				}
+				if len(cells) < 4 || cells[3] != verdict {
+					t.Errorf("%s: check %s: row %q, want verdict %s", base, name, cells, verdict)
+				}
+			}
+			// Safety notes, cautions marked.
+			for _, n := range notes {
+				if txt := n["text"].(string); !strings.Contains(doc.text, txt) {
+					t.Errorf("%s: note %q missing", base, txt)
+				}
+				mu.Lock()
+				seen[base+":"+n["level"].(string)] = true
+				mu.Unlock()
+			}
+			if len(doc.external) > 0 || doc.scripts > 0 {
+				t.Errorf("%s: external references %v, %d scripts", base, doc.external, doc.scripts)
+			}
+			if !bytes.Contains(hb, []byte("<svg")) || bytes.Contains(hb, []byte("<?xml")) || bytes.Contains(hb, []byte("<img")) {
+				t.Errorf("%s: figures are not inline SVG", base)
+			}
+			if !bytes.Contains(hb, []byte("@media print")) {
+				t.Errorf("%s: no print style", base)
+			}
+			if strings.Contains(base, "duty") && !strings.Contains(doc.text, "Duty-cycle heating") {
+				t.Errorf("%s: no heat section", base)
+			}
+		}()
+	}
+	wg.Wait()
+	// The demos that must carry cautions do.
+	for _, s := range []string{"door-latch:caution", "process-air-valve:caution"} {
+		if !seen[s] {
+			t.Errorf("no %s note in the report", s)
+		}
+	}
+}
+
+func TestReportCautionsAndEscaping(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
+	// door-latch: cautions, failing ratings, exit 2 with the report written.
+	out := filepath.Join(dir, "latch.html")
+	if code, _, stderr := runCLI("report", "--output", out, "../../scenarios/door-latch.yaml"); code != exitFailing {
+		t.Fatalf("door latch: exit %d, want %d: %s", code, exitFailing, stderr)
+	}
+	b, err := os.ReadFile(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	doc := parseReport(t, b)
+	for _, s := range []string{"CAUTION", "avalanche", "FAIL", "no suppression part is fitted"} {
+		if !strings.Contains(strings.ToUpper(doc.text), strings.ToUpper(s)) {
+			t.Errorf("door latch report lacks %q", s)
+		}
+	}
+	if !bytes.Contains(b, []byte(`<li class="caution">`)) {
+		t.Errorf("cautions not highlighted")
+	}
+	if !strings.Contains(doc.rowClass["peak_switch_voltage_V"], "caution") {
+		t.Errorf("peak switch voltage row not marked with its caution: %q", doc.rowClass["peak_switch_voltage_V"])
+	}
+
+	// A scenario name with markup is escaped.
+	src, err := os.ReadFile("../../scenarios/irrigation-valve.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	name := `<script>alert(1)</script> "valve" & <b>co</b>`
+	lines := strings.Split(string(src), "\n")
+	for k, l := range lines {
+		if strings.HasPrefix(l, "name:") {
+			lines[k] = "name: '" + name + "'"
+		}
+	}
+	yaml := filepath.Join(dir, "evil.yaml")
+	if err := os.WriteFile(yaml, []byte(strings.Join(lines, "\n")), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out = filepath.Join(dir, "evil.html")
+	if code, _, stderr := runCLI("report", yaml, "-o", out); code != exitOK {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	b, err = os.ReadFile(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if bytes.Contains(b, []byte("<script>")) || bytes.Contains(b, []byte("<b>co")) {
+		t.Errorf("scenario name not escaped")
+	}
+	if doc := parseReport(t, b); !strings.Contains(doc.text, name) || doc.scripts > 0 {
+		t.Errorf("escaped name not shown as text (scripts %d)", doc.scripts)
+	}
+
+	// -o is required.
+	if code, _, _ := runCLI("report", "../../scenarios/irrigation-valve.yaml"); code != exitError {
+		t.Errorf("report without -o: exit %d", code)
+	}
+}
