@@ -35,7 +35,7 @@ var errFailing = errors.New("a rating or requirement fails")
 // valueFlags are the flags that take a value, for reordering arguments.
 var valueFlags = map[string]bool{"csv": true, "json": true, "tolerance": true, "curves": true, "currents": true,
 	"plot": true, "o": true, "output": true, "vary": true, "seed": true, "samples": true, "workers": true,
-	"trace": true, "params": true, "margin": true}
+	"trace": true, "params": true, "margin": true, "plot-window": true}
 
 // permute moves flags written after positional arguments in front of them,
 // so that "coilkick run valve.yaml --csv out.csv" works: the flag parser
@@ -83,6 +83,7 @@ func run(stdout, stderr io.Writer, args []string) int {
 					&cli.StringFlag{Name: "json", Usage: "write the summary to `FILE` (- for standard output)"},
 					&cli.Float64Flag{Name: "tolerance", Usage: "relative tolerance of the integrator (default: scenario's, else 1e-8)"},
 					&cli.StringFlag{Name: "plot", Usage: "write the waveform plot to `FILE` (.png or .svg)"},
+					&cli.StringFlag{Name: "plot-window", Usage: "plot only `FROM:TO` (ms), e.g. 0:20 for the pull-in"},
 				},
 				Action: func(c *cli.Context) error { return cmdRun(c, stdout) },
 			},
@@ -177,7 +178,14 @@ func cmdRun(c *cli.Context, w io.Writer) error {
 		}
 	}
 	if f := c.String("plot"); f != "" {
-		if err := plotRun(f, path, md, res); err != nil {
+		pr := res
+		if win := c.String("plot-window"); win != "" {
+			var err error
+			if pr, err = cropResult(res, win); err != nil {
+				return err
+			}
+		}
+		if err := plotRun(f, path, md, pr); err != nil {
 			return err
 		}
 	}

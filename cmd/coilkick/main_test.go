@@ -47,6 +47,11 @@ func TestRunExitCodes(t *testing.T) {
 			[]string{"16 corners", "winding 110 degC", "Monte Carlo: 10 samples"}, nil},
 		{"corners without tolerances", []string{"corners", "../../scenarios/irrigation-valve.yaml"}, exitError, nil, []string{"tolerances"}},
 		{"solve", []string{"solve", "../../scenarios/process-air-valve.yaml"}, exitOK, []string{"lowest supply that pulls in", "lowest holding current"}, nil},
+		{"plot window", []string{"run", "../../scenarios/peak-hold-valve.yaml", "--plot", filepath.Join(dir, "w.png"), "--plot-window", "0:40"}, exitOK, []string{"pull-in time"}, nil},
+		{"plot window bad", []string{"run", "../../scenarios/irrigation-valve.yaml", "--plot", filepath.Join(dir, "w2.png"), "--plot-window", "5:1"}, exitError, nil, []string{"--plot-window"}},
+		{"fit", []string{"fit", "../../scenarios/irrigation-valve.yaml", "--trace", "../../testdata/fit/irrigation-scope.csv", "-o", filepath.Join(dir, "fitted.yaml"), "--plot", filepath.Join(dir, "fit.svg")}, exitOK,
+			[]string{"dip minimum (seated)", "resistance", "Fitted scenario written"}, nil},
+		{"fit bad param", []string{"fit", "../../scenarios/irrigation-valve.yaml", "--trace", "../../testdata/fit/irrigation-scope.csv", "--params", "colour"}, exitError, nil, []string{"unknown parameter"}},
 		{"magnet bad currents", []string{"magnet", "../../scenarios/irrigation-valve.yaml", "--currents", "0.1,x"}, exitError, nil, []string{"--currents"}},
 	}
 	for _, c := range cases {

@@ -1,0 +1,48 @@
+package main
+
+import (
+	"fmt"
+	"strconv"
+	"strings"
+
+	"coilkick"
+)
+
+// cropResult returns a copy of res whose trace and events are limited to
+// the window "FROM:TO" in milliseconds.
+func cropResult(res *coilkick.Result, win string) (*coilkick.Result, error) {
+	a, b, ok := strings.Cut(win, ":")
+	from, err1 := strconv.ParseFloat(strings.TrimSpace(a), 64)
+	to, err2 := strconv.ParseFloat(strings.TrimSpace(b), 64)
+	if !ok || err1 != nil || err2 != nil || !(to > from) {
+		return nil, fmt.Errorf("--plot-window %q: expected FROM:TO in ms with FROM < TO, e.g. 0:20", win)
+	}
+	from, to = from*1e-3, to*1e-3
+	out := *res
+	tr := &res.Trace
+	var ct coilkick.Trace
+	for k, t := range tr.Time {
+		if t < from || t > to {
+			continue
+		}
+		ct.Time = append(ct.Time, t)
+		ct.Current = append(ct.Current, tr.Current[k])
+		ct.CoilVoltage = append(ct.CoilVoltage, tr.CoilVoltage[k])
+		ct.SwitchVoltage = append(ct.SwitchVoltage, tr.SwitchVoltage[k])
+		ct.Gap = append(ct.Gap, tr.Gap[k])
+		ct.Velocity = append(ct.Velocity, tr.Velocity[k])
+		ct.MagneticForce = append(ct.MagneticForce, tr.MagneticForce[k])
+		ct.PassiveForce = append(ct.PassiveForce, tr.PassiveForce[k])
+	}
+	if len(ct.Time) < 2 {
+		return nil, fmt.Errorf("--plot-window %q holds fewer than 2 samples of the run", win)
+	}
+	out.Trace = ct
+	out.Events = nil
+	for _, e := range res.Events {
+		if e.Time >= from && e.Time <= to {
+			out.Events = append(out.Events, e)
+		}
+	}
+	return &out, nil
+}
