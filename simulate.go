@@ -47,6 +47,8 @@ type Trace struct {
 	Velocity      []float64
 	MagneticForce []float64 // pull toward the seat
 	PassiveForce  []float64 // spring + load − damping, pushing the gap open
+	// WindingTemperature (K): constant unless the scenario has a thermal model.
+	WindingTemperature []float64
 }
 
 func (tr *Trace) add(t float64, o outputs) {
@@ -58,6 +60,7 @@ func (tr *Trace) add(t float64, o outputs) {
 	tr.Velocity = append(tr.Velocity, o.Velocity)
 	tr.MagneticForce = append(tr.MagneticForce, o.MagneticForce)
 	tr.PassiveForce = append(tr.PassiveForce, o.PassiveForce)
+	tr.WindingTemperature = append(tr.WindingTemperature, o.WindingTemperature)
 }
 
 // Event is something that happened during a run.

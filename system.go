@@ -84,6 +84,7 @@ type outputs struct {
 	Current, CoilVoltage, SwitchVoltage, SupplyCurrent, ClampCurrent float64
 	Gap, Velocity, MagneticForce, PassiveForce                       float64
 	RailVoltage                                                      float64 // V at the drive's supply terminals
+	WindingTemperature                                               float64 // K
 }
 
 // resistance returns the coil resistance at y (ohm).
@@ -218,7 +219,7 @@ func (s *system) out(y []float64) outputs {
 		Current: i, CoilVoltage: s.pt.CoilVoltage, SwitchVoltage: s.pt.SwitchVoltage,
 		SupplyCurrent: s.pt.SupplyCurrent, ClampCurrent: math.Abs(s.pt.ClampCurrent),
 		Gap: x, Velocity: v, MagneticForce: s.mag.Force(im, x), PassiveForce: s.plunger.PassiveForce(x, v),
-		RailVoltage: s.railVoltage(y),
+		RailVoltage: s.railVoltage(y), WindingTemperature: y[sWinding],
 	}
 }
 

@@ -33,6 +33,7 @@ func cropResult(res *coilkick.Result, win string) (*coilkick.Result, error) {
 		ct.Velocity = append(ct.Velocity, tr.Velocity[k])
 		ct.MagneticForce = append(ct.MagneticForce, tr.MagneticForce[k])
 		ct.PassiveForce = append(ct.PassiveForce, tr.PassiveForce[k])
+		ct.WindingTemperature = append(ct.WindingTemperature, tr.WindingTemperature[k])
 	}
 	if len(ct.Time) < 2 {
 		return nil, fmt.Errorf("--plot-window %q holds fewer than 2 samples of the run", win)

@@ -100,6 +100,20 @@ func Waveform(tr *coilkick.Trace, markers []Marker, opt WaveformOptions) *Figure
 		{"air gap (mm)", []panelSeries{{"working air gap", tr.Gap, colGap, 1e3}}, 0.8},
 		{"force (N)", []panelSeries{{"magnetic pull toward the seat", tr.MagneticForce, colPull, 1}, {"passive force (spring + load − damping)", tr.PassiveForce, colPassive, 1}}, 1},
 	}
+	// The winding temperature, when a thermal model makes it vary.
+	if n := len(tr.WindingTemperature); n == len(tr.Time) && n > 0 {
+		lo, hi := tr.WindingTemperature[0], tr.WindingTemperature[0]
+		for _, v := range tr.WindingTemperature {
+			lo, hi = math.Min(lo, v), math.Max(hi, v)
+		}
+		if hi-lo > 0.01 {
+			degC := make([]float64, n)
+			for k, v := range tr.WindingTemperature {
+				degC[k] = v - 273.15
+			}
+			panels = append(panels, panel{"winding (°C)", []panelSeries{{"winding temperature", degC, colPull, 1}}, 0.7})
+		}
+	}
 	return stacked(opt, tr.Time, panels, markers, WaveformWidth, WaveformHeight)
 }
 
