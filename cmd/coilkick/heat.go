@@ -10,6 +10,7 @@ import (
 	"github.com/urfave/cli/v2"
 
 	"coilkick"
+	"coilkick/cmd/coilkick/plot"
 )
 
 func cmdHeat(c *cli.Context, w io.Writer) error {
@@ -31,6 +32,11 @@ func cmdHeat(c *cli.Context, w io.Writer) error {
 	}
 	if f := c.String("csv"); f != "" {
 		if err := writeFile(f, w, func(out io.Writer) error { return writeHeatCSV(out, res) }); err != nil {
+			return err
+		}
+	}
+	if f := c.String("plot"); f != "" {
+		if err := plot.HeatHistory("Winding temperature — "+md.Name, res).Save(f); err != nil {
 			return err
 		}
 	}

@@ -10,6 +10,7 @@ import (
 	"github.com/urfave/cli/v2"
 
 	"coilkick"
+	"coilkick/cmd/coilkick/plot"
 )
 
 func cmdMagnet(c *cli.Context, w io.Writer) error {
@@ -30,6 +31,19 @@ func cmdMagnet(c *cli.Context, w io.Writer) error {
 	} else {
 		for _, k := range []float64{0.25, 0.5, 0.75, 1, 1.25, 1.5} {
 			currents = append(currents, k*s.RatedCurrent)
+		}
+	}
+	if f := c.String("plot"); f != "" {
+		curves, err := md.ForceCurves(currents, 81)
+		if err != nil {
+			return err
+		}
+		passive := make([]float64, len(curves[0].Gap))
+		for k, x := range curves[0].Gap {
+			passive[k] = md.Plunger.PassiveForce(x, 0)
+		}
+		if err := plot.ForceVsGap("Magnetic pull versus air gap — "+md.Name, curves, passive).Save(f); err != nil {
+			return err
 		}
 	}
 	if f := c.String("curves"); f != "" {

@@ -35,7 +35,7 @@ var errFailing = errors.New("a rating or requirement fails")
 // valueFlags are the flags that take a value, for reordering arguments.
 var valueFlags = map[string]bool{"csv": true, "json": true, "tolerance": true, "curves": true, "currents": true,
 	"plot": true, "o": true, "output": true, "vary": true, "seed": true, "samples": true, "workers": true,
-	"trace": true, "params": true, "margin": true, "plot-window": true}
+	"trace": true, "params": true, "margin": true, "plot-window": true, "figure": true}
 
 // permute moves flags written after positional arguments in front of them,
 // so that "coilkick run valve.yaml --csv out.csv" works: the flag parser
@@ -73,6 +73,8 @@ func run(stdout, stderr io.Writer, args []string) int {
 		ErrWriter: stderr,
 		// Exit codes are decided here, not by the library.
 		ExitErrHandler: func(*cli.Context, error) {},
+		// --vary takes lists with commas ("plunger.mass=5 g,8 g").
+		DisableSliceFlagSeparator: true,
 		Commands: append([]*cli.Command{
 			{
 				Name:      "run",
@@ -94,6 +96,7 @@ func run(stdout, stderr io.Writer, args []string) int {
 				Flags: []cli.Flag{
 					&cli.StringFlag{Name: "curves", Usage: "write force versus gap for a family of currents to `FILE` (CSV)"},
 					&cli.StringFlag{Name: "currents", Usage: "currents of the family, in A, comma-separated (default: 0.25 to 1.5 × rated)"},
+					&cli.StringFlag{Name: "plot", Usage: "plot force versus gap for the family, with spring + load, to `FILE` (.png or .svg)"},
 				},
 				Action: func(c *cli.Context) error { return cmdMagnet(c, stdout) },
 			},
@@ -103,6 +106,7 @@ func run(stdout, stderr io.Writer, args []string) int {
 				ArgsUsage: "SCENARIO.yaml",
 				Flags: []cli.Flag{
 					&cli.StringFlag{Name: "csv", Usage: "write the temperature history (peak and valley per cycle) to `FILE`"},
+					&cli.StringFlag{Name: "plot", Usage: "plot the temperature history to `FILE` (.png or .svg)"},
 				},
 				Action: func(c *cli.Context) error { return cmdHeat(c, stdout) },
 			},

@@ -52,6 +52,10 @@ func TestRunExitCodes(t *testing.T) {
 		{"fit", []string{"fit", "../../scenarios/irrigation-valve.yaml", "--trace", "../../testdata/fit/irrigation-scope.csv", "-o", filepath.Join(dir, "fitted.yaml"), "--plot", filepath.Join(dir, "fit.svg")}, exitOK,
 			[]string{"dip minimum (seated)", "resistance", "Fitted scenario written"}, nil},
 		{"fit bad param", []string{"fit", "../../scenarios/irrigation-valve.yaml", "--trace", "../../testdata/fit/irrigation-scope.csv", "--params", "colour"}, exitError, nil, []string{"unknown parameter"}},
+		{"sweep plot", []string{"sweep", "../../scenarios/irrigation-valve.yaml", "--vary", "supply.voltage=22 V:26 V:3", "--vary", "plunger.mass=6 g,8 g", "--plot", filepath.Join(dir, "sw.svg"), "--figure", "release"}, exitOK, []string{"6 g"}, nil},
+		{"clamps plot", []string{"clamps", "../../scenarios/irrigation-valve.yaml", "--plot", filepath.Join(dir, "cl.png")}, exitOK, []string{"recommended"}, nil},
+		{"heat plot", []string{"heat", "../../scenarios/door-strike-duty.yaml", "--plot", filepath.Join(dir, "ht.svg")}, exitOK, []string{"peak"}, nil},
+		{"magnet plot", []string{"magnet", "../../scenarios/irrigation-valve.yaml", "--plot", filepath.Join(dir, "mg.png")}, exitOK, []string{"saturation onset"}, nil},
 		{"magnet bad currents", []string{"magnet", "../../scenarios/irrigation-valve.yaml", "--currents", "0.1,x"}, exitError, nil, []string{"--currents"}},
 	}
 	for _, c := range cases {

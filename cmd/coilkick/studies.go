@@ -6,6 +6,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"strconv"
 	"strings"
@@ -14,6 +15,8 @@ import (
 	"github.com/urfave/cli/v2"
 
 	"coilkick"
+	"coilkick/circuit"
+	"coilkick/cmd/coilkick/plot"
 )
 
 // studyCommands are the design-study commands.
@@ -29,6 +32,8 @@ func studyCommands(stdout io.Writer) []*cli.Command {
 				&cli.StringFlag{Name: "csv", Usage: "write the results to `FILE` (CSV)"},
 				&cli.StringFlag{Name: "json", Usage: "write the results to `FILE` (JSON)"},
 				&cli.IntFlag{Name: "workers", Usage: "parallel simulations (default: all cores)"},
+				&cli.StringFlag{Name: "plot", Usage: "plot a figure versus the first key, one line per value of the second, to `FILE`"},
+				&cli.StringFlag{Name: "figure", Value: "pull-in", Usage: "figure to plot: pull-in, release, drop, peak current, hold current, switch voltage, clamp energy"},
 			},
 			Action: func(c *cli.Context) error { return cmdSweep(c, stdout) },
 		},
@@ -46,7 +51,10 @@ func studyCommands(stdout io.Writer) []*cli.Command {
 			Name:      "clamps",
 			Usage:     "compare suppression options for the scenario's actuation and recommend one",
 			ArgsUsage: "SCENARIO.yaml",
-			Action:    func(c *cli.Context) error { return cmdClamps(c, stdout) },
+			Flags: []cli.Flag{
+				&cli.StringFlag{Name: "plot", Usage: "plot release time versus peak switch voltage, one point per option, to `FILE`"},
+			},
+			Action: func(c *cli.Context) error { return cmdClamps(c, stdout) },
 		},
 		{
 			Name:      "solve",
@@ -147,10 +155,84 @@ func cmdSweep(c *cli.Context, w io.Writer) error {
 			return err
 		}
 	}
+	if f := c.String("plot"); f != "" {
+		if err := plotSweep(f, c.String("figure"), vs, pts); err != nil {
+			return err
+		}
+	}
 	if failed {
 		return errFailing
 	}
 	return nil
+}
+
+// sweepFigure picks a figure of a point (SI) and its axis label.
+func sweepFigure(name string, f coilkick.SweepFigures) (float64, string, bool) {
+	iv := func(x coilkick.Interval) float64 {
+		if !x.Happened {
+			return math.NaN() // a gap in the line: it did not happen
+		}
+		return x.Seconds * 1e3
+	}
+	switch name {
+	case "pull-in":
+		return iv(f.PullIn), "pull-in time (ms)", true
+	case "release":
+		return iv(f.Release), "release time (ms)", true
+	case "drop":
+		return iv(f.Drop), "drop time (ms)", true
+	case "peak current":
+		return f.PeakCurrent, "peak current (A)", true
+	case "hold current":
+		return f.HoldCurrent, "hold current (A)", true
+	case "switch voltage":
+		return f.PeakSwitchVoltage, "peak switch voltage (V)", true
+	case "clamp energy":
+		return f.ClampEnergy * 1e3, "clamp energy (mJ)", true
+	}
+	return 0, "", false
+}
+
+func plotSweep(file, figure string, vs []coilkick.Vary, pts []coilkick.SweepPoint) error {
+	if _, _, ok := sweepFigure(figure, coilkick.SweepFigures{}); !ok {
+		return fmt.Errorf("--figure %q: unknown figure", figure)
+	}
+	nx := len(vs[0].Values)
+	xs := make([]float64, nx)
+	for k, v := range vs[0].Values {
+		x, err := strconv.ParseFloat(strings.Fields(v)[0], 64)
+		if err != nil {
+			return fmt.Errorf("--plot needs numeric values of %s: %v", vs[0].Key, err)
+		}
+		xs[k] = x
+	}
+	xLabel := vs[0].Key
+	if f := strings.Fields(vs[0].Values[0]); len(f) > 1 {
+		xLabel += " (" + strings.Join(f[1:], " ") + ")"
+	}
+	inner := 1
+	for _, v := range vs[1:] {
+		inner *= len(v.Values)
+	}
+	var series []plot.Series
+	var yLabel string
+	for j := 0; j < inner; j++ {
+		ys := make([]float64, nx)
+		label := "all"
+		for k := 0; k < nx; k++ {
+			p := pts[k*inner+j]
+			y, l, _ := sweepFigure(figure, p.Figures)
+			if p.Err != "" {
+				y = math.NaN()
+			}
+			ys[k], yLabel = y, l
+			if len(p.Values) > 1 {
+				label = strings.Join(p.Values[1:], ", ")
+			}
+		}
+		series = append(series, plot.Series{Label: label, Ys: ys})
+	}
+	return plot.Lines(yLabel+" versus "+vs[0].Key, xLabel, yLabel, xs, series).Save(file)
 }
 
 func writeSweepCSV(w io.Writer, vs []coilkick.Vary, pts []coilkick.SweepPoint) error {
@@ -274,6 +356,40 @@ func cmdClamps(c *cli.Context, w io.Writer) error {
 			si(o.ClampEnergy, "J"), power, yes[o.MeetsRelease], yes[o.WithinRating], mark)
 	}
 	tw.Flush()
+	if f := c.String("plot"); f != "" {
+		var pts []plot.LabelledPoint
+		var zeners []int
+		for k, o := range cmp.Options {
+			if o.Err == "" && o.Release.Happened && o.Suppressor.Kind == circuit.DiodeZener {
+				zeners = append(zeners, k)
+			}
+		}
+		for k, o := range cmp.Options {
+			if o.Err != "" || !o.Release.Happened {
+				continue
+			}
+			label := o.Name
+			switch o.Suppressor.Kind {
+			case circuit.DiodeZener:
+				// Label the first, the last and every sixth Zener only.
+				label = ""
+				for n, z := range zeners {
+					if z == k && (n == 0 || n == len(zeners)-1 || n%6 == 0) {
+						label = strings.TrimPrefix(o.Name, "diode + ")
+					}
+				}
+			case circuit.Snubber:
+				label = "RC snubber"
+			}
+			if k == cmp.Recommended {
+				label += " (recommended)"
+			}
+			pts = append(pts, plot.LabelledPoint{X: o.PeakSwitchVoltage, Y: o.Release.Seconds * 1e3, Label: label})
+		}
+		if err := plot.LabelledScatter("Suppression options — "+md.Name, "peak switch voltage (V)", "release time (ms)", pts).Save(f); err != nil {
+			return err
+		}
+	}
 	if cmp.Recommended < 0 {
 		fmt.Fprintln(b, "\nNo option meets the release requirement within the derated switch rating.")
 		return errFailing
