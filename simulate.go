@@ -222,30 +222,28 @@ func (r *run) applyCommand(t float64, y []float64) {
 		i := r.current(y)
 		r.swEst += 0.5 * r.edgeVoltageOff(i, y) * math.Abs(i) * r.fallTime
 		vsw := r.pt.SwitchVoltage
-		switch {
-		case r.ctl.FastDecay:
-			r.cmode = r.drive.TurnOffMode(i)
-		case i > 0:
-			r.cmode = circuit.Recirc
-		default:
-			r.cmode = circuit.Off
-		}
+		r.cmode = r.chopOffMode(i)
 		y[sSwitchC] = vsw
 	}
+}
+
+// chopOffMode is the mode a chopping switch-off takes with coil current
+// i: the turn-off path for fast decay, else the recirculation path.
+func (r *run) chopOffMode(i float64) circuit.Mode {
+	switch {
+	case r.ctl.FastDecay:
+		return r.drive.TurnOffMode(i)
+	case i > 0:
+		return circuit.Recirc
+	}
+	return circuit.Off
 }
 
 // edgeVoltageOff returns the switch voltage just after a turn-off edge in
 // the mode the current will take (for the switching-loss estimate).
 func (r *run) edgeVoltageOff(i float64, y []float64) float64 {
 	keep := r.cmode
-	switch {
-	case r.ctl.FastDecay:
-		r.cmode = r.drive.TurnOffMode(i)
-	case i > 0:
-		r.cmode = circuit.Recirc
-	default:
-		r.cmode = circuit.Off
-	}
+	r.cmode = r.chopOffMode(i)
 	r.solve(y)
 	v := math.Abs(r.pt.SwitchVoltage)
 	r.cmode = keep
