@@ -126,8 +126,8 @@ func (md *Model) Assess(res *Result) Assessment {
 	if m.DroppedOutEnergized {
 		note("hold force margin", "warning", "the hold does not keep the plunger seated: raise the hold current or duty")
 	}
-	if md.Temperature > HotSurfaceCaution {
-		note("", "caution", "the winding runs at %.0f degC: its surface may be hot enough to burn", md.Temperature-273.15)
+	if hot := math.Max(md.Temperature, m.FinalWindingTemperature); hot > HotSurfaceCaution {
+		note("", "caution", "the winding runs at %.0f degC: its surface may be hot enough to burn", hot-273.15)
 	}
 	if r := m.EnergyResidualRel(); r > ResidualWarning {
 		note("energy residual", "warning", "the energy balance leaves %.2g of the supply energy unexplained: tighten the solver tolerance", r)

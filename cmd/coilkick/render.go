@@ -190,11 +190,11 @@ func printSummary(w io.Writer, path string, md *coilkick.Model, res *coilkick.Re
 
 func writeCSV(w io.Writer, tr *coilkick.Trace) error {
 	b := bufio.NewWriter(w)
-	fmt.Fprintln(b, "time_s,current_A,coil_voltage_V,switch_voltage_V,gap_m,velocity_m_per_s,magnetic_force_N,passive_force_N")
+	fmt.Fprintln(b, "time_s,current_A,coil_voltage_V,switch_voltage_V,gap_m,velocity_m_per_s,magnetic_force_N,passive_force_N,winding_temperature_K")
 	f := func(v float64) string { return strconv.FormatFloat(v, 'g', 10, 64) }
 	for k := range tr.Time {
-		fmt.Fprintf(b, "%s,%s,%s,%s,%s,%s,%s,%s\n", f(tr.Time[k]), f(tr.Current[k]), f(tr.CoilVoltage[k]),
-			f(tr.SwitchVoltage[k]), f(tr.Gap[k]), f(tr.Velocity[k]), f(tr.MagneticForce[k]), f(tr.PassiveForce[k]))
+		fmt.Fprintf(b, "%s,%s,%s,%s,%s,%s,%s,%s,%s\n", f(tr.Time[k]), f(tr.Current[k]), f(tr.CoilVoltage[k]),
+			f(tr.SwitchVoltage[k]), f(tr.Gap[k]), f(tr.Velocity[k]), f(tr.MagneticForce[k]), f(tr.PassiveForce[k]), f(tr.WindingTemperature[k]))
 	}
 	return b.Flush()
 }
