@@ -114,6 +114,9 @@ func (md *Model) Assess(res *Result) Assessment {
 	if m.AvalancheEnergy > 0 {
 		note("avalanche energy", "caution", "the switch reached its breakdown voltage (%.0f V) and absorbed %s in avalanche: check its single-pulse and repetitive avalanche ratings at the operating rate and temperature", sw.BreakdownVoltage, formatEnergy(m.AvalancheEnergy))
 	}
+	if m.EnergyReturned > 0 {
+		note("energy returned to supply", "caution", "the reverse drive returns %s to the supply at each turn-off (rail peak %.1f V): a supply that cannot sink current, or a small bulk capacitor, will rise; check what else hangs on that rail", formatEnergy(m.EnergyReturned), m.MaxRailVoltage)
+	}
 	if md.Drive.Suppressor.Kind == circuit.None {
 		note("peak switch voltage", "caution", "no suppression part is fitted: every turn-off dumps the coil's stored energy into the switch; a clamp or freewheel path is the usual practice")
 	}

@@ -79,6 +79,9 @@ type Metrics struct {
 	// MinRailVoltage: lowest voltage at the drive's supply terminals (the
 	// bulk capacitor, or the source behind its resistance), V.
 	MinRailVoltage float64
+	// MaxRailVoltage: highest voltage at the drive's supply terminals, V
+	// (energy returned by a bridge pumps a bulk capacitor up).
+	MaxRailVoltage float64
 	// SwitchingLossEstimate: the switch's edge losses over the run from
 	// the rise and fall times, ½·V·I·t per edge (J); an estimate outside
 	// the energy balance.

@@ -320,7 +320,7 @@ func (r *run) deenergize(t float64, y []float64) {
 	}
 	r.note(t, "de-energize at %.4g A", i)
 	if r.cmode != circuit.Off {
-		r.note(t, "%s conducts", r.drive.ClampName(r.cmode))
+		r.note(t, "conduction through the %s starts", r.drive.ClampName(r.cmode))
 	}
 }
 
@@ -342,13 +342,13 @@ func (r *run) circuitChange(t float64, y []float64, to circuit.Mode) {
 		if r.energized && from == circuit.Recirc {
 			// chopping: the current ran out between pulses (not logged)
 		} else {
-			r.note(t, "%s stops conducting", r.drive.ClampName(from))
+			r.note(t, "conduction through the %s ends", r.drive.ClampName(from))
 		}
 		if m := &r.res.Metrics; r.offDone && !m.ClampConduction.Happened {
 			m.ClampConduction = Interval{true, t - r.tOff}
 		}
 	} else {
-		r.note(t, "%s conducts", r.drive.ClampName(to))
+		r.note(t, "conduction through the %s starts", r.drive.ClampName(to))
 	}
 	r.cmode = to
 }
@@ -457,6 +457,7 @@ func (r *run) peaks(o outputs) {
 	m.PeakCurrent = math.Max(m.PeakCurrent, math.Abs(o.Current))
 	m.PeakSupplyCurrent = math.Max(m.PeakSupplyCurrent, o.SupplyCurrent)
 	m.MinRailVoltage = math.Min(m.MinRailVoltage, o.RailVoltage)
+	m.MaxRailVoltage = math.Max(m.MaxRailVoltage, o.RailVoltage)
 	if r.inWindow {
 		r.winMin = math.Min(r.winMin, o.Current)
 		r.winMax = math.Max(r.winMax, o.Current)

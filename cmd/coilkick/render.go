@@ -128,6 +128,7 @@ func printSummary(w io.Writer, path string, md *coilkick.Model, res *coilkick.Re
 	fmt.Fprintln(b, "Supply")
 	row("peak supply current", si(m.PeakSupplyCurrent, "A"))
 	row("lowest rail voltage", si(m.MinRailVoltage, "V"))
+	row("highest rail voltage", si(m.MaxRailVoltage, "V"))
 	if m.EnergyReturned > 0 {
 		row("energy returned to supply", si(m.EnergyReturned, "J"))
 	}
@@ -262,6 +263,7 @@ type jsonMetrics struct {
 	SwitchingLoss     float64           `json:"switching_loss_estimate_J"`
 	PeakSupplyCurrent float64           `json:"peak_supply_current_A"`
 	MinRailVoltage    float64           `json:"lowest_rail_voltage_V"`
+	MaxRailVoltage    float64           `json:"highest_rail_voltage_V"`
 	Hold              *jsonHold         `json:"hold"`
 }
 
@@ -299,7 +301,7 @@ func writeJSON(w io.Writer, md *coilkick.Model, res *coilkick.Result, as *coilki
 		Checks: []jsonCheck{}, Notes: []coilkickNote{}, Events: []jsonEvent{},
 	}
 	doc.Metrics.DiodeLoss, doc.Metrics.EnergyReturned, doc.Metrics.SwitchingLoss = m.DiodeLoss, m.EnergyReturned, m.SwitchingLossEstimate
-	doc.Metrics.PeakSupplyCurrent, doc.Metrics.MinRailVoltage = m.PeakSupplyCurrent, m.MinRailVoltage
+	doc.Metrics.PeakSupplyCurrent, doc.Metrics.MinRailVoltage, doc.Metrics.MaxRailVoltage = m.PeakSupplyCurrent, m.MinRailVoltage, m.MaxRailVoltage
 	if h := m.Hold; h.Measured {
 		doc.Metrics.Hold = &jsonHold{h.Start, h.End, h.MeanCurrent, h.MinCurrent, h.MaxCurrent, h.Ripple, h.ChoppingFrequency,
 			h.CoilPower, h.FullVoltageCoilPower, h.SwitchConductionPower, h.DiodePower, h.SwitchingPower,
