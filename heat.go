@@ -8,16 +8,65 @@ import (
 )
 
 // DutyPattern is an intermittent operation: the coil is energized for
-// OnTime at the start of every Period.
+// OnTime at the start of every Period, or, when Segments are given, the
+// segments repeat (OnTime and Period are then ignored).
 type DutyPattern struct {
 	OnTime, Period float64 // s
+	Segments       []DutySegment
 	// Duration (s) of the study; 0: until the periodic steady state.
 	Duration float64
 }
 
+// cycle returns the pattern as segments.
+func (d DutyPattern) cycle() []DutySegment {
+	if len(d.Segments) > 0 {
+		return d.Segments
+	}
+	return []DutySegment{{On: true, Duration: d.OnTime}, {On: false, Duration: d.Period - d.OnTime}}
+}
+
+// CycleTime returns the length of one operating cycle (s).
+func (d DutyPattern) CycleTime() float64 {
+	t := 0.0
+	for _, s := range d.cycle() {
+		t += s.Duration
+	}
+	return t
+}
+
+// OnTotal returns the energized time per cycle (s).
+func (d DutyPattern) OnTotal() float64 {
+	t := 0.0
+	for _, s := range d.cycle() {
+		if s.On {
+			t += s.Duration
+		}
+	}
+	return t
+}
+
 // RelativeOnTime is the duty as solenoid standards state it (ED %), as a
-// fraction: OnTime / Period.
-func (d DutyPattern) RelativeOnTime() float64 { return d.OnTime / d.Period }
+// fraction: energized time over the cycle time.
+func (d DutyPattern) RelativeOnTime() float64 { return d.OnTotal() / d.CycleTime() }
+
+// scaled returns the cycle with every on segment scaled to give relative
+// on-time r, the off segments absorbing the difference (same cycle time).
+func (d DutyPattern) scaled(r float64) []DutySegment {
+	segs := d.cycle()
+	T, on := d.CycleTime(), d.OnTotal()
+	fOn := r * T / on
+	fOff := (T - r*T) / (T - on)
+	out := make([]DutySegment, len(segs))
+	for k, s := range segs {
+		out[k] = s
+		if s.On {
+			out[k].Duration *= fOn
+		} else {
+			out[k].Duration *= fOff
+		}
+	}
+	return out
+}
 
 // HeatPoint is one cycle of the temperature history.
 type HeatPoint struct {
@@ -81,6 +130,7 @@ type heatModel struct {
 	md     *Model
 	pat    DutyPattern
 	onRef  float64 // on-time the cycles were simulated with
+	minOff float64 // s, the shortest off segment (the release must settle within it)
 	cache  []cycleLoss
 	sims   int
 	simErr error
@@ -112,7 +162,7 @@ func (h *heatModel) at(t float64) cycleLoss {
 func (h *heatModel) simulate(t float64) cycleLoss {
 	h.sims++
 	md := h.md
-	settle := math.Min(h.pat.Period-h.onRef, md.Timing.End-md.Timing.DeenergizeAt)
+	settle := math.Min(h.minOff, md.Timing.End-md.Timing.DeenergizeAt)
 	res, err := Simulate(md, &Options{NoTrace: true, FixedTemperature: t, Energize: 0, Deenergize: h.onRef, End: h.onRef + settle})
 	if err != nil {
 		h.simErr = err
@@ -144,13 +194,27 @@ func Heat(md *Model, pat DutyPattern) (*HeatResult, error) {
 	if md.Thermal == nil {
 		return nil, errors.New("coilkick: a heat study needs a thermal section in the scenario")
 	}
-	if !(pat.OnTime > 0 && pat.Period > pat.OnTime) {
+	if len(pat.Segments) == 0 && !(pat.OnTime > 0 && pat.Period > pat.OnTime) {
 		return nil, fmt.Errorf("coilkick: duty pattern needs 0 < on time < period, got %g s of %g s", pat.OnTime, pat.Period)
 	}
-	hm := &heatModel{md: md, pat: pat, onRef: pat.OnTime}
+	hm := &heatModel{md: md, pat: pat, minOff: math.Inf(1)}
+	hasOn, hasOff := false, false
+	for _, sg := range pat.cycle() {
+		if !(sg.Duration > 0) {
+			return nil, errors.New("coilkick: duty segments must be longer than zero")
+		}
+		if sg.On {
+			hm.onRef, hasOn = math.Max(hm.onRef, sg.Duration), true
+		} else {
+			hm.minOff, hasOff = math.Min(hm.minOff, sg.Duration), true
+		}
+	}
+	if !hasOn || !hasOff {
+		return nil, errors.New("coilkick: a duty cycle needs at least one on and one off segment")
+	}
 	res := &HeatResult{Pattern: pat, Ambient: md.Ambient, Class: md.InsulationClass, Limit: md.InsulationLimit}
 
-	cr := hm.run(pat.OnTime, pat.Duration, true)
+	cr := hm.run(pat.cycle(), pat.Duration, true)
 	if hm.simErr != nil {
 		return nil, hm.simErr
 	}
@@ -205,15 +269,18 @@ type cycleRun struct {
 	hist               []HeatPoint
 }
 
-// run steps the thermal network cycle by cycle at on-time on, for duration
-// (0: until the periodic steady state).
-func (h *heatModel) run(on, duration float64, keep bool) cycleRun {
+// run steps the thermal network cycle by cycle through the segments, for
+// duration (0: until the periodic steady state).
+func (h *heatModel) run(segs []DutySegment, duration float64, keep bool) cycleRun {
 	th, ta := h.md.Thermal, h.md.Ambient
-	off := h.pat.Period - on
+	T := 0.0
+	for _, sg := range segs {
+		T += sg.Duration
+	}
 	tw, thh := ta, ta
 	maxCycles := int(maxHeatCycles)
 	if duration > 0 {
-		maxCycles = int(math.Ceil(duration / h.pat.Period))
+		maxCycles = int(math.Ceil(duration / T))
 	}
 	stride := 1
 	if keep && maxCycles < int(maxHeatCycles) && maxCycles > historyPoints {
@@ -222,16 +289,25 @@ func (h *heatModel) run(on, duration float64, keep bool) cycleRun {
 	var out cycleRun
 	var peaks []float64
 	var startW, startH float64
+	powers := make([]float64, len(segs))
 	for c := 1; c <= maxCycles; c++ {
 		startW, startH = tw, thh
-		p := h.energyAt(tw, on) / on
-		tw, thh = th.Advance(tw, thh, p, ta, on)
-		peak := tw
-		tw, thh = th.Advance(tw, thh, 0, ta, off)
+		peak := math.Inf(-1)
+		for k, sg := range segs {
+			p := 0.0
+			if sg.On {
+				p = h.energyAt(tw, sg.Duration) / sg.Duration
+			}
+			powers[k] = p
+			tw, thh = th.Advance(tw, thh, p, ta, sg.Duration)
+			if sg.On {
+				peak = math.Max(peak, tw)
+			}
+		}
 		out.peak, out.valley, out.cycles = peak, tw, c
 		peaks = append(peaks, peak)
 		if keep && (c%stride == 0 || c == 1) {
-			out.hist = append(out.hist, HeatPoint{Time: float64(c) * h.pat.Period, Peak: peak, Valley: tw})
+			out.hist = append(out.hist, HeatPoint{Time: float64(c) * T, Peak: peak, Valley: tw})
 		}
 		// Settled far below the reporting tolerance: the periodic steady state.
 		if n := len(peaks); n > 1 && math.Abs(peaks[n-1]-peaks[n-2]) < SteadyTol*1e-3 {
@@ -249,21 +325,20 @@ func (h *heatModel) run(on, duration float64, keep bool) cycleRun {
 	for k > 0 && math.Abs(peaks[k-1]-out.peak) < SteadyTol {
 		k--
 	}
-	out.steadyAt = float64(k+1) * h.pat.Period
+	out.steadyAt = float64(k+1) * T
 	// Time-mean winding temperature over the last cycle, by the exact
 	// solution on sub-intervals (the power is piecewise constant).
 	const n = 100
 	tw, thh = startW, startH
-	p := h.energyAt(startW, on) / on
 	sum := 0.0
-	for _, seg := range [2]struct{ p, d float64 }{{p, on}, {0, off}} {
+	for k, sg := range segs {
 		for j := 0; j < n; j++ {
-			tw2, th2 := th.Advance(tw, thh, seg.p, ta, seg.d/n)
-			sum += 0.5 * (tw + tw2) * seg.d / n
+			tw2, th2 := th.Advance(tw, thh, powers[k], ta, sg.Duration/n)
+			sum += 0.5 * (tw + tw2) * sg.Duration / n
 			tw, thh = tw2, th2
 		}
 	}
-	out.mean = sum / h.pat.Period
+	out.mean = sum / T
 	return out
 }
 
@@ -302,7 +377,7 @@ func (h *heatModel) heldOn() (Interval, float64) {
 // within the class limit, by bisection on the shortcut.
 func (h *heatModel) maxDuty() float64 {
 	limit := h.md.InsulationLimit
-	peakAt := func(d float64) float64 { return h.run(d*h.pat.Period, 0, false).peak }
+	peakAt := func(d float64) float64 { return h.run(h.pat.scaled(d), 0, false).peak }
 	if peakAt(0.999) <= limit {
 		return 1
 	}

@@ -2,6 +2,8 @@ package coilkick
 
 import (
 	"math"
+	"os"
+	"strings"
 	"testing"
 
 	"coilkick/circuit"
@@ -171,6 +173,93 @@ func BenchmarkHeat8h(b *testing.B) {
 	for b.Loop() {
 		if _, err := Heat(md, DutyPattern{OnTime: 1.25, Period: 5, Duration: 8 * 3600}); err != nil {
 			b.Fatal(err)
+		}
+	}
+}
+
+func TestHeatSegments(t *testing.T) {
+	t.Parallel()
+	md, err := LoadModel("scenarios/door-strike-duty.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	th, err := magnet.FromRating(80, 10, 30) // a fast node for a short brute-force check
+	if err != nil {
+		t.Fatal(err)
+	}
+	md.Thermal = &th
+	// The same pattern written both ways gives the same study.
+	a, err := Heat(md, DutyPattern{OnTime: 0.6, Period: 2, Duration: 60})
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, err := Heat(md, DutyPattern{Segments: []DutySegment{{true, 0.6}, {false, 1.4}}, Duration: 60})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if a.Peak != b.Peak || a.Valley != b.Valley || a.MaxRelativeOnTime != b.MaxRelativeOnTime {
+		t.Errorf("on time/period %.6f/%.6f K vs segments %.6f/%.6f K", a.Peak, a.Valley, b.Peak, b.Valley)
+	}
+	// An irregular cycle against brute force (chained full simulations of
+	// each on segment and its following off segment).
+	segs := []DutySegment{{true, 0.5}, {false, 0.5}, {true, 0.3}, {false, 1.7}}
+	short, err := Heat(md, DutyPattern{Segments: segs, Duration: 30 * 3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	tw, thh := md.Ambient, md.Ambient
+	var peak float64
+	for c := 0; c < 30; c++ {
+		peak = math.Inf(-1)
+		for k := 0; k < len(segs); k += 2 {
+			on, off := segs[k].Duration, segs[k+1].Duration
+			r, err := Simulate(md, &Options{NoTrace: true, WindingTemperature: tw, HousingTemperature: thh, Energize: 0, Deenergize: on, End: on + off})
+			if err != nil {
+				t.Fatal(err)
+			}
+			p, err := Simulate(md, &Options{NoTrace: true, WindingTemperature: tw, HousingTemperature: thh, Energize: 0, Deenergize: on * (1 - 1e-9), End: on})
+			if err != nil {
+				t.Fatal(err)
+			}
+			peak = math.Max(peak, p.Metrics.FinalWindingTemperature)
+			tw, thh = r.Metrics.FinalWindingTemperature, r.Metrics.FinalHousingTemperature
+		}
+	}
+	if d := math.Abs(short.Peak - peak); d > 0.5 {
+		t.Errorf("segments: shortcut peak %.3f K, brute force %.3f K", short.Peak, peak)
+	}
+	if d := math.Abs(short.Valley - tw); d > 0.5 {
+		t.Errorf("segments: shortcut valley %.3f K, brute force %.3f K", short.Valley, tw)
+	}
+	t.Logf("segments after 30 cycles: peak %.4f vs %.4f K, valley %.4f vs %.4f K", short.Peak, peak, short.Valley, tw)
+	if r := (DutyPattern{Segments: segs}).RelativeOnTime(); math.Abs(r-0.8/3) > 1e-15 {
+		t.Errorf("relative on-time %g, want %g", r, 0.8/3)
+	}
+}
+
+func TestLoadDutySegments(t *testing.T) {
+	t.Parallel()
+	good, err := os.ReadFile("scenarios/door-strike-duty.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	seg := strings.Replace(string(good), "  on time: 1.25 s\n  period: 5 s\n", "  segments: [\"1 s on\", \"2 s off\", \"500 ms on\", \"6.5 s off\"]\n", 1)
+	s, err := Parse([]byte(seg), "scenarios/d.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(s.Duty.Segments) != 4 || s.Duty.Segments[2] != (DutySegment{true, 0.5}) {
+		t.Errorf("segments %+v", s.Duty.Segments)
+	}
+	for _, c := range []struct{ seg, want string }{
+		{`["1 s on", "2 s up"]`, `end in "on" or "off"`},
+		{`["1 s on"]`, "at least one on and one off"},
+		{`["1 V on", "1 s off"]`, "expected a time"},
+		{`"1 s on"`, "expected a list"},
+	} {
+		text := strings.Replace(string(good), "  on time: 1.25 s\n  period: 5 s\n", "  segments: "+c.seg+"\n", 1)
+		if _, err := Parse([]byte(text), "d.yaml"); err == nil || !strings.Contains(err.Error(), c.want) || !strings.Contains(err.Error(), "d.yaml:") {
+			t.Errorf("segments %s: error %v, want one containing %q", c.seg, err, c.want)
 		}
 	}
 }

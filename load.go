@@ -575,7 +575,7 @@ var (
 	thermalKeys = []string{"ambient", "insulation class", "temperature rise", "at power", "time constant",
 		"surface area", "convection coefficient", "heat capacity",
 		"winding heat capacity", "winding to housing", "housing heat capacity", "housing to ambient"}
-	dutyKeys      = []string{"on time", "period", "duration"}
+	dutyKeys      = []string{"on time", "period", "duration", "segments"}
 	toleranceKeys = []string{"supply", "coil resistance", "spring", "load", "ambient", "hot winding"}
 	driveKeys     = []string{"mode", "frequency", "duty", "peak current", "peak time", "hold current", "regulation", "band",
 		"decay", "recirculation drop", "recirculation resistance", "boost voltage", "boost time"}
@@ -703,10 +703,17 @@ func (l *scenarioLoader) load(root *yaml.Node) {
 	if duty := l.sub(top, "duty", dutyKeys); duty != nil {
 		d := &DutySpec{}
 		s.Duty = d
-		l.get(duty, "on time", Time, rulePositive, &d.OnTime, true, 0, "")
-		l.get(duty, "period", Time, rulePositive, &d.Period, true, 0, "")
+		if n, ok := duty.vals["segments"]; ok {
+			if duty.has("on time") || duty.has("period") {
+				l.errf("duty.segments", "give either segments or on time and period, not both")
+			}
+			l.loadSegments(n, d)
+		} else {
+			l.get(duty, "on time", Time, rulePositive, &d.OnTime, true, 0, "")
+			l.get(duty, "period", Time, rulePositive, &d.Period, true, 0, "")
+			l.exceed("duty.period", d.Period, "duty.on time", d.OnTime, false)
+		}
 		l.get(duty, "duration", Time, ruleNonNeg, &d.Duration, false, 0, "until the periodic steady state")
-		l.exceed("duty.period", d.Period, "duty.on time", d.OnTime, false)
 	}
 
 	// timing
@@ -1279,5 +1286,44 @@ func (l *scenarioLoader) loadThermal(sec *yamlSection) {
 		l.get(sec, "winding to housing", ThermalResistance, rulePositive, &t.WindingToHousing, true, 0, "")
 		l.get(sec, "housing heat capacity", HeatCapacity, rulePositive, &t.HousingCapacity, true, 0, "")
 		l.get(sec, "housing to ambient", ThermalResistance, rulePositive, &t.HousingToAmbient, true, 0, "")
+	}
+}
+
+// loadSegments reads duty.segments: a list such as ["2 s on", "3 s off"],
+// repeated as the operating cycle.
+func (l *scenarioLoader) loadSegments(n *yaml.Node, d *DutySpec) {
+	n = derefAlias(n)
+	if n.Kind != yaml.SequenceNode || len(n.Content) == 0 {
+		l.errAt("duty.segments", nodePos(n), `expected a list of segments, e.g. ["2 s on", "3 s off"]`)
+		return
+	}
+	anyOn, anyOff := false, false
+	for k, item := range n.Content {
+		item = derefAlias(item)
+		at := fmt.Sprintf("duty.segments[%d]", k+1)
+		text := strings.TrimSpace(item.Value)
+		fields := strings.Fields(text)
+		if item.Kind != yaml.ScalarNode || len(fields) < 2 {
+			l.errAt(at, nodePos(item), `%q: expected a duration and "on" or "off", e.g. "2 s on"`, text)
+			continue
+		}
+		state := fields[len(fields)-1]
+		if state != "on" && state != "off" {
+			l.errAt(at, nodePos(item), `%q: expected it to end in "on" or "off"`, text)
+			continue
+		}
+		dur, err := ParseQuantity(strings.Join(fields[:len(fields)-1], " "), Time)
+		if err != nil || !(dur > 0) {
+			if err == nil {
+				err = errors.New("must be longer than zero")
+			}
+			l.errAt(at, nodePos(item), "%v", err)
+			continue
+		}
+		d.Segments = append(d.Segments, DutySegment{On: state == "on", Duration: dur})
+		anyOn, anyOff = anyOn || state == "on", anyOff || state == "off"
+	}
+	if len(d.Segments) == len(n.Content) && (!anyOn || !anyOff) {
+		l.errAt("duty.segments", nodePos(n), "the segments need at least one on and one off")
 	}
 }

@@ -55,10 +55,18 @@ type ThermalSpec struct {
 	WindingToHousing, HousingCapacity, HousingToAmbient float64
 }
 
-// DutySpec is the operating pattern of a heat study.
+// DutySpec is the operating pattern of a heat study: OnTime every Period,
+// or a list of segments repeated.
 type DutySpec struct {
 	OnTime, Period float64 // s
+	Segments       []DutySegment
 	Duration       float64 // s; 0: until the periodic steady state
+}
+
+// DutySegment is one part of an operating cycle.
+type DutySegment struct {
+	On       bool
+	Duration float64 // s
 }
 
 // CoilSpec is the winding's electrical data.

@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"strconv"
+	"strings"
 
 	"github.com/urfave/cli/v2"
 
@@ -25,7 +26,7 @@ func cmdHeat(c *cli.Context, w io.Writer) error {
 	if s.Thermal == nil || s.Duty == nil {
 		return fmt.Errorf("%s: a heat study needs a thermal section (ambient and the network) and a duty section (on time, period)", path)
 	}
-	pat := coilkick.DutyPattern{OnTime: s.Duty.OnTime, Period: s.Duty.Period, Duration: s.Duty.Duration}
+	pat := coilkick.DutyPattern{OnTime: s.Duty.OnTime, Period: s.Duty.Period, Segments: s.Duty.Segments, Duration: s.Duty.Duration}
 	res, err := coilkick.Heat(md, pat)
 	if err != nil {
 		return err
@@ -54,11 +55,23 @@ func printHeat(w io.Writer, path string, md *coilkick.Model, r *coilkick.HeatRes
 	defer b.Flush()
 	p := r.Pattern
 	fmt.Fprintf(b, "coilkick heat: %s\nscenario: %s\n", md.Name, path)
-	fmt.Fprintf(b, "duty: %s on every %s (relative on-time %.1f %%), ambient %s\n\n", si(p.OnTime, "s"), si(p.Period, "s"), 100*p.RelativeOnTime(), degC(r.Ambient))
+	if len(p.Segments) > 0 {
+		var parts []string
+		for _, sg := range p.Segments {
+			state := "off"
+			if sg.On {
+				state = "on"
+			}
+			parts = append(parts, si(sg.Duration, "s")+" "+state)
+		}
+		fmt.Fprintf(b, "duty: cycle of %s repeated (%s; relative on-time %.1f %%), ambient %s\n\n", strings.Join(parts, ", "), si(p.CycleTime(), "s"), 100*p.RelativeOnTime(), degC(r.Ambient))
+	} else {
+		fmt.Fprintf(b, "duty: %s on every %s (relative on-time %.1f %%), ambient %s\n\n", si(p.OnTime, "s"), si(p.Period, "s"), 100*p.RelativeOnTime(), degC(r.Ambient))
+	}
 	row := func(name, value string) { fmt.Fprintf(b, "  %-38s %s\n", name, value) }
 	state := "periodic steady state"
 	if !r.Steady {
-		state = fmt.Sprintf("after %s (not yet steady)", si(float64(r.Cycles)*p.Period, "s"))
+		state = fmt.Sprintf("after %s (not yet steady)", si(float64(r.Cycles)*p.CycleTime(), "s"))
 	}
 	fmt.Fprintf(b, "Winding temperature (%s)\n", state)
 	row("peak", degC(r.Peak))

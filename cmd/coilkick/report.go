@@ -395,7 +395,7 @@ func buildReport(path string, md *coilkick.Model, sc *coilkick.Scenario, res *co
 
 	failed := doc.Failed
 	if sc.Thermal != nil && sc.Duty != nil {
-		pat := coilkick.DutyPattern{OnTime: sc.Duty.OnTime, Period: sc.Duty.Period, Duration: sc.Duty.Duration}
+		pat := coilkick.DutyPattern{OnTime: sc.Duty.OnTime, Period: sc.Duty.Period, Segments: sc.Duty.Segments, Duration: sc.Duty.Duration}
 		hr, err := coilkick.Heat(md, pat)
 		if err != nil {
 			return nil, false, err
@@ -428,7 +428,7 @@ func heatSection(r *coilkick.HeatResult) (*plot.HeatSection, bool) {
 	failed := false
 	state := "periodic steady state"
 	if !r.Steady {
-		state = fmt.Sprintf("after %s, not yet steady", si(float64(r.Cycles)*p.Period, "s"))
+		state = fmt.Sprintf("after %s, not yet steady", si(float64(r.Cycles)*p.CycleTime(), "s"))
 	}
 	temp := plot.Group{Name: "Winding temperature (" + state + ")"}
 	add := func(g *plot.Group, key, name, value string) *plot.Row {
@@ -473,8 +473,8 @@ func heatSection(r *coilkick.HeatResult) (*plot.HeatSection, bool) {
 	}
 	add(&hot, "lowest_pull_in_supply", "lowest supply that pulls in, hot", lowest)
 
-	intro := fmt.Sprintf("%s on every %s (relative on-time %.1f %%), ambient %s; %d cycles stepped with the exact thermal solution, %d electrical simulations.",
-		si(p.OnTime, "s"), si(p.Period, "s"), 100*p.RelativeOnTime(), celsius(r.Ambient), r.Cycles, r.Simulations)
+	intro := fmt.Sprintf("%s on per %s cycle (relative on-time %.1f %%), ambient %s; %d cycles stepped with the exact thermal solution, %d electrical simulations.",
+		si(p.OnTotal(), "s"), si(p.CycleTime(), "s"), 100*p.RelativeOnTime(), celsius(r.Ambient), r.Cycles, r.Simulations)
 	if r.Peak > coilkick.HotSurfaceCaution {
 		intro += fmt.Sprintf(" CAUTION: the winding reaches %s; the coil surface may be hot enough to burn: guard it and label it.", celsius(r.Peak))
 	}
@@ -556,7 +556,8 @@ func scenarioSummary(md *coilkick.Model, sc *coilkick.Scenario) []plot.Item {
 		add("thermal", join(fmt.Sprintf("ambient %s", celsius(th.Ambient)), opt(boolFloat(th.Class != ""), "insulation class %s", th.Class)))
 	}
 	if du := sc.Duty; du != nil {
-		add("duty", fmt.Sprintf("%s on every %s", si(du.OnTime, "s"), si(du.Period, "s")))
+		pat := coilkick.DutyPattern{OnTime: du.OnTime, Period: du.Period, Segments: du.Segments}
+		add("duty", fmt.Sprintf("%s on per %s cycle", si(pat.OnTotal(), "s"), si(pat.CycleTime(), "s")))
 	}
 	return out
 }
