@@ -119,7 +119,7 @@ var reportGroups = []struct {
 		{"hold.supply_power_W", "supply power mean"}, {"hold.force_margin", "hold force margin"},
 	}},
 	{"Supply", []figureRow{
-		{"peak_supply_current_A", "peak supply current"}, {"lowest_rail_voltage_V", "lowest rail voltage"},
+		{"peak_supply_current_A", "peak supply current"}, {"lowest_rail_voltage_V", "lowest rail voltage"}, {"highest_rail_voltage_V", "highest rail voltage"},
 		{"energy_returned_J", "energy returned to supply"},
 	}},
 	{"Release", []figureRow{
