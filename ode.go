@@ -122,7 +122,11 @@ func newODE(sys odeSystem, n int, set odeSettings) *odeIntegrator {
 	in.norm = func(err, y0, y1 []float64) float64 {
 		s := 0.0
 		for i, e := range err {
-			sc := set.RelTol * (set.Scale[i] + math.Max(math.Abs(y0[i]), math.Abs(y1[i])))
+			a, b := math.Abs(y0[i]), math.Abs(y1[i])
+			if b > a {
+				a = b
+			}
+			sc := set.RelTol * (set.Scale[i] + a)
 			r := e / sc
 			s += r * r
 		}

@@ -140,9 +140,10 @@ func (r *run) nextTimeEvent(t float64) float64 {
 
 func (r *run) guards(t float64, y, g []float64) int {
 	_, n := r.guardsAt(y, g)
-	n += r.ctl.Guards(t, r.current(y), g[n:])
+	i := r.lastCurrent
+	n += r.ctl.Guards(t, i, g[n:])
 	if r.decayArmed {
-		g[n] = r.decayThreshold - r.decaySign*r.current(y) // signed: the current may overshoot zero within a step
+		g[n] = r.decayThreshold - r.decaySign*i // signed: the current may overshoot zero within a step
 		n++
 	}
 	return n
@@ -476,7 +477,7 @@ func (r *run) accepted(s *stepView) {
 		r.sampleNext++
 	}
 	// Sample inside the step for the peaks.
-	for _, th := range [...]float64{0.25, 0.5, 0.75, 1} {
+	for _, th := range [...]float64{1.0 / 3, 2.0 / 3, 1} {
 		tt := s.t0 + th*(s.t1-s.t0)
 		s.interp(tt, r.ys[:])
 		o := r.out(r.ys[:])

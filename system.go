@@ -76,7 +76,9 @@ type system struct {
 
 	cmode circuit.Mode
 	mmode mechMode
-	pt    circuit.Point // scratch
+	// lastCurrent is the coil current of the last guardsAt (A).
+	lastCurrent float64
+	pt          circuit.Point // scratch
 }
 
 // outputs are the algebraic quantities at a state.
@@ -226,6 +228,7 @@ func (s *system) out(y []float64) outputs {
 // Guard layout: circuit guards first, then mechanical ones.
 func (s *system) guardsAt(y, g []float64) (nc, n int) {
 	i, im := s.solve(y)
+	s.lastCurrent = i
 	nc = s.drive.Guards(s.cmode, i, &s.pt, g)
 	n = nc
 	x := y[sGap]
