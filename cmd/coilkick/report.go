@@ -507,7 +507,10 @@ func scenarioSummary(md *coilkick.Model, sc *coilkick.Scenario) []plot.Item {
 	sp := sc.Supply
 	add("supply", join(si(sp.Voltage, "V"), opt(sp.SourceResistance, "source resistance %s", si(sp.SourceResistance, "Ω")),
 		opt(sp.BulkCapacitance, "bulk capacitor %s", si(sp.BulkCapacitance, "F")), opt(sp.LowVoltage, "lowest in tolerance %s", si(sp.LowVoltage, "V"))))
-	coil := fmt.Sprintf("%s at %.0f °C (%s at 20 °C)", si(md.CoilResistance(), "Ω"), md.Temperature-273.15, si(md.Coil.ResistanceAt(293.15), "Ω"))
+	coil := fmt.Sprintf("%s at %.0f °C", si(md.CoilResistance(), "Ω"), md.Temperature-273.15)
+	if md.Temperature != 293.15 {
+		coil += fmt.Sprintf(" (%s at 20 °C)", si(md.Coil.ResistanceAt(293.15), "Ω"))
+	}
 	if md.Coil.Turns > 0 {
 		coil += fmt.Sprintf(", %.0f turns", md.Coil.Turns)
 	}
