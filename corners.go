@@ -333,7 +333,7 @@ func LowestClamp(md *Model) (Solution, error) {
 	switch sup.Kind {
 	case circuit.DiodeZener:
 		lo, hi = 0, md.Drive.Switch.BreakdownVoltage-v0
-		set = func(v *Model, x float64) { v.Drive.Suppressor.Voltage = AssumedDiodeDropOf(md) + x }
+		set = func(v *Model, x float64) { v.Drive.Suppressor.Voltage = diodeDropOf(md) + x }
 		what = "Zener voltage"
 	case circuit.TVS:
 		lo, hi = v0, md.Drive.Switch.BreakdownVoltage-v0
@@ -379,9 +379,9 @@ func LowestClamp(md *Model) (Solution, error) {
 	return sol, nil
 }
 
-// AssumedDiodeDropOf returns the forward drop of the model's diode + Zener
-// as given in the scenario when known, else AssumedDiodeDrop.
-func AssumedDiodeDropOf(md *Model) float64 {
+// diodeDropOf returns the forward drop of the model's diode + Zener as
+// given in the scenario when known, else AssumedDiodeDrop.
+func diodeDropOf(md *Model) float64 {
 	if md.DiodeDrop > 0 {
 		return md.DiodeDrop
 	}

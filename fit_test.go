@@ -6,7 +6,6 @@ import (
 	"math"
 	"math/rand/v2"
 	"os"
-	"path/filepath"
 	"strings"
 	"testing"
 )
@@ -192,6 +191,7 @@ func TestReadTraceErrors(t *testing.T) {
 	cases := []struct{ text, want string }{
 		{"time (ms)\n1\n2\n", "no current column"},
 		{"time (ms), current (mA)\n0, 1\n1, x\n", "not a number"},
+		{"# a comment line\ntime (ms), current (mA)\n0, 1\n1, x\n", "scope.csv:4: current"}, // the file's own line
 		{strings.Replace(good, "5, 50", "3.5, 50", 1), "does not increase"},
 		{strings.Replace(good, "5, 50", "500, 50", 1), "does not increase"},
 		{strings.Replace(good, "19, 190", "190, 190", 1), "gap"},
@@ -210,5 +210,4 @@ func TestReadTraceErrors(t *testing.T) {
 	if err != nil || len(tr.Time) != 20 || tr.Current[3] != 0.03 || tr.Time[3] != 0.003 {
 		t.Errorf("good trace: %v %+v", err, tr)
 	}
-	_ = filepath.Join
 }

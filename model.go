@@ -1,7 +1,6 @@
 package coilkick
 
 import (
-	"fmt"
 	"math"
 	"os"
 
@@ -282,8 +281,6 @@ func LoadModel(path string) (*Model, error) {
 	}
 	return Build(s)
 }
-
-var _ = fmt.Sprintf
 
 // buildCoil computes the winding figures of a coil given by bobbin and wire.
 func buildCoil(cb *CoilBuildSpec) (magnet.CoilFigures, error) {

@@ -278,7 +278,6 @@ func (in *odeIntegrator) run(t0 float64, y []float64) error {
 		if errNorm > 0 {
 			fac = math.Min(5, math.Max(0.2, 0.9*math.Pow(errNorm, -1/q)))
 		}
-		hOld := h
 		h *= fac
 		if landing {
 			stop, err := in.timeEvent(t, y)
@@ -288,7 +287,6 @@ func (in *odeIntegrator) run(t0 float64, y []float64) error {
 			// Restart with the step the controller wanted before it was
 			// shortened to land here: time events (switch edges) recur, and
 			// the first step's error test catches a change of pace.
-			_ = hOld
 			in.sys.deriv(t, y, f0)
 			in.stats.Evals++
 			h = hNatural

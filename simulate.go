@@ -1,7 +1,6 @@
 package coilkick
 
 import (
-	"errors"
 	"fmt"
 	"math"
 
@@ -616,8 +615,6 @@ func firstPositive(v ...float64) float64 {
 // ErrStepBudget is matched (errors.Is) by a failure to finish within the
 // step budget.
 var ErrStepBudget = errStepBudget
-
-var _ = errors.Is
 
 // closeWindow computes the hold figures at the end of the hold window.
 func (r *run) closeWindow(t float64, y []float64) {

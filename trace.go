@@ -35,14 +35,23 @@ func ReadTraceCSV(r io.Reader, name string) (*MeasuredTrace, error) {
 	cr.Comment = '#'
 	cr.FieldsPerRecord = -1
 	cr.TrimLeadingSpace = true
-	rows, err := cr.ReadAll()
-	if err != nil {
-		return nil, fmt.Errorf("%s: %v", name, err)
+	var rows [][]string
+	var lines []int // the file line of each row
+	for {
+		rec, err := cr.Read()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return nil, fmt.Errorf("%s: %v", name, err)
+		}
+		line, _ := cr.FieldPos(0)
+		rows, lines = append(rows, rec), append(lines, line)
 	}
 	if len(rows) == 0 {
 		return nil, fmt.Errorf("%s: the trace is empty", name)
 	}
-	// Line numbers: csv.Reader tracks them per record.
+	// Errors below name the file line: "scope.csv:12: ...".
 	header := rows[0]
 	col := map[string]int{}
 	scale := map[string]float64{}
@@ -50,7 +59,7 @@ func ReadTraceCSV(r io.Reader, name string) (*MeasuredTrace, error) {
 	for k, h := range header {
 		m := columnRE.FindStringSubmatch(h)
 		if m == nil {
-			return nil, fmt.Errorf("%s:1: column %d %q: expected a name and a unit, e.g. \"time (ms)\"", name, k+1, h)
+			return nil, fmt.Errorf("%s:%d: column %d %q: expected a name and a unit, e.g. \"time (ms)\"", name, lines[0], k+1, h)
 		}
 		n := strings.ToLower(strings.TrimSpace(m[1]))
 		switch n {
@@ -63,38 +72,38 @@ func ReadTraceCSV(r io.Reader, name string) (*MeasuredTrace, error) {
 		}
 		dim, ok := dims[n]
 		if !ok {
-			return nil, fmt.Errorf("%s:1: column %d %q: unknown quantity; expected time, current or voltage", name, k+1, h)
+			return nil, fmt.Errorf("%s:%d: column %d %q: unknown quantity; expected time, current or voltage", name, lines[0], k+1, h)
 		}
 		unit := m[2] + m[3]
 		if unit == "" {
-			return nil, fmt.Errorf("%s:1: column %q has no unit; expected %s, e.g. %q", name, h, dim.Name(), n+" ("+strings.Fields(dim.Example())[1]+")")
+			return nil, fmt.Errorf("%s:%d: column %q has no unit; expected %s, e.g. %q", name, lines[0], h, dim.Name(), n+" ("+strings.Fields(dim.Example())[1]+")")
 		}
 		v, err := ParseQuantity("1 "+unit, dim)
 		if err != nil {
-			return nil, fmt.Errorf("%s:1: column %q: %v", name, h, err)
+			return nil, fmt.Errorf("%s:%d: column %q: %v", name, lines[0], h, err)
 		}
 		if _, dup := col[n]; dup {
-			return nil, fmt.Errorf("%s:1: two %s columns", name, n)
+			return nil, fmt.Errorf("%s:%d: two %s columns", name, lines[0], n)
 		}
 		col[n], scale[n] = k, v
 	}
 	for _, need := range []string{"time", "current"} {
 		if _, ok := col[need]; !ok {
-			return nil, fmt.Errorf("%s:1: no %s column (the header needs time and current, e.g. \"time (ms), current (mA)\")", name, need)
+			return nil, fmt.Errorf("%s:%d: no %s column (the header needs time and current, e.g. \"time (ms), current (mA)\")", name, lines[0], need)
 		}
 	}
 	tr := &MeasuredTrace{Source: name}
 	_, hasV := col["voltage"]
 	for li, row := range rows[1:] {
-		line := li + 2 // approximate when comments are interleaved; see below
+		line := lines[li+1]
 		if len(row) != len(header) {
-			return nil, fmt.Errorf("%s: data row %d has %d cells, the header %d", name, line-1, len(row), len(header))
+			return nil, fmt.Errorf("%s:%d: %d cells, the header has %d", name, line, len(row), len(header))
 		}
 		get := func(n string) (float64, error) {
 			s := strings.TrimSpace(row[col[n]])
 			x, err := strconv.ParseFloat(s, 64)
 			if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
-				return 0, fmt.Errorf("%s: data row %d: %s %q is not a number", name, line-1, n, s)
+				return 0, fmt.Errorf("%s:%d: %s %q is not a number", name, line, n, s)
 			}
 			return x * scale[n], nil
 		}
@@ -107,7 +116,7 @@ func ReadTraceCSV(r io.Reader, name string) (*MeasuredTrace, error) {
 			return nil, err
 		}
 		if k := len(tr.Time); k > 0 && !(t > tr.Time[k-1]) {
-			return nil, fmt.Errorf("%s: data row %d: time %g s does not increase (previous %g s)", name, line-1, t, tr.Time[k-1])
+			return nil, fmt.Errorf("%s:%d: time %g s does not increase (previous %g s)", name, line, t, tr.Time[k-1])
 		}
 		tr.Time = append(tr.Time, t)
 		tr.Current = append(tr.Current, i)
@@ -131,7 +140,7 @@ func ReadTraceCSV(r io.Reader, name string) (*MeasuredTrace, error) {
 	med := sorted[len(sorted)/2]
 	for k, s := range steps {
 		if s > 10*med {
-			return nil, fmt.Errorf("%s: data row %d: a gap of %.3g s in the time base (median step %.3g s)", name, k+2, s, med)
+			return nil, fmt.Errorf("%s:%d: a gap of %.3g s in the time base (median step %.3g s)", name, lines[k+2], s, med)
 		}
 	}
 	return tr, nil

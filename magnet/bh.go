@@ -243,18 +243,13 @@ func ReadBHCSV(r io.Reader, name string, hScale, bScale float64) (*BHTable, erro
 		first  = true
 	)
 	for {
-		rec, err := cr.Read()
+		rec, line, err := readRecord(cr, name)
 		if err == io.EOF {
 			break
 		}
 		if err != nil {
-			var pe *csv.ParseError
-			if errors.As(err, &pe) {
-				return nil, fmt.Errorf("magnet: %s:%d: %v", name, pe.Line, pe.Err)
-			}
-			return nil, fmt.Errorf("magnet: %s: %v", name, err)
+			return nil, err
 		}
-		line, _ := cr.FieldPos(0)
 		if first {
 			first = false
 			if _, err := strconv.ParseFloat(strings.TrimSpace(rec[0]), 64); err != nil && strings.TrimSpace(rec[0]) != "" {

@@ -513,18 +513,13 @@ func ReadTableCSV(r io.Reader, name string, currentScale, gapScale, fluxScale fl
 		rowLines       []int
 	)
 	for {
-		rec, err := cr.Read()
+		rec, line, err := readRecord(cr, name)
 		if err == io.EOF {
 			break
 		}
 		if err != nil {
-			var pe *csv.ParseError
-			if errors.As(err, &pe) {
-				return nil, fmt.Errorf("magnet: %s:%d: %v", name, pe.Line, pe.Err)
-			}
-			return nil, fmt.Errorf("magnet: %s: %v", name, err)
+			return nil, err
 		}
-		line, _ := cr.FieldPos(0)
 		if gaps == nil {
 			headerLine = line
 			if len(rec) < 3 {
@@ -587,4 +582,22 @@ func parseCell(cell string) (float64, error) {
 		return 0, fmt.Errorf("not a finite number: %q", s)
 	}
 	return v, nil
+}
+
+// readRecord reads the next CSV record and the line it starts on; io.EOF at
+// the end. Parse errors name the file and line.
+func readRecord(cr *csv.Reader, name string) (rec []string, line int, err error) {
+	rec, err = cr.Read()
+	if err == io.EOF {
+		return nil, 0, err
+	}
+	if err != nil {
+		var pe *csv.ParseError
+		if errors.As(err, &pe) {
+			return nil, 0, fmt.Errorf("magnet: %s:%d: %v", name, pe.Line, pe.Err)
+		}
+		return nil, 0, fmt.Errorf("magnet: %s: %v", name, err)
+	}
+	line, _ = cr.FieldPos(0)
+	return rec, line, nil
 }
