@@ -251,6 +251,14 @@ func TestLoadDutySegments(t *testing.T) {
 	if len(s.Duty.Segments) != 4 || s.Duty.Segments[2] != (DutySegment{true, 0.5}) {
 		t.Errorf("segments %+v", s.Duty.Segments)
 	}
+	md, err := Build(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// The model carries the cycle: 1 + 2 + 0.5 + 6.5 s, 15 % on.
+	if md.Duty == nil || md.Duty.CycleTime() != 10 || math.Abs(md.Duty.RelativeOnTime()-0.15) > 1e-15 {
+		t.Errorf("model duty %+v", md.Duty)
+	}
 	for _, c := range []struct{ seg, want string }{
 		{`["1 s on", "2 s up"]`, `end in "on" or "off"`},
 		{`["1 s on"]`, "at least one on and one off"},

@@ -40,6 +40,9 @@ type Model struct {
 	DiodeDrop float64
 	// Tolerances for worst-case corners (zero when not given).
 	Tolerances Tolerances
+	// Duty is the operating pattern from the scenario's duty section; nil
+	// when there is none.
+	Duty *DutyPattern
 	// LowSupply (V): the lowest supply in tolerance; 0 when not given.
 	LowSupply float64
 	// BulkCapacitance (F) at the drive's supply terminals, fed through the
@@ -226,6 +229,9 @@ func Build(s *Scenario) (*Model, error) {
 		return nil, s.Errorf("drive", "%v", err)
 	}
 	md.LowSupply = s.Supply.LowVoltage
+	if d := s.Duty; d != nil {
+		md.Duty = &DutyPattern{OnTime: d.OnTime, Period: d.Period, Segments: d.Segments, Duration: d.Duration}
+	}
 	md.Tolerances = s.Tolerances
 	if th := s.Thermal; th != nil {
 		md.Ambient = th.Ambient

@@ -19,15 +19,10 @@ func cmdHeat(c *cli.Context, w io.Writer) error {
 	if err != nil {
 		return err
 	}
-	s, err := coilkick.Load(path)
-	if err != nil {
-		return err
-	}
-	if s.Thermal == nil || s.Duty == nil {
+	if md.Thermal == nil || md.Duty == nil {
 		return fmt.Errorf("%s: a heat study needs a thermal section (ambient and the network) and a duty section (on time, period)", path)
 	}
-	pat := coilkick.DutyPattern{OnTime: s.Duty.OnTime, Period: s.Duty.Period, Segments: s.Duty.Segments, Duration: s.Duty.Duration}
-	res, err := coilkick.Heat(md, pat)
+	res, err := coilkick.Heat(md, *md.Duty)
 	if err != nil {
 		return err
 	}

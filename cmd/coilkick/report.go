@@ -394,9 +394,8 @@ func buildReport(path string, md *coilkick.Model, sc *coilkick.Scenario, res *co
 		Figure: plot.ForceVsGap("Pull versus air gap, one line per coil current", curves, passive)})
 
 	failed := doc.Failed
-	if sc.Thermal != nil && sc.Duty != nil {
-		pat := coilkick.DutyPattern{OnTime: sc.Duty.OnTime, Period: sc.Duty.Period, Segments: sc.Duty.Segments, Duration: sc.Duty.Duration}
-		hr, err := coilkick.Heat(md, pat)
+	if md.Thermal != nil && md.Duty != nil {
+		hr, err := coilkick.Heat(md, *md.Duty)
 		if err != nil {
 			return nil, false, err
 		}
@@ -558,8 +557,7 @@ func scenarioSummary(md *coilkick.Model, sc *coilkick.Scenario) []plot.Item {
 	if th := sc.Thermal; th != nil {
 		add("thermal", join(fmt.Sprintf("ambient %s", celsius(th.Ambient)), opt(boolFloat(th.Class != ""), "insulation class %s", th.Class)))
 	}
-	if du := sc.Duty; du != nil {
-		pat := coilkick.DutyPattern{OnTime: du.OnTime, Period: du.Period, Segments: du.Segments}
+	if pat := md.Duty; pat != nil {
 		add("duty", fmt.Sprintf("%s on per %s cycle", si(pat.OnTotal(), "s"), si(pat.CycleTime(), "s")))
 	}
 	return out

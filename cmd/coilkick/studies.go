@@ -321,8 +321,8 @@ func cmdClamps(c *cli.Context, w io.Writer) error {
 		return err
 	}
 	rate := 0.0
-	if s, err := coilkick.Load(path); err == nil && s.Duty != nil {
-		rate = 1 / s.Duty.Period
+	if md.Duty != nil {
+		rate = 1 / md.Duty.CycleTime() // one operation per cycle
 	}
 	cmp, err := coilkick.CompareClamps(md, rate)
 	if err != nil {
