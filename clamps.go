@@ -31,6 +31,9 @@ func E24Values(lo, hi float64) []float64 {
 const (
 	ClampDerating    = 0.8 // the switch may see at most this fraction of its voltage rating
 	AssumedDiodeDrop = 0.8 // V, forward drop of an added freewheel or bridge diode
+	// ClampStressBand: switch voltages within this fraction of the least
+	// one count as equal stress when recommending.
+	ClampStressBand = 0.1
 )
 
 // ClampOption is one suppression choice in a comparison.
@@ -52,8 +55,9 @@ type ClampComparison struct {
 	SwitchRating float64 // V, the rating compared against (ratings.switch voltage, else breakdown)
 	Rate         float64 // operations per second (0: unknown)
 	Options      []ClampOption
-	// Recommended is the index of the option with the least switch stress
-	// that meets the release requirement and the derated rating (−1: none).
+	// Recommended is the index of the part with the least switch stress
+	// that meets the release requirement and the derated rating (−1: none);
+	// reverse drive is compared but not recommended (it needs an H-bridge).
 	Recommended int
 	// Required part ratings of the recommended option.
 	PartVoltage, PartPeakCurrent, PartEnergy, PartPower float64
@@ -141,20 +145,32 @@ func CompareClamps(md *Model, rate float64) (*ClampComparison, error) {
 		o.WithinRating = m.PeakSwitchVoltage <= allow
 	}
 	cmp.Options = opts
-	// Recommend: meets release and rating, least switch voltage; ties to
-	// the lower clamp energy.
+	// Recommend: meets release and rating, least switch voltage; options
+	// within ClampStressBand of that least voltage count as equal and the
+	// one dissipating the least energy per operation wins (a snubber that
+	// shaves a volt off a freewheel diode at many times its energy is not a
+	// better choice; common practice, no source).
 	idx := make([]int, 0, len(opts))
+	least := math.Inf(1)
 	for k, o := range opts {
-		if o.Err == "" && o.MeetsRelease && o.WithinRating {
+		// Reverse drive changes the topology (an H-bridge): shown for
+		// comparison, not recommended as a part for the low-side switch.
+		if o.Err == "" && o.MeetsRelease && o.WithinRating && o.Suppressor.Kind != circuit.Bridge {
 			idx = append(idx, k)
+			least = math.Min(least, o.PeakSwitchVoltage)
 		}
 	}
+	band := least * (1 + ClampStressBand)
 	sort.SliceStable(idx, func(a, b int) bool {
 		oa, ob := opts[idx[a]], opts[idx[b]]
-		if oa.PeakSwitchVoltage != ob.PeakSwitchVoltage {
-			return oa.PeakSwitchVoltage < ob.PeakSwitchVoltage
+		ina, inb := oa.PeakSwitchVoltage <= band, ob.PeakSwitchVoltage <= band
+		if ina != inb {
+			return ina
 		}
-		return oa.ClampEnergy < ob.ClampEnergy
+		if ina {
+			return oa.ClampEnergy < ob.ClampEnergy
+		}
+		return oa.PeakSwitchVoltage < ob.PeakSwitchVoltage
 	})
 	if len(idx) > 0 {
 		r := opts[idx[0]]

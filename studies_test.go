@@ -242,3 +242,32 @@ func BenchmarkSweep1000(b *testing.B) {
 		b.ReportMetric(one.Seconds()/all.Seconds(), "speedup")
 	}
 }
+
+func TestClampRecommendation(t *testing.T) {
+	t.Parallel()
+	md, err := LoadModel("scenarios/process-air-valve.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	md.Limits.MaxRelease = 3e-3 // a freewheel diode (7.4 ms) no longer meets it
+	cmp, err := CompareClamps(md, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if cmp.Recommended < 0 {
+		t.Fatal("no recommendation")
+	}
+	r := cmp.Options[cmp.Recommended]
+	if !r.MeetsRelease || !r.WithinRating || r.Suppressor.Kind == circuit.Bridge || r.Suppressor.Kind == circuit.Freewheel {
+		t.Fatalf("recommended %+v", r)
+	}
+	// The documented rule: no other qualifying part stresses the switch
+	// less by more than the band.
+	for _, o := range cmp.Options {
+		if o.Err == "" && o.MeetsRelease && o.WithinRating && o.Suppressor.Kind != circuit.Bridge &&
+			o.PeakSwitchVoltage*(1+ClampStressBand) < r.PeakSwitchVoltage {
+			t.Errorf("%s (%g V) stresses the switch less than the recommended %s (%g V)", o.Name, o.PeakSwitchVoltage, r.Name, r.PeakSwitchVoltage)
+		}
+	}
+	t.Logf("recommended %s: release %.3g ms, %g V", r.Name, r.Release.Seconds*1e3, r.PeakSwitchVoltage)
+}

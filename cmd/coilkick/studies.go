@@ -395,7 +395,7 @@ func cmdClamps(c *cli.Context, w io.Writer) error {
 		return errFailing
 	}
 	r := cmp.Options[cmp.Recommended]
-	fmt.Fprintf(b, "\nRecommended: %s (least switch stress that meets the requirement).\n", r.Name)
+	fmt.Fprintf(b, "\nRecommended: %s (least switch stress that meets the requirement; within %.0f %% of the least, the lower clamp energy wins; reverse drive needs an H-bridge and is shown for comparison only).\n", r.Name, 100*coilkick.ClampStressBand)
 	fmt.Fprintf(b, "Part ratings needed: peak current %s, energy per pulse %s", si(cmp.PartPeakCurrent, "A"), si(cmp.PartEnergy, "J"))
 	if cmp.Rate > 0 {
 		fmt.Fprintf(b, ", average power %s at %.3g operations/s", si(cmp.PartPower, "W"), cmp.Rate)
