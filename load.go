@@ -147,7 +147,11 @@ func Load(path string) (*Scenario, error) {
 //
 // A key given with no value ("mass:") is an error, even for an optional
 // key; an optional section given empty ("ratings:") counts as empty.
-func Parse(data []byte, name string) (s *Scenario, err error) {
+func Parse(data []byte, name string) (*Scenario, error) { return parse(data, name, nil) }
+
+// parse is Parse; when sections is not nil, the loader records there the
+// allowed keys of every section it reads, by path ("" for the top level).
+func parse(data []byte, name string, sections map[string][]string) (s *Scenario, err error) {
 	defer func() {
 		if r := recover(); r != nil {
 			s, err = nil, fmt.Errorf("%sinternal error while reading the scenario (please report this): %v", filePrefix(name), r)
@@ -174,7 +178,7 @@ func Parse(data []byte, name string) (s *Scenario, err error) {
 		return nil, fmt.Errorf("%s:%d: a second YAML document starts here; a scenario file holds one", name, second.Line)
 	}
 
-	l := &scenarioLoader{s: s, name: name, text: map[string]string{}, ok: map[string]bool{}}
+	l := &scenarioLoader{s: s, name: name, text: map[string]string{}, ok: map[string]bool{}, sections: sections}
 	l.dir = "."
 	if name != "" {
 		l.dir = filepath.Dir(name)
@@ -224,6 +228,8 @@ type scenarioLoader struct {
 	errs []loadError
 	text map[string]string // field path -> the value as written
 	ok   map[string]bool   // field path -> value read (or defaulted) and in range
+
+	sections map[string][]string // when not nil: section path -> its allowed keys, for each section read
 }
 
 type loadError struct {
@@ -330,6 +336,9 @@ type yamlSection struct {
 // section. It returns nil when n is not a mapping (the error is recorded).
 func (l *scenarioLoader) section(path string, at Pos, n *yaml.Node, allowed []string) *yamlSection {
 	sec := &yamlSection{path: path, pos: at, vals: map[string]*yaml.Node{}}
+	if l.sections != nil {
+		l.sections[path] = allowed
+	}
 	if n == nil {
 		return sec
 	}
