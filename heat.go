@@ -70,22 +70,46 @@ func (d DutyPattern) scaled(r float64) []DutySegment {
 
 // HeatPoint is one cycle of the temperature history.
 type HeatPoint struct {
+	Cycle        int     // 1 for the first cycle
 	Time         float64 // s, at the end of the cycle
 	Peak, Valley float64 // K, winding temperature at the end of the on-time and of the cycle
 }
 
 // HeatResult is a duty-cycle heating study.
+//
+// Steady state, one definition for every statement about it: the cycle
+// peaks (winding temperature at the end of the on-time) approach the peak
+// of the periodic steady state, SteadyPeak, the limit of the peaks as the
+// cycles go on. The study is settled from the first cycle after which
+// every peak stays within SteadyTol of SteadyPeak; SteadyAfter is the end
+// of that cycle. Steady says whether the study (its Duration, or until the
+// steady state when Duration is 0) lasts that long. The study steps on
+// past a short Duration to find SteadyPeak and SteadyAfter, so a study
+// that ends before them can say when it would have settled and where.
 type HeatResult struct {
 	Pattern DutyPattern
 	Ambient float64 // K
-	// Winding temperature over the last cycle (K): the periodic steady
-	// state when Steady, else at the end of Duration.
+	// Winding temperature over the last cycle of the study (K): the
+	// periodic steady state when Duration is 0, else the cycle that ends
+	// the Duration (within SteadyTol of the steady state when Steady).
 	Peak, Valley, Mean float64
 	Ripple             float64 // K, Peak − Valley
-	Steady             bool
-	Cycles             int
-	SteadyAfter        float64 // s, time at which the peak settled within SteadyTol
-	History            []HeatPoint
+	// Steady: the study lasts until SteadyAfter (see above).
+	Steady bool
+	// Cycles in the study: Duration over the cycle time, rounded up, or
+	// the cycles stepped until the steady state when Duration is 0.
+	Cycles int
+	// SteadyPeak (K) is the peak of the periodic steady state, and
+	// SteadyAfter (s) the end of the first cycle from which every peak
+	// stays within SteadyTol of it; both 0 when no steady state was found
+	// (thermal runaway past RunawayTemperature, or not within
+	// maxHeatCycles).
+	SteadyPeak, SteadyAfter float64
+	// History is the peak and valley of every cycle of the study, up to
+	// MaxHistory cycles; a longer study keeps every HistoryStride-th cycle
+	// (a power of two, the smallest that fits) and always its last cycle.
+	History       []HeatPoint
+	HistoryStride int
 	// HotResistance (ohm) at the peak temperature.
 	HotResistance float64
 	// Pull-in with the coil at the peak temperature, at the nominal and
@@ -106,14 +130,27 @@ type HeatResult struct {
 	HeldSteady        float64 // K, steady winding temperature when held on
 	MaxRelativeOnTime float64 // largest OnTime/Period that keeps the peak within the class limit (1 when always)
 	Simulations       int     // electrical simulations used
+	// Notes on the study, as Assessment's: a caution when the winding gets
+	// hot enough to burn (HotSurfaceCaution).
+	Notes []Note
 }
 
 // Heat study settings.
 const (
-	SteadyTol     = 0.01 // K: the periodic steady state is reached when a cycle's peak moves less than this
+	// SteadyTol (K): the study is in the periodic steady state once the
+	// cycle peaks stay within this of the steady-state peak (HeatResult).
+	SteadyTol = 0.01
+	// RunawayTemperature (K): a winding beyond this is far past every
+	// insulation class; the study stops there (thermal runaway).
+	RunawayTemperature = 1200.0
+	// MaxHistory: a study of more cycles keeps every 2nd, 4th, … cycle.
+	MaxHistory = 100000
+	// convergedTol (K): the steady-state peak is taken as found when the
+	// peaks move by less than this per cycle and the geometric tail of
+	// the remaining approach is below it too (three cycles running).
+	convergedTol  = SteadyTol * 1e-2
 	heatGrid      = 5.0  // K: the electrical cycle is re-simulated on this temperature grid
-	maxHeatCycles = 2e6  // safety bound on the cycle loop
-	historyPoints = 2000 // at most this many history points are kept
+	maxHeatCycles = 2e6  // safety bound on the cycles stepped to find the steady state
 	dutyTol       = 1e-4 // bisection tolerance on the relative on-time
 	supplyTol     = 5e-4 // relative bisection tolerance on the supply voltage
 )
@@ -219,8 +256,18 @@ func Heat(md *Model, pat DutyPattern) (*HeatResult, error) {
 		return nil, hm.simErr
 	}
 	peak := cr.peak
-	res.Peak, res.Valley, res.Mean, res.Steady, res.Cycles, res.SteadyAfter, res.History = cr.peak, cr.valley, cr.mean, cr.steady, cr.cycles, cr.steadyAt, cr.hist
+	res.Peak, res.Valley, res.Mean, res.Cycles = cr.peak, cr.valley, cr.mean, cr.cycles
+	res.History, res.HistoryStride = cr.hist, cr.stride
 	res.Ripple = cr.peak - cr.valley
+	if cr.found {
+		T := pat.CycleTime()
+		res.SteadyPeak, res.SteadyAfter = cr.steadyPeak, float64(cr.steadyCycle)*T
+		res.Steady = cr.steadyCycle <= cr.cycles
+	}
+	if peak > HotSurfaceCaution {
+		res.Notes = append(res.Notes, Note{Figure: "winding peak in the duty cycle", Level: "caution",
+			Text: fmt.Sprintf("the winding reaches %.1f degC in the duty cycle; the coil surface may be hot enough to burn: guard it and label it", peak-273.15)})
+	}
 	res.HotResistance = md.Coil.ResistanceAt(peak)
 
 	// Held on continuously.
@@ -262,36 +309,40 @@ func Heat(md *Model, pat DutyPattern) (*HeatResult, error) {
 
 // cycleRun is the outcome of stepping the thermal network.
 type cycleRun struct {
-	peak, valley, mean float64 // K, last cycle
-	steady             bool
-	cycles             int
-	steadyAt           float64 // s
+	peak, valley, mean float64 // K, last cycle of the study
+	cycles             int     // cycles in the study
+	found              bool    // the steady-state peak was found
+	steadyPeak         float64 // K
+	steadyCycle        int     // first cycle from which every peak is within SteadyTol of steadyPeak
 	hist               []HeatPoint
+	stride             int
 }
 
 // run steps the thermal network cycle by cycle through the segments, for
-// duration (0: until the periodic steady state).
+// duration (0: until the periodic steady state), and on past the duration
+// until the steady-state peak is found (HeatResult explains the terms).
+// With keep, it records the history of the study's cycles.
 func (h *heatModel) run(segs []DutySegment, duration float64, keep bool) cycleRun {
 	th, ta := h.md.Thermal, h.md.Ambient
 	T := 0.0
 	for _, sg := range segs {
 		T += sg.Duration
 	}
-	tw, thh := ta, ta
-	maxCycles := int(maxHeatCycles)
+	study := int(maxHeatCycles) // cycles of the study; with no duration, until the steady state
 	if duration > 0 {
-		maxCycles = int(math.Ceil(duration / T))
+		study = max(int(math.Ceil(duration/T-1e-9)), 1)
 	}
-	stride := 1
-	if keep && maxCycles < int(maxHeatCycles) && maxCycles > historyPoints {
-		stride = maxCycles/historyPoints + 1
-	}
-	var out cycleRun
-	var peaks []float64
-	var startW, startH float64
+	out := cycleRun{stride: 1}
+	tw, thh := ta, ta
+	var startW, startH float64 // state at the start of the study's last cycle
 	powers := make([]float64, len(segs))
-	for c := 1; c <= maxCycles; c++ {
-		startW, startH = tw, thh
+	lastPowers := make([]float64, len(segs))
+	// peaks until the steady state is found (the study may go on past it,
+	// within convergedTol of it).
+	var peaks []float64
+	calm := 0 // cycles running that meet the convergence test
+	for c := 1; ; c++ {
+		w0, h0 := tw, thh
 		peak := math.Inf(-1)
 		for k, sg := range segs {
 			p := 0.0
@@ -304,36 +355,75 @@ func (h *heatModel) run(segs []DutySegment, duration float64, keep bool) cycleRu
 				peak = math.Max(peak, tw)
 			}
 		}
-		out.peak, out.valley, out.cycles = peak, tw, c
-		peaks = append(peaks, peak)
-		if keep && (c%stride == 0 || c == 1) {
-			out.hist = append(out.hist, HeatPoint{Time: float64(c) * T, Peak: peak, Valley: tw})
-		}
-		// Settled far below the reporting tolerance: the periodic steady state.
-		if n := len(peaks); n > 1 && math.Abs(peaks[n-1]-peaks[n-2]) < SteadyTol*1e-3 {
-			out.steady = true
-			if duration == 0 {
-				break
+		if c <= study {
+			out.peak, out.valley, out.cycles = peak, tw, c
+			startW, startH = w0, h0
+			copy(lastPowers, powers)
+			if keep && c%out.stride == 0 {
+				out.hist = append(out.hist, HeatPoint{Cycle: c, Time: float64(c) * T, Peak: peak, Valley: tw})
+				if len(out.hist) >= MaxHistory {
+					out.stride *= 2
+					kept := out.hist[:0]
+					for _, p := range out.hist {
+						if p.Cycle%out.stride == 0 {
+							kept = append(kept, p)
+						}
+					}
+					out.hist = kept
+				}
 			}
 		}
-		if h.simErr != nil {
+		if !out.found {
+			peaks = append(peaks, peak)
+			if n := len(peaks); n > 2 {
+				d, dPrev := peaks[n-1]-peaks[n-2], peaks[n-2]-peaks[n-3]
+				tail := 0.0 // geometric estimate of the approach still to come
+				ok := math.Abs(d) < convergedTol
+				if d != 0 {
+					q := d / dPrev
+					ok = ok && q > 0 && q < 1
+					tail = d * q / (1 - q)
+					ok = ok && math.Abs(tail) < convergedTol
+				}
+				if ok {
+					calm++
+				} else {
+					calm = 0
+				}
+				if calm >= 3 {
+					out.found, out.steadyPeak = true, peak+tail
+				}
+			}
+		}
+		if h.simErr != nil || tw > RunawayTemperature || peak > RunawayTemperature {
+			break
+		}
+		if duration == 0 && out.found {
+			study = c // the study ends in the steady state
+			break
+		}
+		if c >= study && (out.found || c >= int(maxHeatCycles)) {
 			break
 		}
 	}
-	// When the peaks came within SteadyTol of the final one for good.
-	k := len(peaks)
-	for k > 0 && math.Abs(peaks[k-1]-out.peak) < SteadyTol {
-		k--
+	if keep && (len(out.hist) == 0 || out.hist[len(out.hist)-1].Cycle != out.cycles) {
+		out.hist = append(out.hist, HeatPoint{Cycle: out.cycles, Time: float64(out.cycles) * T, Peak: out.peak, Valley: out.valley})
 	}
-	out.steadyAt = float64(k+1) * T
-	// Time-mean winding temperature over the last cycle, by the exact
-	// solution on sub-intervals (the power is piecewise constant).
+	if out.found {
+		k := len(peaks)
+		for k > 0 && math.Abs(peaks[k-1]-out.steadyPeak) < SteadyTol {
+			k--
+		}
+		out.steadyCycle = k + 1
+	}
+	// Time-mean winding temperature over the study's last cycle, by the
+	// exact solution on sub-intervals (the power is piecewise constant).
 	const n = 100
 	tw, thh = startW, startH
 	sum := 0.0
 	for k, sg := range segs {
 		for j := 0; j < n; j++ {
-			tw2, th2 := th.Advance(tw, thh, powers[k], ta, sg.Duration/n)
+			tw2, th2 := th.Advance(tw, thh, lastPowers[k], ta, sg.Duration/n)
 			sum += 0.5 * (tw + tw2) * sg.Duration / n
 			tw, thh = tw2, th2
 		}

@@ -271,3 +271,117 @@ func TestLoadDutySegments(t *testing.T) {
 		}
 	}
 }
+
+// TestHeatSteadyStateOneDefinition: "steady", "settled after" and the
+// steady-state peak follow one definition (HeatResult), checked against
+// the closed form of a single thermal node driven by a rectangular pulse
+// train, whether the study ends before, after or at the steady state.
+func TestHeatSteadyStateOneDefinition(t *testing.T) {
+	t.Parallel()
+	md, err := LoadModel("scenarios/door-strike-duty.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	const rth, tau, on, period = 8.0, 1200.0, 1.25, 5.0 // K/W, s, s, s
+	th, err := magnet.FromRating(rth, 1, tau)
+	if err != nil {
+		t.Fatal(err)
+	}
+	md.Thermal = &th
+	md.Coil.TempCoeff = 0 // the cycle loss no longer depends on the temperature: a constant-power pulse train
+	// The loss of one cycle, simulated as the study does (energize at 0,
+	// de-energize at the on-time, then the release until the scenario's
+	// end), applied as a constant power over the on-time.
+	cyc, err := Simulate(md, &Options{NoTrace: true, FixedTemperature: md.Ambient, Energize: 0, Deenergize: on,
+		End: on + md.Timing.End - md.Timing.DeenergizeAt})
+	if err != nil {
+		t.Fatal(err)
+	}
+	p := (cyc.Metrics.CoilLoss + cyc.Metrics.EddyLoss) / on
+	// source: first-order RC network under a periodic rectangular pulse
+	// train (any circuits textbook; the single-time-constant form of the
+	// pulse-train thermal impedance in power-semiconductor datasheets):
+	// from rest, the peak at the end of the n-th on-time is
+	// θₙ = θ∞·(1 − qⁿ), q = e^(−T/τ), θ∞ = P·Rth·(1 − e^(−t_on/τ))/(1 − q).
+	q := math.Exp(-period / tau)
+	thetaInf := p * rth * (1 - math.Exp(-on/tau)) / (1 - q)
+	// Settled: the first cycle from which every peak is within SteadyTol
+	// of the steady peak, θ∞·qⁿ < SteadyTol.
+	nSettled := int(math.Ceil(math.Log(thetaInf/SteadyTol) / (period / tau)))
+	wantAfter := float64(nSettled) * period
+	for _, c := range []struct {
+		name     string
+		duration float64 // s
+		steady   bool
+	}{
+		{"ends before the steady state", 130 * 60, false}, // settles after about 170 min
+		{"ends after it", 5 * 3600, true},
+		{"until the steady state", 0, true},
+	} {
+		r, err := Heat(md, DutyPattern{OnTime: on, Period: period, Duration: c.duration})
+		if err != nil {
+			t.Fatal(err)
+		}
+		end := float64(r.Cycles) * period
+		if r.Steady != c.steady || r.Steady != (r.SteadyAfter <= end) {
+			t.Errorf("%s: steady %v after %.0f s of study, settled after %.0f s; want steady %v", c.name, r.Steady, end, r.SteadyAfter, c.steady)
+		}
+		// The tolerance: one cycle (the closed form's n is rounded up).
+		if d := math.Abs(r.SteadyAfter - wantAfter); d > period {
+			t.Errorf("%s: settled after %.0f s, closed form %.0f s", c.name, r.SteadyAfter, wantAfter)
+		}
+		if d := math.Abs(r.SteadyPeak - (md.Ambient + thetaInf)); d > 1e-3 {
+			t.Errorf("%s: steady peak %.5f K, closed form %.5f K", c.name, r.SteadyPeak, md.Ambient+thetaInf)
+		}
+		// The peak at the end of the study against the closed form.
+		if want := md.Ambient + thetaInf*(1-math.Pow(q, float64(r.Cycles))); math.Abs(r.Peak-want) > 1e-3 {
+			t.Errorf("%s: peak after %d cycles %.5f K, closed form %.5f K", c.name, r.Cycles, r.Peak, want)
+		}
+		t.Logf("%s: %d cycles, steady %v, settled after %.0f s (closed form %.0f s), steady peak %.5f K (closed form %.5f K)",
+			c.name, r.Cycles, r.Steady, r.SteadyAfter, wantAfter, r.SteadyPeak, md.Ambient+thetaInf)
+		// The history agrees with the statement: from SteadyAfter on every
+		// peak is within SteadyTol of the steady peak, the cycle before is not.
+		for _, h := range r.History {
+			inside := math.Abs(h.Peak-r.SteadyPeak) < SteadyTol
+			if after := h.Time >= r.SteadyAfter; after != inside && h.Time >= r.SteadyAfter-period {
+				t.Errorf("%s: cycle %d ends at %.0f s, peak %.5f K, steady peak %.5f K, settled after %.0f s", c.name, h.Cycle, h.Time, h.Peak, r.SteadyPeak, r.SteadyAfter)
+			}
+		}
+	}
+}
+
+// TestHeatHistoryEveryCycle: the history (the CSV of `coilkick heat`) has
+// one point per cycle of the study, up to MaxHistory cycles, as documented.
+func TestHeatHistoryEveryCycle(t *testing.T) {
+	t.Parallel()
+	md, err := LoadModel("scenarios/door-strike-duty.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	r, err := Heat(md, DutyPattern{OnTime: 1.25, Period: 5, Duration: 8 * 3600})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(r.History) != 5760 || r.Cycles != 5760 || r.HistoryStride != 1 {
+		t.Fatalf("8 h of 5 s cycles: %d history points, %d cycles, stride %d; want 5760, 5760, 1", len(r.History), r.Cycles, r.HistoryStride)
+	}
+	for k, h := range r.History {
+		if h.Cycle != k+1 || h.Time != float64(k+1)*5 {
+			t.Fatalf("history point %d: cycle %d at %g s, want cycle %d at %g s", k, h.Cycle, h.Time, k+1, float64(k+1)*5)
+		}
+	}
+	// Beyond MaxHistory cycles: every second cycle and the last.
+	long, err := Heat(md, DutyPattern{OnTime: 0.25, Period: 1, Duration: 1.5 * MaxHistory})
+	if err != nil {
+		t.Fatal(err)
+	}
+	n := len(long.History)
+	if long.HistoryStride != 2 || n != 3*MaxHistory/4 || long.History[n-1].Cycle != long.Cycles || long.Cycles != 3*MaxHistory/2 {
+		t.Fatalf("%d cycles: %d points, stride %d, last cycle %d", long.Cycles, n, long.HistoryStride, long.History[n-1].Cycle)
+	}
+	for k, h := range long.History {
+		if h.Cycle != 2*(k+1) {
+			t.Fatalf("thinned history point %d is cycle %d, want %d", k, h.Cycle, 2*(k+1))
+		}
+	}
+}
