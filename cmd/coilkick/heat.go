@@ -5,6 +5,8 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
+	"os"
 	"strconv"
 	"strings"
 
@@ -22,25 +24,144 @@ func cmdHeat(c *cli.Context, w io.Writer) error {
 	if md.Thermal == nil || md.Duty == nil {
 		return fmt.Errorf("%s: a heat study needs a thermal section (ambient and the network) and a duty section (on time, period)", path)
 	}
+	for _, flag := range []string{"csv", "plot"} {
+		if f := c.String(flag); f != "" && sameFile(f, path) {
+			return fmt.Errorf("--%s %s: that is the scenario file; choose another output", flag, f)
+		}
+	}
 	res, err := coilkick.Heat(md, *md.Duty)
 	if err != nil {
 		return err
 	}
-	if f := c.String("csv"); f != "" {
-		if err := writeFile(f, w, func(out io.Writer) error { return writeHeatCSV(out, res) }); err != nil {
+	csvFile := c.String("csv")
+	if csvFile != "" {
+		if err := writeFile(csvFile, w, func(out io.Writer) error { return writeHeatCSV(out, res) }); err != nil {
 			return err
 		}
 	}
 	if f := c.String("plot"); f != "" {
-		if err := plot.HeatHistory("Winding temperature — "+md.Name, res).Save(f); err != nil {
+		if err := plot.HeatHistory("Winding temperature — "+md.Name, plotHistory(res)).Save(f); err != nil {
 			return err
 		}
 	}
+	if csvFile == "-" {
+		return heatVerdict(res)
+	}
 	failed := printHeat(w, path, md, res)
+	if csvFile != "" {
+		fmt.Fprintf(w, "CSV %s: %s.\n", csvFile, historyText(res))
+	}
 	if failed {
 		return errFailing
 	}
 	return nil
+}
+
+// heatVerdict is the exit status of a study without its printout.
+func heatVerdict(r *coilkick.HeatResult) error {
+	if (r.Limit > 0 && r.Peak > r.Limit) || !r.HotPullIn.Happened || (r.LowSupply > 0 && !r.HotPullInLow.Happened) {
+		return errFailing
+	}
+	return nil
+}
+
+// sameFile reports whether the output name is the input file itself.
+func sameFile(out, in string) bool {
+	if out == "-" {
+		return false
+	}
+	a, err := os.Stat(out)
+	if err != nil {
+		return false
+	}
+	b, err := os.Stat(in)
+	return err == nil && os.SameFile(a, b)
+}
+
+// durationText writes a duration of the heat study as engineers read
+// it: below 100 s in seconds (si: "1.25 s", "12.2 ms"), below 3 h in
+// minutes, from 3 h in hours (the units of the history plot's time axis);
+// minutes and hours with one decimal below 10 and whole from 10 ("5.3
+// min", "25 min", "130 min", "3.5 h", "8 h", "72 h"). Never kiloseconds.
+func durationText(s float64) string {
+	whole := func(v float64) string {
+		if v < 9.95 {
+			return strings.TrimSuffix(strconv.FormatFloat(v, 'f', 1, 64), ".0")
+		}
+		return strconv.FormatFloat(v, 'f', 0, 64)
+	}
+	switch {
+	case math.IsNaN(s) || math.IsInf(s, 0):
+		return "n/a"
+	case s < 100:
+		return si(s, "s")
+	case s < 179.5*60:
+		return whole(s/60) + " min"
+	default:
+		return whole(s/3600) + " h"
+	}
+}
+
+// steadyText is the state of the winding at the end of the study, and
+// steadyRows the rows that say when the periodic steady state is reached
+// (coilkick.HeatResult defines it): one definition for both, so the
+// heading and the rows cannot disagree.
+func steadyText(r *coilkick.HeatResult) string {
+	end := durationText(float64(r.Cycles) * r.Pattern.CycleTime())
+	switch {
+	case r.Steady && r.Pattern.Duration == 0:
+		return "periodic steady state"
+	case r.Steady:
+		return "after " + end + ", in the periodic steady state"
+	default:
+		return "after " + end + ", not yet steady"
+	}
+}
+
+func steadyRows(r *coilkick.HeatResult, temp func(float64) string) [][2]string {
+	name := fmt.Sprintf("steady (peak within %g K) after", coilkick.SteadyTol)
+	switch {
+	case r.SteadyAfter == 0:
+		why := fmt.Sprintf("not found: the winding passes %s (thermal runaway)", temp(coilkick.RunawayTemperature))
+		if r.Peak <= coilkick.RunawayTemperature {
+			why = "not found within the cycles stepped"
+		}
+		return [][2]string{{"periodic steady state", why}}
+	case r.Steady:
+		return [][2]string{{name, durationText(r.SteadyAfter)}}
+	default:
+		return [][2]string{{name, durationText(r.SteadyAfter) + ", after the end of the study"},
+			{"peak in the periodic steady state", fmt.Sprintf("%s (%+.2f K on the end of the study)", temp(r.SteadyPeak), r.SteadyPeak-r.Peak)}}
+	}
+}
+
+// historyText says what the CSV history holds.
+func historyText(r *coilkick.HeatResult) string {
+	n := len(r.History)
+	if r.HistoryStride <= 1 {
+		return fmt.Sprintf("%d rows, one per cycle", n)
+	}
+	return fmt.Sprintf("%d rows, every %d cycles and the last (a study of more than %d cycles is thinned)", n, r.HistoryStride, coilkick.MaxHistory)
+}
+
+// plotHistory returns the study with its history thinned to about 2000
+// cycles for drawing (the study's last cycle kept); the CSV has them all.
+func plotHistory(r *coilkick.HeatResult) *coilkick.HeatResult {
+	const points = 2000
+	n := len(r.History)
+	if n <= points {
+		return r
+	}
+	cp := *r
+	step := (n + points - 1) / points
+	cp.History = nil
+	for k := 0; k < n; k += step {
+		cp.History = append(cp.History, r.History[k])
+	}
+	if last := r.History[n-1]; cp.History[len(cp.History)-1] != last {
+		cp.History = append(cp.History, last)
+	}
+	return &cp
 }
 
 func degC(k float64) string { return strconv.FormatFloat(k-273.15, 'f', 1, 64) + " degC" }
@@ -57,24 +178,20 @@ func printHeat(w io.Writer, path string, md *coilkick.Model, r *coilkick.HeatRes
 			if sg.On {
 				state = "on"
 			}
-			parts = append(parts, si(sg.Duration, "s")+" "+state)
+			parts = append(parts, durationText(sg.Duration)+" "+state)
 		}
-		fmt.Fprintf(b, "duty: cycle of %s repeated (%s; relative on-time %.1f %%), ambient %s\n\n", strings.Join(parts, ", "), si(p.CycleTime(), "s"), 100*p.RelativeOnTime(), degC(r.Ambient))
+		fmt.Fprintf(b, "duty: cycle of %s repeated (%s; relative on-time %.1f %%), ambient %s\n\n", strings.Join(parts, ", "), durationText(p.CycleTime()), 100*p.RelativeOnTime(), degC(r.Ambient))
 	} else {
-		fmt.Fprintf(b, "duty: %s on every %s (relative on-time %.1f %%), ambient %s\n\n", si(p.OnTime, "s"), si(p.Period, "s"), 100*p.RelativeOnTime(), degC(r.Ambient))
+		fmt.Fprintf(b, "duty: %s on every %s (relative on-time %.1f %%), ambient %s\n\n", durationText(p.OnTime), durationText(p.Period), 100*p.RelativeOnTime(), degC(r.Ambient))
 	}
 	row := func(name, value string) { fmt.Fprintf(b, "  %-38s %s\n", name, value) }
-	state := "periodic steady state"
-	if !r.Steady {
-		state = fmt.Sprintf("after %s (not yet steady)", si(float64(r.Cycles)*p.CycleTime(), "s"))
-	}
-	fmt.Fprintf(b, "Winding temperature (%s)\n", state)
+	fmt.Fprintf(b, "Winding temperature (%s)\n", steadyText(r))
 	row("peak", degC(r.Peak))
 	row("mean", degC(r.Mean))
 	row("valley", degC(r.Valley))
 	row("ripple", fmt.Sprintf("%.2f K", r.Ripple))
-	if r.Steady {
-		row("settled (within 0.01 K) after", si(r.SteadyAfter, "s"))
+	for _, sr := range steadyRows(r, degC) {
+		row(sr[0], sr[1])
 	}
 	row("coil resistance at the peak", si(r.HotResistance, "ohm"))
 	if r.Limit > 0 {
@@ -85,7 +202,7 @@ func printHeat(w io.Writer, path string, md *coilkick.Model, r *coilkick.HeatRes
 		row("insulation class "+r.Class+" (IEC 60085)", fmt.Sprintf("limit %s, margin %.1f K  %s", degC(r.Limit), r.Limit-r.Peak, verdict))
 		held := "never reaches the limit"
 		if r.HeldToLimit.Happened {
-			held = "reaches the limit after " + si(r.HeldToLimit.Seconds, "s")
+			held = "reaches the limit after " + durationText(r.HeldToLimit.Seconds)
 		}
 		row("held on continuously", fmt.Sprintf("%s (steady %s)", held, degC(r.HeldSteady)))
 		row("largest relative on-time within class", fmt.Sprintf("%.1f %%", 100*r.MaxRelativeOnTime))
@@ -96,7 +213,7 @@ func printHeat(w io.Writer, path string, md *coilkick.Model, r *coilkick.HeatRes
 			failed = true
 			return "did not pull in  FAIL"
 		}
-		return si(iv.Seconds, "s")
+		return durationText(iv.Seconds)
 	}
 	row("pull-in, hot, nominal supply", pull(r.HotPullIn))
 	if r.LowSupply > 0 {
@@ -107,22 +224,27 @@ func printHeat(w io.Writer, path string, md *coilkick.Model, r *coilkick.HeatRes
 	} else {
 		row("lowest supply that pulls in, hot", "none up to the nominal supply")
 	}
-	if r.Peak > coilkick.HotSurfaceCaution {
-		fmt.Fprintf(b, "\n  CAUTION: the winding reaches %s; the coil surface may be hot enough to burn: guard it and label it\n", degC(r.Peak))
+	if len(r.Notes) > 0 {
+		fmt.Fprintln(b)
+	}
+	for _, n := range r.Notes {
+		fmt.Fprintf(b, "  %s: %s\n", strings.ToUpper(n.Level), n.Text)
 	}
 	fmt.Fprintf(b, "\nMethod: %d cycles stepped with the exact thermal solution; %d electrical simulations (5 K grid).\n", r.Cycles, r.Simulations)
 	fmt.Fprintln(b, "INFO: model estimates; confirm with a temperature-rise test (resistance method) on the real part, and follow local codes.")
 	return failed
 }
 
+// writeHeatCSV writes the history: one row per cycle of the study (see
+// coilkick.HeatResult.History for the thinning of very long studies).
 func writeHeatCSV(w io.Writer, r *coilkick.HeatResult) error {
 	if len(r.History) == 0 {
 		return errors.New("no history")
 	}
 	b := bufio.NewWriter(w)
-	fmt.Fprintln(b, "time_s,peak_winding_K,valley_winding_K")
+	fmt.Fprintln(b, "cycle,time_s,peak_winding_K,valley_winding_K")
 	for _, h := range r.History {
-		fmt.Fprintf(b, "%g,%.6f,%.6f\n", h.Time, h.Peak, h.Valley)
+		fmt.Fprintf(b, "%d,%g,%.6f,%.6f\n", h.Cycle, h.Time, h.Peak, h.Valley)
 	}
 	return b.Flush()
 }
