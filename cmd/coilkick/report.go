@@ -67,6 +67,9 @@ func cmdReport(c *cli.Context, w io.Writer) error {
 	if err != nil {
 		return err
 	}
+	if out := c.String("output"); sameFile(out, path) {
+		return fmt.Errorf("--output %s: that is the scenario file; choose another output", out)
+	}
 	sc, err := coilkick.Load(path)
 	if err != nil {
 		return err
@@ -345,21 +348,9 @@ func buildReport(path string, md *coilkick.Model, sc *coilkick.Scenario, res *co
 	}
 	rep.Failed = doc.Failed
 
-	// Notes, cautions first.
-	rank := map[string]int{"caution": 0, "warning": 1}
-	notes := append([]coilkickNote(nil), doc.Notes...)
-	sort.SliceStable(notes, func(i, j int) bool {
-		ri, ok := rank[notes[i].Level]
-		if !ok {
-			ri = 2
-		}
-		rj, ok := rank[notes[j].Level]
-		if !ok {
-			rj = 2
-		}
-		return ri < rj
-	})
-	for _, n := range notes {
+	// Safety notes: every note of the run (plot.WriteHTML orders them,
+	// cautions first, with the heating study's).
+	for _, n := range doc.Notes {
 		rep.Notes = append(rep.Notes, plot.ReportNote{Figure: n.Figure, Level: n.Level, Text: n.Text})
 	}
 	for _, e := range doc.Events {
@@ -420,26 +411,27 @@ func buildReport(path string, md *coilkick.Model, sc *coilkick.Scenario, res *co
 
 func celsius(k float64) string { return strconv.FormatFloat(k-273.15, 'f', 1, 64) + " °C" }
 
-// heatSection lays out a duty-cycle study as printHeat does; failed when
-// the class limit is exceeded or the hot coil does not pull in.
+// heatSection lays out a duty-cycle study as printHeat does (durations
+// by durationText, the steady state by steadyText and steadyRows); failed
+// when the class limit is exceeded or the hot coil does not pull in. The
+// study's notes go to the report's safety box, not into its text.
 func heatSection(r *coilkick.HeatResult) (*plot.HeatSection, bool) {
 	p := r.Pattern
 	failed := false
-	state := "periodic steady state"
-	if !r.Steady {
-		state = fmt.Sprintf("after %s, not yet steady", si(float64(r.Cycles)*p.CycleTime(), "s"))
-	}
-	temp := plot.Group{Name: "Winding temperature (" + state + ")"}
+	temp := plot.Group{Name: "Winding temperature (" + steadyText(r) + ")"}
 	add := func(g *plot.Group, key, name, value string) *plot.Row {
 		g.Rows = append(g.Rows, plot.Row{Key: "heat." + key, Name: name, Value: value})
 		return &g.Rows[len(g.Rows)-1]
 	}
-	add(&temp, "peak", "peak", celsius(r.Peak)).Caution = r.Peak > coilkick.HotSurfaceCaution
+	peak := add(&temp, "peak", "peak", celsius(r.Peak))
+	for _, n := range r.Notes {
+		peak.Caution = peak.Caution || n.Level == "caution" // the study's cautions concern its peak
+	}
 	add(&temp, "mean", "mean", celsius(r.Mean))
 	add(&temp, "valley", "valley", celsius(r.Valley))
 	add(&temp, "ripple", "ripple", fmt.Sprintf("%.2f K", r.Ripple))
-	if r.Steady {
-		add(&temp, "settled", "settled (within 0.01 K) after", si(r.SteadyAfter, "s"))
+	for k, sr := range steadyRows(r, celsius) {
+		add(&temp, fmt.Sprintf("steady_%d", k), sr[0], sr[1])
 	}
 	add(&temp, "hot_resistance", "coil resistance at the peak", si(r.HotResistance, "Ω"))
 	if r.Limit > 0 {
@@ -448,7 +440,7 @@ func heatSection(r *coilkick.HeatResult) (*plot.HeatSection, bool) {
 		failed = failed || !row.Pass
 		held := "never reaches the limit"
 		if r.HeldToLimit.Happened {
-			held = "limit after " + si(r.HeldToLimit.Seconds, "s")
+			held = "limit after " + durationText(r.HeldToLimit.Seconds)
 		}
 		add(&temp, "held_on", "held on continuously", fmt.Sprintf("%s (steady %s)", held, celsius(r.HeldSteady)))
 		add(&temp, "max_relative_on_time", "largest relative on-time within class", fmt.Sprintf("%.1f %%", 100*r.MaxRelativeOnTime))
@@ -458,7 +450,7 @@ func heatSection(r *coilkick.HeatResult) (*plot.HeatSection, bool) {
 		row := add(&hot, key, name, "did not pull in")
 		row.Checked, row.Requirement, row.Pass = true, "required: pulls in", iv.Happened
 		if iv.Happened {
-			row.Value = si(iv.Seconds, "s")
+			row.Value = durationText(iv.Seconds)
 		}
 		failed = failed || !iv.Happened
 	}
@@ -472,15 +464,16 @@ func heatSection(r *coilkick.HeatResult) (*plot.HeatSection, bool) {
 	}
 	add(&hot, "lowest_pull_in_supply", "lowest supply that pulls in, hot", lowest)
 
-	intro := fmt.Sprintf("%s on per %s cycle (relative on-time %.1f %%), ambient %s; %d cycles stepped with the exact thermal solution, %d electrical simulations.",
-		si(p.OnTotal(), "s"), si(p.CycleTime(), "s"), 100*p.RelativeOnTime(), celsius(r.Ambient), r.Cycles, r.Simulations)
-	if r.Peak > coilkick.HotSurfaceCaution {
-		intro += fmt.Sprintf(" CAUTION: the winding reaches %s; the coil surface may be hot enough to burn: guard it and label it.", celsius(r.Peak))
+	intro := fmt.Sprintf("%s on per %s cycle (relative on-time %.1f %%), ambient %s; %d cycles (%s) stepped with the exact thermal solution, %d electrical simulations.",
+		durationText(p.OnTotal()), durationText(p.CycleTime()), 100*p.RelativeOnTime(), celsius(r.Ambient), r.Cycles, durationText(float64(r.Cycles)*p.CycleTime()), r.Simulations)
+	var notes []plot.ReportNote
+	for _, n := range r.Notes {
+		notes = append(notes, plot.ReportNote{Figure: n.Figure, Level: n.Level, Text: n.Text})
 	}
-	return &plot.HeatSection{Intro: intro, Groups: []plot.Group{temp, hot}, Figure: plot.ReportFigure{
+	return &plot.HeatSection{Intro: intro, Groups: []plot.Group{temp, hot}, Notes: notes, Figure: plot.ReportFigure{
 		ID: "heat-history", Heading: "Duty-cycle temperature history",
 		Caption: "Winding temperature at the end of each on-time (peak) and of each cycle (valley).",
-		Figure:  plot.HeatHistory("Winding temperature over the duty cycle", r),
+		Figure:  plot.HeatHistory("Winding temperature over the duty cycle", plotHistory(r)),
 	}}, failed
 }
 
@@ -558,7 +551,7 @@ func scenarioSummary(md *coilkick.Model, sc *coilkick.Scenario) []plot.Item {
 		add("thermal", join(fmt.Sprintf("ambient %s", celsius(th.Ambient)), opt(boolFloat(th.Class != ""), "insulation class %s", th.Class)))
 	}
 	if pat := md.Duty; pat != nil {
-		add("duty", fmt.Sprintf("%s on per %s cycle", si(pat.OnTotal(), "s"), si(pat.CycleTime(), "s")))
+		add("duty", fmt.Sprintf("%s on per %s cycle", durationText(pat.OnTotal()), durationText(pat.CycleTime())))
 	}
 	return out
 }

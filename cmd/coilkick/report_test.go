@@ -16,6 +16,7 @@ import (
 
 	"golang.org/x/net/html"
 
+	"coilkick"
 	"coilkick/cmd/coilkick/plot"
 )
 
@@ -110,7 +111,12 @@ type htmlDoc struct {
 	rowClass map[string]string
 	external []string // src/href/url() pointing outside the file
 	scripts  int
+	safety   []safetyItem // the notes of the safety box (section id="notes")
+	outside  string       // the text outside the safety box
 }
+
+// safetyItem is one note of the safety box: its class and text.
+type safetyItem struct{ class, text string }
 
 var externalURL = regexp.MustCompile(`(?i)url\(\s*['"]?(https?:|//)`)
 
@@ -121,7 +127,7 @@ func parseReport(t *testing.T, b []byte) *htmlDoc {
 		t.Fatalf("report does not parse: %v", err)
 	}
 	d := &htmlDoc{rows: map[string][]string{}, rowClass: map[string]string{}}
-	var text strings.Builder
+	var text, outside strings.Builder
 	var textOf func(n *html.Node) string
 	textOf = func(n *html.Node) string {
 		var s strings.Builder
@@ -134,6 +140,15 @@ func parseReport(t *testing.T, b []byte) *htmlDoc {
 		}
 		return s.String()
 	}
+	attr := func(n *html.Node, key string) string {
+		for _, a := range n.Attr {
+			if a.Key == key {
+				return a.Val
+			}
+		}
+		return ""
+	}
+	inBox := false
 	var walk func(n *html.Node)
 	walk = func(n *html.Node) {
 		switch n.Type {
@@ -141,6 +156,10 @@ func parseReport(t *testing.T, b []byte) *htmlDoc {
 			if p := n.Parent; p == nil || (p.Data != "style" && p.Data != "script") {
 				text.WriteString(n.Data)
 				text.WriteString(" ")
+				if !inBox {
+					outside.WriteString(n.Data)
+					outside.WriteString(" ")
+				}
 			} else if p.Data == "style" && externalURL.MatchString(n.Data) {
 				d.external = append(d.external, "style url()")
 			}
@@ -183,12 +202,23 @@ func parseReport(t *testing.T, b []byte) *htmlDoc {
 				}
 			}
 		}
+		box := n.Type == html.ElementNode && n.Data == "section" && attr(n, "id") == "notes"
+		if box {
+			inBox = true
+		}
+		if inBox && n.Type == html.ElementNode && n.Data == "li" {
+			d.safety = append(d.safety, safetyItem{attr(n, "class"), strings.Join(strings.Fields(textOf(n)), " ")})
+		}
 		for c := n.FirstChild; c != nil; c = c.NextSibling {
 			walk(c)
+		}
+		if box {
+			inBox = false
 		}
 	}
 	walk(root)
 	d.text = strings.Join(strings.Fields(text.String()), " ")
+	d.outside = strings.Join(strings.Fields(outside.String()), " ")
 	return d
 }
 
@@ -386,5 +416,86 @@ func TestReportCautionsAndEscaping(t *testing.T) {
 	// -o is required.
 	if code, _, _ := runCLI("report", "../../scenarios/irrigation-valve.yaml"); code != exitError {
 		t.Errorf("report without -o: exit %d", code)
+	}
+}
+
+// TestReportCautionsInSafetyBox: every note of level caution, from the run
+// (its --json notes) and from the heating study, is in the safety box and
+// highlighted there (class "caution"); the heating study's caution is not
+// left as plain text in its section. The door-strike demo's winding peaks
+// at 78.8 °C, above the hot-surface threshold (HotSurfaceCaution).
+func TestReportCautionsInSafetyBox(t *testing.T) {
+	t.Parallel()
+	for _, f := range []string{"../../scenarios/door-strike-duty.yaml", "../../scenarios/door-latch.yaml", "../../scenarios/process-air-valve.yaml"} {
+		base := strings.TrimSuffix(filepath.Base(f), ".yaml")
+		dir := t.TempDir()
+		out, js := filepath.Join(dir, "r.html"), filepath.Join(dir, "s.json")
+		want := runStatus(t, f)
+		if code, _, stderr := runCLI("report", f, "-o", out); code != want {
+			t.Fatalf("%s: report exit %d, want %d: %s", base, code, want, stderr)
+		}
+		if code, _, stderr := runCLI("run", f, "--json", js); code != want {
+			t.Fatalf("%s: run --json exit %d: %s", base, code, stderr)
+		}
+		hb, err := os.ReadFile(out)
+		if err != nil {
+			t.Fatal(err)
+		}
+		jb, err := os.ReadFile(js)
+		if err != nil {
+			t.Fatal(err)
+		}
+		doc := parseReport(t, hb)
+		_, _, notes := flatJSON(t, jb)
+		var cautions []string
+		for _, n := range notes {
+			if n["level"] == "caution" {
+				cautions = append(cautions, n["text"].(string))
+			}
+		}
+		if strings.Contains(base, "duty") {
+			md, err := coilkick.LoadModel(f)
+			if err != nil {
+				t.Fatal(err)
+			}
+			hr, err := coilkick.Heat(md, *md.Duty)
+			if err != nil {
+				t.Fatal(err)
+			}
+			var heat []string
+			for _, n := range hr.Notes {
+				if n.Level == "caution" {
+					heat = append(heat, n.Text)
+				}
+			}
+			if len(heat) == 0 || !strings.Contains(heat[0], "hot enough to burn") {
+				t.Fatalf("%s: the heating study has no hot-surface caution (peak %.1f K): %q", base, hr.Peak, heat)
+			}
+			cautions = append(cautions, heat...)
+			if strings.Contains(doc.outside, "hot enough to burn") {
+				t.Errorf("%s: the hot-surface caution is also plain text outside the safety box", base)
+			}
+		}
+		if len(cautions) == 0 {
+			t.Logf("%s: no caution notes in this run", base)
+		}
+		for _, c := range cautions {
+			found := false
+			for _, s := range doc.safety {
+				found = found || (s.class == "caution" && strings.Contains(s.text, c))
+			}
+			if !found {
+				t.Errorf("%s: caution %q is not highlighted in the safety box %q", base, c, doc.safety)
+			}
+		}
+		// Cautions first.
+		for k := 1; k < len(doc.safety); k++ {
+			if doc.safety[k].class == "caution" && doc.safety[k-1].class != "caution" {
+				t.Errorf("%s: caution after a %s note in the safety box", base, doc.safety[k-1].class)
+			}
+		}
+		if m := kiloseconds.FindAllString(doc.text, -1); m != nil {
+			t.Errorf("%s: the report prints kiloseconds %q", base, m)
+		}
 	}
 }

@@ -6,6 +6,7 @@ import (
 	"html/template"
 	"io"
 	"regexp"
+	"sort"
 	"strings"
 )
 
@@ -17,9 +18,9 @@ type Report struct {
 	Source  string // the scenario file
 	Summary []Item // what the scenario is: supply, coil, magnet, drive…
 	Failed  bool
-	Verdict string // one line: how many checks pass
-	Notes   []ReportNote
-	Groups  []Group // the key figures
+	Verdict string       // one line: how many checks pass
+	Notes   []ReportNote // the run's; the safety box shows them with Heat.Notes
+	Groups  []Group      // the key figures
 	Events  []ReportEvent
 	Figures []ReportFigure // drawn after the events table, in order
 	Heat    *HeatSection   // nil without a duty-cycle study
@@ -31,6 +32,28 @@ type Item struct{ Label, Value string }
 
 // ReportNote is a safety note; Level "caution" is highlighted.
 type ReportNote struct{ Figure, Level, Text string }
+
+// safetyNotes are the notes of the safety box: the run's and the heating
+// study's, cautions first, then warnings, then the rest, each kind in the
+// order given. Every note of the report is shown there and only there, so
+// no caution is left as plain text elsewhere.
+func (r *Report) safetyNotes() []ReportNote {
+	notes := append([]ReportNote(nil), r.Notes...)
+	if r.Heat != nil {
+		notes = append(notes, r.Heat.Notes...)
+	}
+	rank := func(level string) int {
+		switch level {
+		case "caution":
+			return 0
+		case "warning":
+			return 1
+		}
+		return 2
+	}
+	sort.SliceStable(notes, func(i, j int) bool { return rank(notes[i].Level) < rank(notes[j].Level) })
+	return notes
+}
 
 // Group is a table of figures under a heading.
 type Group struct {
@@ -56,10 +79,12 @@ type ReportFigure struct {
 	Figure               *Figure
 }
 
-// HeatSection is the duty-cycle heating study.
+// HeatSection is the duty-cycle heating study. Its Notes are shown in the
+// report's safety box with the run's, not in the section.
 type HeatSection struct {
 	Intro  string
 	Groups []Group
+	Notes  []ReportNote
 	Figure ReportFigure
 }
 
@@ -106,9 +131,10 @@ func WriteHTML(w io.Writer, r *Report) error {
 		*Report
 		Figs    []fig
 		HeatFig *fig
+		Safety  []ReportNote
 		Fonts   template.CSS
 		Style   template.CSS
-	}{r, figs, heatFig, template.CSS(strings.Join(fontCSS, "\n")), template.CSS(reportCSS)}
+	}{r, figs, heatFig, r.safetyNotes(), template.CSS(strings.Join(fontCSS, "\n")), template.CSS(reportCSS)}
 	var buf bytes.Buffer
 	if err := reportTemplate.Execute(&buf, data); err != nil {
 		return err
@@ -227,11 +253,11 @@ var reportTemplate = template.Must(template.New("report").Parse(`<!DOCTYPE html>
 </dl>
 </section>
 
-{{if .Notes -}}
+{{if .Safety -}}
 <section id="notes">
 <h2>Safety notes</h2>
 <ul class="notes">
-{{- range .Notes}}
+{{- range .Safety}}
 <li class="{{.Level}}"><span class="level">{{.Level}}</span>{{if .Figure}}<span class="fig">{{.Figure}}: </span>{{end}}{{.Text}}</li>
 {{- end}}
 </ul>

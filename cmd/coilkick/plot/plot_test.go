@@ -225,3 +225,32 @@ func TestWriteHTMLEscapesAndInlines(t *testing.T) {
 		t.Errorf("SVG not inlined with its font once")
 	}
 }
+
+// TestWriteHTMLHeatNotesInSafetyBox: the heating study's notes are shown
+// in the safety box with the run's, cautions first and highlighted, and
+// the box is there even when the run itself has no note.
+func TestWriteHTMLHeatNotesInSafetyBox(t *testing.T) {
+	heat := &HeatSection{Intro: "study", Notes: []ReportNote{{Figure: "winding peak", Level: "caution", Text: "hot enough to burn"}}}
+	for _, run := range [][]ReportNote{nil, {{Level: "info", Text: "model estimates"}}} {
+		var b bytes.Buffer
+		if err := WriteHTML(&b, &Report{Title: "t", Verdict: "ok", Notes: run, Heat: heat}); err != nil {
+			t.Fatal(err)
+		}
+		s := b.String()
+		a, z := strings.Index(s, `<section id="notes">`), strings.Index(s, `<section id="figures">`)
+		if a < 0 || z < a {
+			t.Fatalf("run notes %v: no safety box", run)
+		}
+		box := s[a:z]
+		c := strings.Index(box, `<li class="caution"><span class="level">caution</span><span class="fig">winding peak: </span>hot enough to burn</li>`)
+		if c < 0 {
+			t.Errorf("run notes %v: heating caution not highlighted in the safety box:\n%s", run, box)
+		}
+		if i := strings.Index(box, `<li class="info">`); len(run) > 0 && (i < 0 || i < c) {
+			t.Errorf("the run's info note missing or before the caution:\n%s", box)
+		}
+		if strings.Count(s, "hot enough to burn") != 1 {
+			t.Errorf("the caution appears %d times", strings.Count(s, "hot enough to burn"))
+		}
+	}
+}
