@@ -19,6 +19,30 @@ type Check struct {
 	Pass     bool
 	// Min: the limit is a minimum (a margin), not a maximum.
 	Min bool
+	// NotApplicable, when not empty, says why the check does not apply to
+	// this run (release time after a drop-out during the hold, say); such a
+	// check neither passes nor fails (Pass is false, Failed ignores it).
+	NotApplicable string
+}
+
+// LimitRelTol is the comparison rule for limits: a figure within this
+// fraction of its limit counts as equal to it (a maximum passes, a minimum
+// passes). The integrator reproduces closed forms to 1e-6 relative at its
+// default tolerance (sim_ref_test.go), so the model does not resolve
+// differences below that; a clamp at exactly the rating computed as
+// 60.00000003 V must not fail.
+const LimitRelTol = 1e-6
+
+// WithinMax reports whether value does not exceed the maximum limit under
+// the LimitRelTol rule.
+func WithinMax(value, limit float64) bool {
+	return value <= limit+LimitRelTol*math.Abs(limit)
+}
+
+// AtLeast reports whether value reaches the minimum limit under the
+// LimitRelTol rule.
+func AtLeast(value, limit float64) bool {
+	return value >= limit-LimitRelTol*math.Abs(limit)
 }
 
 func boolFigure(b bool) float64 {
@@ -58,14 +82,31 @@ type Assessment struct {
 	Notes  []Note
 }
 
-// Failed reports whether any check failed.
+// Failed reports whether any applicable check failed.
 func (a *Assessment) Failed() bool {
+	return a.FailedCount() > 0
+}
+
+// FailedCount returns the number of applicable checks that fail.
+func (a *Assessment) FailedCount() int {
+	n := 0
 	for _, c := range a.Checks {
-		if !c.Pass {
-			return true
+		if !c.Pass && c.NotApplicable == "" {
+			n++
 		}
 	}
-	return false
+	return n
+}
+
+// NotApplicableCount returns the number of checks that do not apply.
+func (a *Assessment) NotApplicableCount() int {
+	n := 0
+	for _, c := range a.Checks {
+		if c.NotApplicable != "" {
+			n++
+		}
+	}
+	return n
 }
 
 // Assess compares a run with the model's ratings and requirements and
@@ -79,24 +120,32 @@ func (md *Model) Assess(res *Result) Assessment {
 			return
 		}
 		a.Checks = append(a.Checks, Check{Name: name, Unit: unit, Value: value, Limit: limit,
-			Happened: happened, Pass: happened && value <= limit})
+			Happened: happened, Pass: happened && WithinMax(value, limit)})
+	}
+	na := m.ReleaseNotApplicable()
+	timeCheck := func(name string, iv Interval, limit float64) {
+		if limit > 0 && na != "" {
+			a.Checks = append(a.Checks, Check{Name: name, Unit: "s", Limit: limit, NotApplicable: na})
+			return
+		}
+		maxCheck(name, "s", iv.Seconds, limit, iv.Happened)
 	}
 	maxCheck("pull-in time", "s", m.PullIn.Seconds, lim.MaxPullIn, m.PullIn.Happened)
-	maxCheck("release time", "s", m.Release.Seconds, lim.MaxRelease, m.Release.Happened)
-	maxCheck("drop time", "s", m.Drop.Seconds, lim.MaxDrop, m.Drop.Happened)
+	timeCheck("release time", m.Release, lim.MaxRelease)
+	timeCheck("drop time", m.Drop, lim.MaxDrop)
 	maxCheck("peak switch voltage", "V", m.PeakSwitchVoltage, lim.SwitchVoltage, true)
 	maxCheck("avalanche energy", "J", m.AvalancheEnergy, lim.AvalancheEnergy, true)
 	maxCheck("clamp energy", "J", m.ClampEnergy, lim.ClampEnergy, true)
 	maxCheck("peak clamp current", "A", m.PeakClampCurrent, lim.ClampCurrent, true)
 	if lim.MinHoldMargin > 0 {
 		a.Checks = append(a.Checks, Check{Name: "hold force margin", Unit: "", Value: m.Hold.ForceMargin, Limit: lim.MinHoldMargin,
-			Happened: m.Hold.Measured && m.Hold.ForceMargin > 0, Min: true,
-			Pass: m.Hold.Measured && m.Hold.ForceMargin >= lim.MinHoldMargin})
+			Happened: m.Hold.Measured, Min: true,
+			Pass: m.Hold.Measured && AtLeast(m.Hold.ForceMargin, lim.MinHoldMargin)})
 	}
 	if m.PullIn.Happened {
 		// A plunger that drops out while energized fails whatever the ratings.
 		a.Checks = append(a.Checks, Check{Name: "stays seated while energized", Happened: true,
-			Value: boolFigure(!m.DroppedOutEnergized), Min: true, Pass: !m.DroppedOutEnergized})
+			Value: boolFigure(!m.DropOut.Happened), Min: true, Pass: !m.DropOut.Happened})
 	}
 
 	note := func(fig, level, format string, args ...any) {
@@ -104,7 +153,7 @@ func (md *Model) Assess(res *Result) Assessment {
 	}
 	if !m.PullIn.Happened {
 		note("pull-in time", "warning", "the plunger did not pull in: the magnetic force never overcame the spring and load before the run ended")
-	} else if !m.Release.Happened {
+	} else if na == "" && !m.Release.Happened {
 		note("release time", "warning", "the plunger did not release before the run ended (residual flux or a weak spring holds it)")
 	}
 	if m.PeakSwitchVoltage > KickCautionVoltage {
@@ -120,14 +169,29 @@ func (md *Model) Assess(res *Result) Assessment {
 	if md.Drive.Suppressor.Kind == circuit.None {
 		note("peak switch voltage", "caution", "no suppression part is fitted: every turn-off dumps the coil's stored energy into the switch; a clamp or freewheel path is the usual practice")
 	}
-	if lim.SwitchVoltage > 0 && m.PeakSwitchVoltage > 0.8*lim.SwitchVoltage && m.PeakSwitchVoltage <= lim.SwitchVoltage {
+	if lim.SwitchVoltage > 0 && !WithinMax(m.PeakSwitchVoltage, 0.8*lim.SwitchVoltage) && WithinMax(m.PeakSwitchVoltage, lim.SwitchVoltage) {
 		note("peak switch voltage", "warning", "the switch voltage peak is within 20 %% of its rating (common derating practice, no source)")
 	}
-	if h := m.Hold; h.Measured && md.Control.Chops() && h.ChoppingFrequency > 0 && h.ChoppingFrequency < AudibleLimit {
+	if h := m.Hold; h.Measured && h.Chopped && h.ChoppingFrequency > 0 && !AtLeast(h.ChoppingFrequency, AudibleLimit) {
 		note("chopping frequency", "warning", "the driver chops at %.3g kHz, inside the audible range (below %.0f kHz, common practice, no source): the coil may whine", h.ChoppingFrequency/1e3, AudibleLimit/1e3)
 	}
-	if m.DroppedOutEnergized {
-		note("hold force margin", "warning", "the hold does not keep the plunger seated: raise the hold current or duty")
+	if d := m.DropOut; d.Happened {
+		phase := "while energized, before the hold"
+		if d.InHold {
+			phase = "during the hold"
+		}
+		advice := "raise the hold current or duty"
+		if md.Control.Mode == circuit.Constant {
+			advice = "the coil's pull at the supply voltage is too weak: raise the supply or the ampere-turns, or lower the spring or load"
+		}
+		text := fmt.Sprintf("the plunger drops out %s, %s after energize, at %s: the pull at the seated gap (%.3g N) fell to the spring + load there (%.3g N), so a current below this does not hold it",
+			phase, formatDuration(d.Time), formatCurrent(d.Current), d.Pull, d.Passive)
+		if k := lim.MinHoldMargin; k > 0 {
+			if ih, ok := seatHoldingCurrent(md, k); ok {
+				text += fmt.Sprintf("; the hold force margin %.3g needs %s", k, formatCurrent(ih))
+			}
+		}
+		note("stays seated while energized", "warning", "%s; %s", text, advice)
 	}
 	if hot := math.Max(md.Temperature, m.FinalWindingTemperature); hot > HotSurfaceCaution {
 		note("", "caution", "the winding runs at %.0f degC: its surface may be hot enough to burn", hot-273.15)
@@ -137,6 +201,26 @@ func (md *Model) Assess(res *Result) Assessment {
 	}
 	note("", "info", "these are model estimates from the data in the scenario; confirm on the bench, and follow local electrical codes and licensed practice for wiring, insulation and protection")
 	return a
+}
+
+// formatCurrent writes a current in A or mA.
+func formatCurrent(a float64) string {
+	if math.Abs(a) >= 1 {
+		return fmt.Sprintf("%.3g A", a)
+	}
+	return fmt.Sprintf("%.3g mA", a*1e3)
+}
+
+// formatDuration writes a time in s, ms or µs.
+func formatDuration(t float64) string {
+	switch a := math.Abs(t); {
+	case a >= 1:
+		return fmt.Sprintf("%.4g s", t)
+	case a >= 1e-3:
+		return fmt.Sprintf("%.4g ms", t*1e3)
+	default:
+		return fmt.Sprintf("%.3g µs", t*1e6)
+	}
 }
 
 // formatEnergy writes an energy with a convenient prefix.

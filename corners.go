@@ -18,7 +18,25 @@ type Tolerances struct {
 	Spring         float64 // ± fraction of spring preload and rate
 	Load           float64 // ± fraction of the load (pressure, constant force)
 	Ambient        float64 // ± K on the winding temperature
-	HotWinding     float64 // K, the hot-coil winding temperature (0: no hot corner)
+	// HotWinding (K) is the winding temperature of the hot corner, as it
+	// stands: it already includes the worst ambient (no tolerance is added
+	// to it), and `solve` uses the same temperature. 0: the hot corner is
+	// the run's temperature + Ambient.
+	HotWinding float64
+}
+
+// ColdWinding returns the winding temperature of the cold corner (K): the
+// run's temperature less the ambient tolerance.
+func (tol Tolerances) ColdWinding(md *Model) float64 { return md.Temperature - tol.Ambient }
+
+// HotCorner returns the winding temperature of the hot corner (K):
+// HotWinding when given, else the run's temperature plus the ambient
+// tolerance.
+func (tol Tolerances) HotCorner(md *Model) float64 {
+	if tol.HotWinding > 0 {
+		return tol.HotWinding
+	}
+	return md.Temperature + tol.Ambient
 }
 
 // Corner is one combination of parameter extremes.
@@ -33,12 +51,19 @@ type CornerCheck struct {
 	Name     string
 	Unit     string
 	Limit    float64
-	Min      bool     // the limit is a minimum
-	Worst    float64  // the worst value (meaningless when !Happened)
-	Happened bool     // false: at the worst corner the figure did not exist (did not pull in, say)
-	Corner   string   // label of the corner that produced the worst value
-	Pass     bool     // every corner passes
-	Failing  []string // labels of the failing corners
+	Min      bool    // the limit is a minimum
+	Worst    float64 // the worst value (meaningless when !Happened)
+	Happened bool    // false: at the worst corner the figure did not exist (did not pull in, say)
+	Corner   string  // label of the corner that produced the worst value
+	// Tied: how many other corners share the worst value (within
+	// LimitRelTol, or the figure not happening there either); Corner is the
+	// first of them in corner order.
+	Tied    int
+	Pass    bool     // every corner where the check applies passes
+	Failing []string // labels of the failing corners
+	// NotApplicable: corners where the check does not apply (release after
+	// a drop-out, say).
+	NotApplicable int
 }
 
 // CornerResult is a worst-case study.
@@ -49,6 +74,60 @@ type CornerResult struct {
 	Samples int
 	Seed    uint64
 	Yield   float64
+	// YieldLow, YieldHigh: the 95 % Wilson score interval of the yield
+	// (Wilson, J. Amer. Statist. Assoc. 22, 209–212, 1927).
+	YieldLow, YieldHigh float64
+}
+
+// FailingCorners returns the number of corners that fail some check.
+func (r *CornerResult) FailingCorners() int {
+	failing := map[string]bool{}
+	for _, ch := range r.Checks {
+		for _, c := range ch.Failing {
+			failing[c] = true
+		}
+	}
+	return len(failing)
+}
+
+// WilsonInterval returns the Wilson score interval of a binomial
+// proportion, k successes in n trials, at the normal quantile z (1.96 for
+// 95 %): (p + z²/2n ± z·√(p(1−p)/n + z²/4n²)) / (1 + z²/n) (Wilson 1927;
+// Newcombe, Statistics in Medicine 17, 857–872, 1998, method 3).
+func WilsonInterval(k, n int, z float64) (lo, hi float64) {
+	if n <= 0 {
+		return 0, 1
+	}
+	nf := float64(n)
+	p := float64(k) / nf
+	den := 1 + z*z/nf
+	mid := (p + z*z/(2*nf)) / den
+	half := z * math.Sqrt(p*(1-p)/nf+z*z/(4*nf*nf)) / den
+	return math.Max(0, mid-half), math.Min(1, mid+half)
+}
+
+// worse reports whether check value b is worse than the present worst a:
+// a figure that did not happen is worse than any that did; otherwise the
+// larger value of a maximum (the smaller of a minimum) is worse, values
+// within LimitRelTol of each other counting as equal (a tie, kept by the
+// earlier corner).
+func worse(aHappened bool, a float64, bHappened bool, b float64, min bool) (worse, tie bool) {
+	switch {
+	case !aHappened && !bHappened:
+		return false, true
+	case !bHappened:
+		return true, false
+	case !aHappened:
+		return false, false
+	}
+	tol := LimitRelTol * math.Max(math.Abs(a), math.Abs(b))
+	if math.Abs(a-b) <= tol {
+		return false, true
+	}
+	if min {
+		return b < a, false
+	}
+	return b > a, false
 }
 
 // scaledLoad multiplies a load by a factor.
@@ -98,11 +177,9 @@ func corners(md *Model, tol Tolerances) []Corner {
 		}
 		return []float64{0}
 	}
-	temps := []float64{md.Temperature - tol.Ambient}
-	if tol.HotWinding > 0 {
-		temps = append(temps, tol.HotWinding+tol.Ambient)
-	} else if tol.Ambient > 0 {
-		temps = append(temps, md.Temperature+tol.Ambient)
+	temps := []float64{tol.ColdWinding(md)}
+	if hot := tol.HotCorner(md); hot != temps[0] {
+		temps = append(temps, hot)
 	}
 	var out []Corner
 	for _, s := range ext(tol.Supply) {
@@ -143,38 +220,17 @@ func Corners(md *Model, tol Tolerances, samples int, seed uint64) (*CornerResult
 			if !ok {
 				k = len(res.Checks)
 				index[ch.Name] = k
-				res.Checks = append(res.Checks, CornerCheck{Name: ch.Name, Unit: ch.Unit, Limit: ch.Limit, Min: ch.Min,
-					Worst: ch.Value, Happened: ch.Happened, Corner: c.Label, Pass: true})
+				res.Checks = append(res.Checks, CornerCheck{Name: ch.Name, Unit: ch.Unit, Limit: ch.Limit, Min: ch.Min, Pass: true})
 			}
-			cc := &res.Checks[k]
-			if !ch.Pass {
-				cc.Pass = false
-				cc.Failing = append(cc.Failing, c.Label)
-			}
-			worse := false
-			switch {
-			case !cc.Happened:
-			case !ch.Happened:
-				worse = true
-			case ch.Min:
-				worse = ch.Value < cc.Worst
-			default:
-				worse = ch.Value > cc.Worst
-			}
-			if worse {
-				cc.Worst, cc.Happened, cc.Corner = ch.Value, ch.Happened, c.Label
-			}
+			res.Checks[k].add(ch, c.Label)
 		}
 	}
 	if samples > 0 {
 		rng := rand.New(rand.NewPCG(seed, 0x636f696c6b69636b))
 		pass := 0
-		lo := md.Temperature - tol.Ambient
-		hi := md.Temperature + tol.Ambient
-		if tol.HotWinding > 0 {
-			hi = tol.HotWinding + tol.Ambient
-		}
 		u := func(t float64) float64 { return t * (2*rng.Float64() - 1) }
+		// The winding temperature is uniform between the cold and hot corners.
+		lo, hi := tol.ColdWinding(md), tol.HotCorner(md)
 		for n := 0; n < samples; n++ {
 			c := Corner{Supply: u(tol.Supply), Resistance: u(tol.CoilResistance), Spring: u(tol.Spring), Load: u(tol.Load),
 				Temperature: lo + (hi-lo)*rng.Float64()}
@@ -188,8 +244,32 @@ func Corners(md *Model, tol Tolerances, samples int, seed uint64) (*CornerResult
 			}
 		}
 		res.Yield = float64(pass) / float64(samples)
+		res.YieldLow, res.YieldHigh = WilsonInterval(pass, samples, 1.959963984540054)
 	}
 	return res, nil
+}
+
+// add folds the check of one corner into the worst case.
+func (cc *CornerCheck) add(ch Check, label string) {
+	if ch.NotApplicable != "" {
+		cc.NotApplicable++
+		return
+	}
+	if !ch.Pass {
+		cc.Pass = false
+		cc.Failing = append(cc.Failing, label)
+	}
+	if cc.Corner == "" {
+		cc.Worst, cc.Happened, cc.Corner = ch.Value, ch.Happened, label
+		return
+	}
+	w, tie := worse(cc.Happened, cc.Worst, ch.Happened, ch.Value, ch.Min)
+	switch {
+	case w:
+		cc.Worst, cc.Happened, cc.Corner, cc.Tied = ch.Value, ch.Happened, label, 0
+	case tie:
+		cc.Tied++
+	}
 }
 
 // Solution is a solve-for answer.
@@ -197,8 +277,17 @@ type Solution struct {
 	What  string  // what was solved for
 	Value float64 // SI, in Unit
 	Unit  string
-	Found bool   // false: no value in the searched range works
-	Note  string // the criterion, and a rounding hint
+	Found bool // false: no value in the searched range works
+	// Lo, Hi: the searched range, in Unit.
+	Lo, Hi float64
+	// AlreadyMet, when not empty: the requirement holds at the end of the
+	// range that needs no part or setting (a plain freewheel diode meets
+	// the release requirement, say); Value is that end.
+	AlreadyMet string
+	// Blocked, when not empty: the question has no answer for the scenario
+	// as it stands, and why (the plunger drops out during the hold, say).
+	Blocked string
+	Note    string // the criterion, and a rounding hint
 }
 
 // bisect finds the boundary in [lo, hi] between failing (at lo) and
@@ -229,7 +318,7 @@ func LowestSupply(md *Model, t float64) (Solution, error) {
 		t = md.Temperature
 	}
 	sol := Solution{What: fmt.Sprintf("lowest supply that pulls in (winding %.0f degC)", t-273.15), Unit: "V",
-		Note: "pull-in within the energized time"}
+		Note: "pull-in within the energized time", Lo: 0, Hi: md.Drive.Supply.Voltage}
 	pulls := func(v float64) (bool, error) {
 		r, err := Simulate(md, &Options{NoTrace: true, FixedTemperature: t, SupplyVoltage: v})
 		if err != nil {
@@ -258,20 +347,18 @@ func LowestHold(md *Model, margin float64) (Solution, error) {
 	if !(margin > 0) {
 		return Solution{}, errors.New("coilkick: the hold margin must be positive")
 	}
-	p := md.Plunger
-	need := p.PassiveForce(p.GapMin, 0) * margin
 	holds := func(v *Model) (bool, error) {
 		r, err := Simulate(v, &Options{NoTrace: true})
 		if err != nil {
 			return false, err
 		}
 		m := &r.Metrics
-		return m.PullIn.Happened && !m.DroppedOutEnergized && m.Hold.Measured && m.Hold.ForceMargin >= margin, nil
+		return m.PullIn.Happened && !m.DropOut.Happened && m.Hold.Measured && AtLeast(m.Hold.ForceMargin, margin), nil
 	}
 	switch md.Control.Mode {
 	case circuit.PeakHold:
 		sol := Solution{What: fmt.Sprintf("lowest hold current with force margin %.2f", margin), Unit: "A",
-			Note: "peak-and-hold hold current; margin at the lowest current of the ripple"}
+			Note: "peak-and-hold hold current; margin at the lowest current of the ripple", Lo: 0, Hi: md.Control.PeakCurrent}
 		x, err := bisect(0, md.Control.PeakCurrent, SolveRel, func(i float64) (bool, error) {
 			v := *md
 			v.Control.HoldCurrent = i
@@ -290,7 +377,7 @@ func LowestHold(md *Model, margin float64) (Solution, error) {
 		return sol, nil
 	case circuit.PWM:
 		sol := Solution{What: fmt.Sprintf("lowest PWM duty with force margin %.2f", margin), Unit: "",
-			Note: "duty of the whole energized time (PWM from the start)"}
+			Note: "duty of the whole energized time (PWM from the start)", Lo: 0, Hi: 1}
 		x, err := bisect(0, 1, SolveRel, func(d float64) (bool, error) {
 			v := *md
 			v.Control.Duty = d
@@ -306,20 +393,37 @@ func LowestHold(md *Model, margin float64) (Solution, error) {
 		return sol, nil
 	}
 	sol := Solution{What: fmt.Sprintf("lowest holding current with force margin %.2f", margin), Unit: "A",
-		Note: "from the magnet's pull at the seat (no simulation)"}
+		Note: "from the magnet's pull at the seat (no simulation)", Lo: 0, Hi: 10 * md.Drive.Supply.Voltage / md.CoilResistance()}
+	x, ok := seatHoldingCurrent(md, margin)
+	sol.Value, sol.Found = x, ok
+	return sol, nil
+}
+
+// seatHoldingCurrent returns the coil current whose magnetic pull at the
+// seated gap is margin × the spring and load there, from the magnet alone;
+// false when even 10 × the rated current (supply over coil resistance)
+// does not reach it.
+func seatHoldingCurrent(md *Model, margin float64) (float64, bool) {
+	p := md.Plunger
+	need := p.PassiveForce(p.GapMin, 0) * margin
+	if need <= 0 {
+		return 0, true
+	}
 	iMax := 10 * md.Drive.Supply.Voltage / md.CoilResistance()
-	if md.Magnet.Force(iMax, p.GapMin) < need {
-		return sol, nil
+	if !(md.Magnet.Force(iMax, p.GapMin) >= need) {
+		return 0, false
 	}
 	x, err := bisect(0, iMax, 1e-9, func(i float64) (bool, error) { return md.Magnet.Force(i, p.GapMin) >= need, nil })
-	sol.Value, sol.Found = x, err == nil
-	return sol, err
+	return x, err == nil
 }
 
 // LowestClamp returns the lowest clamp voltage of the model's clamp
 // (diode + Zener: the Zener voltage; TVS, switch clamp: the clamp
 // voltage) that meets the release-time requirement, and notes the next
-// E24 value at or above it.
+// E24 value at or above it. When the plunger drops out while energized the
+// release does not apply and the answer is Blocked; when the lowest clamp
+// the drive allows already meets it (for a diode + Zener, no Zener at all:
+// a plain freewheel diode) the answer says so in AlreadyMet.
 func LowestClamp(md *Model) (Solution, error) {
 	req := md.Limits.MaxRelease
 	if req == 0 {
@@ -329,24 +433,33 @@ func LowestClamp(md *Model) (Solution, error) {
 	v0 := md.Drive.Supply.Voltage
 	var lo, hi float64
 	var set func(v *Model, x float64)
-	what := ""
+	what, none := "", ""
 	switch sup.Kind {
 	case circuit.DiodeZener:
 		lo, hi = 0, md.Drive.Switch.BreakdownVoltage-v0
 		set = func(v *Model, x float64) { v.Drive.Suppressor.Voltage = diodeDropOf(md) + x }
-		what = "Zener voltage"
+		what, none = "Zener voltage", "no Zener needed: a plain freewheel diode already meets it"
 	case circuit.TVS:
 		lo, hi = v0, md.Drive.Switch.BreakdownVoltage-v0
 		set = func(v *Model, x float64) { v.Drive.Suppressor.Voltage = x }
-		what = "TVS clamp voltage"
+		what, none = "TVS clamp voltage", "already met at the lowest TVS voltage the drive allows (the supply voltage)"
 	case circuit.SwitchClamp:
 		lo, hi = v0, md.Drive.Switch.BreakdownVoltage
 		set = func(v *Model, x float64) { v.Drive.Suppressor.Voltage = x }
-		what = "switch clamp voltage"
+		what, none = "switch clamp voltage", "already met at the lowest switch clamp the drive allows (the supply voltage)"
 	default:
 		return Solution{}, fmt.Errorf("coilkick: solving for the clamp voltage needs a diode zener, tvs or switch clamp suppression, not %v", sup.Kind)
 	}
-	sol := Solution{What: "lowest " + what + " meeting the release requirement", Unit: "V"}
+	top := hi * 0.999 // strictly below the breakdown
+	sol := Solution{What: "lowest " + what + " meeting the release requirement", Unit: "V", Lo: lo, Hi: top}
+	base, err := Simulate(md, &Options{NoTrace: true})
+	if err != nil {
+		return sol, err
+	}
+	if na := base.Metrics.ReleaseNotApplicable(); na != "" {
+		sol.Blocked = "the plunger " + strings.TrimPrefix(na, "not applicable: ") + ", so the release requirement does not apply; make the plunger pull in and stay seated first"
+		return sol, nil
+	}
 	meets := func(x float64) (bool, error) {
 		v := *md
 		set(&v, x)
@@ -357,18 +470,18 @@ func LowestClamp(md *Model) (Solution, error) {
 		if err != nil {
 			return false, err
 		}
-		return r.Metrics.Release.Happened && r.Metrics.Release.Seconds <= req, nil
+		return r.Metrics.Release.Happened && WithinMax(r.Metrics.Release.Seconds, req), nil
 	}
-	if ok, err := meets(hi * 0.999); err != nil || !ok {
+	if ok, err := meets(top); err != nil || !ok {
 		sol.Note = "even the highest clamp below the switch breakdown does not meet it"
 		return sol, err
 	}
 	if ok, err := meets(lo); err != nil || ok {
 		sol.Value, sol.Found = lo, err == nil
-		sol.Note = "already met at the lowest clamp the drive allows"
+		sol.AlreadyMet = none
 		return sol, err
 	}
-	x, err := bisect(lo, hi*0.999, SolveRel, meets)
+	x, err := bisect(lo, top, SolveRel, meets)
 	if err != nil {
 		return sol, err
 	}

@@ -224,7 +224,7 @@ func TestHoldTooWeakDropsOut(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !res.Metrics.DroppedOutEnergized {
+	if !res.Metrics.DropOut.Happened {
 		t.Fatalf("hold at 0.2 A: plunger stayed seated; pull at the seat %.3g N vs passive %.3g N",
 			md.Magnet.Force(0.2, md.Plunger.GapMin), md.Plunger.PassiveForce(md.Plunger.GapMin, 0))
 	}

@@ -65,14 +65,31 @@ type Metrics struct {
 	// switch is off (snubber: through its resistor; none: through the
 	// switch's avalanche or body diode is not counted here), A.
 	PeakClampCurrent float64
-	// ClampEnergy: energy dissipated in the suppression part over the run
-	// (one operation), J.
+	// ClampEnergy: energy the suppression part absorbs at turn-off, from
+	// the de-energize command to the end of the run (the turn-off pulse:
+	// until its conduction ends, and any later ringing), J. Energy it takes
+	// while the drive is energized (fast-decay chopping sends the off-times
+	// through it) is not in it: see ChopClampEnergy and Hold.ClampPower.
+	// This is the figure a part's energy-per-pulse rating is compared with.
 	ClampEnergy float64
-	// AvalancheEnergy: energy dissipated in the switch while in avalanche, J.
+	// ChopClampEnergy: energy the suppression part absorbed while the drive
+	// was energized (fast-decay chopping), J.
+	ChopClampEnergy float64
+	// AvalancheEnergy: energy dissipated in the switch in avalanche after
+	// the de-energize command (the single turn-off pulse), J.
 	AvalancheEnergy float64
-	// DroppedOutEnergized: the plunger left the energized stop while still
-	// energized.
-	DroppedOutEnergized bool
+	// ChopAvalancheEnergy: avalanche energy while energized (fast-decay
+	// chopping with no suppression part: repetitive avalanche), J.
+	ChopAvalancheEnergy float64
+	// OffDiodeLoss: energy in the bridge or recirculation diodes after the
+	// de-energize command (reverse drive: the bridge diodes' share of the
+	// turn-off), J.
+	OffDiodeLoss float64
+	// DropOut: the plunger left the energized stop while still energized.
+	DropOut DropOut
+	// SeatedAtTurnOff: the plunger was held at the energized stop at the
+	// de-energize command. Release and drop are measured only then.
+	SeatedAtTurnOff bool
 
 	// PeakSupplyCurrent: largest current drawn from the supply rail, A.
 	PeakSupplyCurrent float64
@@ -97,15 +114,17 @@ type Metrics struct {
 	Hold HoldMetrics
 
 	// Energy balance, J: SupplyEnergy = CoilLoss + SourceLoss + SwitchLoss
-	// + ClampEnergy + MechanicalWork + EddyLoss + StoredChange + EnergyResidual.
-	SupplyEnergy   float64
-	CoilLoss       float64 // in the coil resistance
-	SourceLoss     float64 // in the supply's source resistance
-	SwitchLoss     float64 // conduction, capacitive turn-on, avalanche and body diode
-	MechanicalWork float64 // done by the magnetic force on the plunger
-	EddyLoss       float64 // in the equivalent eddy-current turn
-	StoredChange   float64 // change of magnetic and capacitor energy over the run
-	EnergyResidual float64 // what the balance leaves over (numerical error and omitted fast modes)
+	// + SuppressionLoss + DiodeLoss + MechanicalWork + EddyLoss
+	// + StoredChange + EnergyResidual.
+	SupplyEnergy    float64
+	CoilLoss        float64 // in the coil resistance
+	SourceLoss      float64 // in the supply's source resistance
+	SwitchLoss      float64 // conduction, capacitive turn-on, avalanche and body diode
+	SuppressionLoss float64 // in the suppression part over the whole run: ClampEnergy + ChopClampEnergy
+	MechanicalWork  float64 // done by the magnetic force on the plunger
+	EddyLoss        float64 // in the equivalent eddy-current turn
+	StoredChange    float64 // change of magnetic and capacitor energy over the run
+	EnergyResidual  float64 // what the balance leaves over (numerical error and omitted fast modes)
 }
 
 // HoldMetrics describe the hold: measured over the hold window, the
@@ -113,20 +132,72 @@ type Metrics struct {
 // energize command for constant and PWM drive) to the de-energize command,
 // when the drive has settled. Powers are means over the window (W).
 type HoldMetrics struct {
-	Measured                          bool
-	Start, End                        float64 // s, the window
-	MeanCurrent, MinCurrent           float64 // A
-	MaxCurrent, Ripple                float64 // A, ripple = max − min
-	ChoppingFrequency                 float64 // Hz, turn-on edges: (n − 1) over the time from the first to the last in the window
+	Measured   bool
+	Start, End float64 // s, the window
+	// Chopped: the drive switches during the hold (PWM, peak-and-hold).
+	// Ripple and chopping frequency exist only then; a constant-voltage hold
+	// reports whether its current has settled instead.
+	Chopped                 bool
+	MeanCurrent, MinCurrent float64 // A
+	MaxCurrent, Ripple      float64 // A, ripple = max − min (chopped drives)
+	// ChoppingFrequency (Hz): turn-on edges, (n − 1) over the time from the
+	// first to the last in the window, rounded to 9 significant digits (the
+	// edge times carry floating-point round-off of about 1e-16 of the run
+	// time; an exact 20 kHz controller reports 20 kHz).
+	ChoppingFrequency float64
+	// EndCurrent: coil current at the end of the window (A).
+	EndCurrent float64
+	// SteadyCurrent: constant-voltage hold only, the current the coil
+	// settles to, V/(R + switch + source resistance) with the winding
+	// resistance at the end of the window (A).
+	SteadyCurrent float64
+	// Settled: constant-voltage hold only, EndCurrent lies within
+	// SettleFraction of SteadyCurrent.
+	Settled                           bool
 	CoilPower                         float64 // in the coil resistance
 	FullVoltageCoilPower              float64 // the coil held at the full supply voltage, V²/R
 	SwitchConductionPower, DiodePower float64
-	SwitchingPower                    float64 // estimated from the edge times
-	SupplyMeanCurrent                 float64 // A
-	SupplyPower                       float64
-	// ForceMargin: magnetic pull at the lowest hold current over the
-	// passive force (spring + load) at the seat; 0 when not seated.
+	// ClampPower, AvalanchePower: in the suppression part and in the
+	// switch's avalanche while chopping (fast decay sends the off-times
+	// through them; 0 for slow decay).
+	ClampPower, AvalanchePower float64
+	SwitchingPower             float64 // estimated from the edge times
+	SupplyMeanCurrent          float64 // A
+	SupplyPower                float64
+	// ForceMargin: magnetic pull at the seated gap at the lowest hold
+	// current over the passive force (spring + load) at the seat, whether
+	// or not the plunger stayed there.
 	ForceMargin float64
+}
+
+// SettleFraction defines a settled constant-voltage hold: the coil current
+// at the end of the hold window is within this fraction of V/R.
+const SettleFraction = 0.01
+
+// DropOut describes the plunger leaving the energized stop while the drive
+// is still energized.
+type DropOut struct {
+	Happened bool
+	Time     float64 // s after the energize command
+	InHold   bool    // after the peak or boost phase (always, for constant and PWM drive)
+	Current  float64 // A, coil current at that instant
+	Pull     float64 // N, magnetic pull at the seated gap at that instant
+	Passive  float64 // N, spring + load at the seated gap, pushing it open
+}
+
+// ReleaseNotApplicable reports why release and drop times do not apply to
+// the run ("" when they do): the plunger never pulled in, or it dropped out
+// while energized and was not seated at the de-energize command.
+func (m *Metrics) ReleaseNotApplicable() string {
+	switch {
+	case !m.PullIn.Happened:
+		return "not applicable: did not pull in"
+	case !m.DropOut.Happened || m.SeatedAtTurnOff:
+		return ""
+	case m.DropOut.InHold:
+		return "not applicable: dropped out during the hold"
+	}
+	return "not applicable: dropped out while energized"
 }
 
 func (m *Metrics) init() {

@@ -3,6 +3,7 @@ package coilkick
 import (
 	"fmt"
 	"math"
+	"strconv"
 
 	"coilkick/circuit"
 )
@@ -94,9 +95,11 @@ type run struct {
 	noTrace         bool
 
 	ctl                 circuit.Controller
-	baseV0              float64 // V, the normal supply voltage
-	tRevEnd             float64 // end of a timed reverse pulse (+Inf: none)
-	tWin                float64 // start of the hold window (its end is tOff)
+	baseV0              float64         // V, the normal supply voltage
+	tRevEnd             float64         // end of a timed reverse pulse (+Inf: none)
+	tWin                float64         // start of the hold window (its end is tOff)
+	tHold               float64         // start of the hold phase (end of the peak or boost phase)
+	off                 [nState]float64 // state at the de-energize command
 	inWindow            bool
 	win                 [nState]float64 // state at the window start
 	edges               int             // switch turn-on edges inside the window
@@ -288,6 +291,8 @@ func (r *run) energize(t float64, y []float64) {
 }
 
 func (r *run) deenergize(t float64, y []float64) {
+	copy(r.off[:], y)
+	r.res.Metrics.SeatedAtTurnOff = r.mmode == mechSeated
 	i := r.current(y)
 	r.closeWindow(t, y)
 	wasOn := r.cmode == circuit.On
@@ -381,7 +386,7 @@ func (r *run) mechEvent(t float64, y []float64) {
 			}
 			r.note(t, "seat impact at %.3g m/s", math.Abs(v))
 		} else {
-			if r.offDone && !m.Drop.Happened {
+			if r.offDone && !m.Drop.Happened && m.ReleaseNotApplicable() == "" {
 				m.Drop = Interval{true, t - r.tOff}
 			}
 			r.note(t, "rest-stop impact at %.3g m/s", math.Abs(v))
@@ -399,13 +404,18 @@ func (r *run) mechEvent(t float64, y []float64) {
 	case mechSeated:
 		r.mmode = mechFree
 		y[sVel] = 0
-		if r.offDone && !m.Release.Happened {
+		if r.offDone && !m.Release.Happened && m.ReleaseNotApplicable() == "" {
 			m.Release = Interval{true, t - r.tOff}
 		}
-		if r.energized {
-			m.DroppedOutEnergized = true
+		if r.energized && !m.DropOut.Happened {
+			_, im := r.solve(y)
+			p := &r.plunger
+			m.DropOut = DropOut{Happened: true, Time: t - r.tOn, InHold: t >= r.tHold, Current: r.current(y),
+				Pull: r.mag.Force(im, p.GapMin), Passive: p.PassiveForce(p.GapMin, 0)}
+			r.note(t, "leaves the seat while energized (drop-out at %.4g A)", m.DropOut.Current)
+		} else {
+			r.note(t, "leaves the seat")
 		}
-		r.note(t, "leaves the seat")
 	case mechRest:
 		r.mmode = mechFree
 		y[sVel] = 0
@@ -533,6 +543,7 @@ func Simulate(md *Model, opt *Options) (*Result, error) {
 		holdStart += pe
 	}
 	r.tWin = math.Inf(1)
+	r.tHold = holdStart
 	if holdStart < r.tOff {
 		r.tWin = holdStart + 0.5*(r.tOff-holdStart)
 	}
@@ -590,8 +601,19 @@ func (r *run) finish(y []float64) {
 	m.CoilLoss = y[qCoilR]
 	m.SourceLoss = y[qSource]
 	m.SwitchLoss = y[qSwitch]
-	m.AvalancheEnergy = y[qAval]
-	m.ClampEnergy = y[qClamp]
+	if r.offDone {
+		// Split at the de-energize command: the turn-off pulse against
+		// what chopping put through the same parts while energized.
+		m.ClampEnergy = y[qClamp] - r.off[qClamp]
+		m.ChopClampEnergy = r.off[qClamp]
+		m.AvalancheEnergy = y[qAval] - r.off[qAval]
+		m.ChopAvalancheEnergy = r.off[qAval]
+		m.OffDiodeLoss = y[qDiode] - r.off[qDiode]
+	} else {
+		m.ChopClampEnergy = y[qClamp]
+		m.ChopAvalancheEnergy = y[qAval]
+	}
+	m.SuppressionLoss = y[qClamp]
 	m.MechanicalWork = y[qMech]
 	m.EddyLoss = y[qEddy]
 	m.DiodeLoss = y[qDiode]
@@ -600,7 +622,7 @@ func (r *run) finish(y []float64) {
 	m.FinalWindingTemperature = y[sWinding]
 	m.FinalHousingTemperature = y[sHousing]
 	m.StoredChange = r.fieldEnergy(y) - r.wf0 + r.storedCapEnergy(y) - r.capE0
-	m.EnergyResidual = m.SupplyEnergy - (m.CoilLoss + m.SourceLoss + m.SwitchLoss + m.ClampEnergy + m.DiodeLoss + m.MechanicalWork + m.EddyLoss + m.StoredChange)
+	m.EnergyResidual = m.SupplyEnergy - (m.CoilLoss + m.SourceLoss + m.SwitchLoss + m.SuppressionLoss + m.DiodeLoss + m.MechanicalWork + m.EddyLoss + m.StoredChange)
 }
 
 func firstPositive(v ...float64) float64 {
@@ -633,23 +655,43 @@ func (r *run) closeWindow(t float64, y []float64) {
 	h.MeanCurrent = (y[qCharge] - r.win[qCharge]) / T
 	h.MinCurrent, h.MaxCurrent = r.winMin, r.winMax
 	h.Ripple = r.winMax - r.winMin
-	if r.edges >= 2 {
+	h.Chopped = r.ctl.Chops()
+	h.EndCurrent = r.current(y)
+	if h.Chopped && r.edges >= 2 {
 		// whole periods between the first and last turn-on in the window
-		h.ChoppingFrequency = float64(r.edges-1) / (r.lastEdge - r.firstEdge)
+		h.ChoppingFrequency = roundSignificant(float64(r.edges-1)/(r.lastEdge-r.firstEdge), 9)
+	}
+	if !h.Chopped {
+		ron := r.drive.Switch.OnResistance
+		if r.drive.Suppressor.Kind == circuit.Bridge {
+			ron *= 2
+		}
+		h.SteadyCurrent = r.baseV0 / (r.resistance(y) + ron + r.rs)
+		h.Settled = math.Abs(h.EndCurrent-h.SteadyCurrent) <= SettleFraction*math.Abs(h.SteadyCurrent)
 	}
 	h.CoilPower = (y[qCoilR] - r.win[qCoilR]) / T
 	h.FullVoltageCoilPower = r.baseV0 * r.baseV0 / r.r
-	h.SwitchConductionPower = (y[qSwitch] - r.win[qSwitch]) / T
+	h.SwitchConductionPower = (y[qSwitch] - r.win[qSwitch] - (y[qAval] - r.win[qAval])) / T
 	h.DiodePower = (y[qDiode] - r.win[qDiode]) / T
+	if h.Chopped {
+		h.ClampPower = (y[qClamp] - r.win[qClamp]) / T
+		h.AvalanchePower = (y[qAval] - r.win[qAval]) / T
+	}
 	h.SwitchingPower = (r.swEst - r.swEstWin) / T
 	h.SupplyMeanCurrent = (y[qSupplyQ] - r.win[qSupplyQ]) / T
 	h.SupplyPower = (y[qSupply] - r.win[qSupply]) / T
-	if r.mmode == mechSeated {
-		p := &r.plunger
-		need := p.PassiveForce(p.GapMin, 0)
-		if need > 0 {
-			// The weakest point of the ripple holds the plunger.
-			h.ForceMargin = r.mag.Force(r.winMin, p.GapMin) / need
-		}
+	p := &r.plunger
+	if need := p.PassiveForce(p.GapMin, 0); need > 0 {
+		// The weakest point of the ripple must hold the plunger at the seat.
+		h.ForceMargin = r.mag.Force(r.winMin, p.GapMin) / need
 	}
+}
+
+// roundSignificant rounds x to n significant decimal digits.
+func roundSignificant(x float64, n int) float64 {
+	v, err := strconv.ParseFloat(strconv.FormatFloat(x, 'g', n, 64), 64)
+	if err != nil {
+		return x
+	}
+	return v
 }

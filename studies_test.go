@@ -38,7 +38,7 @@ func TestClampComparisonClosedForms(t *testing.T) {
 	const v0, r, l = 24.0, 48.0, 0.1
 	md := fixedModel(t, v0, r, l, circuit.Suppressor{Kind: circuit.Freewheel, Voltage: 0.7})
 	md.Drive.Switch.BreakdownVoltage = 100
-	cmp, err := CompareClamps(md, 0)
+	cmp, err := CompareClamps(md)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -109,7 +109,7 @@ func TestSolveForConsistency(t *testing.T) {
 		v := *ph
 		v.Control.HoldCurrent = i
 		r, err := Simulate(&v, &Options{NoTrace: true})
-		return err == nil && !r.Metrics.DroppedOutEnergized && r.Metrics.Hold.ForceMargin >= margin
+		return err == nil && !r.Metrics.DropOut.Happened && r.Metrics.Hold.ForceMargin >= margin
 	}
 	if !holds(h.Value*(1+step)) || holds(h.Value*(1-step)) {
 		t.Errorf("lowest hold %.4g A: holds at +%g: %v, at −%g: %v", h.Value, step, holds(h.Value*(1+step)), step, holds(h.Value*(1-step)))
@@ -250,7 +250,7 @@ func TestClampRecommendation(t *testing.T) {
 		t.Fatal(err)
 	}
 	md.Limits.MaxRelease = 3e-3 // a freewheel diode (7.4 ms) no longer meets it
-	cmp, err := CompareClamps(md, 0)
+	cmp, err := CompareClamps(md)
 	if err != nil {
 		t.Fatal(err)
 	}

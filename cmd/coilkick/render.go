@@ -44,6 +44,74 @@ func interval(iv coilkick.Interval, missing string) string {
 	return si(iv.Seconds, "s")
 }
 
+// summary prints the text summary of a run: figures in sections, each
+// check beside its figure, each note once (beside its figure, or under
+// "Notes" when no printed row carries it).
+type summary struct {
+	b       *bufio.Writer
+	checks  map[string]coilkick.Check
+	notes   map[string][]coilkick.Note
+	printed map[string]bool // figures whose notes were printed
+}
+
+func newSummary(b *bufio.Writer, as *coilkick.Assessment) *summary {
+	s := &summary{b: b, checks: map[string]coilkick.Check{}, notes: map[string][]coilkick.Note{}, printed: map[string]bool{}}
+	for _, c := range as.Checks {
+		s.checks[c.Name] = c
+	}
+	for _, n := range as.Notes {
+		s.notes[n.Figure] = append(s.notes[n.Figure], n)
+	}
+	return s
+}
+
+// checkText is the verdict part of a row: the limit and pass/FAIL, or n/a.
+func checkText(c coilkick.Check) string {
+	if c.NotApplicable != "" {
+		return c.NotApplicable
+	}
+	verdict := "pass"
+	if !c.Pass {
+		verdict = "FAIL"
+	}
+	if c.Min && c.Limit == 0 {
+		return verdict // a yes/no requirement
+	}
+	kind, op := "rating", "<="
+	if c.Unit == "s" || c.Min {
+		kind = "required"
+	}
+	if c.Min {
+		op = ">="
+	}
+	lim := si(c.Limit, c.Unit)
+	if c.Unit == "" {
+		lim = strconv.FormatFloat(c.Limit, 'g', 3, 64)
+	}
+	return fmt.Sprintf("%s %s %-10s %s", kind, op, lim, verdict)
+}
+
+// row prints a figure, its check and its notes.
+func (s *summary) row(name, value string) {
+	line := fmt.Sprintf("  %-29s %-14s", name, value)
+	if c, ok := s.checks[name]; ok {
+		line += " " + checkText(c)
+	}
+	fmt.Fprintln(s.b, strings.TrimRight(line, " "))
+	s.notesOf(name)
+}
+
+// notesOf prints the notes of a figure, once.
+func (s *summary) notesOf(name string) {
+	if s.printed[name] {
+		return
+	}
+	s.printed[name] = true
+	for _, n := range s.notes[name] {
+		fmt.Fprintf(s.b, "    %s: %s\n", strings.ToUpper(n.Level), n.Text)
+	}
+}
+
 func printSummary(w io.Writer, path string, md *coilkick.Model, res *coilkick.Result, as *coilkick.Assessment) {
 	m := &res.Metrics
 	b := bufio.NewWriter(w)
@@ -52,140 +120,174 @@ func printSummary(w io.Writer, path string, md *coilkick.Model, res *coilkick.Re
 	fmt.Fprintf(b, "scenario: %s\n", path)
 	fmt.Fprintf(b, "supply %s, coil %s at %.0f degC, suppression: %s\n\n",
 		si(md.Drive.Supply.Voltage, "V"), si(md.CoilResistance(), "ohm"), md.Temperature-273.15, md.Drive.Suppressor.Kind)
-
-	checks := map[string]coilkick.Check{}
-	for _, c := range as.Checks {
-		checks[c.Name] = c
-	}
-	notes := map[string][]coilkick.Note{}
-	for _, n := range as.Notes {
-		notes[n.Figure] = append(notes[n.Figure], n)
-	}
-	row := func(name, value string) {
-		line := fmt.Sprintf("  %-29s %-14s", name, value)
-		if c, ok := checks[name]; ok {
-			verdict := "pass"
-			if !c.Pass {
-				verdict = "FAIL"
-			}
-			kind, op := "rating", "<="
-			if c.Unit == "s" || c.Min {
-				kind = "required"
-			}
-			if c.Min {
-				op = ">="
-			}
-			lim := si(c.Limit, c.Unit)
-			if c.Unit == "" {
-				lim = strconv.FormatFloat(c.Limit, 'g', 3, 64)
-			}
-			if c.Min && c.Limit == 0 {
-				line += " " + verdict // a yes/no requirement
-			} else {
-				line += fmt.Sprintf(" %s %s %-10s %s", kind, op, lim, verdict)
-			}
-		}
-		fmt.Fprintln(b, strings.TrimRight(line, " "))
-		for _, n := range notes[name] {
-			fmt.Fprintf(b, "    %s: %s\n", strings.ToUpper(n.Level), n.Text)
-		}
-	}
-	fmt.Fprintln(b, "Pull-in")
-	row("motion delay", interval(m.MotionDelay, "did not move"))
-	row("pull-in time", interval(m.PullIn, "did not pull in"))
-	if m.PullIn.Happened {
-		row("seat impact speed", fmt.Sprintf("%.3g m/s", m.SeatImpactSpeed))
-		row("bounces", strconv.Itoa(m.Bounces))
-		row("current at seating", si(m.CurrentAtSeating, "A"))
-	}
-	row("peak current", si(m.PeakCurrent, "A"))
-	if h := m.Hold; h.Measured {
-		fmt.Fprintf(b, "Hold (%v drive; window %s to %s)\n", md.Control.Mode, si(h.Start, "s"), si(h.End, "s"))
-		row("hold current mean", si(h.MeanCurrent, "A"))
-		row("hold current ripple", fmt.Sprintf("%s (%s to %s)", si(h.Ripple, "A"), si(h.MinCurrent, "A"), si(h.MaxCurrent, "A")))
-		if md.Control.Chops() {
-			row("chopping frequency", si(h.ChoppingFrequency, "Hz"))
-		}
-		row("coil power in hold", fmt.Sprintf("%s (full voltage: %s)", si(h.CoilPower, "W"), si(h.FullVoltageCoilPower, "W")))
-		row("switch conduction power", si(h.SwitchConductionPower, "W"))
-		if h.DiodePower > 0 {
-			row("recirculation diode power", si(h.DiodePower, "W"))
-		}
-		if h.SwitchingPower > 0 {
-			row("switching power (estimate)", si(h.SwitchingPower, "W"))
-		}
-		row("supply current mean", si(h.SupplyMeanCurrent, "A"))
-		margin := "not seated"
-		if h.ForceMargin > 0 {
-			margin = fmt.Sprintf("%.2f", h.ForceMargin)
-		}
-		row("hold force margin", margin)
-		row("stays seated while energized", map[bool]string{true: "yes", false: "NO"}[!m.DroppedOutEnergized])
-		for _, n := range notes["chopping frequency"] {
-			fmt.Fprintf(b, "    %s: %s\n", strings.ToUpper(n.Level), n.Text)
-		}
-	}
-	fmt.Fprintln(b, "Supply")
-	row("peak supply current", si(m.PeakSupplyCurrent, "A"))
-	row("lowest rail voltage", si(m.MinRailVoltage, "V"))
-	row("highest rail voltage", si(m.MaxRailVoltage, "V"))
-	if m.EnergyReturned > 0 {
-		row("energy returned to supply", si(m.EnergyReturned, "J"))
-	}
-	fmt.Fprintln(b, "Release")
-	row("current at turn-off", si(m.CurrentAtTurnOff, "A"))
-	if m.PullIn.Happened {
-		row("release time", interval(m.Release, "did not release"))
-		row("drop time", interval(m.Drop, "did not return"))
-	}
-	row(fmt.Sprintf("current decay (to %g %%)", 100*coilkick.DecayFraction), interval(m.CurrentDecay, "did not decay"))
-	row("clamp conduction", interval(m.ClampConduction, "still conducting"))
-	fmt.Fprintln(b, "Switch and suppression")
-	row("peak switch voltage", si(m.PeakSwitchVoltage, "V"))
-	row("lowest switch voltage", si(m.MinSwitchVoltage, "V"))
-	row("peak clamp current", si(m.PeakClampCurrent, "A"))
-	row("clamp energy", si(m.ClampEnergy, "J"))
-	row("avalanche energy", si(m.AvalancheEnergy, "J"))
-	fmt.Fprintln(b, "Energy balance (whole run)")
-	row("supply", si(m.SupplyEnergy, "J"))
-	row("coil resistance", si(m.CoilLoss, "J"))
-	if m.SourceLoss > 0 {
-		row("source resistance", si(m.SourceLoss, "J"))
-	}
-	row("switch", si(m.SwitchLoss, "J"))
-	row("suppression", si(m.ClampEnergy, "J"))
-	if m.DiodeLoss > 0 {
-		row("recirculation / bridge diodes", si(m.DiodeLoss, "J"))
-	}
-	row("mechanical work", si(m.MechanicalWork, "J"))
-	if m.EddyLoss > 0 {
-		row("eddy currents", si(m.EddyLoss, "J"))
-	}
-	row("stored change", si(m.StoredChange, "J"))
-	row("energy residual", fmt.Sprintf("%.2g of supply", m.EnergyResidualRel()))
-	if m.SwitchingLossEstimate > 0 {
-		row("switching loss (estimate)", si(m.SwitchingLossEstimate, "J")+", from edge times, outside the balance")
-	}
+	s := newSummary(b, as)
+	s.pullIn(m)
+	s.hold(md, m)
+	s.supply(m)
+	s.release(m)
+	s.stress(m)
+	s.balance(m)
 	fmt.Fprintln(b, "\nEvents")
 	for _, e := range res.Events {
 		fmt.Fprintf(b, "  %10.4f ms  %s\n", e.Time*1e3, e.What)
 	}
 	fmt.Fprintf(b, "\nSolver: %s, %d steps (%d rejected), %d events, %d evaluations\n",
 		res.Stats.Method, res.Stats.Steps, res.Stats.Rejected, res.Stats.Events, res.Stats.Evaluations)
-	if general := notes[""]; len(general) > 0 {
+	// Notes not printed beside a figure, and the general ones.
+	var rest []coilkick.Note
+	for _, n := range as.Notes {
+		if !s.printed[n.Figure] || n.Figure == "" {
+			rest = append(rest, n)
+		}
+	}
+	if len(rest) > 0 {
 		fmt.Fprintln(b, "\nNotes")
-		for _, n := range general {
+		for _, n := range rest {
 			fmt.Fprintf(b, "  %s: %s\n", strings.ToUpper(n.Level), n.Text)
 		}
 	}
-	failed := 0
-	for _, c := range as.Checks {
-		if !c.Pass {
-			failed++
+	if len(as.Checks) > 0 {
+		na := as.NotApplicableCount()
+		applicable := len(as.Checks) - na
+		fmt.Fprintf(b, "\nChecks: %d of %d pass", applicable-as.FailedCount(), applicable)
+		if na > 0 {
+			fmt.Fprintf(b, ", %d not applicable", na)
+		}
+		fmt.Fprintln(b)
+	}
+}
+
+func (s *summary) pullIn(m *coilkick.Metrics) {
+	fmt.Fprintln(s.b, "Pull-in")
+	s.row("motion delay", interval(m.MotionDelay, "did not move"))
+	s.row("pull-in time", interval(m.PullIn, "did not pull in"))
+	if m.PullIn.Happened {
+		s.row("seat impact speed", fmt.Sprintf("%.3g m/s", m.SeatImpactSpeed))
+		s.row("bounces", strconv.Itoa(m.Bounces))
+		s.row("current at seating", si(m.CurrentAtSeating, "A"))
+	}
+	s.row("peak current", si(m.PeakCurrent, "A"))
+}
+
+func (s *summary) hold(md *coilkick.Model, m *coilkick.Metrics) {
+	h := m.Hold
+	if !h.Measured {
+		if m.PullIn.Happened {
+			s.dropOut(m)
+		}
+		return
+	}
+	fmt.Fprintf(s.b, "Hold (%v drive; window %s to %s)\n", md.Control.Mode, si(h.Start, "s"), si(h.End, "s"))
+	s.row("hold current mean", si(h.MeanCurrent, "A"))
+	if h.Chopped {
+		s.row("hold current ripple", fmt.Sprintf("%s (%s to %s)", si(h.Ripple, "A"), si(h.MinCurrent, "A"), si(h.MaxCurrent, "A")))
+		s.row("chopping frequency", si(h.ChoppingFrequency, "Hz"))
+	} else {
+		text := fmt.Sprintf("%s, settled (within %g %% of V/R = %s)", si(h.EndCurrent, "A"), 100*coilkick.SettleFraction, si(h.SteadyCurrent, "A"))
+		if !h.Settled {
+			text = fmt.Sprintf("%s, not settled (%.3g %% of V/R = %s)", si(h.EndCurrent, "A"), 100*h.EndCurrent/h.SteadyCurrent, si(h.SteadyCurrent, "A"))
+		}
+		s.row("hold current at end", text)
+	}
+	s.row("coil power in hold", fmt.Sprintf("%s (full voltage: %s)", si(h.CoilPower, "W"), si(h.FullVoltageCoilPower, "W")))
+	s.row("switch conduction power", si(h.SwitchConductionPower, "W"))
+	if h.DiodePower > 0 {
+		s.row("recirculation diode power", si(h.DiodePower, "W"))
+	}
+	if h.ClampPower > 0 {
+		s.row("clamp power while chopping", si(h.ClampPower, "W"))
+	}
+	if h.AvalanchePower > 0 {
+		s.row("avalanche power while chopping", si(h.AvalanchePower, "W"))
+	}
+	if h.SwitchingPower > 0 {
+		s.row("switching power (estimate)", si(h.SwitchingPower, "W"))
+	}
+	s.row("supply current mean", si(h.SupplyMeanCurrent, "A"))
+	if m.PullIn.Happened {
+		s.row("hold force margin", fmt.Sprintf("%.2f", h.ForceMargin))
+		s.dropOut(m)
+	}
+}
+
+// dropOut prints whether the plunger stayed seated, and the drop-out.
+func (s *summary) dropOut(m *coilkick.Metrics) {
+	d := m.DropOut
+	if !d.Happened {
+		s.row("stays seated while energized", "yes")
+		return
+	}
+	s.row("stays seated while energized", "NO")
+	fmt.Fprintf(s.b, "  %-29s %s after energize, at %s\n", "drop-out", si(d.Time, "s"), si(d.Current, "A"))
+	fmt.Fprintf(s.b, "  %-29s pull %.3g N against spring + load %.3g N\n", "  force balance at the seat", d.Pull, d.Passive)
+}
+
+func (s *summary) supply(m *coilkick.Metrics) {
+	fmt.Fprintln(s.b, "Supply")
+	s.row("peak supply current", si(m.PeakSupplyCurrent, "A"))
+	s.row("lowest rail voltage", si(m.MinRailVoltage, "V"))
+	s.row("highest rail voltage", si(m.MaxRailVoltage, "V"))
+	if m.EnergyReturned > 0 {
+		s.row("energy returned to supply", si(m.EnergyReturned, "J"))
+	}
+}
+
+func (s *summary) release(m *coilkick.Metrics) {
+	fmt.Fprintln(s.b, "Release")
+	s.row("current at turn-off", si(m.CurrentAtTurnOff, "A"))
+	if m.PullIn.Happened {
+		if na := m.ReleaseNotApplicable(); na != "" {
+			for _, name := range []string{"release time", "drop time"} {
+				if _, ok := s.checks[name]; ok {
+					s.row(name, "-")
+				} else {
+					s.row(name, "-              "+na)
+				}
+			}
+		} else {
+			s.row("release time", interval(m.Release, "did not release"))
+			s.row("drop time", interval(m.Drop, "did not return"))
 		}
 	}
-	if len(as.Checks) > 0 {
-		fmt.Fprintf(b, "\nChecks: %d of %d pass\n", len(as.Checks)-failed, len(as.Checks))
+	s.row(fmt.Sprintf("current decay (to %g %%)", 100*coilkick.DecayFraction), interval(m.CurrentDecay, "did not decay"))
+	s.row("clamp conduction", interval(m.ClampConduction, "still conducting"))
+}
+
+func (s *summary) stress(m *coilkick.Metrics) {
+	fmt.Fprintln(s.b, "Switch and suppression")
+	s.row("peak switch voltage", si(m.PeakSwitchVoltage, "V"))
+	s.row("lowest switch voltage", si(m.MinSwitchVoltage, "V"))
+	s.row("peak clamp current", si(m.PeakClampCurrent, "A"))
+	s.row("clamp energy", si(m.ClampEnergy, "J"))
+	if m.ChopClampEnergy > 0 {
+		s.row("clamp energy while chopping", si(m.ChopClampEnergy, "J"))
+	}
+	s.row("avalanche energy", si(m.AvalancheEnergy, "J"))
+	if m.ChopAvalancheEnergy > 0 {
+		s.row("avalanche while chopping", si(m.ChopAvalancheEnergy, "J"))
+	}
+}
+
+func (s *summary) balance(m *coilkick.Metrics) {
+	fmt.Fprintln(s.b, "Energy balance (whole run)")
+	s.row("supply", si(m.SupplyEnergy, "J"))
+	s.row("coil resistance", si(m.CoilLoss, "J"))
+	if m.SourceLoss > 0 {
+		s.row("source resistance", si(m.SourceLoss, "J"))
+	}
+	s.row("switch", si(m.SwitchLoss, "J"))
+	s.row("suppression", si(m.SuppressionLoss, "J"))
+	if m.DiodeLoss > 0 {
+		s.row("recirculation / bridge diodes", si(m.DiodeLoss, "J"))
+	}
+	s.row("mechanical work", si(m.MechanicalWork, "J"))
+	if m.EddyLoss > 0 {
+		s.row("eddy currents", si(m.EddyLoss, "J"))
+	}
+	s.row("stored change", si(m.StoredChange, "J"))
+	s.row("energy residual", fmt.Sprintf("%.2g of supply", m.EnergyResidualRel()))
+	if m.SwitchingLossEstimate > 0 {
+		s.row("switching loss (estimate)", si(m.SwitchingLossEstimate, "J")+", from edge times, outside the balance")
 	}
 }
 
@@ -230,6 +332,8 @@ type jsonCheck struct {
 	Value *float64 `json:"value"`
 	Limit float64  `json:"limit"`
 	Pass  bool     `json:"pass"`
+	// NotApplicable: why the check does not apply (null when it does).
+	NotApplicable *string `json:"not_applicable"`
 }
 
 type jsonMetrics struct {
@@ -249,7 +353,13 @@ type jsonMetrics struct {
 	PeakClampCurrent  float64           `json:"peak_clamp_current_A"`
 	ClampEnergy       float64           `json:"clamp_energy_J"`
 	AvalancheEnergy   float64           `json:"avalanche_energy_J"`
+	ChopClampEnergy   float64           `json:"chopping_clamp_energy_J"`
+	ChopAvalanche     float64           `json:"chopping_avalanche_energy_J"`
 	DroppedOut        bool              `json:"dropped_out_while_energized"`
+	DropOut           *jsonDropOut      `json:"drop_out"`
+	SeatedAtTurnOff   bool              `json:"seated_at_turn_off"`
+	ReleaseNA         *string           `json:"release_not_applicable"`
+	SuppressionLoss   float64           `json:"suppression_loss_J"`
 	SupplyEnergy      float64           `json:"supply_energy_J"`
 	CoilLoss          float64           `json:"coil_loss_J"`
 	SourceLoss        float64           `json:"source_loss_J"`
@@ -267,22 +377,55 @@ type jsonMetrics struct {
 	Hold              *jsonHold         `json:"hold"`
 }
 
+// jsonDropOut is the drop-out while energized (null when none).
+type jsonDropOut struct {
+	Time    float64 `json:"time_after_energize_s"`
+	InHold  bool    `json:"in_hold"`
+	Current float64 `json:"current_A"`
+	Pull    float64 `json:"pull_at_seat_N"`
+	Passive float64 `json:"spring_and_load_at_seat_N"`
+}
+
+// jsonHold: ripple and chopping frequency are null for a constant-voltage
+// hold; the steady current and settled flag are null for a chopped one.
 type jsonHold struct {
-	Start                float64 `json:"window_start_s"`
-	End                  float64 `json:"window_end_s"`
-	MeanCurrent          float64 `json:"mean_current_A"`
-	MinCurrent           float64 `json:"min_current_A"`
-	MaxCurrent           float64 `json:"max_current_A"`
-	Ripple               float64 `json:"ripple_A"`
-	ChoppingFrequency    float64 `json:"chopping_frequency_Hz"`
-	CoilPower            float64 `json:"coil_power_W"`
-	FullVoltageCoilPower float64 `json:"full_voltage_coil_power_W"`
-	SwitchConduction     float64 `json:"switch_conduction_power_W"`
-	DiodePower           float64 `json:"diode_power_W"`
-	SwitchingPower       float64 `json:"switching_power_estimate_W"`
-	SupplyMeanCurrent    float64 `json:"supply_mean_current_A"`
-	SupplyPower          float64 `json:"supply_power_W"`
-	ForceMargin          float64 `json:"force_margin"`
+	Start                float64  `json:"window_start_s"`
+	End                  float64  `json:"window_end_s"`
+	Chopped              bool     `json:"chopped"`
+	MeanCurrent          float64  `json:"mean_current_A"`
+	MinCurrent           float64  `json:"min_current_A"`
+	MaxCurrent           float64  `json:"max_current_A"`
+	EndCurrent           float64  `json:"end_current_A"`
+	Ripple               *float64 `json:"ripple_A"`
+	ChoppingFrequency    *float64 `json:"chopping_frequency_Hz"`
+	SteadyCurrent        *float64 `json:"steady_current_A"`
+	Settled              *bool    `json:"settled"`
+	CoilPower            float64  `json:"coil_power_W"`
+	FullVoltageCoilPower float64  `json:"full_voltage_coil_power_W"`
+	SwitchConduction     float64  `json:"switch_conduction_power_W"`
+	DiodePower           float64  `json:"diode_power_W"`
+	ClampPower           float64  `json:"clamp_power_W"`
+	AvalanchePower       float64  `json:"avalanche_power_W"`
+	SwitchingPower       float64  `json:"switching_power_estimate_W"`
+	SupplyMeanCurrent    float64  `json:"supply_mean_current_A"`
+	SupplyPower          float64  `json:"supply_power_W"`
+	ForceMargin          float64  `json:"force_margin"`
+}
+
+func newJSONHold(h coilkick.HoldMetrics) *jsonHold {
+	j := &jsonHold{Start: h.Start, End: h.End, Chopped: h.Chopped, MeanCurrent: h.MeanCurrent, MinCurrent: h.MinCurrent,
+		MaxCurrent: h.MaxCurrent, EndCurrent: h.EndCurrent, CoilPower: h.CoilPower, FullVoltageCoilPower: h.FullVoltageCoilPower,
+		SwitchConduction: h.SwitchConductionPower, DiodePower: h.DiodePower, ClampPower: h.ClampPower,
+		AvalanchePower: h.AvalanchePower, SwitchingPower: h.SwitchingPower, SupplyMeanCurrent: h.SupplyMeanCurrent,
+		SupplyPower: h.SupplyPower, ForceMargin: h.ForceMargin}
+	if h.Chopped {
+		ripple, f := h.Ripple, h.ChoppingFrequency
+		j.Ripple, j.ChoppingFrequency = &ripple, &f
+	} else {
+		steady, settled := h.SteadyCurrent, h.Settled
+		j.SteadyCurrent, j.Settled = &steady, &settled
+	}
+	return j
 }
 
 func writeJSON(w io.Writer, md *coilkick.Model, res *coilkick.Result, as *coilkick.Assessment) error {
@@ -294,8 +437,10 @@ func writeJSON(w io.Writer, md *coilkick.Model, res *coilkick.Result, as *coilki
 			CurrentAtSeating: m.CurrentAtSeating, PeakCurrent: m.PeakCurrent, CurrentAtTurnOff: m.CurrentAtTurnOff,
 			Release: m.Release, Drop: m.Drop, CurrentDecay: m.CurrentDecay, ClampConduction: m.ClampConduction,
 			PeakSwitchVoltage: m.PeakSwitchVoltage, MinSwitchVoltage: m.MinSwitchVoltage, PeakClampCurrent: m.PeakClampCurrent,
-			ClampEnergy: m.ClampEnergy, AvalancheEnergy: m.AvalancheEnergy, DroppedOut: m.DroppedOutEnergized,
-			SupplyEnergy: m.SupplyEnergy, CoilLoss: m.CoilLoss, SourceLoss: m.SourceLoss, SwitchLoss: m.SwitchLoss,
+			ClampEnergy: m.ClampEnergy, AvalancheEnergy: m.AvalancheEnergy, DroppedOut: m.DropOut.Happened,
+			ChopClampEnergy: m.ChopClampEnergy, ChopAvalanche: m.ChopAvalancheEnergy, SeatedAtTurnOff: m.SeatedAtTurnOff,
+			SuppressionLoss: m.SuppressionLoss,
+			SupplyEnergy:    m.SupplyEnergy, CoilLoss: m.CoilLoss, SourceLoss: m.SourceLoss, SwitchLoss: m.SwitchLoss,
 			MechanicalWork: m.MechanicalWork, EddyLoss: m.EddyLoss, StoredChange: m.StoredChange, EnergyResidual: m.EnergyResidual,
 		},
 		Checks: []jsonCheck{}, Notes: []coilkickNote{}, Events: []jsonEvent{},
@@ -303,12 +448,20 @@ func writeJSON(w io.Writer, md *coilkick.Model, res *coilkick.Result, as *coilki
 	doc.Metrics.DiodeLoss, doc.Metrics.EnergyReturned, doc.Metrics.SwitchingLoss = m.DiodeLoss, m.EnergyReturned, m.SwitchingLossEstimate
 	doc.Metrics.PeakSupplyCurrent, doc.Metrics.MinRailVoltage, doc.Metrics.MaxRailVoltage = m.PeakSupplyCurrent, m.MinRailVoltage, m.MaxRailVoltage
 	if h := m.Hold; h.Measured {
-		doc.Metrics.Hold = &jsonHold{h.Start, h.End, h.MeanCurrent, h.MinCurrent, h.MaxCurrent, h.Ripple, h.ChoppingFrequency,
-			h.CoilPower, h.FullVoltageCoilPower, h.SwitchConductionPower, h.DiodePower, h.SwitchingPower,
-			h.SupplyMeanCurrent, h.SupplyPower, h.ForceMargin}
+		doc.Metrics.Hold = newJSONHold(h)
+	}
+	if d := m.DropOut; d.Happened {
+		doc.Metrics.DropOut = &jsonDropOut{Time: d.Time, InHold: d.InHold, Current: d.Current, Pull: d.Pull, Passive: d.Passive}
+	}
+	if na := m.ReleaseNotApplicable(); na != "" {
+		doc.Metrics.ReleaseNA = &na
 	}
 	for _, c := range as.Checks {
 		jc := jsonCheck{Name: c.Name, Unit: c.Unit, Limit: c.Limit, Pass: c.Pass}
+		if c.NotApplicable != "" {
+			na := c.NotApplicable
+			jc.NotApplicable = &na
+		}
 		if c.Happened {
 			v := c.Value
 			jc.Value = &v
