@@ -24,12 +24,12 @@ func sweepCommand(stdout io.Writer) *cli.Command {
 		Usage:     "run the scenario over a grid of values of its keys, in parallel",
 		ArgsUsage: "SCENARIO.yaml --vary KEY=FROM:TO:STEPS [--vary ...]",
 		Flags: []cli.Flag{
-			&cli.StringSliceFlag{Name: "vary", Usage: "a scenario key and its values: \"supply.voltage=18 V:30 V:13\" or \"plunger.mass=5 g,8 g\" (repeat for a grid)"},
+			&cli.StringSliceFlag{Name: "vary", Usage: "a scenario key and its values: KEY=FROM:TO:STEPS (\"supply.voltage=18 V:30 V:13\") or KEY=V1,V2,... (\"plunger.mass=5 g,8 g\"); repeat for a grid"},
 			&cli.StringFlag{Name: "csv", Usage: "write the results to `FILE` (CSV)"},
 			&cli.StringFlag{Name: "json", Usage: "write the results to `FILE` (JSON)"},
 			&cli.IntFlag{Name: "workers", Usage: "parallel simulations (default: all cores)"},
 			&cli.StringFlag{Name: "plot", Usage: "plot a figure versus the first key, one line per value of the second, to `FILE`"},
-			&cli.StringFlag{Name: "figure", Value: "pull-in", Usage: "figure to plot: pull-in, release, drop, peak current, hold current, switch voltage, clamp energy"},
+			&cli.StringFlag{Name: "figure", Value: "pull-in", Usage: "figure to plot: " + strings.Join(sweepFigureNames, ", ")},
 		},
 		Action: func(c *cli.Context) error { return cmdSweep(c, stdout) },
 	}
@@ -45,6 +45,14 @@ func isTerminal(w io.Writer) bool {
 	return err == nil && st.Mode()&os.ModeCharDevice != 0
 }
 
+// sweepFigureNames are the figures --figure accepts.
+var sweepFigureNames = []string{"pull-in", "release", "drop", "peak current", "hold current", "switch voltage", "clamp energy"}
+
+// cmdSweep runs the sweep. Exit status (README, "sweep"): 1 for a bad flag,
+// when no point ran, or when a valid point could not be simulated; else 2
+// when a rating or requirement fails at a point that ran; else 0. Points
+// whose values break a rule of the scenario are marked invalid in their
+// row and do not change the status by themselves.
 func cmdSweep(c *cli.Context, w io.Writer) error {
 	path, err := oneFile(c)
 	if err != nil {
@@ -58,15 +66,28 @@ func cmdSweep(c *cli.Context, w io.Writer) error {
 		}
 		vs = append(vs, v)
 	}
-	if len(vs) == 0 {
-		return fmt.Errorf("sweep needs at least one --vary KEY=FROM:TO:STEPS")
+	for _, flag := range []string{"csv", "json", "plot"} {
+		if f := c.String(flag); f != "" && f != "-" && sweepClobbersInput(f, path) {
+			return fmt.Errorf("--%s %s is the scenario file; choose another output name", flag, f)
+		}
+	}
+	var xs []float64
+	if c.String("plot") != "" {
+		if _, _, ok := sweepFigure(c.String("figure"), coilkick.SweepFigures{}); !ok {
+			return fmt.Errorf("--figure %q: unknown figure; expected one of: %s", c.String("figure"), strings.Join(sweepFigureNames, ", "))
+		}
+		if len(vs) > 0 {
+			if xs, err = sweepAxis(vs[0]); err != nil {
+				return err
+			}
+		}
 	}
 	sw, err := coilkick.NewSweeper(path)
 	if err != nil {
 		return err
 	}
-	// Check the first point before running them all: a bad key fails at once.
-	if _, err := sw.Model(vs, coilkick.Points(vs)[0]); err != nil {
+	// Bad keys are the flag's error, found before any point runs.
+	if err := sw.Check(vs); err != nil {
 		return err
 	}
 	var progress func(done, total int)
@@ -81,31 +102,25 @@ func cmdSweep(c *cli.Context, w io.Writer) error {
 		}
 	}
 	pts := sw.Sweep(vs, c.Int("workers"), progress)
-	header := []string{}
-	for _, v := range vs {
-		header = append(header, v.Key)
-	}
-	header = append(header, "pull-in", "release", "drop", "peak current", "hold current", "peak switch V", "clamp energy", "avalanche energy", "checks")
-	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-	fmt.Fprintln(tw, strings.Join(header, "\t"))
-	failed := false
+	writeSweepTable(w, vs, pts)
+
+	var ran, invalid, failedSim, failing int
 	for _, p := range pts {
-		row := append([]string{}, p.Values...)
-		if p.Err != "" {
-			row = append(row, "error: "+p.Err)
-			failed = true
-		} else {
-			f := p.Figures
-			verdict := "pass"
-			if f.Failed {
-				verdict, failed = "FAIL", true
+		switch {
+		case p.Figures != nil:
+			ran++
+			if p.Figures.Failed {
+				failing++
 			}
-			row = append(row, interval2(f.PullIn), interval2(f.Release), interval2(f.Drop), si(f.PeakCurrent, "A"),
-				si(f.HoldCurrent, "A"), si(f.PeakSwitchVoltage, "V"), si(f.ClampEnergy, "J"), si(f.AvalancheEnergy, "J"), verdict)
+		case p.Invalid != "":
+			invalid++
+		default:
+			failedSim++
 		}
-		fmt.Fprintln(tw, strings.Join(row, "\t"))
 	}
-	tw.Flush()
+	if invalid > 0 {
+		fmt.Fprintf(w, "\n%d of %d points invalid: their values break a rule of the scenario (reason in the row).\n", invalid, len(pts))
+	}
 	if f := c.String("csv"); f != "" {
 		if err := writeFile(f, w, func(out io.Writer) error { return writeSweepCSV(out, vs, pts) }); err != nil {
 			return err
@@ -120,15 +135,77 @@ func cmdSweep(c *cli.Context, w io.Writer) error {
 			return err
 		}
 	}
-	if f := c.String("plot"); f != "" {
-		if err := plotSweep(f, c.String("figure"), vs, pts); err != nil {
+	if f := c.String("plot"); f != "" && ran > 0 {
+		if err := plotSweep(f, c.String("figure"), xs, vs, pts); err != nil {
 			return err
 		}
 	}
-	if failed {
+	switch {
+	case ran == 0:
+		return fmt.Errorf("no point of the sweep ran: %d invalid, %d could not be simulated (reasons in the rows)", invalid, failedSim)
+	case failedSim > 0:
+		return fmt.Errorf("%d of %d points could not be simulated (reasons in the rows)", failedSim, len(pts))
+	case failing > 0:
 		return errFailing
 	}
 	return nil
+}
+
+// writeSweepTable prints one row per point. A point without figures fills
+// the figure cells with "-" and gives its reason in the last column, so the
+// columns stay aligned.
+func writeSweepTable(w io.Writer, vs []coilkick.Vary, pts []coilkick.SweepPoint) {
+	header := []string{}
+	for _, v := range vs {
+		header = append(header, v.Key)
+	}
+	figures := []string{"pull-in", "release", "drop", "peak current", "hold current", "peak switch V", "clamp energy", "avalanche energy"}
+	header = append(append(header, figures...), "checks")
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	fmt.Fprintln(tw, strings.Join(header, "\t"))
+	for _, p := range pts {
+		row := append([]string{}, p.Values...)
+		if f := p.Figures; f != nil {
+			verdict := "pass"
+			if f.Failed {
+				verdict = "FAIL"
+			}
+			row = append(row, interval2(f.PullIn), interval2(f.Release), interval2(f.Drop), si(f.PeakCurrent, "A"),
+				si(f.HoldCurrent, "A"), si(f.PeakSwitchVoltage, "V"), si(f.ClampEnergy, "J"), si(f.AvalancheEnergy, "J"), verdict)
+		} else {
+			for range figures {
+				row = append(row, "-")
+			}
+			if p.Invalid != "" {
+				row = append(row, "invalid: "+p.Invalid)
+			} else {
+				row = append(row, "error: "+p.Err)
+			}
+		}
+		fmt.Fprintln(tw, strings.Join(row, "\t"))
+	}
+	tw.Flush()
+}
+
+// sweepClobbersInput reports whether the output name is the scenario file.
+func sweepClobbersInput(out, in string) bool {
+	a, errA := os.Stat(out)
+	b, errB := os.Stat(in)
+	return errA == nil && errB == nil && os.SameFile(a, b)
+}
+
+// sweepAxis reads the first key's values as numbers for the plot's x axis.
+func sweepAxis(v coilkick.Vary) ([]float64, error) {
+	xs := make([]float64, len(v.Values))
+	for k, s := range v.Values {
+		f := strings.Fields(s)
+		x, err := strconv.ParseFloat(strings.Join(f[:min(1, len(f))], ""), 64)
+		if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
+			return nil, fmt.Errorf("--plot needs numeric values of %s (the first --vary); %q is not a number with a unit", v.Key, s)
+		}
+		xs[k] = x
+	}
+	return xs, nil
 }
 
 // sweepFigure picks a figure of a point (SI) and its axis label.
@@ -158,39 +235,26 @@ func sweepFigure(name string, f coilkick.SweepFigures) (float64, string, bool) {
 	return 0, "", false
 }
 
-func plotSweep(file, figure string, vs []coilkick.Vary, pts []coilkick.SweepPoint) error {
-	if _, _, ok := sweepFigure(figure, coilkick.SweepFigures{}); !ok {
-		return fmt.Errorf("--figure %q: unknown figure", figure)
-	}
-	nx := len(vs[0].Values)
-	xs := make([]float64, nx)
-	for k, v := range vs[0].Values {
-		x, err := strconv.ParseFloat(strings.Fields(v)[0], 64)
-		if err != nil {
-			return fmt.Errorf("--plot needs numeric values of %s: %v", vs[0].Key, err)
-		}
-		xs[k] = x
-	}
+// plotSweep draws a figure versus the first key (xs), one line per value
+// of the other keys; points without figures are gaps in their line.
+func plotSweep(file, figure string, xs []float64, vs []coilkick.Vary, pts []coilkick.SweepPoint) error {
+	nx := len(xs)
 	xLabel := vs[0].Key
 	if f := strings.Fields(vs[0].Values[0]); len(f) > 1 {
 		xLabel += " (" + strings.Join(f[1:], " ") + ")"
 	}
-	inner := 1
-	for _, v := range vs[1:] {
-		inner *= len(v.Values)
-	}
+	inner := len(pts) / nx
+	_, yLabel, _ := sweepFigure(figure, coilkick.SweepFigures{})
 	var series []plot.Series
-	var yLabel string
 	for j := 0; j < inner; j++ {
 		ys := make([]float64, nx)
 		label := "all"
 		for k := 0; k < nx; k++ {
 			p := pts[k*inner+j]
-			y, l, _ := sweepFigure(figure, p.Figures)
-			if p.Err != "" {
-				y = math.NaN()
+			ys[k] = math.NaN() // a gap: no figures at this point
+			if p.Figures != nil {
+				ys[k], _, _ = sweepFigure(figure, *p.Figures)
 			}
-			ys[k], yLabel = y, l
 			if len(p.Values) > 1 {
 				label = strings.Join(p.Values[1:], ", ")
 			}
@@ -200,6 +264,8 @@ func plotSweep(file, figure string, vs []coilkick.Vary, pts []coilkick.SweepPoin
 	return plot.Lines(yLabel+" versus "+vs[0].Key, xLabel, yLabel, xs, series).Save(file)
 }
 
+// writeSweepCSV writes one row per point; a point without figures has
+// empty figure and "failed" cells and its reason under "invalid" or "error".
 func writeSweepCSV(w io.Writer, vs []coilkick.Vary, pts []coilkick.SweepPoint) error {
 	cw := csv.NewWriter(w)
 	var h []string
@@ -207,7 +273,7 @@ func writeSweepCSV(w io.Writer, vs []coilkick.Vary, pts []coilkick.SweepPoint) e
 		h = append(h, v.Key)
 	}
 	h = append(h, "pull_in_time_s", "release_time_s", "drop_time_s", "peak_current_A", "hold_current_A",
-		"peak_switch_voltage_V", "clamp_energy_J", "avalanche_energy_J", "failed", "error")
+		"peak_switch_voltage_V", "clamp_energy_J", "avalanche_energy_J", "failed", "invalid", "error")
 	cw.Write(h)
 	num := func(v float64) string { return strconv.FormatFloat(v, 'g', 10, 64) }
 	iv := func(x coilkick.Interval) string {
@@ -217,11 +283,14 @@ func writeSweepCSV(w io.Writer, vs []coilkick.Vary, pts []coilkick.SweepPoint) e
 		return num(x.Seconds)
 	}
 	for _, p := range pts {
-		f := p.Figures
-		row := append(append([]string{}, p.Values...), iv(f.PullIn), iv(f.Release), iv(f.Drop), num(f.PeakCurrent),
-			num(f.HoldCurrent), num(f.PeakSwitchVoltage), num(f.ClampEnergy), num(f.AvalancheEnergy),
-			strconv.FormatBool(f.Failed), p.Err)
-		cw.Write(row)
+		row := append([]string{}, p.Values...)
+		if f := p.Figures; f != nil {
+			row = append(row, iv(f.PullIn), iv(f.Release), iv(f.Drop), num(f.PeakCurrent), num(f.HoldCurrent),
+				num(f.PeakSwitchVoltage), num(f.ClampEnergy), num(f.AvalancheEnergy), strconv.FormatBool(f.Failed))
+		} else {
+			row = append(row, "", "", "", "", "", "", "", "", "") // no figures, no verdict
+		}
+		cw.Write(append(row, p.Invalid, p.Err))
 	}
 	cw.Flush()
 	return cw.Error()

@@ -1,0 +1,219 @@
+package coilkick
+
+import (
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// The door-strike demo states supply.low voltage: 21.6 V on line 10, so a
+// supply below it breaks a rule of the scenario.
+const lowVoltageDemo = "scenarios/door-strike-duty.yaml"
+
+func mustVary(t *testing.T, spec string) Vary {
+	t.Helper()
+	v, err := ParseVary(spec)
+	if err != nil {
+		t.Fatalf("ParseVary(%q): %v", spec, err)
+	}
+	return v
+}
+
+// A key that is not a value of the scenario is an error of the flag that
+// lists the keys the loader allows there; it never points into the file.
+func TestSweepCheckUnknownKey(t *testing.T) {
+	t.Parallel()
+	sw, err := NewSweeper("scenarios/irrigation-valve.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	cases := []struct {
+		spec string
+		want []string // substrings of the error
+	}{
+		{"supply.volts=18 V:30 V:3", append([]string{`--vary "supply.volts=18 V:30 V:3"`, `unknown key "supply.volts"`,
+			`did you mean "supply.voltage"?`, "keys in section supply: "}, supplyKeys...)},
+		{"suply.voltage=18 V", append([]string{`--vary "suply.voltage=18 V"`, `unknown section "suply"`, `did you mean "supply"?`}, topKeys...)},
+		{"plunger.lod.pressure=3 bar", append([]string{`unknown key "plunger.lod"`, `did you mean "plunger.load"?`, "keys in section plunger"}, plungerKeys...)},
+		{"plunger.load=3 N", append([]string{"plunger.load is a section, not a value"}, loadKeys...)},
+		{"supply=24 V", []string{"supply is a section, not a value", "voltage, source resistance"}},
+		{"supply.voltage.x=3", []string{"supply.voltage is a value, not a section"}},
+		// A whole made-up section under a real one.
+		{"magnet.gap law.inductance=1 H", []string{`unknown key "magnet.gap law.inductance"`, "keys in section magnet.gap law: closed inductance"}},
+	}
+	for _, c := range cases {
+		err := sw.Check([]Vary{mustVary(t, c.spec)})
+		if err == nil {
+			t.Errorf("%s: Check accepted the key", c.spec)
+			continue
+		}
+		for _, s := range c.want {
+			if !strings.Contains(err.Error(), s) {
+				t.Errorf("%s: error lacks %q:\n%v", c.spec, s, err)
+			}
+		}
+		if strings.Contains(err.Error(), ".yaml:") {
+			t.Errorf("%s: a flag error must not point into the file:\n%v", c.spec, err)
+		}
+	}
+	// Every key the loader allows in a section the file has passes, also one
+	// the file does not give (it is added), and a list of several.
+	var ok []Vary
+	for _, k := range supplyKeys {
+		ok = append(ok, mustVary(t, "supply."+k+"=1"))
+	}
+	ok = append(ok, mustVary(t, "plunger.load.constant force=1 N"), mustVary(t, "ratings.pull-in time=20 ms"))
+	if err := sw.Check(ok); err != nil {
+		t.Errorf("Check rejected keys of the loader: %v", err)
+	}
+	if err := sw.Check([]Vary{mustVary(t, "supply.voltage=20 V"), mustVary(t, "supply.voltage=22 V")}); err == nil ||
+		!strings.Contains(err.Error(), "varied twice") {
+		t.Errorf("a key varied twice: %v", err)
+	}
+}
+
+// A point whose values break a rule of the scenario is marked invalid with
+// the loader's reason and the sweep goes on with the others.
+func TestSweepInvalidPointGoesOn(t *testing.T) {
+	t.Parallel()
+	sw, err := NewSweeper(lowVoltageDemo)
+	if err != nil {
+		t.Fatal(err)
+	}
+	vs := []Vary{mustVary(t, "supply.voltage=21 V:25 V:5")}
+	if err := sw.Check(vs); err != nil {
+		t.Fatal(err)
+	}
+	pts := sw.Sweep(vs, 2, nil)
+	if len(pts) != 5 {
+		t.Fatalf("%d points, want 5", len(pts))
+	}
+	p := pts[0]
+	if p.Values[0] != "21 V" || p.Figures != nil || p.Err != "" {
+		t.Errorf("21 V: want invalid without figures, got %+v", p)
+	}
+	// The reason is the loader's, on one line, at the file's own line 10.
+	for _, s := range []string{"line 10:", "supply.low voltage", `"21.6 V"`, `"21 V"`} {
+		if !strings.Contains(p.Invalid, s) {
+			t.Errorf("21 V: reason lacks %q: %q", s, p.Invalid)
+		}
+	}
+	if strings.Contains(p.Invalid, "\n") || strings.Contains(p.Invalid, lowVoltageDemo) {
+		t.Errorf("reason not on one line or names the file: %q", p.Invalid)
+	}
+	for _, p := range pts[1:] {
+		if p.Figures == nil || p.Invalid != "" || p.Err != "" || !p.Figures.PullIn.Happened {
+			t.Errorf("%s: want a valid point that pulls in, got %+v", p.Values[0], p)
+		}
+	}
+}
+
+// Missing STEPS or another malformed range states the syntax and names the
+// flag (it used to become the value "10 V:14 V" and fail in the loader with
+// "unexpected ':14 V' in unit").
+func TestParseVarySyntax(t *testing.T) {
+	t.Parallel()
+	for _, spec := range []string{
+		"supply.voltage=10 V:14 V",
+		"supply.voltage=10 V:14 V:",
+		"supply.voltage=10 V:14 V:5:2",
+		"supply.voltage=:14 V:5",
+		"supply.voltage=10 V:14 V:0",
+		"supply.voltage=10 V:14 V:1",
+		"supply.voltage=10 V:14 V:5,20 V",
+		"supply.voltage=10 V:14 A:5",
+		"supply.voltage",
+		"=10 V",
+		"supply..voltage=10 V",
+		"supply.voltage=",
+	} {
+		_, err := ParseVary(spec)
+		if err == nil {
+			t.Errorf("ParseVary(%q) accepted it", spec)
+			continue
+		}
+		for _, s := range []string{"--vary " + `"` + spec + `"`, "KEY=FROM:TO:STEPS", "KEY=V1,V2,..."} {
+			if !strings.Contains(err.Error(), s) {
+				t.Errorf("ParseVary(%q): error lacks %q: %v", spec, s, err)
+			}
+		}
+	}
+	if _, err := ParseVary("supply.voltage=10 V:14 V"); err == nil || !strings.Contains(err.Error(), "no STEPS") {
+		t.Errorf("missing STEPS not named: %v", err)
+	}
+	v := mustVary(t, "supply.voltage=10 V:14 V:5")
+	if strings.Join(v.Values, ",") != "10 V,11 V,12 V,13 V,14 V" {
+		t.Errorf("range values %q", v.Values)
+	}
+	v = mustVary(t, " plunger . mass = 5 g, 8 g ")
+	if v.Key != "plunger.mass" || strings.Join(v.Values, ",") != "5 g,8 g" {
+		t.Errorf("list: key %q values %q", v.Key, v.Values)
+	}
+}
+
+// The swept values replace the file's own text where the key is a one-line
+// value (comments, quotes and other lines kept, so positions in messages
+// are the file's); a key the file does not give is added.
+func TestSweepTextInPlace(t *testing.T) {
+	t.Parallel()
+	data, err := os.ReadFile(lowVoltageDemo)
+	if err != nil {
+		t.Fatal(err)
+	}
+	text := strings.Replace(string(data), "voltage: 24 V\n", "voltage: \"24 V\"   # quoted, °C \n", 1)
+	text = strings.Replace(text, "mass: 15 g", "mass: '15 g'", 1)
+	path := filepath.Join(t.TempDir(), "s.yaml")
+	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	sw, err := NewSweeper(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	vs := []Vary{mustVary(t, "supply.voltage=30 V"), mustVary(t, "supply.low voltage=25 V"), mustVary(t, "plunger.mass=20 g")}
+	out, inPlace, err := sw.text(vs, []string{"30 V", "25 V", "20 g"})
+	if err != nil || !inPlace {
+		t.Fatalf("in place: %v, %v", inPlace, err)
+	}
+	if got, want := strings.Count(string(out), "\n"), strings.Count(text, "\n"); got != want {
+		t.Errorf("%d lines, want %d", got, want)
+	}
+	for _, s := range []string{"voltage: 30 V   # quoted, °C \n", "low voltage: 25 V              # -10 %\n", "mass: 20 g\n"} {
+		if !strings.Contains(string(out), s) {
+			t.Errorf("text lacks %q", s)
+		}
+	}
+	s, err := Parse(out, path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s.Supply.Voltage != 30 || s.Supply.LowVoltage != 25 || s.Plunger.Mass != 0.02 {
+		t.Errorf("read back %g V, %g V, %g kg", s.Supply.Voltage, s.Supply.LowVoltage, s.Plunger.Mass)
+	}
+	// Not in the file: written anew (positions not the file's).
+	vs = []Vary{mustVary(t, "supply.source resistance=1 ohm")}
+	out, inPlace, err = sw.text(vs, []string{"1 ohm"})
+	if err != nil || inPlace {
+		t.Fatalf("added key: in place %v, %v", inPlace, err)
+	}
+	if s, err := Parse(out, path); err != nil || s.Supply.SourceResistance != 1 {
+		t.Errorf("added key read back: %v", err)
+	}
+}
+
+func TestCloseKey(t *testing.T) {
+	t.Parallel()
+	cases := []struct{ key, want string }{
+		{"volts", "voltage"},           // shares "volt" with one key only
+		{"Low_Voltage", "low voltage"}, // case and underscore
+		{"voltge", "voltage"},          // one edit
+		{"frequency", ""},              // nothing close
+		{"vol", ""},                    // too short to guess
+	}
+	for _, c := range cases {
+		if got := closeKey(c.key, supplyKeys); got != c.want {
+			t.Errorf("closeKey(%q) = %q, want %q", c.key, got, c.want)
+		}
+	}
+}
