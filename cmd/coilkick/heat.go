@@ -118,7 +118,7 @@ func steadyText(r *coilkick.HeatResult) string {
 	}
 }
 
-func steadyRows(r *coilkick.HeatResult, temp func(float64) string) [][2]string {
+func steadyRows(r *coilkick.HeatResult, temp func(float64) string) []steadyRow {
 	name := fmt.Sprintf("steady (peak within %g K) after", coilkick.SteadyTol)
 	switch {
 	case r.SteadyAfter == 0:
@@ -126,14 +126,17 @@ func steadyRows(r *coilkick.HeatResult, temp func(float64) string) [][2]string {
 		if r.Peak <= coilkick.RunawayTemperature {
 			why = "not found within the cycles stepped"
 		}
-		return [][2]string{{"periodic steady state", why}}
+		return []steadyRow{{"steady_state", "periodic steady state", why}}
 	case r.Steady:
-		return [][2]string{{name, durationText(r.SteadyAfter)}}
+		return []steadyRow{{"steady_after", name, durationText(r.SteadyAfter)}}
 	default:
-		return [][2]string{{name, durationText(r.SteadyAfter) + ", after the end of the study"},
-			{"peak in the periodic steady state", fmt.Sprintf("%s (%+.2f K on the end of the study)", temp(r.SteadyPeak), r.SteadyPeak-r.Peak)}}
+		return []steadyRow{{"steady_after", name, durationText(r.SteadyAfter) + ", after the end of the study"},
+			{"steady_peak", "peak in the periodic steady state", fmt.Sprintf("%s (%+.2f K from the end of the study)", temp(r.SteadyPeak), r.SteadyPeak-r.Peak)}}
 	}
 }
+
+// steadyRow is a row of steadyRows: a key for the report, name, value.
+type steadyRow struct{ key, name, value string }
 
 // historyText says what the CSV history holds.
 func historyText(r *coilkick.HeatResult) string {
@@ -191,7 +194,7 @@ func printHeat(w io.Writer, path string, md *coilkick.Model, r *coilkick.HeatRes
 	row("valley", degC(r.Valley))
 	row("ripple", fmt.Sprintf("%.2f K", r.Ripple))
 	for _, sr := range steadyRows(r, degC) {
-		row(sr[0], sr[1])
+		row(sr.name, sr.value)
 	}
 	row("coil resistance at the peak", si(r.HotResistance, "ohm"))
 	if r.Limit > 0 {

@@ -430,8 +430,8 @@ func heatSection(r *coilkick.HeatResult) (*plot.HeatSection, bool) {
 	add(&temp, "mean", "mean", celsius(r.Mean))
 	add(&temp, "valley", "valley", celsius(r.Valley))
 	add(&temp, "ripple", "ripple", fmt.Sprintf("%.2f K", r.Ripple))
-	for k, sr := range steadyRows(r, celsius) {
-		add(&temp, fmt.Sprintf("steady_%d", k), sr[0], sr[1])
+	for _, sr := range steadyRows(r, celsius) {
+		add(&temp, sr.key, sr.name, sr.value)
 	}
 	add(&temp, "hot_resistance", "coil resistance at the peak", si(r.HotResistance, "Ω"))
 	if r.Limit > 0 {
