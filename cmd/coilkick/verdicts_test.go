@@ -1,0 +1,267 @@
+package main
+
+import (
+	"bytes"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"coilkick"
+)
+
+// variant writes a copy of a demo scenario with text replaced, into dir.
+func variant(t *testing.T, dir, demo string, repl ...string) string {
+	t.Helper()
+	data, err := os.ReadFile(filepath.Join("../../scenarios", demo))
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := string(data)
+	for k := 0; k+1 < len(repl); k += 2 {
+		if !strings.Contains(s, repl[k]) {
+			t.Fatalf("%s has no %q", demo, repl[k])
+		}
+		s = strings.Replace(s, repl[k], repl[k+1], 1)
+	}
+	path := filepath.Join(dir, strings.TrimSuffix(demo, ".yaml")+"-variant.yaml")
+	if err := os.WriteFile(path, []byte(s), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return path
+}
+
+// runArgs runs the command line and returns its output and exit status.
+func runArgs(args ...string) (stdout, stderr string, code int) {
+	var out, errb bytes.Buffer
+	code = run(&out, &errb, append([]string{"coilkick"}, args...))
+	return out.String(), errb.String(), code
+}
+
+// TestEveryNotePrintedOnce: each note of the assessment appears exactly
+// once in the run summary (the audible-range warning was printed twice).
+func TestEveryNotePrintedOnce(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
+	paths := []string{
+		"../../scenarios/door-latch.yaml",
+		"../../scenarios/process-air-valve.yaml",
+		"../../scenarios/door-latch-bridge.yaml",
+		variant(t, dir, "peak-hold-valve.yaml", "frequency: 20 kHz", "frequency: 15 kHz", "hold current: 0.4 A", "hold current: 0.25 A",
+			"de-energize at: 1000 ms", "de-energize at: 100 ms", "end: 1050 ms", "end: 150 ms"),
+	}
+	for _, path := range paths {
+		md, err := coilkick.LoadModel(path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		res, err := coilkick.Simulate(md, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		as := md.Assess(res)
+		out, _, _ := runArgs("run", path)
+		if len(as.Notes) < 2 {
+			t.Errorf("%s: only %d notes", path, len(as.Notes))
+		}
+		for _, n := range as.Notes {
+			if c := strings.Count(out, n.Text); c != 1 {
+				t.Errorf("%s: note printed %d times: %q", path, c, n.Text)
+			}
+		}
+	}
+}
+
+// TestDropOutReported: the case (peak-and-hold demo, 0.25 A hold).
+func TestDropOutReported(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
+	path := variant(t, dir, "peak-hold-valve.yaml", "hold current: 0.4 A", "hold current: 0.25 A",
+		"de-energize at: 1000 ms", "de-energize at: 100 ms", "end: 1050 ms", "end: 150 ms")
+	out, _, code := runArgs("run", path)
+	if code != exitFailing {
+		t.Errorf("exit %d, want %d", code, exitFailing)
+	}
+	for _, want := range []string{"stays seated while energized  NO", "drop-out", "after energize, at 335 mA",
+		"pull 4.95 N against spring + load 4.95 N", "release time                  -              not applicable: dropped out during the hold",
+		"drop time                     -              not applicable: dropped out during the hold", "1 not applicable"} {
+		if !strings.Contains(out, want) {
+			t.Errorf("run output lacks %q:\n%s", want, out)
+		}
+	}
+	for _, bad := range []string{"did not release", "did not return", "residual flux"} {
+		if strings.Contains(out, bad) {
+			t.Errorf("run output has %q", bad)
+		}
+	}
+	out, _, code = runArgs("solve", path)
+	if code != exitFailing || !strings.Contains(out, "not applicable: the plunger dropped out during the hold") ||
+		strings.Contains(out, "even the highest clamp") {
+		t.Errorf("solve: exit %d\n%s", code, out)
+	}
+	out, _, code = runArgs("clamps", path)
+	if code != exitFailing || !strings.Contains(out, "No recommendation: the plunger drops out") {
+		t.Errorf("clamps: exit %d\n%s", code, out)
+	}
+}
+
+// TestConstantHoldNoRipple: a constant-voltage hold prints whether it
+// settled, not a ripple or a chopping frequency.
+func TestConstantHoldNoRipple(t *testing.T) {
+	t.Parallel()
+	out, _, _ := runArgs("run", "../../scenarios/irrigation-valve.yaml")
+	if strings.Contains(out, "ripple") || strings.Contains(out, "chopping frequency") ||
+		!strings.Contains(out, "hold current at end           333 mA, settled (within 1 % of V/R = 333 mA)") {
+		t.Errorf("constant hold:\n%s", out)
+	}
+	out, _, _ = runArgs("run", "../../scenarios/peak-hold-valve.yaml")
+	if !strings.Contains(out, "hold current ripple") || !strings.Contains(out, "chopping frequency            20 kHz\n") ||
+		strings.Contains(out, "audible") {
+		t.Errorf("chopped hold:\n%s", out)
+	}
+}
+
+// TestClampsTable: no duplicate headings, every row aligned with the
+// header (also after an error row), the impractical snubber marked.
+func TestClampsTable(t *testing.T) {
+	t.Parallel()
+	out, _, code := runArgs("clamps", "../../scenarios/door-strike-duty.yaml")
+	if code != exitOK {
+		t.Fatalf("exit %d\n%s", code, out)
+	}
+	lines := strings.Split(out, "\n")
+	h := -1
+	for k, l := range lines {
+		if strings.HasPrefix(l, "option") {
+			h = k
+		}
+	}
+	if h < 0 {
+		t.Fatalf("no table header:\n%s", out)
+	}
+	header := []rune(lines[h]) // tabwriter aligns code points
+	// Column starts: a non-blank after two blanks.
+	var starts []int
+	for i := 2; i < len(header); i++ {
+		if header[i] != ' ' && header[i-1] == ' ' && header[i-2] == ' ' {
+			starts = append(starts, i)
+		}
+	}
+	heads := map[string]bool{}
+	for k, s := range starts {
+		end := len(header)
+		if k+1 < len(starts) {
+			end = starts[k+1]
+		}
+		name := strings.TrimSpace(string(header[s:end]))
+		if heads[name] {
+			t.Errorf("heading %q twice", name)
+		}
+		heads[name] = true
+	}
+	rows, errRows := 0, 0
+	for _, line := range lines[h+1:] {
+		if line == "" {
+			break
+		}
+		rows++
+		if strings.Contains(line, "error:") {
+			errRows++
+		}
+		l := []rune(line)
+		for k, s := range starts {
+			if k == len(starts)-1 && s >= len(l) {
+				break // an empty last column (remark)
+			}
+			if s >= len(l) || l[s-1] != ' ' || l[s] == ' ' {
+				t.Errorf("row not aligned at column %d:\n%s\n%s", s, string(header), line)
+				break
+			}
+		}
+	}
+	if rows < 10 || errRows != 1 {
+		t.Errorf("%d rows, %d error rows (want the TVS that does not fit)", rows, errRows)
+	}
+	if !strings.Contains(out, "impractical: capacitor 178 µF") || !strings.Contains(out, "freewheel diode") ||
+		!strings.Contains(out, "Recommended: freewheel diode") {
+		t.Errorf("clamps output:\n%s", out)
+	}
+}
+
+// TestClampsPeakHoldPartRating: the part rating of the peak-and-hold demo
+// is the turn-off pulse of the run (was 219 mJ of hold recirculation).
+func TestClampsPeakHoldPartRating(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
+	path := variant(t, dir, "peak-hold-valve.yaml", "de-energize at: 1000 ms", "de-energize at: 100 ms", "end: 1050 ms", "end: 150 ms")
+	out, _, code := runArgs("clamps", path)
+	if code != exitOK || !strings.Contains(out, "energy per turn-off pulse 1.2 mJ") ||
+		!strings.Contains(out, "diode + 36 V Zener") {
+		t.Errorf("clamps: exit %d\n%s", code, out)
+	}
+	run, _, _ := runArgs("run", path)
+	// The 36 V Zener row shows the run's clamp energy.
+	var runE, rowE string
+	for _, l := range strings.Split(run, "\n") {
+		if f := strings.Fields(l); len(f) >= 4 && f[0] == "clamp" && f[1] == "energy" {
+			runE = f[2] + " " + f[3]
+		}
+	}
+	for _, l := range strings.Split(out, "\n") {
+		if strings.HasPrefix(l, "diode + 36 V Zener") {
+			f := strings.Fields(l)
+			rowE = f[11] + " " + f[12]
+		}
+	}
+	if runE == "" || runE != rowE {
+		t.Errorf("run clamp energy %q, clamps row %q", runE, rowE)
+	}
+}
+
+// TestSolveMarginAndExit: the scenario's margin is used unless the flag
+// is given; a freewheel diode that already meets the release says so; a
+// range that holds no answer is named; an error in one answer exits 1.
+func TestSolveMarginAndExit(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
+	path := variant(t, dir, "peak-hold-valve.yaml", "hold force margin: 1.2", "hold force margin: 1.5",
+		"de-energize at: 1000 ms", "de-energize at: 100 ms", "end: 1050 ms", "end: 150 ms")
+	out, _, code := runArgs("solve", path)
+	if code != exitOK || !strings.Contains(out, "hold force margin 1.5 (the scenario's ratings.hold force margin)") ||
+		!strings.Contains(out, "lowest hold current with force margin 1.50") ||
+		!strings.Contains(out, "no Zener needed: a plain freewheel diode already meets it") {
+		t.Errorf("solve: exit %d\n%s", code, out)
+	}
+	out, _, _ = runArgs("solve", path, "--margin", "1.3")
+	if !strings.Contains(out, "hold force margin 1.3 (--margin)") || !strings.Contains(out, "force margin 1.30") {
+		t.Errorf("solve --margin:\n%s", out)
+	}
+	// Release requirement no clamp below breakdown meets: the range is named.
+	tight := variant(t, dir, "process-air-valve.yaml", "release time: 10 ms", "release time: 0.1 ms")
+	out, _, code = runArgs("solve", tight)
+	if code != exitFailing || !strings.Contains(out, "none in the searched range 0 V to 75.9 V") {
+		t.Errorf("solve, tight release: exit %d\n%s", code, out)
+	}
+	// A step budget too small for any run: the answers fail with an error.
+	starved := variant(t, dir, "peak-hold-valve.yaml", "ratings:", "solver:\n  max steps: 50\nratings:")
+	out, errs, code := runArgs("solve", starved)
+	if code != exitError || !strings.Contains(out, "error:") || !strings.Contains(errs, "failed with an error") {
+		t.Errorf("solve, starved: exit %d\n%s\n%s", code, out, errs)
+	}
+}
+
+// TestCornersReport: the yield has its interval, and failing corners with
+// a 100 % sampled yield are explained.
+func TestCornersReport(t *testing.T) {
+	t.Parallel()
+	out, _, code := runArgs("corners", "../../scenarios/door-strike-duty.yaml", "--samples", "40")
+	if code != exitFailing {
+		t.Errorf("exit %d", code)
+	}
+	for _, want := range []string{"winding 30 degC (cold) and 100 degC (hot)", "yield 100.0 % (95 % Wilson score interval 91.2 % to 100.0 %)",
+		"1 of 16 corners fail although every sample passed", "not applicable at 1 of 16 corners"} {
+		if !strings.Contains(out, want) {
+			t.Errorf("corners output lacks %q:\n%s", want, out)
+		}
+	}
+}
