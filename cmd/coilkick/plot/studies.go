@@ -109,7 +109,7 @@ func LabelledScatter(title, xLabel, yLabel string, pts []LabelledPoint) *Figure 
 	setRange(&p.X, xlo, xhi, 0.12)
 	setRange(&p.Y, ylo, yhi, 0.12)
 	p.Add(&dots{xs: xs, ys: ys, color: colCurrent, radius: 3.5})
-	p.Add(&pointLabels{pts: pts})
+	p.Add(&pointLabels{pts: pts, radius: 3.5})
 	return single(title, StudyWidth, StudyHeight, p, nil)
 }
 
@@ -197,53 +197,118 @@ func (d *dots) Plot(c draw.Canvas, p *gplot.Plot) {
 	}
 }
 
-// pointLabels writes each point's label to its right, or to its left
-// when it would leave the data area.
-type pointLabels struct{ pts []LabelledPoint }
+// pointLabels writes each point's label beside it (see placeLabels).
+type pointLabels struct {
+	pts    []LabelledPoint
+	radius float64 // pt, of the dots (obstacles for the labels)
+}
 
 func (l *pointLabels) Plot(c draw.Canvas, p *gplot.Plot) {
 	trX, trY := p.Transforms(&c)
 	sty := textStyle(sizeSmall, ink)
-	sty.YAlign = draw.YCenter
-	var taken []vg.Rectangle
+	sty.XAlign, sty.YAlign = draw.XLeft, draw.YBottom
+	var at []vg.Point
+	var sizes []vg.Point
+	var labels []string
 	for _, pt := range l.pts {
 		if math.IsNaN(pt.X) || math.IsNaN(pt.Y) {
 			continue
 		}
-		x, y := trX(pt.X), trY(pt.Y)
-		w, h := sty.Width(pt.Label), sty.Height(pt.Label)
-		s := sty
-		tx := x + vg.Points(6)
-		if tx+w > c.Max.X {
-			s.XAlign = draw.XRight
-			tx = x - vg.Points(6)
+		at = append(at, vg.Point{X: trX(pt.X), Y: trY(pt.Y)})
+		sizes = append(sizes, vg.Point{X: sty.Width(pt.Label), Y: sty.Height(pt.Label)})
+		labels = append(labels, pt.Label)
+	}
+	boxes := placeLabels(at, sizes, c.Rectangle, vg.Points(l.radius))
+	leader := draw.LineStyle{Color: ink, Width: vg.Points(0.4)}
+	for k, b := range boxes {
+		if labels[k] == "" {
+			continue
 		}
-		// Move down past labels already written there.
-		r := func(y vg.Length) vg.Rectangle {
-			x0 := tx
-			if s.XAlign == draw.XRight {
-				x0 = tx - w
-			}
-			return vg.Rectangle{Min: vg.Point{X: x0, Y: y - h/2}, Max: vg.Point{X: x0 + w, Y: y + h/2}}
+		c.FillText(sty, b.Min, labels[k])
+		if d := rectDistance(b, at[k]); d > 2*labelGap(vg.Points(l.radius)) {
+			c.StrokeLine2(leader, at[k].X, at[k].Y, clampTo(at[k].X, b.Min.X, b.Max.X), clampTo(at[k].Y, b.Min.Y, b.Max.Y))
 		}
-		for tries := 0; tries < 10; tries++ {
-			clash := false
-			for _, t := range taken {
-				if overlaps(r(y), t) {
-					clash = true
-					break
-				}
-			}
-			if !clash {
-				break
-			}
-			y -= h
-		}
-		taken = append(taken, r(y))
-		c.FillText(s, vg.Point{X: tx, Y: y}, pt.Label)
 	}
 }
 
-func overlaps(a, b vg.Rectangle) bool {
-	return a.Min.X < b.Max.X && b.Min.X < a.Max.X && a.Min.Y < b.Max.Y && b.Min.Y < a.Max.Y
+// labelGap is the distance between a dot's centre and its label (pt).
+func labelGap(radius vg.Length) vg.Length { return radius + vg.Points(2.5) }
+
+// placeLabels returns a box (lower-left corner and size) for the label of
+// each point: the first of eight positions round the point (right, left,
+// above, below, then the diagonals), at one, two or three gaps from it,
+// that stays inside bounds and overlaps neither a label already placed
+// nor any dot; when none is free, the position with the least overlap at
+// the smallest distance. Empty labels (size 0) get a zero box.
+func placeLabels(at, sizes []vg.Point, bounds vg.Rectangle, radius vg.Length) []vg.Rectangle {
+	out := make([]vg.Rectangle, len(at))
+	dots := make([]vg.Rectangle, len(at))
+	for k, p := range at {
+		dots[k] = vg.Rectangle{Min: vg.Point{X: p.X - radius, Y: p.Y - radius}, Max: vg.Point{X: p.X + radius, Y: p.Y + radius}}
+	}
+	var placed []vg.Rectangle
+	gap := labelGap(radius)
+	for k, p := range at {
+		w, h := sizes[k].X, sizes[k].Y
+		if w == 0 {
+			continue
+		}
+		best, bestCost := vg.Rectangle{}, math.Inf(1)
+		for ring := 1; ring <= 3 && bestCost > 0; ring++ {
+			d := gap * vg.Length(ring)
+			cands := [...]vg.Point{
+				{X: p.X + d, Y: p.Y - h/2},         // right
+				{X: p.X - d - w, Y: p.Y - h/2},     // left
+				{X: p.X - w/2, Y: p.Y + d},         // above
+				{X: p.X - w/2, Y: p.Y - d - h},     // below
+				{X: p.X + d, Y: p.Y + d/2},         // upper right
+				{X: p.X + d, Y: p.Y - d/2 - h},     // lower right
+				{X: p.X - d - w, Y: p.Y + d/2},     // upper left
+				{X: p.X - d - w, Y: p.Y - d/2 - h}, // lower left
+			}
+			for _, m := range cands {
+				r := vg.Rectangle{Min: m, Max: vg.Point{X: m.X + w, Y: m.Y + h}}
+				cost := 0.0
+				if r.Min.X < bounds.Min.X || r.Max.X > bounds.Max.X || r.Min.Y < bounds.Min.Y || r.Max.Y > bounds.Max.Y {
+					cost += 1e6
+				}
+				for _, o := range placed {
+					cost += overlapArea(r, o)
+				}
+				for _, o := range dots {
+					cost += overlapArea(r, o)
+				}
+				// Prefer nearer rings at equal overlap.
+				cost += float64(ring-1) * 1e-3
+				if cost < bestCost {
+					best, bestCost = r, cost
+				}
+			}
+		}
+		out[k] = best
+		placed = append(placed, best)
+	}
+	return out
 }
+
+// overlapArea returns the area (pt²) shared by two rectangles.
+func overlapArea(a, b vg.Rectangle) float64 {
+	w := math.Min(float64(a.Max.X), float64(b.Max.X)) - math.Max(float64(a.Min.X), float64(b.Min.X))
+	h := math.Min(float64(a.Max.Y), float64(b.Max.Y)) - math.Max(float64(a.Min.Y), float64(b.Min.Y))
+	if w <= 0 || h <= 0 {
+		return 0
+	}
+	return w * h
+}
+
+// rectDistance returns the distance from p to the nearest point of r.
+func rectDistance(r vg.Rectangle, p vg.Point) vg.Length {
+	dx := p.X - clampTo(p.X, r.Min.X, r.Max.X)
+	dy := p.Y - clampTo(p.Y, r.Min.Y, r.Max.Y)
+	return vg.Length(math.Hypot(float64(dx), float64(dy)))
+}
+
+func clampTo(v, lo, hi vg.Length) vg.Length {
+	return vg.Length(math.Max(float64(lo), math.Min(float64(hi), float64(v))))
+}
+
