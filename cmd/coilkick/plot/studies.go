@@ -311,4 +311,3 @@ func rectDistance(r vg.Rectangle, p vg.Point) vg.Length {
 func clampTo(v, lo, hi vg.Length) vg.Length {
 	return vg.Length(math.Max(float64(lo), math.Min(float64(hi), float64(v))))
 }
-
