@@ -142,6 +142,9 @@ type SweepFigures struct {
 	PeakSwitchVoltage            float64 // V
 	ClampEnergy, AvalancheEnergy float64 // J
 	Failed                       bool    // a rating or requirement fails
+	// DroppedOut: the plunger left the seat while energized (a failure;
+	// release and drop do not apply then).
+	DroppedOut bool
 }
 
 // SweepPoint is one point of a sweep. Exactly one of Figures, Invalid and
@@ -604,7 +607,7 @@ func Figures(md *Model) (SweepFigures, error) {
 	as := md.Assess(res)
 	return SweepFigures{PullIn: m.PullIn, Release: m.Release, Drop: m.Drop, PeakCurrent: m.PeakCurrent,
 		HoldCurrent: m.Hold.MeanCurrent, PeakSwitchVoltage: m.PeakSwitchVoltage, ClampEnergy: m.ClampEnergy,
-		AvalancheEnergy: m.AvalancheEnergy, Failed: as.Failed()}, nil
+		AvalancheEnergy: m.AvalancheEnergy, Failed: as.Failed(), DroppedOut: m.DropOut.Happened}, nil
 }
 
 // Sweep runs every point of the grid on workers goroutines (0: all cores)

@@ -209,7 +209,7 @@ func TestDropOutDuringHoldDiagnosed(t *testing.T) {
 		t.Errorf("CompareClamps: drop-out %q, recommended %d, %v", cmp.DropOut, cmp.Recommended, err)
 	}
 	fig, err := Figures(md)
-	if err != nil || !fig.Failed {
+	if err != nil || !fig.Failed || !fig.DroppedOut {
 		t.Errorf("sweep figures %+v, %v: want failed", fig, err)
 	}
 	cr, err := Corners(md, Tolerances{Supply: 0.05}, 0, 1)

@@ -170,7 +170,14 @@ func writeSweepTable(w io.Writer, vs []coilkick.Vary, pts []coilkick.SweepPoint)
 			if f.Failed {
 				verdict = "FAIL"
 			}
-			row = append(row, interval2(f.PullIn), interval2(f.Release), interval2(f.Drop), si(f.PeakCurrent, "A"),
+			release, drop := interval2(f.Release), interval2(f.Drop)
+			if f.DroppedOut {
+				verdict += " (drops out while energized)"
+				if !f.Release.Happened {
+					release, drop = "n/a", "n/a"
+				}
+			}
+			row = append(row, interval2(f.PullIn), release, drop, si(f.PeakCurrent, "A"),
 				si(f.HoldCurrent, "A"), si(f.PeakSwitchVoltage, "V"), si(f.ClampEnergy, "J"), si(f.AvalancheEnergy, "J"), verdict)
 		} else {
 			for range figures {
@@ -273,7 +280,7 @@ func writeSweepCSV(w io.Writer, vs []coilkick.Vary, pts []coilkick.SweepPoint) e
 		h = append(h, v.Key)
 	}
 	h = append(h, "pull_in_time_s", "release_time_s", "drop_time_s", "peak_current_A", "hold_current_A",
-		"peak_switch_voltage_V", "clamp_energy_J", "avalanche_energy_J", "failed", "invalid", "error")
+		"peak_switch_voltage_V", "clamp_energy_J", "avalanche_energy_J", "failed", "dropped_out", "invalid", "error")
 	cw.Write(h)
 	num := func(v float64) string { return strconv.FormatFloat(v, 'g', 10, 64) }
 	iv := func(x coilkick.Interval) string {
@@ -286,9 +293,10 @@ func writeSweepCSV(w io.Writer, vs []coilkick.Vary, pts []coilkick.SweepPoint) e
 		row := append([]string{}, p.Values...)
 		if f := p.Figures; f != nil {
 			row = append(row, iv(f.PullIn), iv(f.Release), iv(f.Drop), num(f.PeakCurrent), num(f.HoldCurrent),
-				num(f.PeakSwitchVoltage), num(f.ClampEnergy), num(f.AvalancheEnergy), strconv.FormatBool(f.Failed))
+				num(f.PeakSwitchVoltage), num(f.ClampEnergy), num(f.AvalancheEnergy), strconv.FormatBool(f.Failed),
+				strconv.FormatBool(f.DroppedOut))
 		} else {
-			row = append(row, "", "", "", "", "", "", "", "", "") // no figures, no verdict
+			row = append(row, "", "", "", "", "", "", "", "", "", "") // no figures, no verdict
 		}
 		cw.Write(append(row, p.Invalid, p.Err))
 	}
