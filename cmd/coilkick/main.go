@@ -16,6 +16,7 @@ import (
 	"github.com/urfave/cli/v2"
 
 	"coilkick"
+	"coilkick/cmd/coilkick/outfile"
 )
 
 func main() {
@@ -65,6 +66,10 @@ func permute(args []string) []string {
 func run(stdout, stderr io.Writer, args []string) int {
 	if len(args) > 2 {
 		args = append(args[:2:2], permute(args[2:])...)
+		if err := checkOutputs(args[2:]); err != nil {
+			fmt.Fprintf(stderr, "coilkick: %v\n", err)
+			return exitError
+		}
 	}
 	app := &cli.App{
 		Name:      "coilkick",
@@ -202,18 +207,52 @@ func cmdRun(c *cli.Context, w io.Writer) error {
 	return nil
 }
 
-// writeFile writes to the named file, or to w for "-".
+// writeFile writes to the named file atomically (outfile.Write), or to w
+// for "-".
 func writeFile(name string, w io.Writer, write func(io.Writer) error) error {
 	if name == "-" {
 		return write(w)
 	}
-	f, err := os.Create(name)
-	if err != nil {
-		return err
+	return outfile.Write(name, write)
+}
+
+// outputFlags name files the commands write; inputFlags files they read.
+var (
+	outputFlags = map[string]bool{"csv": true, "json": true, "plot": true, "curves": true, "o": true, "output": true}
+	inputFlags  = map[string]bool{"trace": true}
+)
+
+// checkOutputs refuses a command line whose output file names one of its
+// input files (the scenario, a trace): an output never overwrites an
+// input. args are the arguments after the command name, flags first.
+func checkOutputs(args []string) error {
+	var outs, ins []string
+	for i := 0; i < len(args); i++ {
+		a := args[i]
+		if a == "--" {
+			ins = append(ins, args[i+1:]...)
+			break
+		}
+		if !strings.HasPrefix(a, "-") || len(a) == 1 {
+			ins = append(ins, a)
+			continue
+		}
+		name, value, hasValue := strings.Cut(strings.TrimLeft(a, "-"), "=")
+		if !hasValue && valueFlags[name] && i+1 < len(args) {
+			value = args[i+1]
+			i++
+		}
+		switch {
+		case outputFlags[name]:
+			outs = append(outs, value)
+		case inputFlags[name]:
+			ins = append(ins, value)
+		}
 	}
-	if err := write(f); err != nil {
-		f.Close()
-		return fmt.Errorf("%s: %v", name, err)
+	for _, o := range outs {
+		if in := outfile.SameAsAny(o, ins...); in != "" {
+			return fmt.Errorf("output %s is the input file %s: choose another name (an output never overwrites an input)", o, in)
+		}
 	}
-	return f.Close()
+	return nil
 }

@@ -265,3 +265,36 @@ func TestCornersReport(t *testing.T) {
 		}
 	}
 }
+
+// TestOutputNeverOverwritesInput: every command refuses an output path
+// that names its scenario or trace, before doing anything (exit 1, the
+// input intact).
+func TestOutputNeverOverwritesInput(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
+	scen := variant(t, dir, "irrigation-valve.yaml")
+	trace := filepath.Join(dir, "trace.csv")
+	data, _ := os.ReadFile("../../testdata/fit/irrigation-scope.csv")
+	os.WriteFile(trace, data, 0o644)
+	before, _ := os.ReadFile(scen)
+	for _, args := range [][]string{
+		{"run", scen, "--csv", scen},
+		{"run", scen, "--json=" + scen},
+		{"run", "--plot", scen, scen},
+		{"magnet", scen, "--curves", scen},
+		{"clamps", scen, "--plot", scen},
+		{"report", scen, "-o", scen},
+		{"fit", scen, "--trace", trace, "--csv", trace},
+		{"fit", scen, "--trace", trace, "-o", scen},
+	} {
+		_, errs, code := runArgs(args...)
+		if code != exitError || !strings.Contains(errs, "never overwrites an input") {
+			t.Errorf("%v: exit %d, %s", args, code, errs)
+		}
+	}
+	after, _ := os.ReadFile(scen)
+	tr, _ := os.ReadFile(trace)
+	if string(after) != string(before) || string(tr) != string(data) {
+		t.Error("an input was changed")
+	}
+}

@@ -4,12 +4,10 @@
 package plot
 
 import (
-	"bytes"
 	"fmt"
 	"image/color"
 	"io"
 	"math"
-	"os"
 	"path/filepath"
 	"strings"
 
@@ -20,6 +18,8 @@ import (
 	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/vgimg"
 	"gonum.org/v1/plot/vg/vgsvg"
+
+	"coilkick/cmd/coilkick/outfile"
 )
 
 // DPI is the resolution of PNG output: a figure of width W points is
@@ -84,11 +84,7 @@ func (f *Figure) Save(file string) error {
 	default:
 		return fmt.Errorf("%s: plot files end in .png or .svg", file)
 	}
-	var buf bytes.Buffer
-	if err := write(&buf); err != nil {
-		return err
-	}
-	return os.WriteFile(file, buf.Bytes(), 0o644)
+	return outfile.Write(file, write)
 }
 
 // Style: plain, white background, dark text, one accent per quantity.
