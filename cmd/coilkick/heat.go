@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"os"
 	"strconv"
 	"strings"
 
@@ -23,11 +22,6 @@ func cmdHeat(c *cli.Context, w io.Writer) error {
 	}
 	if md.Thermal == nil || md.Duty == nil {
 		return fmt.Errorf("%s: a heat study needs a thermal section (ambient and the network) and a duty section (on time, period)", path)
-	}
-	for _, flag := range []string{"csv", "plot"} {
-		if f := c.String(flag); f != "" && sameFile(f, path) {
-			return fmt.Errorf("--%s %s: that is the scenario file; choose another output", flag, f)
-		}
 	}
 	res, err := coilkick.Heat(md, *md.Duty)
 	if err != nil {
@@ -65,18 +59,6 @@ func heatVerdict(r *coilkick.HeatResult) error {
 	return nil
 }
 
-// sameFile reports whether the output name is the input file itself.
-func sameFile(out, in string) bool {
-	if out == "-" {
-		return false
-	}
-	a, err := os.Stat(out)
-	if err != nil {
-		return false
-	}
-	b, err := os.Stat(in)
-	return err == nil && os.SameFile(a, b)
-}
 
 // durationText writes a duration of the heat study as engineers read
 // it: below 100 s in seconds (si: "1.25 s", "12.2 ms"), below 3 h in

@@ -226,15 +226,20 @@ var (
 // input files (the scenario, a trace): an output never overwrites an
 // input. args are the arguments after the command name, flags first.
 func checkOutputs(args []string) error {
-	var outs, ins []string
+	type file struct{ flag, path string }
+	var outs []file
+	var ins []string
+	kind := map[string]string{}
 	for i := 0; i < len(args); i++ {
 		a := args[i]
 		if a == "--" {
-			ins = append(ins, args[i+1:]...)
+			for _, p := range args[i+1:] {
+				ins, kind[p] = append(ins, p), "scenario file"
+			}
 			break
 		}
 		if !strings.HasPrefix(a, "-") || len(a) == 1 {
-			ins = append(ins, a)
+			ins, kind[a] = append(ins, a), "scenario file"
 			continue
 		}
 		name, value, hasValue := strings.Cut(strings.TrimLeft(a, "-"), "=")
@@ -244,14 +249,18 @@ func checkOutputs(args []string) error {
 		}
 		switch {
 		case outputFlags[name]:
-			outs = append(outs, value)
+			outs = append(outs, file{name, value})
 		case inputFlags[name]:
-			ins = append(ins, value)
+			ins, kind[value] = append(ins, value), name+" file"
 		}
 	}
 	for _, o := range outs {
-		if in := outfile.SameAsAny(o, ins...); in != "" {
-			return fmt.Errorf("output %s is the input file %s: choose another name (an output never overwrites an input)", o, in)
+		if in := outfile.SameAsAny(o.path, ins...); in != "" {
+			dash := "--"
+			if len(o.flag) == 1 {
+				dash = "-"
+			}
+			return fmt.Errorf("%s%s %s is the %s %s: choose another name (an output never overwrites an input)", dash, o.flag, o.path, kind[in], in)
 		}
 	}
 	return nil

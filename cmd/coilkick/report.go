@@ -67,9 +67,6 @@ func cmdReport(c *cli.Context, w io.Writer) error {
 	if err != nil {
 		return err
 	}
-	if out := c.String("output"); sameFile(out, path) {
-		return fmt.Errorf("--output %s: that is the scenario file; choose another output", out)
-	}
 	sc, err := coilkick.Load(path)
 	if err != nil {
 		return err

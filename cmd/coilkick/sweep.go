@@ -66,11 +66,6 @@ func cmdSweep(c *cli.Context, w io.Writer) error {
 		}
 		vs = append(vs, v)
 	}
-	for _, flag := range []string{"csv", "json", "plot"} {
-		if f := c.String(flag); f != "" && f != "-" && sweepClobbersInput(f, path) {
-			return fmt.Errorf("--%s %s is the scenario file; choose another output name", flag, f)
-		}
-	}
 	var xs []float64
 	if c.String("plot") != "" {
 		if _, _, ok := sweepFigure(c.String("figure"), coilkick.SweepFigures{}); !ok {
@@ -194,12 +189,6 @@ func writeSweepTable(w io.Writer, vs []coilkick.Vary, pts []coilkick.SweepPoint)
 	tw.Flush()
 }
 
-// sweepClobbersInput reports whether the output name is the scenario file.
-func sweepClobbersInput(out, in string) bool {
-	a, errA := os.Stat(out)
-	b, errB := os.Stat(in)
-	return errA == nil && errB == nil && os.SameFile(a, b)
-}
 
 // sweepAxis reads the first key's values as numbers for the plot's x axis.
 func sweepAxis(v coilkick.Vary) ([]float64, error) {
