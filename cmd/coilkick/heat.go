@@ -59,7 +59,6 @@ func heatVerdict(r *coilkick.HeatResult) error {
 	return nil
 }
 
-
 // durationText writes a duration of the heat study as engineers read
 // it: below 100 s in seconds (si: "1.25 s", "12.2 ms"), below 3 h in
 // minutes, from 3 h in hours (the units of the history plot's time axis);

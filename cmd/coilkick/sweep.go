@@ -189,7 +189,6 @@ func writeSweepTable(w io.Writer, vs []coilkick.Vary, pts []coilkick.SweepPoint)
 	tw.Flush()
 }
 
-
 // sweepAxis reads the first key's values as numbers for the plot's x axis.
 func sweepAxis(v coilkick.Vary) ([]float64, error) {
 	xs := make([]float64, len(v.Values))
