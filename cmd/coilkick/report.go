@@ -107,14 +107,20 @@ var reportGroups = []struct {
 		{"seat_impact_speed_m_per_s", "seat impact speed"}, {"bounces", "bounces"},
 		{"current_at_seating_A", "current at seating"}, {"peak_current_A", "peak current"},
 		{"dropped_out_while_energized", "dropped out while energized"},
+		{"drop_out.time_after_energize_s", "drop-out after energize"}, {"drop_out.current_A", "current at drop-out"},
+		{"drop_out.pull_at_seat_N", "pull at the seat at drop-out"}, {"drop_out.spring_and_load_at_seat_N", "spring + load at the seat"},
+		{"drop_out.in_hold", "drop-out in the hold"},
 	}},
 	{"Hold", []figureRow{
 		{"hold.window_start_s", "hold window start"}, {"hold.window_end_s", "hold window end"},
 		{"hold.mean_current_A", "hold current mean"}, {"hold.min_current_A", "hold current min"},
 		{"hold.max_current_A", "hold current max"}, {"hold.ripple_A", "hold current ripple"},
-		{"hold.chopping_frequency_Hz", "chopping frequency"}, {"hold.coil_power_W", "coil power in hold"},
+		{"hold.chopping_frequency_Hz", "chopping frequency"}, {"hold.end_current_A", "hold current at end"},
+		{"hold.steady_current_A", "steady current V/R"}, {"hold.settled", "settled (within 1 % of V/R)"},
+		{"hold.chopped", "chopped drive"}, {"hold.coil_power_W", "coil power in hold"},
 		{"hold.full_voltage_coil_power_W", "coil power at full voltage"},
 		{"hold.switch_conduction_power_W", "switch conduction power"}, {"hold.diode_power_W", "recirculation diode power"},
+		{"hold.clamp_power_W", "clamp power while chopping"}, {"hold.avalanche_power_W", "avalanche power while chopping"},
 		{"hold.switching_power_estimate_W", "switching power (estimate)"}, {"hold.supply_mean_current_A", "supply current mean"},
 		{"hold.supply_power_W", "supply power mean"}, {"hold.force_margin", "hold force margin"},
 	}},
@@ -123,17 +129,20 @@ var reportGroups = []struct {
 		{"energy_returned_J", "energy returned to supply"},
 	}},
 	{"Release", []figureRow{
-		{"current_at_turn_off_A", "current at turn-off"}, {"release_time_s", "release time"}, {"drop_time_s", "drop time"},
+		{"current_at_turn_off_A", "current at turn-off"}, {"seated_at_turn_off", "seated at turn-off"},
+		{"release_time_s", "release time"}, {"drop_time_s", "drop time"},
 		{"current_decay_time_s", fmt.Sprintf("current decay (to %g %%)", 100*coilkick.DecayFraction)},
 		{"clamp_conduction_time_s", "clamp conduction"},
 	}},
 	{"Switch and suppression", []figureRow{
 		{"peak_switch_voltage_V", "peak switch voltage"}, {"lowest_switch_voltage_V", "lowest switch voltage"},
-		{"peak_clamp_current_A", "peak clamp current"}, {"clamp_energy_J", "clamp energy"}, {"avalanche_energy_J", "avalanche energy"},
+		{"peak_clamp_current_A", "peak clamp current"}, {"clamp_energy_J", "clamp energy"},
+		{"chopping_clamp_energy_J", "clamp energy while chopping"}, {"avalanche_energy_J", "avalanche energy"},
+		{"chopping_avalanche_energy_J", "avalanche while chopping"},
 	}},
 	{"Energy balance (whole run)", []figureRow{
 		{"supply_energy_J", "supply"}, {"coil_loss_J", "coil resistance"}, {"source_loss_J", "source resistance"},
-		{"switch_loss_J", "switch"}, {"diode_loss_J", "recirculation / bridge diodes"}, {"mechanical_work_J", "mechanical work"},
+		{"switch_loss_J", "switch"}, {"suppression_loss_J", "suppression"}, {"diode_loss_J", "recirculation / bridge diodes"}, {"mechanical_work_J", "mechanical work"},
 		{"eddy_loss_J", "eddy currents"}, {"stored_energy_change_J", "stored change"}, {"energy_residual_J", "energy residual"},
 		{"switching_loss_estimate_J", "switching loss (estimate, outside the balance)"},
 	}},
@@ -157,6 +166,14 @@ var missingText = map[string]string{
 	"drop_time_s": "did not return", "current_decay_time_s": "did not decay", "clamp_conduction_time_s": "still conducting",
 }
 
+// absentWhenNull reports a metric whose null means "does not apply to
+// this run" (the ripple of a constant-voltage hold, say) rather than a
+// time that did not happen: its row is left out of the report.
+func absentWhenNull(key string) bool {
+	_, words := missingText[key[strings.LastIndex(key, ".")+1:]]
+	return !words
+}
+
 // figureText formats a metric of the JSON summary for the report, by its
 // key's unit suffix, with si() as in the text summary: "_s" seconds, "_A",
 // "_V", "_J", "_W", "_Hz"; "_m_per_s" as %.3g m/s; a plain number with 3
@@ -178,7 +195,7 @@ func figureText(key string, v any) string {
 		if strings.HasSuffix(key, "_m_per_s") {
 			return fmt.Sprintf("%.3g m/s", x)
 		}
-		for _, u := range []string{"s", "A", "V", "J", "W", "Hz"} {
+		for _, u := range []string{"s", "A", "V", "J", "W", "Hz", "N"} {
 			if strings.HasSuffix(key, "_"+u) {
 				return si(x, u)
 			}
@@ -202,8 +219,8 @@ func flattenMetrics(raw map[string]any) map[string]any {
 			}
 			continue
 		}
-		if k == "hold" && v == nil {
-			continue
+		if v == nil && (k == "hold" || k == "drop_out" || k == "release_not_applicable") {
+			continue // absent: not measured, none, applicable
 		}
 		out[k] = v
 	}
@@ -285,20 +302,30 @@ func buildReport(path string, md *coilkick.Model, sc *coilkick.Scenario, res *co
 	}
 
 	rep := &plot.Report{Title: displayName(path, md), Source: path, Summary: scenarioSummary(md, sc)}
-	used := map[string]bool{}
+	used := map[string]bool{"release_not_applicable": true} // shown as the release and drop values
 	row := func(key, name string) plot.Row {
 		used[key] = true
 		r := plot.Row{Key: key, Name: name, Value: figureText(key, metrics[key]), Caution: caution[key]}
+		na, _ := metrics["release_not_applicable"].(string)
+		if na != "" && (key == "release_time_s" || key == "drop_time_s") {
+			r.Value = na
+		}
 		if c, ok := checkOf[key]; ok {
 			r.Checked, r.Pass, r.Requirement = true, c.Pass, requirementText(c, minChecks[c.Name])
+			if c.NotApplicable != nil {
+				r.Checked, r.Requirement = false, requirementText(c, minChecks[c.Name])+" (not applicable)"
+			}
 		}
 		return r
 	}
 	for _, g := range reportGroups {
 		grp := plot.Group{Name: g.name}
 		for _, r := range g.rows {
-			if _, ok := metrics[r.key]; ok {
+			v, ok := metrics[r.key]
+			if ok && (v != nil || !absentWhenNull(r.key)) {
 				grp.Rows = append(grp.Rows, row(r.key, r.name))
+			} else if ok {
+				used[r.key] = true
 			}
 		}
 		if len(grp.Rows) > 0 {
@@ -331,7 +358,7 @@ func buildReport(path string, md *coilkick.Model, sc *coilkick.Scenario, res *co
 	// Verdict.
 	var failedNames []string
 	for _, c := range doc.Checks {
-		if !c.Pass {
+		if !c.Pass && c.NotApplicable == nil {
 			failedNames = append(failedNames, c.Name)
 		}
 	}

@@ -94,6 +94,14 @@ func TestDropOutReported(t *testing.T) {
 			t.Errorf("run output has %q", bad)
 		}
 	}
+	html := filepath.Join(dir, "report.html")
+	if _, errs, code := runArgs("report", path, "-o", html); code != exitFailing {
+		t.Errorf("report: exit %d, %s", code, errs)
+	}
+	if b, err := os.ReadFile(html); err != nil || !strings.Contains(string(b), "not applicable: dropped out during the hold") ||
+		strings.Contains(string(b), "did not release") {
+		t.Errorf("report does not show release as not applicable (%v)", err)
+	}
 	out, _, code = runArgs("solve", path)
 	if code != exitFailing || !strings.Contains(out, "not applicable: the plunger dropped out during the hold") ||
 		strings.Contains(out, "even the highest clamp") {
