@@ -19,17 +19,35 @@ type MeasuredTrace struct {
 	Time    []float64 // s, strictly increasing
 	Current []float64 // A
 	Voltage []float64 // V, nil when not recorded
+	// Repeated counts the rows dropped because their time equals the
+	// previous row's (coilkick's own run CSV has one row on each side of
+	// every event); the first row of each instant is kept.
+	Repeated int
 }
 
-var columnRE = regexp.MustCompile(`^\s*([A-Za-z ]+?)\s*(?:[\(\[]\s*([^\)\]]*)\s*[\)\]]|_([A-Za-z%µ]+))?\s*$`)
+// columnRE splits a header cell into a name and a unit: "time (ms)",
+// "current [mA]", or snake case as coilkick's run CSV writes it:
+// "time_s", "coil_voltage_V", "velocity_m_per_s".
+var columnRE = regexp.MustCompile(`^\s*([A-Za-z][A-Za-z _]*?)\s*(?:[\(\[]\s*([^\)\]]*)\s*[\)\]]|_([A-Za-z%µ]+(?:_per_[A-Za-z]+)?))?\s*$`)
+
+// ignoredColumns are the other quantities of coilkick's run CSV; a trace
+// may carry them and they are skipped.
+var ignoredColumns = map[string]bool{"switch voltage": true, "gap": true, "velocity": true,
+	"magnetic force": true, "passive force": true, "winding temperature": true}
 
 // ReadTraceCSV reads a trace from CSV. Lines starting with '#' are
 // comments. The first row names the columns with their units: "time (ms)",
 // "current [mA]" or "time_s", "current_A", and optionally "voltage (V)"
-// (the coil voltage); names may be abbreviated t, i, v. Errors name the
-// file and line: a missing column, a unit of the wrong kind, a value that
-// is not a number, time that does not increase, and gaps in the time base
-// (a step above 10 times the median step).
+// or "coil_voltage_V" (the coil voltage); names may be abbreviated t, i,
+// v. The other columns of coilkick's own run CSV (switch voltage, gap,
+// velocity, forces, winding temperature) are ignored, so that file reads
+// as a trace. A row at the same time as the previous one is dropped (the
+// first is kept: the state just before an event, as Simulate samples an
+// instant that falls on an event) and counted in Repeated. Errors name the
+// file and line: a missing or unknown column, a unit of the wrong kind, a
+// value that is not a number, time that goes back, and, in a uniformly
+// sampled record, gaps in the time base (a step above 10 times the median
+// step).
 func ReadTraceCSV(r io.Reader, name string) (*MeasuredTrace, error) {
 	cr := csv.NewReader(r)
 	cr.Comment = '#'
@@ -61,7 +79,10 @@ func ReadTraceCSV(r io.Reader, name string) (*MeasuredTrace, error) {
 		if m == nil {
 			return nil, fmt.Errorf("%s:%d: column %d %q: expected a name and a unit, e.g. \"time (ms)\"", name, lines[0], k+1, h)
 		}
-		n := strings.ToLower(strings.TrimSpace(m[1]))
+		n := strings.ToLower(strings.Join(strings.Fields(strings.ReplaceAll(m[1], "_", " ")), " "))
+		if ignoredColumns[n] {
+			continue
+		}
 		switch n {
 		case "t":
 			n = "time"
@@ -72,7 +93,7 @@ func ReadTraceCSV(r io.Reader, name string) (*MeasuredTrace, error) {
 		}
 		dim, ok := dims[n]
 		if !ok {
-			return nil, fmt.Errorf("%s:%d: column %d %q: unknown quantity; expected time, current or voltage", name, lines[0], k+1, h)
+			return nil, fmt.Errorf("%s:%d: column %d %q: unknown quantity; expected time, current or (coil) voltage, or a column of coilkick's run CSV", name, lines[0], k+1, h)
 		}
 		unit := m[2] + m[3]
 		if unit == "" {
@@ -94,6 +115,7 @@ func ReadTraceCSV(r io.Reader, name string) (*MeasuredTrace, error) {
 	}
 	tr := &MeasuredTrace{Source: name}
 	_, hasV := col["voltage"]
+	var rowLine []int // the file line of each sample
 	for li, row := range rows[1:] {
 		line := lines[li+1]
 		if len(row) != len(header) {
@@ -115,16 +137,23 @@ func ReadTraceCSV(r io.Reader, name string) (*MeasuredTrace, error) {
 		if err != nil {
 			return nil, err
 		}
+		v := 0.0
+		if hasV {
+			if v, err = get("voltage"); err != nil {
+				return nil, err
+			}
+		}
+		if k := len(tr.Time); k > 0 && t == tr.Time[k-1] {
+			tr.Repeated++
+			continue
+		}
 		if k := len(tr.Time); k > 0 && !(t > tr.Time[k-1]) {
 			return nil, fmt.Errorf("%s:%d: time %g s does not increase (previous %g s)", name, line, t, tr.Time[k-1])
 		}
 		tr.Time = append(tr.Time, t)
+		rowLine = append(rowLine, line)
 		tr.Current = append(tr.Current, i)
 		if hasV {
-			v, err := get("voltage")
-			if err != nil {
-				return nil, err
-			}
 			tr.Voltage = append(tr.Voltage, v)
 		}
 	}
@@ -135,12 +164,13 @@ func ReadTraceCSV(r io.Reader, name string) (*MeasuredTrace, error) {
 	for k := range steps {
 		steps[k] = tr.Time[k+1] - tr.Time[k]
 	}
-	sorted := append([]float64(nil), steps...)
-	sort.Float64s(sorted)
-	med := sorted[len(sorted)/2]
+	med := tr.MedianStep()
+	if !tr.Uniform() {
+		return tr, nil // a variable-step record (a simulation's): no gap check
+	}
 	for k, s := range steps {
 		if s > 10*med {
-			return nil, fmt.Errorf("%s:%d: a gap of %.3g s in the time base (median step %.3g s)", name, lines[k+2], s, med)
+			return nil, fmt.Errorf("%s:%d: a gap of %.3g s in the time base (median step %.3g s)", name, rowLine[k+1], s, med)
 		}
 	}
 	return tr, nil
@@ -179,6 +209,23 @@ func (tr *MeasuredTrace) Resample(dt float64, window int) (t, i []float64) {
 	return t, i
 }
 
+// Uniform says the record is sampled at a constant step, as a scope
+// records: at least half the steps within 1 % of the median step.
+// coilkick's run CSV has the integrator's variable step instead.
+func (tr *MeasuredTrace) Uniform() bool {
+	med, near := tr.MedianStep(), 0
+	for k := 1; k < len(tr.Time); k++ {
+		if math.Abs(tr.Time[k]-tr.Time[k-1]-med) <= 0.01*med {
+			near++
+		}
+	}
+	return 2*near >= len(tr.Time)-1
+}
+
+// detectionSteps is the number of uniform steps a variable-step record is
+// resampled to before its events are found.
+const detectionSteps = 10000
+
 // MedianStep returns the median sample interval (s).
 func (tr *MeasuredTrace) MedianStep() float64 {
 	steps := make([]float64, len(tr.Time)-1)
@@ -192,6 +239,7 @@ func (tr *MeasuredTrace) MedianStep() float64 {
 // TraceEvents are the instants found in a measured trace, each with its
 // uncertainty (s).
 type TraceEvents struct {
+	Step          float64 // s, the uniform sample step the events were found on
 	Offset, Noise float64 // A: baseline before energizing, and the noise's standard deviation there
 	Energize      float64 // s, the current leaves the baseline
 	EnergizeErr   float64
@@ -211,12 +259,23 @@ var ErrNoCurrent = errors.New("coilkick: the trace's current never rises above i
 // minimum: the seat instant) and the end of the decay in a trace. The
 // baseline and noise come from the first 2 % of the samples (which must
 // precede energizing); the signal is smoothed over 0.1 % of the record.
+// A variable-step record is first resampled to a uniform step and not
+// smoothed.
 func DetectEvents(tr *MeasuredTrace) (*TraceEvents, error) {
-	dt := tr.MedianStep()
 	n0 := len(tr.Time)
 	win := max(1, n0/1000) | 1
+	if !tr.Uniform() {
+		// A variable-step record (a simulation's, without noise): find the
+		// events on a uniform resampling (linear interpolation) of
+		// detectionSteps steps, unsmoothed.
+		dt := (tr.Time[len(tr.Time)-1] - tr.Time[0]) / detectionSteps
+		t, i := tr.Resample(dt, 1)
+		tr = &MeasuredTrace{Source: tr.Source, Time: t, Current: i}
+		win = 1
+	}
+	dt := tr.MedianStep()
 	t, i := tr.Resample(dt, win)
-	ev := &TraceEvents{}
+	ev := &TraceEvents{Step: dt}
 	// Baseline and noise from the raw samples before energizing: start
 	// with the first 10, then extend the window (up to 2 % of the record)
 	// while the samples stay within 5 σ of it.
