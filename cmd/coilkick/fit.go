@@ -4,6 +4,7 @@ import (
 	"bufio"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"strings"
 
@@ -23,7 +24,7 @@ func fitCommand(stdout io.Writer) *cli.Command {
 		Usage:     "calibrate scenario parameters to a measured current trace",
 		ArgsUsage: "SCENARIO.yaml --trace scope.csv [-o fitted.yaml]",
 		Flags: []cli.Flag{
-			&cli.StringFlag{Name: "trace", Usage: "measured trace `FILE` (CSV: \"time (ms), current (mA)\"[, \"voltage (V)\"])", Required: true},
+			&cli.StringFlag{Name: "trace", Usage: "measured trace `FILE` (CSV: \"time (ms), current (mA)\"[, \"voltage (V)\"], or the CSV of coilkick run --csv)", Required: true},
 			&cli.StringFlag{Name: "params", Value: "resistance,closed inductance,open inductance",
 				Usage: "comma-separated parameters to fit: " + strings.Join(names, ", ")},
 			&cli.StringFlag{Name: "output", Aliases: []string{"o"}, Usage: "write the fitted scenario to `FILE`"},
@@ -68,9 +69,12 @@ func cmdFit(c *cli.Context, w io.Writer) error {
 	b := bufio.NewWriter(w)
 	defer b.Flush()
 	ev := fr.Events
-	fmt.Fprintf(b, "coilkick fit: %s\nscenario: %s\ntrace: %s (%d samples, offset %s, noise %s rms)\n\n",
+	fmt.Fprintf(b, "coilkick fit: %s\nscenario: %s\ntrace: %s (%d samples, offset %s, noise %s rms)\n",
 		md.Name, path, tr.Source, len(tr.Time), si(ev.Offset, "A"), si(ev.Noise, "A"))
-	fmt.Fprintln(b, "Events in the trace")
+	if tr.Repeated > 0 {
+		fmt.Fprintf(b, "  %d rows at a repeated time (one on each side of an event) dropped; the first of each kept\n", tr.Repeated)
+	}
+	fmt.Fprintln(b, "\nEvents in the trace")
 	fmt.Fprintf(b, "  energize                 %s ± %s\n", si(ev.Energize, "s"), si(ev.EnergizeErr, "s"))
 	if ev.HasDip {
 		fmt.Fprintf(b, "  current peak before dip  %s at %s\n", si(ev.PeakI, "A"), si(ev.Peak, "s"))
@@ -81,10 +85,20 @@ func cmdFit(c *cli.Context, w io.Writer) error {
 	if ev.DecayEnd > 0 {
 		fmt.Fprintf(b, "  decay ends               %s ± %s\n", si(ev.DecayEnd, "s"), si(ev.DecayEndErr, "s"))
 	}
-	fmt.Fprintln(b, "\nFitted parameters (1σ from the Gauss–Newton covariance; sensitivity: RMS error rise for +1 %)")
+	fmt.Fprintln(b, "\nFitted parameters (± 1σ; sensitivity: RMS error rise for +1 %)")
 	for _, v := range fr.Values {
-		fmt.Fprintf(b, "  %-18s %10.5g -> %10.5g %-6s ± %.2g   sensitivity %.3g\n", v.Param, v.Start/v.DisplayScale, v.Value/v.DisplayScale,
-			v.Unit, v.StdErr/v.DisplayScale, v.Sensitivity)
+		fmt.Fprintf(b, "  %-18s %10.5g -> %10.5g %-6s ± %s   sensitivity %.3g\n", v.Param, v.Start/v.DisplayScale, v.Value/v.DisplayScale,
+			v.Unit, stdErrText(v.StdErr/v.DisplayScale), v.Sensitivity)
+	}
+	fmt.Fprintf(b, "  %-18s %s (fitted with the parameters)\n", "baseline offset", siPM(fr.Offset, fr.OffsetErr, "A"))
+	fmt.Fprintf(b, "  %-18s %s (trace time + this = model time)\n", "time alignment", siPM(fr.Shift, fr.ShiftErr, "s"))
+	fmt.Fprintf(b, "Uncertainty: %s.\n", coilkick.FitUncertaintyMethod)
+	fmt.Fprintf(b, "  residual σ %s over %d samples, lag-1 autocorrelation %.3f (variance × %.3g)\n", si(fr.ResidualSD, "A"), fr.Points, fr.Autocorrelation, fr.Inflation)
+	if fr.FloorUsed {
+		fmt.Fprintf(b, "  the residual is below the model's accuracy: σ floored at %s (%g of the peak current)\n", si(fr.NoiseFloor, "A"), coilkick.FitNoiseFloor)
+	}
+	for _, w := range fr.Warnings {
+		fmt.Fprintf(b, "  WARNING: %s\n", w)
 	}
 	fmt.Fprintf(b, "\nRMS current error: %s before, %s after (trace noise %s); %d simulations\n", si(fr.RMSStart, "A"), si(fr.RMS, "A"), si(fr.Noise, "A"), fr.Evaluations)
 	if fr.SeatModel.Happened && ev.HasDip {
@@ -95,13 +109,13 @@ func cmdFit(c *cli.Context, w io.Writer) error {
 		if err != nil {
 			return err
 		}
-		if err := os.WriteFile(out, data, 0o644); err != nil {
+		if err := writeFile(out, b, func(o io.Writer) error { _, err := o.Write(data); return err }); err != nil {
 			return err
 		}
 		fmt.Fprintf(b, "Fitted scenario written to %s\n", out)
 	}
 	if f := c.String("csv"); f != "" {
-		if err := writeFile(f, w, func(out io.Writer) error {
+		if err := writeFile(f, b, func(out io.Writer) error {
 			bw := bufio.NewWriter(out)
 			fmt.Fprintln(bw, "time_s,measured_A,simulated_A")
 			for k := range fr.Time {
@@ -120,6 +134,27 @@ func cmdFit(c *cli.Context, w io.Writer) error {
 	return nil
 }
 
+// stdErrText prints a standard error, or says that the trace does not
+// determine the parameter.
+func stdErrText(v float64) string {
+	if math.IsInf(v, 0) || math.IsNaN(v) {
+		return "(not determined by the trace)"
+	}
+	return fmt.Sprintf("%.2g", v)
+}
+
+// siPM prints a value ± its standard error; a value below a hundredth of
+// its error prints as 0 (round-off, not information).
+func siPM(v, e float64, unit string) string {
+	if math.IsInf(e, 0) || math.IsNaN(e) {
+		return si(v, unit) + " ± (not determined by the trace)"
+	}
+	if math.Abs(v) < e/100 {
+		v = 0
+	}
+	return si(v, unit) + " ± " + si(e, unit)
+}
+
 // plotFit writes the overlay of measured and fitted current (mA versus ms).
 func plotFit(file string, md *coilkick.Model, fr *coilkick.FitResult) error {
 	ms := make([]float64, len(fr.Time))
@@ -132,5 +167,5 @@ func plotFit(file string, md *coilkick.Model, fr *coilkick.FitResult) error {
 	}
 	fig := plot.Lines("Measured and fitted coil current — "+md.Name, "time (ms, model time base)", "coil current (mA)", ms,
 		[]plot.Series{{Label: "measured (offset removed)", Ys: meas}, {Label: "fitted model", Ys: sim}})
-	return fig.Save(file)
+	return fig.Save(file) // atomic (outfile.Write)
 }
