@@ -166,6 +166,9 @@ func (md *Model) Assess(res *Result) Assessment {
 	if m.EnergyReturned > 0 {
 		note("energy returned to supply", "caution", "the reverse drive returns %s to the supply at each turn-off (rail peak %.1f V): a supply that cannot sink current, or a small bulk capacitor, will rise; check what else hangs on that rail", formatEnergy(m.EnergyReturned), m.MaxRailVoltage)
 	}
+	if md.Drive.HasSwitchCap() && md.CoreLossResistance == 0 && md.EddyResistance == 0 && md.Drive.Suppressor.Kind != circuit.Snubber {
+		note("lowest switch voltage", "info", "the switch and winding capacitance ring with the coil once the suppression stops conducting, and nothing but the coil resistance damps the ring: a real coil's core loss ends it within a few cycles, the model's lasts longer (give coil.core loss resistance, from the ring's decay on a scope, to damp it)")
+	}
 	if md.Drive.Suppressor.Kind == circuit.None {
 		note("peak switch voltage", "caution", "no suppression part is fitted: every turn-off dumps the coil's stored energy into the switch; a clamp or freewheel path is the usual practice")
 	}

@@ -595,7 +595,8 @@ var (
 		DrivePeakHold:  {"frequency", "peak current", "peak time", "hold current", "regulation", "band", "decay", "recirculation drop", "recirculation resistance"},
 		DriveBoostHold: {"boost voltage", "boost time"},
 	}
-	coilKeys      = []string{"resistance", "reference temperature", "temperature", "temperature coefficient", "turns", "build"}
+	coilKeys = []string{"resistance", "reference temperature", "temperature", "temperature coefficient", "turns", "build",
+		"winding capacitance", "core loss resistance"}
 	coilBuildKeys = []string{"inner diameter", "outer diameter", "length", "wire gauge", "wire diameter", "overall diameter", "insulation grade", "turns", "fill factor"}
 	magnetKeys    = []string{MagnetGapLaw, MagnetTable, MagnetGeom, "eddy resistance"}
 	geometryKeys  = []string{"plunger diameter", "plunger length", "pole diameter", "pole length", "shell outer diameter", "shell wall",
@@ -795,6 +796,8 @@ func (l *scenarioLoader) loadCoil(coil *yamlSection) {
 		l.text["coil.temperature"] = "default reference temperature"
 	}
 	l.get(coil, "temperature coefficient", PerKelvin, ruleAny, &c.TempCoeff, false, defaultTempCoeff, "0.00393 /K")
+	l.get(coil, "winding capacitance", Capacitance, rulePositive, &c.WindingCapacitance, false, 0, "none")
+	l.get(coil, "core loss resistance", Resistance, rulePositive, &c.CoreLossResistance, false, 0, "none")
 	if coil.has("turns") {
 		l.get(coil, "turns", Dimensionless, rulePositive, &c.Turns, true, 0, "")
 	}

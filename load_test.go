@@ -80,6 +80,8 @@ func TestLoadFull(t *testing.T) {
 		{"coil.temperature", s.Coil.Temperature, 313.15},
 		{"coil.temperature coefficient", s.Coil.TempCoeff, 0.004},
 		{"coil.turns", s.Coil.Turns, 1800},
+		{"coil.winding capacitance (p = 1e-12)", s.Coil.WindingCapacitance, 150e-12},
+		{"coil.core loss resistance (k = 1e3)", s.Coil.CoreLossResistance, 22e3},
 		{"magnet.gap law.pole area (mm² = 1e-6 m²)", s.Magnet.PoleArea, 50e-6},
 		{"plunger.damping", s.Plunger.Damping, 0.5},
 		{"plunger.restitution", s.Plunger.Restitution, 0.3},

@@ -114,7 +114,7 @@ type Metrics struct {
 	Hold HoldMetrics
 
 	// Energy balance, J: SupplyEnergy = CoilLoss + SourceLoss + SwitchLoss
-	// + SuppressionLoss + DiodeLoss + MechanicalWork + EddyLoss
+	// + SuppressionLoss + DiodeLoss + MechanicalWork + EddyLoss + CoreLoss
 	// + StoredChange + EnergyResidual.
 	SupplyEnergy    float64
 	CoilLoss        float64 // in the coil resistance
@@ -123,6 +123,7 @@ type Metrics struct {
 	SuppressionLoss float64 // in the suppression part over the whole run: ClampEnergy + ChopClampEnergy
 	MechanicalWork  float64 // done by the magnetic force on the plunger
 	EddyLoss        float64 // in the equivalent eddy-current turn
+	CoreLoss        float64 // in the coil's core-loss resistance
 	StoredChange    float64 // change of magnetic and capacitor energy over the run
 	EnergyResidual  float64 // what the balance leaves over (numerical error and omitted fast modes)
 }

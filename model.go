@@ -26,9 +26,13 @@ type Model struct {
 	// EddyResistance (ohm) is the equivalent shorted turn for eddy currents
 	// in the steel, referred to the coil's turns; 0 for none.
 	EddyResistance float64
-	Plunger        mech.Plunger
-	Drive          circuit.Drive
-	Control        circuit.Control // how the driver drives the coil while energized
+	// CoreLossResistance (ohm) across the coil's terminals stands for the
+	// core loss; 0 for none. (The winding capacitance is in
+	// Drive.CoilCapacitance: the drive sees it at the coil's terminals.)
+	CoreLossResistance float64
+	Plunger            mech.Plunger
+	Drive              circuit.Drive
+	Control            circuit.Control // how the driver drives the coil while energized
 	// Thermal is the coil's thermal network; nil without a thermal section
 	// (the winding then stays at Temperature).
 	Thermal *magnet.Thermal
@@ -67,7 +71,7 @@ func (m *Model) CoilResistance() float64 { return m.Coil.ResistanceAt(m.Temperat
 // integrated with the L-stable Rosenbrock pair.
 func (m *Model) Stiff() bool {
 	return m.Drive.Suppressor.Kind == circuit.Snubber ||
-		(m.EddyResistance > 0 && m.Drive.Switch.OutputCapacitance > 0)
+		(m.EddyResistance > 0 && m.Drive.NodeCapacitance() > 0)
 }
 
 // scales returns the typical magnitude of each state, for the absolute
@@ -95,6 +99,9 @@ func (m *Model) scales() []float64 {
 	for k := qSupply; k < nState; k++ {
 		sc[k] = e
 	}
+	if m.CoreLossResistance == 0 {
+		sc[qCore] = -1 // unused: out of the error norm
+	}
 	return sc
 }
 
@@ -103,7 +110,7 @@ func (m *Model) scales() []float64 {
 // field concerned.
 func Build(s *Scenario) (*Model, error) {
 	md := &Model{Name: s.Name, Source: s.Source, Timing: s.Timing, Limits: s.Limits, Solver: s.Solver,
-		EddyResistance: s.Magnet.EddyResistance}
+		EddyResistance: s.Magnet.EddyResistance, CoreLossResistance: s.Coil.CoreLossResistance}
 	md.Coil = magnet.Coil{Resistance: s.Coil.Resistance, RefTemperature: s.Coil.RefTemperature,
 		TempCoeff: s.Coil.TempCoeff, Turns: s.Coil.Turns}
 	if cb := s.Coil.Build; cb != nil {
@@ -204,7 +211,8 @@ func Build(s *Scenario) (*Model, error) {
 		Supply: circuit.Supply{Voltage: s.Supply.Voltage, SourceResistance: s.Supply.SourceResistance},
 		Switch: circuit.Switch{OnResistance: s.Switch.OnResistance, OutputCapacitance: s.Switch.OutputCapacitance,
 			BreakdownVoltage: s.Switch.BreakdownVoltage, BodyDiodeDrop: s.Switch.BodyDiodeDrop},
-		Suppressor: sup,
+		Suppressor:      sup,
+		CoilCapacitance: s.Coil.WindingCapacitance,
 	}
 	if err := md.Drive.Validate(); err != nil {
 		return nil, s.Errorf("suppression", "%v", err)

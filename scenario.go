@@ -76,6 +76,12 @@ type CoilSpec struct {
 	Temperature    float64 // K, winding temperature during the run
 	TempCoeff      float64 // 1/K at RefTemperature
 	Turns          float64 // 0 when not given
+	// WindingCapacitance (F): the winding's capacitance across its
+	// terminals; 0 when not given.
+	WindingCapacitance float64
+	// CoreLossResistance (ohm): a resistance across the terminals standing
+	// for the core (iron) loss; 0 when not given.
+	CoreLossResistance float64
 	// Build is the winding from bobbin and wire; nil when the coil is
 	// given by its measured resistance.
 	Build *CoilBuildSpec

@@ -174,7 +174,7 @@ func (r *run) event(t float64, y []float64, k int) (bool, error) {
 		}
 		if t == r.tRevEnd && r.cmode == circuit.BridgeReverse {
 			i := r.current(y)
-			r.cmode = r.drive.TurnOffMode(i)
+			r.cmode = r.turnOffMode(i)
 			r.note(t, "reverse pulse ends at %.4g A", i)
 		}
 		if t == r.tEnd {
@@ -235,7 +235,7 @@ func (r *run) applyCommand(t float64, y []float64) {
 func (r *run) chopOffMode(i float64) circuit.Mode {
 	switch {
 	case r.ctl.FastDecay:
-		return r.drive.TurnOffMode(i)
+		return r.turnOffMode(i)
 	case i > 0:
 		return circuit.Recirc
 	}
@@ -307,7 +307,7 @@ func (r *run) deenergize(t float64, y []float64) {
 		r.cmode = circuit.BridgeReverse
 		r.tRevEnd = t + r.ctl.ReversePulse
 	} else {
-		r.cmode = r.drive.TurnOffMode(i)
+		r.cmode = r.turnOffMode(i)
 	}
 	y[sSwitchC] = vsw
 	if wasOn {
@@ -335,7 +335,7 @@ func (r *run) circuitChange(t float64, y []float64, to circuit.Mode) {
 	if to == circuit.Off {
 		r.solve(y)
 		y[sSwitchC] = r.pt.SwitchVoltage // capacitor leaves the pinned voltage
-		if r.drive.Suppressor.Kind != circuit.Snubber && r.eddy == 0 {
+		if r.drive.Suppressor.Kind != circuit.Snubber && r.eddy == 0 && r.rp == 0 {
 			// The coil current itself reached zero (located to within
 			// ~1e-13 s): make it exactly zero, so that the pinned voltage
 			// the capacitor keeps is consistent. No permanent magnet:
@@ -526,6 +526,7 @@ func Simulate(md *Model, opt *Options) (*Result, error) {
 		tWinding = opt.WindingTemperature
 	}
 	sys := &system{mag: md.Magnet, plunger: md.Plunger, drive: drive, r: md.Coil.ResistanceAt(tWinding), eddy: md.EddyResistance,
+		rp: md.CoreLossResistance,
 		v0: drive.Supply.Voltage, rs: drive.Supply.SourceResistance, bulkC: md.BulkCapacitance,
 		coil: md.Coil, ambient: md.Ambient}
 	if md.Thermal != nil && opt.FixedTemperature == 0 {
@@ -616,13 +617,14 @@ func (r *run) finish(y []float64) {
 	m.SuppressionLoss = y[qClamp]
 	m.MechanicalWork = y[qMech]
 	m.EddyLoss = y[qEddy]
+	m.CoreLoss = y[qCore]
 	m.DiodeLoss = y[qDiode]
 	m.EnergyReturned = y[qReturned]
 	m.SwitchingLossEstimate = r.swEst
 	m.FinalWindingTemperature = y[sWinding]
 	m.FinalHousingTemperature = y[sHousing]
 	m.StoredChange = r.fieldEnergy(y) - r.wf0 + r.storedCapEnergy(y) - r.capE0
-	m.EnergyResidual = m.SupplyEnergy - (m.CoilLoss + m.SourceLoss + m.SwitchLoss + m.SuppressionLoss + m.DiodeLoss + m.MechanicalWork + m.EddyLoss + m.StoredChange)
+	m.EnergyResidual = m.SupplyEnergy - (m.CoilLoss + m.SourceLoss + m.SwitchLoss + m.SuppressionLoss + m.DiodeLoss + m.MechanicalWork + m.EddyLoss + m.CoreLoss + m.StoredChange)
 }
 
 func firstPositive(v ...float64) float64 {

@@ -28,6 +28,7 @@ const (
 	qClamp           // J in the suppression part
 	qMech            // J of mechanical work done by the magnetic force
 	qEddy            // J in the equivalent eddy-current turn
+	qCore            // J in the coil's core-loss (parallel) resistance
 	qDiode           // J in the recirculation path and bridge diodes
 	qReturned        // J returned to the supply rail by a bridge
 	qCharge          // C: ∫ coil current dt
@@ -63,6 +64,9 @@ type system struct {
 	// stands for eddy currents in the steel, referred to the coil's turns;
 	// 0 for none.
 	eddy float64
+	// rp (ohm) is the coil's core-loss resistance, across its terminals; 0
+	// for none.
+	rp float64
 
 	// thermal, when not nil, makes the winding temperature a state: the
 	// coil resistance follows it and the coil's losses heat it.
@@ -78,6 +82,9 @@ type system struct {
 	mmode mechMode
 	// lastCurrent is the coil current of the last guardsAt (A).
 	lastCurrent float64
+	// termCurrent is the coil's terminal current of the last solve (A):
+	// the winding current plus the core-loss resistance's.
+	termCurrent float64
 	pt          circuit.Point // scratch
 }
 
@@ -113,29 +120,44 @@ func (s *system) current(y []float64) float64 {
 	return i
 }
 
-// solve evaluates the circuit at y into s.pt and returns the coil current
-// i and the magnetizing current im, the magnetic model's current for the
-// flux linkage (the ampere-turns over N).
+// solve evaluates the circuit at y into s.pt and returns the winding
+// current i (through the coil resistance) and the magnetizing current im,
+// the magnetic model's current for the flux linkage (the ampere-turns over
+// N). The circuit is solved at the coil's terminal current, i plus the
+// current in the core-loss resistance.
 //
 // Eddy currents are an equivalent shorted turn, perfectly coupled to the
 // coil, of resistance Re referred to the coil's turns (a transformer with a
 // resistive secondary, first-order circuit theory): the ampere-turns split
 // as im = i + ie, and the common flux obeys dλ/dt = v − R·i = −Re·ie. In
-// every circuit mode the coil voltage is affine in the coil current,
-// v = v0 − Ra·i, so i = (v0 + Re·im)/(Re + Ra + R) exactly. Without eddy
-// currents i = im.
+// every circuit mode the coil voltage is affine in the terminal current,
+// v = v0 − Ra·it; with the core-loss resistance Rp across the terminals
+// (it = i + v/Rp) the winding sees the Thevenin equivalent
+// v = (v0 − Ra·i)·Rp/(Rp + Ra), and an open circuit leaves v = −Rp·i.
+// Then i = (v0' + Re·im)/(Re + Ra' + R) exactly. Without eddy currents
+// i = im.
 func (s *system) solve(y []float64) (i, im float64) {
 	im = s.mag.Current(y[sFlux], y[sGap])
 	vC, vS := y[sSwitchC], y[sSnubberC]
 	v0, rs := s.rail(y)
-	switch {
-	case s.cmode == circuit.Off && s.drive.Open():
-		i = 0
-	case s.eddy == 0:
+	open := s.cmode == circuit.Off && s.drive.Open()
+	if s.eddy == 0 && s.rp == 0 {
 		i = im
-	default:
+		if open {
+			i = 0
+		}
+		s.termCurrent = i
+		s.drive.SolveRail(s.cmode, v0, rs, i, vC, vS, &s.pt)
+		return i, im
+	}
+	// The circuit's Thevenin equivalent at the coil terminals.
+	var vc0, ra float64
+	if open {
 		s.drive.SolveRail(s.cmode, v0, rs, 0, vC, vS, &s.pt)
-		vc0 := s.pt.CoilVoltage
+		vc0, ra = 0, math.Inf(1)
+	} else {
+		s.drive.SolveRail(s.cmode, v0, rs, 0, vC, vS, &s.pt)
+		vc0 = s.pt.CoilVoltage
 		i1 := math.Abs(im)
 		if i1 < 1e-6 {
 			i1 = 1e-6
@@ -144,11 +166,60 @@ func (s *system) solve(y []float64) (i, im float64) {
 			i1 = -i1
 		}
 		s.drive.SolveRail(s.cmode, v0, rs, i1, vC, vS, &s.pt)
-		ra := (vc0 - s.pt.CoilVoltage) / i1
-		i = (vc0 + s.eddy*im) / (s.eddy + ra + s.resistance(y))
+		ra = (vc0 - s.pt.CoilVoltage) / i1
 	}
-	s.drive.SolveRail(s.cmode, v0, rs, i, vC, vS, &s.pt)
+	if s.rp > 0 {
+		if open {
+			vc0, ra = 0, s.rp
+		} else {
+			vc0, ra = vc0*s.rp/(s.rp+ra), ra*s.rp/(s.rp+ra)
+		}
+	}
+	switch {
+	case s.eddy > 0:
+		i = (vc0 + s.eddy*im) / (s.eddy + ra + s.resistance(y))
+	case math.IsInf(ra, 1):
+		i = 0 // open, no core-loss path (only with eddy currents here)
+	default:
+		i = im
+	}
+	it := i
+	if s.rp > 0 {
+		it = i + (vc0-ra*i)/s.rp
+		if open {
+			it = 0
+		}
+	}
+	s.termCurrent = it
+	s.drive.SolveRail(s.cmode, v0, rs, it, vC, vS, &s.pt)
+	if open && s.rp > 0 {
+		// Nothing at the node: the winding current circulates through the
+		// core-loss resistance, and the node follows the coil voltage.
+		s.pt.CoilVoltage = -s.rp * i
+		s.pt.SwitchVoltage = v0 - s.pt.CoilVoltage
+		s.pt.CurrentPinned = false
+	}
 	return i, im
+}
+
+// turnOffMode returns the mode the drive takes when the switch opens with
+// terminal current i. With a core-loss resistance and nothing at the node
+// the current first flows through that resistance (mode Off); the settle
+// loop then moves to a clamp or avalanche if the coil voltage reaches it.
+func (s *system) turnOffMode(i float64) circuit.Mode {
+	if s.rp > 0 && s.drive.Open() && s.drive.Suppressor.Kind != circuit.Bridge {
+		return circuit.Off
+	}
+	return s.drive.TurnOffMode(i)
+}
+
+// coreCurrent returns the current in the core-loss resistance at the
+// operating point in s.pt (A).
+func (s *system) coreCurrent() float64 {
+	if s.rp == 0 {
+		return 0
+	}
+	return s.pt.CoilVoltage / s.rp
 }
 
 func (s *system) deriv(_ float64, y, dy []float64) {
@@ -165,6 +236,10 @@ func (s *system) deriv(_ float64, y, dy []float64) {
 		dy[sFlux] = 0
 	}
 	dy[qEddy] = s.eddy * (im - i) * (im - i)
+	dy[qCore] = 0
+	if s.rp > 0 {
+		dy[qCore] = pt.CoilVoltage * pt.CoilVoltage / s.rp
+	}
 	if s.mmode == mechFree {
 		dy[sGap] = v
 		dy[sVel] = s.plunger.Acceleration(x, v, pull)
@@ -191,8 +266,8 @@ func (s *system) deriv(_ float64, y, dy []float64) {
 	dy[qCoilR] = r * i * i
 	dy[sWinding], dy[sHousing] = 0, 0
 	if s.thermal != nil {
-		// Copper and eddy losses heat the winding node.
-		p := r*i*i + s.eddy*(im-i)*(im-i)
+		// Copper, eddy and core losses heat the winding node.
+		p := r*i*i + s.eddy*(im-i)*(im-i) + dy[qCore]
 		dy[sWinding], dy[sHousing] = s.thermal.Deriv(y[sWinding], y[sHousing], p, s.ambient)
 	}
 	dy[qDiode] = pt.PDiode
@@ -229,7 +304,7 @@ func (s *system) out(y []float64) outputs {
 func (s *system) guardsAt(y, g []float64) (nc, n int) {
 	i, im := s.solve(y)
 	s.lastCurrent = i
-	nc = s.drive.Guards(s.cmode, i, &s.pt, g)
+	nc = s.drive.Guards(s.cmode, s.termCurrent, &s.pt, g)
 	n = nc
 	x := y[sGap]
 	switch s.mmode {
@@ -265,6 +340,10 @@ func (s *system) storedCapEnergy(y []float64) float64 {
 		if s.cmode == circuit.Off {
 			v = y[sSwitchC]
 		}
+		e += 0.5 * c * v * v
+	}
+	if c := s.drive.CoilCapacitance; c > 0 {
+		v := s.pt.CoilVoltage
 		e += 0.5 * c * v * v
 	}
 	if s.drive.Suppressor.Kind == circuit.Snubber {

@@ -76,6 +76,12 @@ type Drive struct {
 	Switch     Switch
 	Suppressor Suppressor
 	Recirc     Recirculation
+	// CoilCapacitance (F) is the coil's winding capacitance, across its
+	// terminals (between the rail and the switch node); 0 for none. While
+	// nothing pins the switch node it adds to the switch capacitance at the
+	// node (the rail is stiff at the ring's frequency); while a path pins
+	// the coil voltage its charge follows that voltage.
+	CoilCapacitance float64
 }
 
 // Validate reports a drive that cannot be simulated.
@@ -88,6 +94,8 @@ func (d *Drive) Validate() error {
 		return errors.New("circuit: resistances must not be negative")
 	case !(sw.OutputCapacitance >= 0):
 		return errors.New("circuit: switch output capacitance must not be negative")
+	case !(d.CoilCapacitance >= 0):
+		return errors.New("circuit: coil capacitance must not be negative")
 	case !(sw.BreakdownVoltage > s.Voltage):
 		return fmt.Errorf("circuit: switch breakdown %g V must exceed the supply %g V", sw.BreakdownVoltage, s.Voltage)
 	case !(sw.BodyDiodeDrop > 0):
@@ -174,13 +182,20 @@ type Point struct {
 }
 
 // Open reports whether, in mode Off, the coil has no path at all (no
-// switch capacitance, no snubber): its current must then stay zero.
+// switch or coil capacitance, no snubber): its terminal current must then
+// stay zero.
 func (d *Drive) Open() bool {
-	return d.Switch.OutputCapacitance == 0 && d.Suppressor.Kind != Snubber
+	return d.NodeCapacitance() == 0 && d.Suppressor.Kind != Snubber
 }
 
-// HasSwitchCap reports whether the switch capacitor voltage is a state.
-func (d *Drive) HasSwitchCap() bool { return d.Switch.OutputCapacitance > 0 }
+// NodeCapacitance returns the capacitance at the switch node in mode Off
+// (F): the switch's output capacitance to ground and the coil's winding
+// capacitance to the rail, in parallel for the node's dynamics.
+func (d *Drive) NodeCapacitance() float64 { return d.Switch.OutputCapacitance + d.CoilCapacitance }
+
+// HasSwitchCap reports whether the switch node voltage is a state (some
+// capacitance at the node).
+func (d *Drive) HasSwitchCap() bool { return d.NodeCapacitance() > 0 }
 
 // Solve fills pt for mode m, coil current iL (A), switch capacitor voltage
 // vC and snubber capacitor voltage vS (V), with the supply as specified.
@@ -225,11 +240,17 @@ func (d *Drive) SolveRail(m Mode, v0, rs, iL, vC, vS float64, pt *Point) {
 			if snub {
 				ip = (v0 - rs*iL - vC - vS) / (sup.Resistance + rs)
 			}
-			is := iL + ip
+			// The coil's terminal current (and the snubber's) reaches the
+			// node and charges both capacitances there; the winding
+			// capacitance's own current returns to the rail, so the supply
+			// carries only the switch capacitance's share.
+			in := iL + ip
+			cn := d.NodeCapacitance()
+			is := in * d.Switch.OutputCapacitance / cn
 			pt.SupplyCurrent = is
 			pt.SwitchVoltage = vC
 			pt.CoilVoltage = v0 - rs*is - vC
-			pt.DSwitchCap = is / d.Switch.OutputCapacitance
+			pt.DSwitchCap = in / cn
 		case snub:
 			// All coil current goes round through the snubber.
 			ip = -iL

@@ -284,6 +284,9 @@ func (s *summary) balance(m *coilkick.Metrics) {
 	if m.EddyLoss > 0 {
 		s.row("eddy currents", si(m.EddyLoss, "J"))
 	}
+	if m.CoreLoss > 0 {
+		s.row("core loss", si(m.CoreLoss, "J"))
+	}
 	s.row("stored change", si(m.StoredChange, "J"))
 	s.row("energy residual", fmt.Sprintf("%.2g of supply", m.EnergyResidualRel()))
 	if m.SwitchingLossEstimate > 0 {
@@ -366,6 +369,7 @@ type jsonMetrics struct {
 	SwitchLoss        float64           `json:"switch_loss_J"`
 	MechanicalWork    float64           `json:"mechanical_work_J"`
 	EddyLoss          float64           `json:"eddy_loss_J"`
+	CoreLoss          float64           `json:"core_loss_J"`
 	StoredChange      float64           `json:"stored_energy_change_J"`
 	EnergyResidual    float64           `json:"energy_residual_J"`
 	DiodeLoss         float64           `json:"diode_loss_J"`
@@ -441,7 +445,7 @@ func writeJSON(w io.Writer, md *coilkick.Model, res *coilkick.Result, as *coilki
 			ChopClampEnergy: m.ChopClampEnergy, ChopAvalanche: m.ChopAvalancheEnergy, SeatedAtTurnOff: m.SeatedAtTurnOff,
 			SuppressionLoss: m.SuppressionLoss,
 			SupplyEnergy:    m.SupplyEnergy, CoilLoss: m.CoilLoss, SourceLoss: m.SourceLoss, SwitchLoss: m.SwitchLoss,
-			MechanicalWork: m.MechanicalWork, EddyLoss: m.EddyLoss, StoredChange: m.StoredChange, EnergyResidual: m.EnergyResidual,
+			MechanicalWork: m.MechanicalWork, EddyLoss: m.EddyLoss, CoreLoss: m.CoreLoss, StoredChange: m.StoredChange, EnergyResidual: m.EnergyResidual,
 		},
 		Checks: []jsonCheck{}, Notes: []coilkickNote{}, Events: []jsonEvent{},
 	}

@@ -143,7 +143,7 @@ var reportGroups = []struct {
 	{"Energy balance (whole run)", []figureRow{
 		{"supply_energy_J", "supply"}, {"coil_loss_J", "coil resistance"}, {"source_loss_J", "source resistance"},
 		{"switch_loss_J", "switch"}, {"suppression_loss_J", "suppression"}, {"diode_loss_J", "recirculation / bridge diodes"}, {"mechanical_work_J", "mechanical work"},
-		{"eddy_loss_J", "eddy currents"}, {"stored_energy_change_J", "stored change"}, {"energy_residual_J", "energy residual"},
+		{"eddy_loss_J", "eddy currents"}, {"core_loss_J", "core loss"}, {"stored_energy_change_J", "stored change"}, {"energy_residual_J", "energy residual"},
 		{"switching_loss_estimate_J", "switching loss (estimate, outside the balance)"},
 	}},
 }
