@@ -64,16 +64,6 @@ type Model struct {
 // temperature (ohm).
 func (m *Model) CoilResistance() float64 { return m.Coil.ResistanceAt(m.Temperature) }
 
-// Stiff reports whether the model has a fast mode that an explicit method
-// would have to resolve for the whole run: an RC snubber's time constant
-// against millisecond motion, or the switch capacitance discharging through
-// the eddy-current turn (C_oss·(Re + R), nanoseconds). Such models are
-// integrated with the L-stable Rosenbrock pair.
-func (m *Model) Stiff() bool {
-	return m.Drive.Suppressor.Kind == circuit.Snubber ||
-		(m.EddyResistance > 0 && m.Drive.NodeCapacitance() > 0)
-}
-
 // scales returns the typical magnitude of each state, for the absolute
 // tolerances.
 func (m *Model) scales() []float64 {

@@ -16,10 +16,13 @@ import (
 //     Runge–Kutta formulae", J. Comp. Appl. Math. 6, 1980) with the dense
 //     output of Hairer, Nørsett & Wanner, Solving ODEs I, 2nd ed., II.6
 //     (DOPRI5's CONTD5) for non-stiff systems: the default.
-//   - The linearly implicit Rosenbrock 2(3) pair of Shampine & Reichelt
-//     ("The MATLAB ODE suite", SIAM J. Sci. Comput. 18, 1997), L-stable, with
-//     its own dense output and a finite-difference Jacobian, for systems that
-//     declare themselves stiff (an RC snubber against millisecond motion).
+//   - RODAS4, the stiffly accurate L-stable Rosenbrock method of order
+//     4(3) of Hairer & Wanner (Solving ODEs II, IV.7), with its own dense
+//     output and a finite-difference Jacobian, while the system declares
+//     its present modes stiff (an RC snubber, or the switch capacitance
+//     discharging through the eddy-current turn, against millisecond
+//     motion). The choice is made again after every event, so a run uses
+//     the implicit method only in the segments that need it.
 //
 // Time events (commands) are landed on exactly by shortening the step.
 // State events are guard functions: a guard is negative while the mode
@@ -42,6 +45,10 @@ type odeSystem interface {
 	// accepted is told of every accepted step; s.interp gives the solution
 	// anywhere in [s.t0, s.t1].
 	accepted(s *stepView)
+	// stiff reports whether the present modes have a fast mode that an
+	// explicit method would have to resolve (asked at the start and after
+	// every event).
+	stiff() bool
 }
 
 // odeSettings tunes the integrator.
@@ -50,16 +57,17 @@ type odeSettings struct {
 	Scale    []float64 // absolute tolerance of component i is RelTol·Scale[i]; a negative scale leaves the component out of the error norm (a state the model does not use)
 	MaxSteps int       // attempted steps (accepted + rejected) before giving up
 	MaxStep  float64   // s, largest step
-	Stiff    bool      // use the Rosenbrock pair
+	Stiff    bool      // use the Rosenbrock method throughout, whatever the system says
 	NJac     int       // components that feed back into f (Jacobian columns); the rest are quadratures
 }
 
 // odeStats counts the integrator's work.
 type odeStats struct {
-	Steps    int // accepted
-	Rejected int
-	Events   int
-	Evals    int // right-hand side evaluations
+	Steps      int // accepted
+	Rejected   int
+	Events     int
+	Evals      int // right-hand side evaluations
+	StiffSteps int // accepted steps taken by the Rosenbrock method
 }
 
 // maxGuardCount bounds the number of guards a system may report.
@@ -101,14 +109,15 @@ type stepper interface {
 }
 
 type odeIntegrator struct {
-	scratch []float64 // for initialStep
-	sys     odeSystem
-	set     odeSettings
-	n       int
-	m       stepper
-	stats   odeStats
-	norm    func(err, y0, y1 []float64) float64
-	active  int // components in the error norm
+	scratch            []float64 // for initialStep
+	sys                odeSystem
+	set                odeSettings
+	n                  int
+	m                  stepper
+	explicit, implicit stepper
+	stats              odeStats
+	norm               func(err, y0, y1 []float64) float64
+	active             int // components in the error norm
 }
 
 func newODE(sys odeSystem, n int, set odeSettings) *odeIntegrator {
@@ -143,12 +152,21 @@ func newODE(sys odeSystem, n int, set odeSettings) *odeIntegrator {
 		}
 		return math.Sqrt(s / float64(active))
 	}
-	if set.Stiff {
-		in.m = newRosenbrock(n, in.set.NJac, counted, in.norm)
-	} else {
-		in.m = newDopri(n, counted, in.norm)
-	}
+	in.explicit = newDopri(n, counted, in.norm)
+	in.implicit = newRodas(n, in.set.NJac, counted, in.norm)
+	in.m = in.explicit
 	return in
+}
+
+// choose picks the method for the segment that starts now and returns the
+// step-size exponent's order.
+func (in *odeIntegrator) choose() float64 {
+	if in.set.Stiff || in.sys.stiff() {
+		in.m = in.implicit
+	} else {
+		in.m = in.explicit
+	}
+	return float64(in.m.order())
 }
 
 // run integrates from t0 until the system stops it.
@@ -161,11 +179,12 @@ func (in *odeIntegrator) run(t0 float64, y []float64) error {
 	g1 := make([]float64, maxGuardCount)
 	gt := make([]float64, maxGuardCount)
 	gmid := [2][]float64{make([]float64, maxGuardCount), make([]float64, maxGuardCount)}
-	view := &stepView{m: in.m}
-	q := float64(in.m.order())
+	view := &stepView{}
+	var q float64
 	t := t0
 
 	restart := func() float64 {
+		q = in.choose()
 		in.sys.deriv(t, y, f0)
 		in.stats.Evals++
 		return in.initialStep(t, y, f0, ytmp, q)
@@ -239,7 +258,10 @@ func (in *odeIntegrator) run(t0 float64, y []float64) error {
 				a, ga = th, gb
 			}
 		}
-		view.t0, view.y0, view.h = t, y, h
+		view.t0, view.y0, view.h, view.m = t, y, h, in.m
+		if in.m == in.implicit {
+			in.stats.StiffSteps++
+		}
 		if kEv >= 0 {
 			in.m.dense((tEv-t)/h, ytmp)
 			view.t1, view.y1 = tEv, ytmp
@@ -298,9 +320,15 @@ func (in *odeIntegrator) run(t0 float64, y []float64) error {
 			// Restart with the step the controller wanted before it was
 			// shortened to land here: time events (switch edges) recur, and
 			// the first step's error test catches a change of pace.
-			in.sys.deriv(t, y, f0)
-			in.stats.Evals++
-			h = hNatural
+			if q1 := in.choose(); q1 != q {
+				// The method changed at this command: start afresh.
+				q = q1
+				h = restart()
+			} else {
+				in.sys.deriv(t, y, f0)
+				in.stats.Evals++
+				h = hNatural
+			}
 			ng = in.sys.guards(t, y, g0)
 		}
 	}

@@ -97,41 +97,80 @@ func (m *dopri) dense(th float64, out []float64) {
 	}
 }
 
-// rosenbrock is the L-stable linearly implicit 2(3) pair of Shampine &
-// Reichelt (SIAM J. Sci. Comput. 18, 1997), for autonomous systems (time
-// dependence enters only through events), with the Jacobian by forward
-// differences on the first nj components.
-type rosenbrock struct {
-	f          func(t float64, y, dy []float64)
-	norm       func(err, y0, y1 []float64) float64
-	n, nj      int
-	jac, w     []float64 // n×n row-major
-	piv        []int
-	k1, k2, k3 []float64
-	fa, fb, yt []float64
-	errv, y0c  []float64
-	hLast      float64
+// rodas is RODAS4, the stiffly accurate, L-stable Rosenbrock method of
+// order 4 with an embedded order-3 error estimate and an order-3 dense
+// output, of Hairer & Wanner (Solving Ordinary Differential Equations II,
+// 2nd ed., IV.7; the coefficients of their code RODAS), for autonomous
+// systems (time dependence enters only through events). The Jacobian is
+// taken by forward differences on the first nj components (the rest are
+// quadratures that do not feed back). Stage form:
+//
+//	(1/(γh) − J)·k_i = f(y0 + Σ_j a_ij·k_j) + Σ_j (c_ij/h)·k_j,
+//	y1 = y0 + Σ_j a_5j·k_j + k5 + k6, error estimate k6.
+type rodas struct {
+	f             func(t float64, y, dy []float64)
+	norm          func(err, y0, y1 []float64) float64
+	n, nj         int
+	jac, w        []float64 // n×n row-major
+	piv           []int
+	k             [6][]float64
+	fa, yt, rhs   []float64
+	y0c, y1c, f1v []float64
+	cont3, cont4  []float64
 }
 
+// RODAS4 coefficients (Hairer & Wanner, code RODAS, METH = 1).
 const (
-	rsD   = 0.29289321881345254 // 1/(2+√2)
-	rsE32 = 7.414213562373095   // 6+√2
+	roGamma = 0.25
+
+	roA21                      = 1.544
+	roA31, roA32               = 0.9466785280815826, 0.2557011698983284
+	roA41, roA42, roA43        = 3.314825187068521, 2.896124015972201, 0.9986419139977817
+	roA51, roA52, roA53, roA54 = 1.221224509226641, 6.019134481288629, 12.53708332932087, -0.6878860361058950
+
+	roC21                      = -5.6688
+	roC31, roC32               = -2.430093356833875, -0.2063599157091915
+	roC41, roC42, roC43        = -0.1073529058151375, -9.594562251023355, -20.47028614809616
+	roC51, roC52, roC53, roC54 = 7.496443313967647, -10.24680431464352, -33.99990352819905, 11.70890893206160
+	roC61, roC62, roC63        = 8.083246795921522, -7.981132988064893, -31.52159432874371
+	roC64, roC65               = 16.31930543123136, -6.058818238834054
+
+	// dense output
+	roD21, roD22, roD23, roD24, roD25 = 10.12623508344586, -7.487995877610167, -34.80091861555747, -7.992771707568823, 1.025137723295662
+	roD31, roD32, roD33, roD34, roD35 = -0.6762803392801253, 6.087714651680015, 16.43084320892478, 24.76722511418386, -6.594389125716872
 )
 
-func newRosenbrock(n, nj int, f func(float64, []float64, []float64), norm func(err, y0, y1 []float64) float64) *rosenbrock {
+func newRodas(n, nj int, f func(float64, []float64, []float64), norm func(err, y0, y1 []float64) float64) *rodas {
 	v := func() []float64 { return make([]float64, n) }
-	return &rosenbrock{f: f, norm: norm, n: n, nj: nj, jac: make([]float64, n*n), w: make([]float64, n*n),
-		piv: make([]int, n), k1: v(), k2: v(), k3: v(), fa: v(), fb: v(), yt: v(), errv: v(), y0c: v()}
+	m := &rodas{f: f, norm: norm, n: n, nj: nj, jac: make([]float64, n*n), w: make([]float64, n*n),
+		piv: make([]int, n), fa: v(), yt: v(), rhs: v(), y0c: v(), y1c: v(), f1v: v(), cont3: v(), cont4: v()}
+	for i := range m.k {
+		m.k[i] = v()
+	}
+	return m
 }
 
-func (m *rosenbrock) order() int { return 3 }
+func (m *rodas) order() int { return 4 }
 
-func (m *rosenbrock) f1() []float64 { return m.fb }
+func (m *rodas) f1() []float64 { return m.f1v }
 
-func (m *rosenbrock) attempt(t, h float64, y, f0, y1 []float64) float64 {
+// stage solves (1/(γh) − J)·k = f(yt) + Σ_j c_j·k_j/h into k[s].
+func (m *rodas) stage(t, h float64, s int, c ...float64) {
+	m.f(t, m.yt, m.fa)
+	ks := m.k[s]
+	for i := range ks {
+		v := m.fa[i]
+		for j, cj := range c {
+			v += cj * m.k[j][i] / h
+		}
+		ks[i] = v
+	}
+	luSolve(m.w, m.piv, m.n, ks)
+}
+
+func (m *rodas) attempt(t, h float64, y, f0, y1 []float64) float64 {
 	n := m.n
 	copy(m.y0c, y)
-	m.hLast = h
 	// Jacobian by forward differences (columns of the fed-back states).
 	for j := 0; j < m.nj; j++ {
 		dj := math.Sqrt(2.2e-16) * math.Max(math.Abs(y[j]), 1e-8)
@@ -146,14 +185,15 @@ func (m *rosenbrock) attempt(t, h float64, y, f0, y1 []float64) float64 {
 			m.jac[i*n+j] = (m.fa[i] - f0[i]) / dj
 		}
 	}
+	fac := 1 / (roGamma * h)
 	for i := 0; i < n; i++ {
 		for j := 0; j < n; j++ {
 			v := 0.0
 			if j < m.nj {
-				v = -h * rsD * m.jac[i*n+j]
+				v = -m.jac[i*n+j]
 			}
 			if i == j {
-				v++
+				v += fac
 			}
 			m.w[i*n+j] = v
 		}
@@ -161,37 +201,48 @@ func (m *rosenbrock) attempt(t, h float64, y, f0, y1 []float64) float64 {
 	if !luFactor(m.w, m.piv, n) {
 		return math.Inf(1)
 	}
-	copy(m.k1, f0)
-	luSolve(m.w, m.piv, n, m.k1)
+	k := &m.k
+	copy(k[0], f0)
+	luSolve(m.w, m.piv, n, k[0])
 	for i := range y {
-		m.yt[i] = y[i] + 0.5*h*m.k1[i]
+		m.yt[i] = y[i] + roA21*k[0][i]
 	}
-	m.f(t+0.5*h, m.yt, m.fa) // F1
+	m.stage(t, h, 1, roC21)
 	for i := range y {
-		m.k2[i] = m.fa[i] - m.k1[i]
+		m.yt[i] = y[i] + roA31*k[0][i] + roA32*k[1][i]
 	}
-	luSolve(m.w, m.piv, n, m.k2)
+	m.stage(t, h, 2, roC31, roC32)
 	for i := range y {
-		m.k2[i] += m.k1[i]
-		y1[i] = y[i] + h*m.k2[i]
+		m.yt[i] = y[i] + roA41*k[0][i] + roA42*k[1][i] + roA43*k[2][i]
 	}
-	m.f(t+h, y1, m.fb) // F2
+	m.stage(t, h, 3, roC41, roC42, roC43)
 	for i := range y {
-		m.k3[i] = m.fb[i] - rsE32*(m.k2[i]-m.fa[i]) - 2*(m.k1[i]-f0[i])
+		m.yt[i] = y[i] + roA51*k[0][i] + roA52*k[1][i] + roA53*k[2][i] + roA54*k[3][i]
 	}
-	luSolve(m.w, m.piv, n, m.k3)
+	m.stage(t, h, 4, roC51, roC52, roC53, roC54)
 	for i := range y {
-		m.errv[i] = h / 6 * (m.k1[i] - 2*m.k2[i] + m.k3[i])
+		m.yt[i] += k[4][i]
 	}
-	return m.norm(m.errv, y, y1)
+	m.stage(t, h, 5, roC61, roC62, roC63, roC64, roC65)
+	for i := range y {
+		y1[i] = m.yt[i] + k[5][i]
+		m.cont3[i] = roD21*k[0][i] + roD22*k[1][i] + roD23*k[2][i] + roD24*k[3][i] + roD25*k[4][i]
+		m.cont4[i] = roD31*k[0][i] + roD32*k[1][i] + roD33*k[2][i] + roD34*k[3][i] + roD35*k[4][i]
+	}
+	copy(m.y1c, y1)
+	errNorm := m.norm(k[5], y, y1)
+	if errNorm <= 1 {
+		m.f(t+h, y1, m.f1v) // f at the new point: the next step's f0
+	}
+	return errNorm
 }
 
-func (m *rosenbrock) dense(th float64, out []float64) {
-	h := m.hLast
-	c1 := th * (1 - th) / (1 - 2*rsD)
-	c2 := th * (th - 2*rsD) / (1 - 2*rsD)
+// dense is the order-3 continuous extension of RODAS:
+// y(θ) = (1−θ)·y0 + θ·(y1 + (1−θ)·(d2 + θ·d3)).
+func (m *rodas) dense(th float64, out []float64) {
+	t1 := 1 - th
 	for i := range out {
-		out[i] = m.y0c[i] + h*(c1*m.k1[i]+c2*m.k2[i])
+		out[i] = t1*m.y0c[i] + th*(m.y1c[i]+t1*(m.cont3[i]+th*m.cont4[i]))
 	}
 }
 

@@ -56,6 +56,8 @@ func (s *testSys) event(t float64, y []float64, k int) (bool, error) {
 	return false, nil
 }
 
+func (s *testSys) stiff() bool { return false }
+
 func (s *testSys) accepted(v *stepView) {
 	s.samples = append(s.samples, [2]float64{v.t1, v.y1[0]})
 }
@@ -81,7 +83,7 @@ func TestODEHarmonicOscillator(t *testing.T) {
 		}
 		lim := 2e-7
 		if stiff {
-			lim = 5e-4 // second-order method
+			lim = 2e-6 // RODAS4 at the looser tolerance 1e-7
 		}
 		if worst > lim {
 			t.Errorf("stiff=%v: worst error %.3g, want <= %g (steps %d)", stiff, worst, lim, in.stats.Steps)
@@ -125,12 +127,12 @@ func TestODEStiffDecay(t *testing.T) {
 		t.Fatal(err)
 	}
 	want := 1e6 / (1e6 - 1) * (math.Exp(-2) - math.Exp(-2e6))
-	if d := math.Abs(y[0]-want) / want; d > 5e-4 { // second-order method: global error ~ steps × tolerance
-		t.Errorf("y0(2) = %.9g, want %.9g", y[0], want)
+	if d := math.Abs(y[0]-want) / want; d > 1e-5 { // tolerance 1e-6, global error a few times that
+		t.Errorf("y0(2) = %.9g, want %.9g (rel %.3g)", y[0], want, d)
 	}
 	// An explicit method would need some 2/1e6 s steps, a million of them;
-	// the L-stable pair should take a few hundred.
-	if in.stats.Steps > 2000 {
+	// the L-stable method should take well under a hundred.
+	if in.stats.Steps > 200 {
 		t.Errorf("Rosenbrock took %d steps on a stiff decay, want < 2000", in.stats.Steps)
 	}
 	t.Logf("stiff decay: %d steps, %d rejected", in.stats.Steps, in.stats.Rejected)

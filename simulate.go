@@ -72,7 +72,9 @@ type Event struct {
 // SolverStats counts the integrator's work.
 type SolverStats struct {
 	Steps, Rejected, Events, Evaluations int
-	Method                               string
+	// StiffSteps: accepted steps taken by the implicit (Rosenbrock) method.
+	StiffSteps int
+	Method     string
 }
 
 // Result is the outcome of one simulated actuation.
@@ -149,6 +151,18 @@ func (r *run) guards(t float64, y, g []float64) int {
 		n++
 	}
 	return n
+}
+
+// stiff reports whether the present modes have a fast mode an explicit
+// method would have to resolve: an RC snubber (its capacitor charges
+// through the switch and source in microseconds in every mode), or the
+// switch node's capacitance discharging through the eddy-current turn while
+// nothing pins the node (C·(Re + R), nanoseconds).
+func (r *run) stiff() bool {
+	if r.drive.Suppressor.Kind == circuit.Snubber {
+		return true
+	}
+	return r.eddy > 0 && r.cmode == circuit.Off && r.drive.HasSwitchCap()
 }
 
 // settleTol is how far past zero a guard must be for settle to change
@@ -580,13 +594,16 @@ func Simulate(md *Model, opt *Options) (*Result, error) {
 	}
 
 	set := odeSettings{RelTol: tol, Scale: md.scales(), MaxSteps: maxSteps, MaxStep: r.tEnd / 50,
-		Stiff: md.Stiff(), NJac: stateJac}
+		NJac: stateJac}
 	in := newODE(r, nState, set)
 	err := in.run(0, y)
 	res.Stats = SolverStats{Steps: in.stats.Steps, Rejected: in.stats.Rejected, Events: in.stats.Events,
-		Evaluations: in.stats.Evals, Method: "Dormand–Prince 5(4)"}
-	if set.Stiff {
-		res.Stats.Method = "Rosenbrock 2(3) (Shampine–Reichelt)"
+		Evaluations: in.stats.Evals, StiffSteps: in.stats.StiffSteps, Method: "Dormand–Prince 5(4)"}
+	switch {
+	case in.stats.StiffSteps == in.stats.Steps && in.stats.Steps > 0:
+		res.Stats.Method = "RODAS4 (Hairer–Wanner)"
+	case in.stats.StiffSteps > 0:
+		res.Stats.Method = fmt.Sprintf("Dormand–Prince 5(4), RODAS4 (Hairer–Wanner) where stiff (%d steps)", in.stats.StiffSteps)
 	}
 	if err != nil {
 		return res, fmt.Errorf("coilkick: simulation failed: %w", err)
