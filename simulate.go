@@ -34,6 +34,10 @@ type Options struct {
 	// these instants from the integrator's dense output, into
 	// Result.Samples.
 	SampleTimes []float64
+	// FollowRing keeps the switch node's ring after turn-off cycle by
+	// cycle instead of retiring it to its energy once it can no longer
+	// reach a threshold (ring.go): slower, the same figures.
+	FollowRing bool
 }
 
 // Trace is the recorded time series, one sample per accepted step and one
@@ -101,6 +105,10 @@ type run struct {
 	tRevEnd             float64         // end of a timed reverse pulse (+Inf: none)
 	tWin                float64         // start of the hold window (its end is tOff)
 	tHold               float64         // start of the hold phase (end of the peak or boost phase)
+	tRing               float64         // next ring-retirement check (+Inf: none)
+	noRetire            bool            // follow the ring cycle by cycle
+	ringBandAt          float64         // V, the coil-voltage band the retired ring must stay within
+	ringUnsafe          bool            // the retired ring's envelope came near a threshold
 	off                 [nState]float64 // state at the de-energize command
 	inWindow            bool
 	win                 [nState]float64 // state at the window start
@@ -134,7 +142,7 @@ func (r *run) note(t float64, format string, args ...any) {
 
 func (r *run) nextTimeEvent(t float64) float64 {
 	next := math.Inf(1)
-	for _, te := range [...]float64{r.tOn, r.tWin, r.tOff, r.tRevEnd, r.tEnd, r.ctl.NextTime(t)} {
+	for _, te := range [...]float64{r.tOn, r.tWin, r.tOff, r.tRevEnd, r.tEnd, r.tRing, r.ctl.NextTime(t)} {
 		if te > t && te < next {
 			next = te
 		}
@@ -190,6 +198,9 @@ func (r *run) event(t float64, y []float64, k int) (bool, error) {
 			i := r.current(y)
 			r.cmode = r.turnOffMode(i)
 			r.note(t, "reverse pulse ends at %.4g A", i)
+		}
+		if t == r.tRing {
+			r.tryRetireRing(t, y)
 		}
 		if t == r.tEnd {
 			return true, nil
@@ -341,6 +352,7 @@ func (r *run) deenergize(t float64, y []float64) {
 	if r.cmode != circuit.Off {
 		r.note(t, "conduction through the %s starts", r.drive.ClampName(r.cmode))
 	}
+	r.scheduleRingCheck(t, y)
 }
 
 // circuitChange moves the drive to mode to, keeping the state consistent.
@@ -370,6 +382,7 @@ func (r *run) circuitChange(t float64, y []float64, to circuit.Mode) {
 		r.note(t, "conduction through the %s starts", r.drive.ClampName(to))
 	}
 	r.cmode = to
+	r.scheduleRingCheck(t, y)
 }
 
 func (r *run) mechEvent(t float64, y []float64) {
@@ -494,6 +507,9 @@ func (r *run) peaks(o outputs) {
 }
 
 func (r *run) accepted(s *stepView) {
+	if r.ringRetired {
+		r.checkRetiredRing(s.y1)
+	}
 	for r.sampleNext < len(r.sampleTimes) && r.sampleTimes[r.sampleNext] <= s.t1 {
 		s.interp(r.sampleTimes[r.sampleNext], r.ys[:])
 		r.res.Samples = append(r.res.Samples, r.current(r.ys[:]))
@@ -547,8 +563,9 @@ func Simulate(md *Model, opt *Options) (*Result, error) {
 		sys.thermal = md.Thermal
 	}
 	res := &Result{}
-	r := &run{system: sys, tOn: timing.EnergizeAt, tOff: timing.DeenergizeAt, tEnd: timing.End,
-		res: res, noTrace: opt.NoTrace, baseV0: drive.Supply.Voltage, tRevEnd: math.Inf(1),
+	r := &run{system: sys, tOn: timing.EnergizeAt, tOff: timing.DeenergizeAt, tEnd: timing.End, tRing: math.Inf(1),
+		noRetire: opt.FollowRing,
+		res:      res, noTrace: opt.NoTrace, baseV0: drive.Supply.Voltage, tRevEnd: math.Inf(1),
 		riseTime: md.RiseTime, fallTime: md.FallTime, sampleTimes: opt.SampleTimes}
 	r.ctl.Control = md.Control
 	// The hold window: the second half of the hold phase (after the peak
@@ -607,6 +624,13 @@ func Simulate(md *Model, opt *Options) (*Result, error) {
 	}
 	if err != nil {
 		return res, fmt.Errorf("coilkick: simulation failed: %w", err)
+	}
+	if r.ringUnsafe {
+		// The retired ring's envelope came near a threshold: the averaging
+		// was not safe; follow the ring cycle by cycle.
+		o := *opt
+		o.FollowRing = true
+		return Simulate(md, &o)
 	}
 	r.finish(y)
 	return res, nil

@@ -20,6 +20,7 @@ const (
 	sBus             // V: supply bulk capacitor voltage (when fitted)
 	sWinding         // K: winding temperature (when a thermal model is given)
 	sHousing         // K: housing temperature (two-node thermal model)
+	sRing            // J: energy of the retired switch-node ring (ring.go)
 	qSupply          // J delivered by the ideal source
 	qCoilR           // J in the coil resistance
 	qSource          // J in the source resistance
@@ -82,6 +83,11 @@ type system struct {
 	mmode mechMode
 	// lastCurrent is the coil current of the last guardsAt (A).
 	lastCurrent float64
+	// ringRetired: the switch node's ring is followed by its energy
+	// (ring.go); the node capacitance has left the drive, retiredC (F) and
+	// retiredCoss (F) are what it was.
+	ringRetired           bool
+	retiredC, retiredCoss float64
 	// termCurrent is the coil's terminal current of the last solve (A):
 	// the winding current plus the core-loss resistance's.
 	termCurrent float64
@@ -286,6 +292,10 @@ func (s *system) deriv(_ float64, y, dy []float64) {
 	} else {
 		dy[qMech] = 0
 	}
+	if ringPull := s.ringDeriv(y, dy); ringPull != 0 && s.mmode == mechFree {
+		dy[sVel] -= ringPull / s.plunger.Mass
+		dy[qMech] -= ringPull * v
+	}
 }
 
 // out computes the algebraic outputs at y.
@@ -353,7 +363,12 @@ func (s *system) storedCapEnergy(y []float64) float64 {
 	if s.bulkC > 0 {
 		e += 0.5 * s.bulkC * y[sBus] * y[sBus]
 	}
-	return e
+	if s.ringRetired {
+		// The retired switch capacitance, quiescent at the rail.
+		v := s.railVoltage(y)
+		e += 0.5 * s.retiredCoss * v * v
+	}
+	return e + y[sRing]
 }
 
 // railVoltage returns the voltage at the drive's supply terminals (V),
