@@ -90,6 +90,11 @@ type Metrics struct {
 	// SeatedAtTurnOff: the plunger was held at the energized stop at the
 	// de-energize command. Release and drop are measured only then.
 	SeatedAtTurnOff bool
+	// RingRetired: de-energize → the switch node's ring was retired to its
+	// averaged energy (ring.go); not Happened when it was followed to the
+	// end. RingEnergy (J): its energy then; FinalRingEnergy (J): at the end.
+	RingRetired                 Interval
+	RingEnergy, FinalRingEnergy float64
 
 	// PeakSupplyCurrent: largest current drawn from the supply rail, A.
 	PeakSupplyCurrent float64

@@ -92,10 +92,9 @@ func (m *Model) scales() []float64 {
 	if m.CoreLossResistance == 0 {
 		sc[qCore] = -1 // unused: out of the error norm
 	}
-	// The retired ring's energy (ring.go) stays out of the error norm: it
-	// is some 1e-6 of the supply energy, decays at rates far below the
-	// step sizes the motion needs, and leaving it out keeps the runs before
-	// retirement exactly as they were.
+	// The retired ring's energy (ring.go) enters the error norm only once
+	// the ring is retired, with its energy then as the scale, so that runs
+	// before retirement stay exactly as they were.
 	sc[sRing] = -1
 	return sc
 }

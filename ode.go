@@ -54,7 +54,7 @@ type odeSystem interface {
 // odeSettings tunes the integrator.
 type odeSettings struct {
 	RelTol   float64   // relative tolerance
-	Scale    []float64 // absolute tolerance of component i is RelTol·Scale[i]; a negative scale leaves the component out of the error norm (a state the model does not use)
+	Scale    []float64 // absolute tolerance of component i is RelTol·Scale[i]; a negative scale leaves the component out of the error norm (a state the model does not use yet; the system may change it at an event)
 	MaxSteps int       // attempted steps (accepted + rejected) before giving up
 	MaxStep  float64   // s, largest step
 	Stiff    bool      // use the Rosenbrock method throughout, whatever the system says
@@ -117,7 +117,6 @@ type odeIntegrator struct {
 	explicit, implicit stepper
 	stats              odeStats
 	norm               func(err, y0, y1 []float64) float64
-	active             int // components in the error norm
 }
 
 func newODE(sys odeSystem, n int, set odeSettings) *odeIntegrator {
@@ -129,19 +128,14 @@ func newODE(sys odeSystem, n int, set odeSettings) *odeIntegrator {
 		in.stats.Evals++
 		sys.deriv(t, y, dy)
 	}
-	active := 0
-	for _, sc := range set.Scale {
-		if sc >= 0 {
-			active++
-		}
-	}
-	in.active = active
 	in.norm = func(err, y0, y1 []float64) float64 {
 		s := 0.0
+		active := 0
 		for i, e := range err {
 			if set.Scale[i] < 0 {
 				continue
 			}
+			active++
 			a, b := math.Abs(y0[i]), math.Abs(y1[i])
 			if b > a {
 				a = b
@@ -409,13 +403,15 @@ func (in *odeIntegrator) initialStep(t float64, y, f0, ytmp []float64, q float64
 // normVec is the weighted RMS norm of v with weights from y.
 func (in *odeIntegrator) normVec(v, y []float64) float64 {
 	s := 0.0
+	active := 0
 	for i := range v {
 		if in.set.Scale[i] < 0 {
 			continue
 		}
+		active++
 		sc := in.set.RelTol * (in.set.Scale[i] + math.Abs(y[i]))
 		r := v[i] / sc
 		s += r * r
 	}
-	return math.Sqrt(s / float64(in.active))
+	return math.Sqrt(s / float64(active))
 }

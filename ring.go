@@ -50,13 +50,15 @@ const (
 	// ringMargin: the envelope must stay this fraction below every
 	// threshold to retire the ring.
 	ringMargin = 0.02
-	// ringCheckMargin: a retired envelope coming this close to a threshold
-	// invalidates the retirement.
-	ringCheckMargin = 0.01
 	// ringProbe is the small current (A) at which the incremental
 	// inductance and the force slope are taken.
 	ringProbe = 1e-6
 )
+
+// ringCheckMargin: a retired envelope coming this close to a threshold
+// invalidates the retirement (a variable so that a test can force the
+// rerun).
+var ringCheckMargin = 0.01
 
 // ringModel reports whether the run's drive can ring and have the ring
 // retired: a node capacitance, no snubber and no eddy-current turn (whose
@@ -192,6 +194,11 @@ func (r *run) tryRetireRing(t float64, y []float64) {
 	y[sRing] = before + rail*coss*vcoil - after
 	r.tRing = math.Inf(1)
 	r.ringBandAt = band
+	m.RingRetired = Interval{true, t - r.tOff}
+	m.RingEnergy = y[sRing]
+	if y[sRing] > 0 {
+		r.scale[sRing] = y[sRing] // into the error norm, relative to its energy now
+	}
 	f := 1 / (2 * math.Pi * math.Sqrt(l*c))
 	r.note(t, "the switch node's ring (%.3g V at %.3g kHz) can no longer reach a threshold: followed from here by its energy (%s), without its waveform",
 		amp, f/1e3, formatEnergy(y[sRing]))

@@ -109,6 +109,7 @@ type run struct {
 	noRetire            bool            // follow the ring cycle by cycle
 	ringBandAt          float64         // V, the coil-voltage band the retired ring must stay within
 	ringUnsafe          bool            // the retired ring's envelope came near a threshold
+	scale               []float64       // the integrator's state scales (ring.go activates sRing)
 	off                 [nState]float64 // state at the de-energize command
 	inWindow            bool
 	win                 [nState]float64 // state at the window start
@@ -610,7 +611,8 @@ func Simulate(md *Model, opt *Options) (*Result, error) {
 		}
 	}
 
-	set := odeSettings{RelTol: tol, Scale: md.scales(), MaxSteps: maxSteps, MaxStep: r.tEnd / 50,
+	r.scale = md.scales()
+	set := odeSettings{RelTol: tol, Scale: r.scale, MaxSteps: maxSteps, MaxStep: r.tEnd / 50,
 		NJac: stateJac}
 	in := newODE(r, nState, set)
 	err := in.run(0, y)
@@ -662,6 +664,7 @@ func (r *run) finish(y []float64) {
 	m.DiodeLoss = y[qDiode]
 	m.EnergyReturned = y[qReturned]
 	m.SwitchingLossEstimate = r.swEst
+	m.FinalRingEnergy = y[sRing]
 	m.FinalWindingTemperature = y[sWinding]
 	m.FinalHousingTemperature = y[sHousing]
 	m.StoredChange = r.fieldEnergy(y) - r.wf0 + r.storedCapEnergy(y) - r.capE0
