@@ -12,12 +12,14 @@ type dopri struct {
 	errv                       []float64
 	r1, r2, r3, r4, r5         []float64 // dense output coefficients
 	k1                         []float64 // copy of f0 of the last attempt
+	y6                         []float64 // the sixth stage's argument
+	hLambda                    float64   // stiffness estimate of the last attempt
 }
 
 func newDopri(n int, f func(float64, []float64, []float64), norm func(err, y0, y1 []float64) float64) *dopri {
 	v := func() []float64 { return make([]float64, n) }
 	return &dopri{f: f, norm: norm, k2: v(), k3: v(), k4: v(), k5: v(), k6: v(), k7: v(), yt: v(), errv: v(),
-		r1: v(), r2: v(), r3: v(), r4: v(), r5: v(), k1: v()}
+		r1: v(), r2: v(), r3: v(), r4: v(), r5: v(), k1: v(), y6: v()}
 }
 
 // Butcher tableau of Dormand & Prince (1980).
@@ -70,10 +72,23 @@ func (m *dopri) attempt(t, h float64, y, k1, y1 []float64) float64 {
 		yt[i] = y[i] + h*(dpA61*k1[i]+dpA62*m.k2[i]+dpA63*m.k3[i]+dpA64*m.k4[i]+dpA65*m.k5[i])
 	}
 	m.f(t+h, yt, m.k6)
+	copy(m.y6, yt)
 	for i := range y {
 		y1[i] = y[i] + h*(dpA71*k1[i]+dpA73*m.k3[i]+dpA74*m.k4[i]+dpA75*m.k5[i]+dpA76*m.k6[i])
 	}
 	m.f(t+h, y1, m.k7)
+	// Stiffness estimate h·|λ| from the last two stages, both at t + h
+	// (Hairer & Wanner, Solving ODEs II, IV.2, as in their code DOPRI5).
+	num, den := 0.0, 0.0
+	for i := range y {
+		dk, dyy := m.k7[i]-m.k6[i], y1[i]-m.y6[i]
+		num += dk * dk
+		den += dyy * dyy
+	}
+	m.hLambda = 0
+	if den > 0 {
+		m.hLambda = h * math.Sqrt(num/den)
+	}
 	for i := range y {
 		m.errv[i] = h * (dpE1*k1[i] + dpE3*m.k3[i] + dpE4*m.k4[i] + dpE5*m.k5[i] + dpE6*m.k6[i] + dpE7*m.k7[i])
 	}

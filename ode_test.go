@@ -147,3 +147,25 @@ func TestODEStepBudget(t *testing.T) {
 		t.Fatalf("run with a small budget: err = %v, want the step budget error", err)
 	}
 }
+
+// TestODEStiffnessDetection: the explicit method notices a stiff decay
+// (h·|λ| at its stability limit) and hands the segment to RODAS4.
+func TestODEStiffnessDetection(t *testing.T) {
+	t.Parallel()
+	// source: as TestODEStiffDecay, y0 = (1e6/(1e6−1))(e^(−t) − e^(−1e6 t)).
+	s := &testSys{a: [][]float64{{-1e6, 1e6}, {0, -1}}, tEnd: 2}
+	in := newODE(s, 2, odeSettings{RelTol: 1e-6, Scale: []float64{1, 1}, MaxSteps: 1e5, MaxStep: 0.5})
+	y := []float64{0, 1}
+	if err := in.run(0, y); err != nil {
+		t.Fatal(err)
+	}
+	want := 1e6 / (1e6 - 1) * (math.Exp(-2) - math.Exp(-2e6))
+	if d := math.Abs(y[0]-want) / want; d > 1e-5 {
+		t.Errorf("y0(2) = %.9g, want %.9g (rel %.3g)", y[0], want, d)
+	}
+	// Explicit throughout: about 2/(3.3e-6) = 600 000 steps.
+	if in.stats.Switches != 1 || in.stats.Steps > 500 {
+		t.Errorf("%d switches, %d steps (%d implicit)", in.stats.Switches, in.stats.Steps, in.stats.StiffSteps)
+	}
+	t.Logf("%d steps, %d implicit", in.stats.Steps, in.stats.StiffSteps)
+}

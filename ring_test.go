@@ -76,7 +76,7 @@ func TestRingRetiredMatchesFollowed(t *testing.T) {
 		if r := a.EnergyResidualRel(); r > 1e-6 {
 			t.Errorf("%s: energy residual %.3g", name, r)
 		}
-		if 4*ret.Stats.Steps > fol.Stats.Steps {
+		if md.CoreLossResistance == 0 && 4*ret.Stats.Steps > fol.Stats.Steps { // a damped ring is cheap either way
 			t.Errorf("%s: %d steps retired, %d followed", name, ret.Stats.Steps, fol.Stats.Steps)
 		}
 		t.Logf("%s: retired at %.4g ms after turn-off (%.3g µJ), %d steps against %d", name, a.RingRetired.Seconds*1e3,
