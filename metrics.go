@@ -2,6 +2,7 @@ package coilkick
 
 import (
 	"encoding/json"
+	"fmt"
 	"math"
 )
 
@@ -220,3 +221,46 @@ func (m *Metrics) EnergyResidualRel() float64 {
 	}
 	return math.Abs(m.EnergyResidual) / m.SupplyEnergy
 }
+
+// CompactRepeat is the number of conductions of one part, in a row, from
+// which CompactEvents writes them as one line.
+const CompactRepeat = 3
+
+// CompactEvents returns the events for a person to read: a run of
+// consecutive conduction events of one part (a ring turning the body diode
+// on and off) with at least CompactRepeat conductions becomes one event,
+// "switch body diode conducts 12 times between 151.2 ms and 152.9 ms", at
+// the first start. Other events are kept as they are. The full list stays
+// in Result.Events (and in --json).
+func CompactEvents(evs []Event) []Event {
+	var out []Event
+	for k := 0; k < len(evs); {
+		e := evs[k]
+		if e.Kind != EventConductionStart {
+			out = append(out, e)
+			k++
+			continue
+		}
+		// The run of this part's starts and ends only.
+		j, starts := k, 0
+		for j < len(evs) && evs[j].Part == e.Part && evs[j].Kind != EventOther {
+			if evs[j].Kind == EventConductionStart {
+				starts++
+			}
+			j++
+		}
+		if starts < CompactRepeat {
+			out = append(out, evs[k:j]...)
+			k = j
+			continue
+		}
+		last := evs[j-1].Time
+		out = append(out, Event{Time: e.Time, Part: e.Part, Kind: EventOther,
+			What: fmt.Sprintf("%s conducts %d times between %s and %s", e.Part, starts, formatMillis(e.Time), formatMillis(last))})
+		k = j
+	}
+	return out
+}
+
+// formatMillis writes a time in ms with 4 decimals, as the event list.
+func formatMillis(t float64) string { return fmt.Sprintf("%.4f ms", t*1e3) }

@@ -71,7 +71,21 @@ func (tr *Trace) add(t float64, o outputs) {
 type Event struct {
 	Time float64 // s
 	What string
+	// Part and Kind describe a conduction event (the part that starts or
+	// stops conducting); Kind is EventOther for the rest.
+	Part string
+	Kind EventKind
 }
+
+// EventKind classifies events for CompactEvents.
+type EventKind int
+
+// Event kinds.
+const (
+	EventOther EventKind = iota
+	EventConductionStart
+	EventConductionEnd
+)
 
 // SolverStats counts the integrator's work.
 type SolverStats struct {
@@ -139,6 +153,15 @@ type run struct {
 
 func (r *run) note(t float64, format string, args ...any) {
 	r.res.Events = append(r.res.Events, Event{Time: t, What: fmt.Sprintf(format, args...)})
+}
+
+// noteConduction records that part starts (or stops) conducting.
+func (r *run) noteConduction(t float64, part string, start bool) {
+	e := Event{Time: t, Part: part, Kind: EventConductionStart, What: "conduction through the " + part + " starts"}
+	if !start {
+		e.Kind, e.What = EventConductionEnd, "conduction through the "+part+" ends"
+	}
+	r.res.Events = append(r.res.Events, e)
 }
 
 func (r *run) nextTimeEvent(t float64) float64 {
@@ -351,7 +374,7 @@ func (r *run) deenergize(t float64, y []float64) {
 	}
 	r.note(t, "de-energize at %.4g A", i)
 	if r.cmode != circuit.Off {
-		r.note(t, "conduction through the %s starts", r.drive.ClampName(r.cmode))
+		r.noteConduction(t, r.drive.ClampName(r.cmode), true)
 	}
 	r.scheduleRingCheck(t, y)
 }
@@ -374,13 +397,13 @@ func (r *run) circuitChange(t float64, y []float64, to circuit.Mode) {
 		if r.energized && from == circuit.Recirc {
 			// chopping: the current ran out between pulses (not logged)
 		} else {
-			r.note(t, "conduction through the %s ends", r.drive.ClampName(from))
+			r.noteConduction(t, r.drive.ClampName(from), false)
 		}
 		if m := &r.res.Metrics; r.offDone && !m.ClampConduction.Happened {
 			m.ClampConduction = Interval{true, t - r.tOff}
 		}
 	} else {
-		r.note(t, "conduction through the %s starts", r.drive.ClampName(to))
+		r.noteConduction(t, r.drive.ClampName(to), true)
 	}
 	r.cmode = to
 	r.scheduleRingCheck(t, y)

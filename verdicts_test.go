@@ -521,3 +521,32 @@ func TestDoorStrikeClampsNoHugeSnubber(t *testing.T) {
 		t.Errorf("average clamp power %g W at %g /s for %g J per operation", r.ClampPower, cmp.Rate, r.ClampEnergy)
 	}
 }
+
+// TestCompactEvents: a run of one part's conductions becomes one line;
+// shorter runs, other parts' events and other events stay.
+func TestCompactEvents(t *testing.T) {
+	t.Parallel()
+	var evs []Event
+	add := func(ms float64, part string, kind EventKind, what string) {
+		evs = append(evs, Event{Time: ms * 1e-3, Part: part, Kind: kind, What: what})
+	}
+	add(150, "", EventOther, "de-energize at 1 A")
+	add(150, "tvs", EventConductionStart, "conduction through the tvs starts")
+	add(151, "tvs", EventConductionEnd, "conduction through the tvs ends")
+	for k := 0; k < 12; k++ {
+		ms := 151.2 + 0.15*float64(k)
+		add(ms, "switch body diode", EventConductionStart, "conduction through the switch body diode starts")
+		add(ms+0.05, "switch body diode", EventConductionEnd, "conduction through the switch body diode ends")
+	}
+	add(160, "", EventOther, "rest-stop impact at 0.7 m/s")
+	got := CompactEvents(evs)
+	var whats []string
+	for _, e := range got {
+		whats = append(whats, e.What)
+	}
+	want := []string{"de-energize at 1 A", "conduction through the tvs starts", "conduction through the tvs ends",
+		"switch body diode conducts 12 times between 151.2000 ms and 152.9000 ms", "rest-stop impact at 0.7 m/s"}
+	if strings.Join(whats, "|") != strings.Join(want, "|") {
+		t.Errorf("compacted:\n%s\nwant:\n%s", strings.Join(whats, "\n"), strings.Join(want, "\n"))
+	}
+}

@@ -128,7 +128,7 @@ func printSummary(w io.Writer, path string, md *coilkick.Model, res *coilkick.Re
 	s.stress(m)
 	s.balance(m)
 	fmt.Fprintln(b, "\nEvents")
-	for _, e := range res.Events {
+	for _, e := range coilkick.CompactEvents(res.Events) {
 		fmt.Fprintf(b, "  %10.4f ms  %s\n", e.Time*1e3, e.What)
 	}
 	fmt.Fprintf(b, "\nSolver: %s, %d steps (%d rejected), %d events, %d evaluations\n",
@@ -327,6 +327,7 @@ type coilkickNote struct {
 type jsonEvent struct {
 	Time float64 `json:"time_s"`
 	What string  `json:"what"`
+	Part string  `json:"part,omitempty"` // the part of a conduction event
 }
 
 type jsonCheck struct {
@@ -476,7 +477,7 @@ func writeJSON(w io.Writer, md *coilkick.Model, res *coilkick.Result, as *coilki
 		doc.Notes = append(doc.Notes, coilkickNote{n.Figure, n.Level, n.Text})
 	}
 	for _, e := range res.Events {
-		doc.Events = append(doc.Events, jsonEvent{e.Time, e.What})
+		doc.Events = append(doc.Events, jsonEvent{e.Time, e.What, e.Part})
 	}
 	enc := json.NewEncoder(w)
 	enc.SetIndent("", "  ")

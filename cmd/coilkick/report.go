@@ -377,7 +377,7 @@ func buildReport(path string, md *coilkick.Model, sc *coilkick.Scenario, res *co
 	for _, n := range doc.Notes {
 		rep.Notes = append(rep.Notes, plot.ReportNote{Figure: n.Figure, Level: n.Level, Text: n.Text})
 	}
-	for _, e := range doc.Events {
+	for _, e := range coilkick.CompactEvents(res.Events) { // the full list is in --json
 		rep.Events = append(rep.Events, plot.ReportEvent{Time: fmt.Sprintf("%.4f ms", e.Time*1e3), What: e.What})
 	}
 
