@@ -50,6 +50,13 @@ const (
 	// ringMargin: the envelope must stay this fraction below every
 	// threshold to retire the ring.
 	ringMargin = 0.02
+	// ringVisible: with a trace recorded, a ring that decays below this
+	// fraction of the rail voltage within ringVisibleCycles periods is
+	// followed until then, so that the waveform shows it die out as a
+	// bench would (a damped ring costs little); a slower one is retired at
+	// once and the trace shows its mean.
+	ringVisible       = 0.01
+	ringVisibleCycles = 20
 	// ringProbe is the small current (A) at which the incremental
 	// inductance and the force slope are taken.
 	ringProbe = 1e-6
@@ -172,6 +179,14 @@ func (r *run) tryRetireRing(t float64, y []float64) {
 		rail-amp*(1+ringMargin) < m.MinSwitchVoltage {
 		r.scheduleRingCheck(t, y)
 		return
+	}
+	if !r.noTrace && amp > ringVisible*rail {
+		rate, _, _, _ := r.ringRates(l, r.resistance(y), c) // energy decay rate; the amplitude decays at half
+		period := 2 * math.Pi * math.Sqrt(l*c)
+		if math.Log(amp/(ringVisible*rail))/(0.5*rate) <= ringVisibleCycles*period {
+			r.scheduleRingCheck(t, y) // a damped ring: let the trace show it die out
+			return
+		}
 	}
 	// Retire. The node moves to the rail with the switch capacitance's
 	// charge change Coss·v_coil drawn from the supply (rail·Coss·v_coil of
