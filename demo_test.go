@@ -3,9 +3,10 @@ package coilkick
 import (
 	"math"
 	"path/filepath"
+	"strings"
+	"testing"
 
 	"coilkick/magnet"
-	"testing"
 )
 
 // demoScenarios lists the committed demo scenarios.
@@ -120,18 +121,52 @@ func TestStepBudgetError(t *testing.T) {
 	}
 }
 
-// benchActuation times one full actuation of a scenario, without the trace.
+// benchActuation times one full actuation of a scenario, without the trace,
+// and reports its integrator steps (machine-independent).
 func benchActuation(b *testing.B, path string) {
 	md, err := LoadModel(path)
 	if err != nil {
 		b.Fatal(err)
 	}
+	benchModel(b, md)
+}
+
+func benchModel(b *testing.B, md *Model) {
 	b.ReportAllocs()
+	var res *Result
+	var err error
 	for b.Loop() {
-		if _, err := Simulate(md, &Options{NoTrace: true}); err != nil {
+		if res, err = Simulate(md, &Options{NoTrace: true}); err != nil {
 			b.Fatal(err)
 		}
 	}
+	b.ReportMetric(float64(res.Stats.Steps), "steps")
+}
+
+// Every demo's single actuation (target: under 2 ms each).
+func BenchmarkActuationDemos(b *testing.B) {
+	files, _ := filepath.Glob("scenarios/*.yaml")
+	for _, f := range files {
+		b.Run(strings.TrimSuffix(filepath.Base(f), ".yaml"), func(b *testing.B) { benchActuation(b, f) })
+	}
+}
+
+// The irrigation valve with a 400 pF switch capacitance (target: at most
+// twice the steps without it), and the door latch with a core loss
+// resistance (target: under 500 steps).
+func BenchmarkActuationParasitics(b *testing.B) {
+	irr, err := LoadModel("scenarios/irrigation-valve.yaml")
+	if err != nil {
+		b.Fatal(err)
+	}
+	irr.Drive.Switch.OutputCapacitance = 400e-12
+	b.Run("irrigation+400pF", func(b *testing.B) { benchModel(b, irr) })
+	dl, err := LoadModel("scenarios/door-latch.yaml")
+	if err != nil {
+		b.Fatal(err)
+	}
+	dl.CoreLossResistance = 10e3
+	b.Run("door-latch+coreloss", func(b *testing.B) { benchModel(b, dl) })
 }
 
 // The 24 V demo with a freewheel diode (design target: under 2 ms).

@@ -49,6 +49,10 @@ type odeSystem interface {
 	// explicit method would have to resolve (asked at the start and after
 	// every event).
 	stiff() bool
+	// dynamic returns the fed-back states the present modes let change
+	// (nil: all); the others have identically zero derivatives until the
+	// next event.
+	dynamic() []int
 }
 
 // odeSettings tunes the integrator.
@@ -156,6 +160,7 @@ func newODE(sys odeSystem, n int, set odeSettings) *odeIntegrator {
 // choose picks the method for the segment that starts now and returns the
 // step-size exponent's order.
 func (in *odeIntegrator) choose() float64 {
+	in.implicit.(*rodas).setColumns(in.sys.dynamic())
 	if in.set.Stiff || in.sys.stiff() {
 		in.m = in.implicit
 	} else {
@@ -325,6 +330,7 @@ func (in *odeIntegrator) run(t0 float64, y []float64) error {
 		}
 		h *= fac
 		if switchNow {
+			in.implicit.(*rodas).setColumns(in.sys.dynamic())
 			in.m = in.implicit
 			q = float64(in.m.order())
 			in.stats.Switches++

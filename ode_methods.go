@@ -132,6 +132,20 @@ type rodas struct {
 	fa, yt, rhs   []float64
 	y0c, y1c, f1v []float64
 	cont3, cont4  []float64
+	fac           float64 // 1/(γh) of the last attempt
+	cols          []int   // Jacobian columns taken (the others are zero)
+	all           []int   // 0 … nj−1
+}
+
+// setColumns sets the Jacobian columns to take (nil: all nj).
+func (m *rodas) setColumns(cols []int) {
+	if cols == nil {
+		cols = m.all
+	}
+	m.cols = cols
+	for i := range m.jac {
+		m.jac[i] = 0
+	}
 }
 
 // RODAS4 coefficients (Hairer & Wanner, code RODAS, METH = 1).
@@ -162,6 +176,10 @@ func newRodas(n, nj int, f func(float64, []float64, []float64), norm func(err, y
 	for i := range m.k {
 		m.k[i] = v()
 	}
+	for j := 0; j < nj; j++ {
+		m.all = append(m.all, j)
+	}
+	m.cols = m.all
 	return m
 }
 
@@ -180,14 +198,30 @@ func (m *rodas) stage(t, h float64, s int, c ...float64) {
 		}
 		ks[i] = v
 	}
-	luSolve(m.w, m.piv, m.n, ks)
+	m.solve(ks)
+}
+
+// solve solves W·x = b in place in b, W = [[W11, 0], [−J21, fac·I]]:
+// x1 = W11⁻¹·b1 by the LU factors, then x2 = (b2 + J21·x1)/fac.
+func (m *rodas) solve(b []float64) {
+	n, nj := m.n, m.nj
+	luSolve(m.w, m.piv, nj, b[:nj])
+	for i := nj; i < n; i++ {
+		v := b[i]
+		for j := 0; j < nj; j++ {
+			v += m.jac[i*n+j] * b[j]
+		}
+		b[i] = v / m.fac
+	}
 }
 
 func (m *rodas) attempt(t, h float64, y, f0, y1 []float64) float64 {
 	n := m.n
 	copy(m.y0c, y)
-	// Jacobian by forward differences (columns of the fed-back states).
-	for j := 0; j < m.nj; j++ {
+	// Jacobian by forward differences, on the columns of the fed-back
+	// states that the present modes let change (a frozen state's row is
+	// zero, so its stage increments are zero and its column is not needed).
+	for _, j := range m.cols {
 		dj := math.Sqrt(2.2e-16) * math.Max(math.Abs(y[j]), 1e-8)
 		if y[j] < 0 {
 			dj = -dj
@@ -200,25 +234,27 @@ func (m *rodas) attempt(t, h float64, y, f0, y1 []float64) float64 {
 			m.jac[i*n+j] = (m.fa[i] - f0[i]) / dj
 		}
 	}
+	// W = 1/(γh)·I − J is block lower triangular: the quadratures (rows
+	// and columns from nj on) do not feed back, so only the nj×nj block
+	// is factored (see solve).
 	fac := 1 / (roGamma * h)
-	for i := 0; i < n; i++ {
-		for j := 0; j < n; j++ {
-			v := 0.0
-			if j < m.nj {
-				v = -m.jac[i*n+j]
-			}
+	m.fac = fac
+	nj := m.nj
+	for i := 0; i < nj; i++ {
+		for j := 0; j < nj; j++ {
+			v := -m.jac[i*n+j]
 			if i == j {
 				v += fac
 			}
-			m.w[i*n+j] = v
+			m.w[i*nj+j] = v
 		}
 	}
-	if !luFactor(m.w, m.piv, n) {
+	if !luFactor(m.w, m.piv, nj) {
 		return math.Inf(1)
 	}
 	k := &m.k
 	copy(k[0], f0)
-	luSolve(m.w, m.piv, n, k[0])
+	m.solve(k[0])
 	for i := range y {
 		m.yt[i] = y[i] + roA21*k[0][i]
 	}

@@ -58,6 +58,8 @@ func (s *testSys) event(t float64, y []float64, k int) (bool, error) {
 
 func (s *testSys) stiff() bool { return false }
 
+func (s *testSys) dynamic() []int { return nil }
+
 func (s *testSys) accepted(v *stepView) {
 	s.samples = append(s.samples, [2]float64{v.t1, v.y1[0]})
 }

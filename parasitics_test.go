@@ -260,3 +260,43 @@ func TestDemoFiguresUnchanged(t *testing.T) {
 		}
 	}
 }
+
+// TestParasiticsStepBudgets: the step targets of realistic parasitics
+// (steps are machine-independent): the irrigation valve with 400 pF at
+// most twice its steps without; the door latch (avalanche and an undamped
+// ring) under 2 000, with a core-loss resistance under 500; the geometry
+// demo (eddy turn and switch capacitance) under 1 000.
+func TestParasiticsStepBudgets(t *testing.T) {
+	t.Parallel()
+	steps := func(md *Model) int {
+		res, err := Simulate(md, &Options{NoTrace: true})
+		if err != nil {
+			t.Fatal(err)
+		}
+		return res.Stats.Steps
+	}
+	load := func(name string) *Model {
+		md, err := LoadModel("scenarios/" + name + ".yaml")
+		if err != nil {
+			t.Fatal(err)
+		}
+		return md
+	}
+	irr := load("irrigation-valve")
+	plain := steps(irr)
+	irr.Drive.Switch.OutputCapacitance = 400e-12
+	if s := steps(irr); s > 2*plain {
+		t.Errorf("irrigation valve + 400 pF: %d steps, without %d", s, plain)
+	}
+	dl := load("door-latch")
+	if s := steps(dl); s >= 2000 {
+		t.Errorf("door latch: %d steps", s)
+	}
+	dl.CoreLossResistance = 10e3
+	if s := steps(dl); s >= 500 {
+		t.Errorf("door latch with core loss: %d steps", s)
+	}
+	if s := steps(load("dosing-valve-geometry")); s >= 1000 {
+		t.Errorf("geometry demo: %d steps", s)
+	}
+}

@@ -124,6 +124,7 @@ type run struct {
 	ringBandAt          float64         // V, the coil-voltage band the retired ring must stay within
 	ringUnsafe          bool            // the retired ring's envelope came near a threshold
 	scale               []float64       // the integrator's state scales (ring.go activates sRing)
+	cols                []int           // scratch for dynamic
 	off                 [nState]float64 // state at the de-energize command
 	inWindow            bool
 	win                 [nState]float64 // state at the window start
@@ -195,6 +196,34 @@ func (r *run) stiff() bool {
 		return true
 	}
 	return r.eddy > 0 && r.cmode == circuit.Off && r.drive.HasSwitchCap()
+}
+
+// dynamic returns the fed-back states that can change in the present
+// modes: the flux; gap and velocity while the plunger moves; the switch
+// node while nothing pins it; the snubber and bulk capacitors when fitted;
+// the temperatures with a thermal model; the retired ring's energy.
+func (r *run) dynamic() []int {
+	cols := r.cols[:0]
+	cols = append(cols, sFlux)
+	if r.mmode == mechFree {
+		cols = append(cols, sGap, sVel)
+	}
+	if r.cmode == circuit.Off && r.drive.HasSwitchCap() {
+		cols = append(cols, sSwitchC)
+	}
+	if r.drive.Suppressor.Kind == circuit.Snubber {
+		cols = append(cols, sSnubberC)
+	}
+	if r.bulkC > 0 {
+		cols = append(cols, sBus)
+	}
+	if r.thermal != nil {
+		cols = append(cols, sWinding, sHousing)
+	}
+	if r.ringRetired {
+		cols = append(cols, sRing)
+	}
+	return cols
 }
 
 // settleTol is how far past zero a guard must be for settle to change
@@ -588,8 +617,8 @@ func Simulate(md *Model, opt *Options) (*Result, error) {
 	}
 	res := &Result{}
 	r := &run{system: sys, tOn: timing.EnergizeAt, tOff: timing.DeenergizeAt, tEnd: timing.End, tRing: math.Inf(1),
-		noRetire: opt.FollowRing,
-		res:      res, noTrace: opt.NoTrace, baseV0: drive.Supply.Voltage, tRevEnd: math.Inf(1),
+		noRetire: opt.FollowRing, cols: make([]int, 0, stateJac),
+		res: res, noTrace: opt.NoTrace, baseV0: drive.Supply.Voltage, tRevEnd: math.Inf(1),
 		riseTime: md.RiseTime, fallTime: md.FallTime, sampleTimes: opt.SampleTimes}
 	r.ctl.Control = md.Control
 	// The hold window: the second half of the hold phase (after the peak

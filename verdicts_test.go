@@ -248,8 +248,9 @@ func TestLimitRule(t *testing.T) {
 		}
 	}
 	// A switch clamp at exactly the switch's rating passes: the geometry
-	// demo's clamp moved to its 60 V rating peaks at 60.00000007 V (the
-	// switch capacitance is slaved to the clamp within the tolerance).
+	// demo's clamp moved to its 60 V rating peaks a few µV above 60 V (the
+	// node overshoots the clamp by its slope times the event location's
+	// tolerance).
 	md, err := LoadModel("scenarios/dosing-valve-geometry.yaml")
 	if err != nil {
 		t.Fatal(err)
@@ -264,7 +265,7 @@ func TestLimitRule(t *testing.T) {
 	for _, c := range md.Assess(res).Checks {
 		if c.Name == "peak switch voltage" {
 			found = true
-			if !c.Pass || math.Abs(c.Value-60) > 1e-5 {
+			if !c.Pass || math.Abs(c.Value-60) > LimitRelTol*60 {
 				t.Errorf("switch clamp at its 60 V rating: peak %.12g V, pass %v", c.Value, c.Pass)
 			}
 		}
