@@ -307,15 +307,22 @@ func BenchmarkPeakHold1s20kHz(b *testing.B) {
 	if err != nil {
 		b.Fatal(err)
 	}
-	b.ReportAllocs()
-	var res *Result
-	for b.Loop() {
-		if res, err = Simulate(md, &Options{NoTrace: true}); err != nil {
-			b.Fatal(err)
+	for _, follow := range []bool{true, false} {
+		name := "every-period"
+		if !follow {
+			name = "steady-state-repeated"
 		}
+		b.Run(name, func(b *testing.B) {
+			b.ReportAllocs()
+			var res *Result
+			for b.Loop() {
+				if res, err = Simulate(md, &Options{NoTrace: true, FollowPeriods: follow}); err != nil {
+					b.Fatal(err)
+				}
+			}
+			st := res.Stats
+			b.ReportMetric(float64(st.Steps), "steps")
+			b.ReportMetric(float64(st.Steps)/float64(st.Events), "steps/event")
+		})
 	}
-	st := res.Stats
-	span := md.Timing.End - md.Timing.EnergizeAt
-	b.ReportMetric(float64(st.Events)/span, "events/s-simulated")
-	b.ReportMetric(float64(st.Steps)/float64(st.Events), "steps/event")
 }

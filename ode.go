@@ -55,6 +55,13 @@ type odeSystem interface {
 	dynamic() []int
 }
 
+// fastForwarder is a system that may jump ahead in time after an event,
+// repeating what it knows to be periodic: it changes y and returns the new
+// time (t when it does not jump).
+type fastForwarder interface {
+	fastForward(t float64, y []float64) float64
+}
+
 // odeSettings tunes the integrator.
 type odeSettings struct {
 	RelTol   float64   // relative tolerance
@@ -223,6 +230,7 @@ func (in *odeIntegrator) run(t0 float64, y []float64) error {
 				if stop || err != nil {
 					return err
 				}
+				t = in.jump(t, y)
 				h = restart()
 				ng = in.sys.guards(t, y, g0)
 				continue
@@ -298,6 +306,10 @@ func (in *odeIntegrator) run(t0 float64, y []float64) error {
 				}
 			}
 			hOld := h
+			if t2 := in.jump(t, y); t2 != t {
+				t = t2
+				hOld = math.Inf(1)
+			}
 			h = math.Min(restart(), hOld)
 			ng = in.sys.guards(t, y, g0)
 			continue
@@ -340,6 +352,12 @@ func (in *odeIntegrator) run(t0 float64, y []float64) error {
 			if stop || err != nil {
 				return err
 			}
+			if t2 := in.jump(t, y); t2 != t {
+				t = t2
+				h = restart()
+				ng = in.sys.guards(t, y, g0)
+				continue
+			}
 			// Restart with the step the controller wanted before it was
 			// shortened to land here: time events (switch edges) recur, and
 			// the first step's error test catches a change of pace.
@@ -355,6 +373,16 @@ func (in *odeIntegrator) run(t0 float64, y []float64) error {
 			ng = in.sys.guards(t, y, g0)
 		}
 	}
+}
+
+// jump lets a fastForwarder system repeat periods after an event at t and
+// returns the new time.
+func (in *odeIntegrator) jump(t float64, y []float64) float64 {
+	ff, ok := in.sys.(fastForwarder)
+	if !ok {
+		return t
+	}
+	return ff.fastForward(t, y)
 }
 
 func (in *odeIntegrator) timeEvent(t float64, y []float64) (bool, error) {

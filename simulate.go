@@ -38,6 +38,10 @@ type Options struct {
 	// cycle instead of retiring it to its energy once it can no longer
 	// reach a threshold (ring.go): slower, the same figures.
 	FollowRing bool
+	// FollowPeriods integrates every period of a chopped hold instead of
+	// repeating its periodic steady state (periodic.go): slower, the same
+	// figures.
+	FollowPeriods bool
 }
 
 // Trace is the recorded time series, one sample per accepted step and one
@@ -92,7 +96,10 @@ type SolverStats struct {
 	Steps, Rejected, Events, Evaluations int
 	// StiffSteps: accepted steps taken by the implicit (Rosenbrock) method.
 	StiffSteps int
-	Method     string
+	// PeriodsRepeated: periods of a chopped hold's periodic steady state
+	// repeated instead of integrated (periodic.go).
+	PeriodsRepeated int
+	Method          string
 }
 
 // Result is the outcome of one simulated actuation.
@@ -125,6 +132,9 @@ type run struct {
 	ringUnsafe          bool            // the retired ring's envelope came near a threshold
 	scale               []float64       // the integrator's state scales (ring.go activates sRing)
 	cols                []int           // scratch for dynamic
+	per                 periodic        // turn-ons of a chopped hold (periodic.go)
+	noFastForward       bool            // integrate every period
+	tol                 float64         // the integrator's relative tolerance
 	off                 [nState]float64 // state at the de-energize command
 	inWindow            bool
 	win                 [nState]float64 // state at the window start
@@ -292,6 +302,7 @@ func (r *run) applyCommand(t float64, y []float64) {
 	switch {
 	case want && r.cmode != circuit.On:
 		r.switchOn(t, y)
+		r.per.pending = true
 		if r.inWindow {
 			if r.edges == 0 {
 				r.firstEdge = t
@@ -617,7 +628,7 @@ func Simulate(md *Model, opt *Options) (*Result, error) {
 	}
 	res := &Result{}
 	r := &run{system: sys, tOn: timing.EnergizeAt, tOff: timing.DeenergizeAt, tEnd: timing.End, tRing: math.Inf(1),
-		noRetire: opt.FollowRing, cols: make([]int, 0, stateJac),
+		noRetire: opt.FollowRing, cols: make([]int, 0, stateJac), noFastForward: opt.FollowPeriods, tol: tol,
 		res: res, noTrace: opt.NoTrace, baseV0: drive.Supply.Voltage, tRevEnd: math.Inf(1),
 		riseTime: md.RiseTime, fallTime: md.FallTime, sampleTimes: opt.SampleTimes}
 	r.ctl.Control = md.Control
@@ -669,7 +680,8 @@ func Simulate(md *Model, opt *Options) (*Result, error) {
 	in := newODE(r, nState, set)
 	err := in.run(0, y)
 	res.Stats = SolverStats{Steps: in.stats.Steps, Rejected: in.stats.Rejected, Events: in.stats.Events,
-		Evaluations: in.stats.Evals, StiffSteps: in.stats.StiffSteps, Method: "Dormand–Prince 5(4)"}
+		Evaluations: in.stats.Evals, StiffSteps: in.stats.StiffSteps, Method: "Dormand–Prince 5(4)",
+		PeriodsRepeated: r.per.skipped}
 	switch {
 	case in.stats.StiffSteps == in.stats.Steps && in.stats.Steps > 0:
 		res.Stats.Method = "RODAS4 (Hairer–Wanner)"

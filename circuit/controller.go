@@ -148,6 +148,33 @@ func (c *Controller) Start(t float64) {
 	}
 }
 
+// Held reports whether the peak or boost phase is over.
+func (c *Controller) Held() bool { return c.held }
+
+// Periodic reports whether the control's edges are scheduled by time at a
+// fixed frequency (PWM, fixed-frequency chopping); hysteresis chopping
+// follows the current instead.
+func (c *Controller) Periodic() bool {
+	return c.Mode == PWM || (c.Mode == PeakHold && c.Regulation == FixedFrequency)
+}
+
+// Skip advances the controller by n whole periods, for a run that repeats
+// a periodic steady state: the period index and the next edge move on by
+// n periods (computed from the index, as every edge). It returns the time
+// of the present period's start after the skip. Only for Periodic
+// controls, called at a period's start (just after its turn-on edge).
+func (c *Controller) Skip(n int) float64 {
+	c.period += n
+	start := c.t0 + float64(c.period)/c.Frequency
+	switch c.Mode {
+	case PWM:
+		c.edgeAt = c.t0 + (float64(c.period)+c.Duty)/c.Frequency
+	case PeakHold:
+		c.edgeAt = c.t0 + float64(c.period+1)/c.Frequency
+	}
+	return start
+}
+
 // Stop ends the energized interval.
 func (c *Controller) Stop() { c.active, c.on = false, false }
 

@@ -131,8 +131,12 @@ func printSummary(w io.Writer, path string, md *coilkick.Model, res *coilkick.Re
 	for _, e := range coilkick.CompactEvents(res.Events) {
 		fmt.Fprintf(b, "  %10.4f ms  %s\n", e.Time*1e3, e.What)
 	}
-	fmt.Fprintf(b, "\nSolver: %s, %d steps (%d rejected), %d events, %d evaluations\n",
+	fmt.Fprintf(b, "\nSolver: %s, %d steps (%d rejected), %d events, %d evaluations",
 		res.Stats.Method, res.Stats.Steps, res.Stats.Rejected, res.Stats.Events, res.Stats.Evaluations)
+	if n := res.Stats.PeriodsRepeated; n > 0 {
+		fmt.Fprintf(b, ", %d periods of the steady hold repeated", n)
+	}
+	fmt.Fprintln(b)
 	// Notes not printed beside a figure, and the general ones.
 	var rest []coilkick.Note
 	for _, n := range as.Notes {
