@@ -9,7 +9,7 @@ import (
 
 // Periodic steady state of a chopped hold.
 //
-// A PWM or peak-and-hold driver holding a seated plunger soon repeats the
+// A PWM or peak-and-hold driver holding a plunger at a stop soon repeats the
 // same switching period: the coil current, the bulk capacitor and every
 // other state come back to the same values at each turn-on edge, and every
 // energy grows by the same amount per period. A one-second hold at 20 kHz
@@ -29,7 +29,9 @@ import (
 // integrator's tolerance (a real slow drift would grow over the longer
 // span), and so must the energy increments of the last two periods. With
 // a thermal model (the resistance drifts), sampled currents requested, or
-// the plunger not seated, the run integrates every period.
+// the plunger moving, the run integrates every period. The peak phase of a
+// peak-and-hold driver repeats too once the plunger has seated, up to the
+// phase's end.
 
 // Periodic-steady-state settings.
 const (
@@ -63,7 +65,7 @@ type periodic struct {
 
 // periodicAllowed reports whether the run may repeat periods now.
 func (r *run) periodicAllowed() bool {
-	return !r.noFastForward && r.energized && r.ctl.Active() && r.ctl.Chops() && (r.ctl.Held() || r.ctl.PhaseTime() == 0) &&
+	return !r.noFastForward && r.energized && r.ctl.Active() && r.ctl.Chops() &&
 		r.mmode != mechFree && r.thermal == nil && len(r.sampleTimes) == 0 && r.cmode == circuit.On
 }
 
@@ -113,10 +115,14 @@ func (r *run) fastForward(t float64, y []float64) float64 {
 			return t
 		}
 	}
-	// The last command the periods may run up to.
+	// The last command the periods may run up to: the de-energize
+	// command, the end, the hold window's start, the end of the peak phase.
 	stop := math.Min(r.tOff, r.tEnd)
 	if r.tWin > t {
 		stop = math.Min(stop, r.tWin)
+	}
+	if pe := r.ctl.PhaseEnd(); pe > t {
+		stop = math.Min(stop, pe)
 	}
 	n := int(math.Floor((stop-t)/T)) - 2
 	if n < periodMinSkip {

@@ -2,7 +2,10 @@ package coilkick
 
 import (
 	"math"
+	"os"
+	"path/filepath"
 	"reflect"
+	"strings"
 	"testing"
 	"time"
 
@@ -240,6 +243,34 @@ func BenchmarkSweep1000(b *testing.B) {
 		b.ReportMetric(one.Seconds(), "s-1worker")
 		b.ReportMetric(all.Seconds(), "s-allcores")
 		b.ReportMetric(one.Seconds()/all.Seconds(), "speedup")
+	}
+}
+
+// A 1000-point sweep of the irrigation valve with a 400 pF switch
+// capacitance (target: under 2 s on 2 cores).
+func BenchmarkSweep1000Irrigation400pF(b *testing.B) {
+	data, err := os.ReadFile("scenarios/irrigation-valve.yaml")
+	if err != nil {
+		b.Fatal(err)
+	}
+	text := strings.Replace(string(data), "  on resistance: 40 mohm\n", "  on resistance: 40 mohm\n  output capacitance: 400 pF\n", 1)
+	path := filepath.Join(b.TempDir(), "irrigation-400pF.yaml")
+	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
+		b.Fatal(err)
+	}
+	sw, err := NewSweeper(path)
+	if err != nil {
+		b.Fatal(err)
+	}
+	v1, _ := ParseVary("supply.voltage=18 V:30 V:40")
+	v2, _ := ParseVary("plunger.spring preload=1 N:3 N:25")
+	vs := []Vary{v1, v2}
+	for b.Loop() {
+		for _, p := range sw.Sweep(vs, 0, nil) {
+			if p.Err != "" {
+				b.Fatal(p.Err)
+			}
+		}
 	}
 }
 
