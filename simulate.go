@@ -314,9 +314,53 @@ func (r *run) applyCommand(t float64, y []float64) {
 		i := r.current(y)
 		r.swEst += 0.5 * r.edgeVoltageOff(i, y) * math.Abs(i) * r.fallTime
 		vsw := r.pt.SwitchVoltage
-		r.cmode = r.chopOffMode(i)
+		mode := r.chopOffMode(i)
+		if mode == circuit.Recirc && r.drive.HasSwitchCap() {
+			r.chargeNode(y, i)
+		}
+		r.cmode = mode
 		y[sSwitchC] = vsw
 	}
+}
+
+// chargeNode moves the switch node from its on-state voltage to the
+// recirculation path's at a chopping switch-off: the coil current charges
+// the node's capacitances in nanoseconds, a singular perturbation of the
+// run. The switch capacitance's charge Coss·ΔV comes from the supply (the
+// winding capacitance's returns to the rail), the capacitors take their
+// energy change, and the coil the rest: its flux moves by that energy over
+// the current, so that the energy balance stays closed (the On → Recirc
+// jump would otherwise create the capacitors' energy from nothing).
+func (r *run) chargeNode(y []float64, i float64) {
+	r.solve(y)
+	vBefore := r.pt.SwitchVoltage
+	before := r.storedCapEnergy(y)
+	keep := r.cmode
+	r.cmode = circuit.Recirc
+	r.solve(y)
+	vAfter := r.pt.SwitchVoltage
+	r.cmode = keep
+	source := r.fromRail(y, r.drive.Switch.OutputCapacitance*(vAfter-vBefore))
+	r.cmode = circuit.Recirc
+	after := r.storedCapEnergy(y) // with the bulk capacitor's share drawn
+	r.cmode = keep
+	if i > 0 {
+		y[sFlux] += (source + before - after) / i
+	}
+}
+
+// fromRail draws the charge dq (C) from the drive's supply terminals at
+// once: from the bulk capacitor when fitted (its stored energy falls), else
+// from the ideal source, whose energy it returns (J; 0 with a bulk
+// capacitor).
+func (r *run) fromRail(y []float64, dq float64) float64 {
+	if r.bulkC > 0 {
+		y[sBus] -= dq / r.bulkC
+		return 0
+	}
+	y[qSupply] += r.v0 * dq
+	y[qSupplyQ] += dq
+	return r.v0 * dq
 }
 
 // chopOffMode is the mode a chopping switch-off takes with coil current
@@ -348,11 +392,21 @@ func (r *run) edgeVoltageOff(i float64, y []float64) float64 {
 func (r *run) switchOn(t float64, y []float64) {
 	r.solve(y)
 	vBefore := math.Abs(r.pt.SwitchVoltage)
+	vcBefore := r.pt.CoilVoltage
 	before := r.storedCapEnergy(y)
 	r.cmode = circuit.On
+	r.solve(y)
+	// The switch capacitance discharges through the switch; the winding
+	// capacitance charges to the new coil voltage from the supply through
+	// it (charge Cw·Δv_coil). What the capacitors and the supply give up
+	// is the capacitive turn-on loss.
+	source := 0.0
+	if cw := r.drive.CoilCapacitance; cw > 0 {
+		source = r.fromRail(y, cw*(r.pt.CoilVoltage-vcBefore))
+	}
 	after := r.storedCapEnergy(y)
-	if before > after {
-		y[qSwitch] += before - after // switch capacitance discharged by the switch: turn-on loss
+	if loss := before + source - after; loss > 0 {
+		y[qSwitch] += loss
 	}
 	i := r.current(y)
 	// Linear-ramp switching-loss estimate: E = ½·V·I·t_edge per edge
