@@ -69,8 +69,9 @@ const (
 	// burn risk (common practice, no source).
 	HotSurfaceCaution = 333.15 // K (60 °C)
 	// ResidualWarning: an energy-balance residual above this fraction of the
-	// supply energy is flagged as a numerical problem.
-	ResidualWarning = 1e-4
+	// largest energy that flowed is flagged as a numerical problem (a run
+	// above ResidualLimit fails).
+	ResidualWarning = 1e-6
 	// AudibleLimit: chopping below this frequency is flagged as audible
 	// (common practice, no source).
 	AudibleLimit = 20e3 // Hz
@@ -200,7 +201,7 @@ func (md *Model) Assess(res *Result) Assessment {
 		note("", "caution", "the winding runs at %.0f degC: its surface may be hot enough to burn", hot-273.15)
 	}
 	if r := m.EnergyResidualRel(); r > ResidualWarning {
-		note("energy residual", "warning", "the energy balance leaves %.2g of the supply energy unexplained: tighten the solver tolerance", r)
+		note("energy residual", "warning", "the energy balance leaves %.2g of the largest energy that flowed unexplained: tighten the solver tolerance", r)
 	}
 	note("", "info", "these are model estimates from the data in the scenario; confirm on the bench, and follow local electrical codes and licensed practice for wiring, insulation and protection")
 	return a

@@ -213,18 +213,40 @@ func (m *Metrics) init() {
 	m.PeakSwitchVoltage = math.Inf(-1)
 }
 
-// EnergyResidualRel is the energy-balance residual as a fraction of the
-// supply energy.
-func (m *Metrics) EnergyResidualRel() float64 {
-	if m.SupplyEnergy == 0 {
-		return 0
+// EnergyFlow returns the largest energy that flowed in the run (J): the
+// supply's, a loss, the mechanical work or the change of stored energy.
+// The residual is judged against it, so that a run fed from a charged
+// capacitor (no supply energy) is judged too.
+func (m *Metrics) EnergyFlow() float64 {
+	e := 0.0
+	for _, v := range [...]float64{m.SupplyEnergy, m.CoilLoss, m.SourceLoss, m.SwitchLoss, m.SuppressionLoss,
+		m.DiodeLoss, m.MechanicalWork, m.EddyLoss, m.CoreLoss, m.StoredChange, m.EnergyReturned} {
+		e = math.Max(e, math.Abs(v))
 	}
-	return math.Abs(m.EnergyResidual) / m.SupplyEnergy
+	return e
+}
+
+// EnergyResidualRel is the energy-balance residual as a fraction of the
+// largest energy that flowed (EnergyFlow; for the usual run that is the
+// supply energy).
+func (m *Metrics) EnergyResidualRel() float64 {
+	e := m.EnergyFlow()
+	if e == 0 {
+		if m.EnergyResidual == 0 {
+			return 0
+		}
+		return math.Inf(1)
+	}
+	return math.Abs(m.EnergyResidual) / e
 }
 
 // CompactRepeat is the number of conductions of one part, in a row, from
-// which CompactEvents writes them as one line.
-const CompactRepeat = 3
+// which CompactEvents writes them as one line; CompactImpacts the number of
+// impacts at one stop.
+const (
+	CompactRepeat  = 3
+	CompactImpacts = 6
+)
 
 // CompactEvents returns the events for a person to read: a run of
 // consecutive conduction events of one part (a ring turning the body diode
@@ -236,6 +258,21 @@ func CompactEvents(evs []Event) []Event {
 	var out []Event
 	for k := 0; k < len(evs); {
 		e := evs[k]
+		if e.Kind == EventImpact {
+			j := k
+			for j < len(evs) && evs[j].Kind == EventImpact && evs[j].Part == e.Part {
+				j++
+			}
+			if j-k < CompactImpacts {
+				out = append(out, evs[k:j]...)
+			} else {
+				out = append(out, Event{Time: e.Time, Part: e.Part, Kind: EventOther,
+					What: fmt.Sprintf("%d %s impacts between %s and %s, from %.3g to %.3g m/s", j-k, e.Part, formatMillis(e.Time),
+						formatMillis(evs[j-1].Time), e.Speed, evs[j-1].Speed)})
+			}
+			k = j
+			continue
+		}
 		if e.Kind != EventConductionStart {
 			out = append(out, e)
 			k++

@@ -2,6 +2,7 @@ package coilkick
 
 import (
 	"encoding/json"
+	"errors"
 	"math"
 	"os"
 	"path/filepath"
@@ -391,5 +392,64 @@ func TestChoppingParasiticsEnergyBalance(t *testing.T) {
 		if r := res.Metrics.EnergyResidualRel(); r > 1e-6 {
 			t.Errorf("Coss %g F, Rp %g ohm, Cw %g F: energy residual %.3g of supply", c.coss, c.rp, c.cw, r)
 		}
+	}
+}
+
+// TestRunChecks: a run with a non-finite figure or an energy balance that
+// does not close is a failed run (an error matching ErrRunInvalid), and the
+// residual is judged against the largest energy that flowed.
+func TestRunChecks(t *testing.T) {
+	t.Parallel()
+	m := Metrics{SupplyEnergy: 0, CoilLoss: 4.45, StoredChange: -4.45}
+	if r := m.EnergyResidualRel(); r != 0 || m.check() != nil {
+		t.Errorf("balanced run fed by a capacitor: residual %g, %v", r, m.check())
+	}
+	m.EnergyResidual = 1e-3
+	if err := m.check(); !errors.Is(err, ErrRunInvalid) || !strings.Contains(err.Error(), "4.45 J") {
+		t.Errorf("residual 1e-3 J of 4.45 J: %v", err)
+	}
+	m = Metrics{SupplyEnergy: 1, CoilLoss: 1}
+	m.Hold.ForceMargin = math.Inf(1)
+	if err := m.check(); !errors.Is(err, ErrRunInvalid) || !strings.Contains(err.Error(), `"hold force margin"`) {
+		t.Errorf("infinite margin: %v", err)
+	}
+	if w := words("PeakSwitchVoltage"); w != "peak switch voltage" {
+		t.Errorf("words = %q", w)
+	}
+}
+
+// TestZenoBounces: with a restitution of 0.9 and a vanishing stick speed the
+// bounces would accumulate forever; the run takes the plunger as resting
+// after ZenoBounces of them, in a handful of milliseconds of computing.
+func TestZenoBounces(t *testing.T) {
+	t.Parallel()
+	md, err := LoadModel("scenarios/irrigation-valve.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	md.Plunger.Restitution, md.Plunger.StickSpeed = 0.9, 1e-30
+	res, err := Simulate(md, &Options{NoTrace: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	m := &res.Metrics
+	if !m.Release.Happened || !m.Drop.Happened || m.Bounces != ZenoBounces-1 || res.Stats.Steps > 5000 {
+		t.Errorf("bounces %d, release %v, drop %v, %d steps", m.Bounces, m.Release, m.Drop, res.Stats.Steps)
+	}
+	// source: Newton's restitution law: each impact speed is 0.9 of the
+	// one before (the plunger's other forces are small against the impact
+	// during the short flights), so the hundredth impact is about 0.9^99 of
+	// the first; checked loosely (within a factor 10).
+	var speeds []float64
+	for _, e := range res.Events {
+		if e.Kind == EventImpact && e.Part == "seat" {
+			speeds = append(speeds, e.Speed)
+		}
+	}
+	if len(speeds) != ZenoBounces {
+		t.Fatalf("%d seat impacts", len(speeds))
+	}
+	if ratio := speeds[len(speeds)-1] / speeds[0]; ratio > 10*math.Pow(0.9, 99) || ratio < 0.1*math.Pow(0.9, 99) {
+		t.Errorf("last/first impact speed %.3g, Newton's law gives about %.3g", ratio, math.Pow(0.9, 99))
 	}
 }

@@ -1,8 +1,10 @@
 package coilkick
 
 import (
+	"errors"
 	"fmt"
 	"math"
+	"reflect"
 	"strconv"
 
 	"coilkick/circuit"
@@ -79,6 +81,8 @@ type Event struct {
 	// stops conducting); Kind is EventOther for the rest.
 	Part string
 	Kind EventKind
+	// Speed (m/s): of an impact.
+	Speed float64
 }
 
 // EventKind classifies events for CompactEvents.
@@ -89,6 +93,7 @@ const (
 	EventOther EventKind = iota
 	EventConductionStart
 	EventConductionEnd
+	EventImpact // Part: "seat" or "rest-stop"; Speed set
 )
 
 // SolverStats counts the integrator's work.
@@ -127,6 +132,8 @@ type run struct {
 	tWin                float64         // start of the hold window (its end is tOff)
 	tHold               float64         // start of the hold phase (end of the peak or boost phase)
 	tRing               float64         // next ring-retirement check (+Inf: none)
+	bounceRun           int             // consecutive bounces at one stop (the Zeno guard)
+	bounceAtSeat        bool            // bounceRun counts at the seat
 	noRetire            bool            // follow the ring cycle by cycle
 	ringBandAt          float64         // V, the coil-voltage band the retired ring must stay within
 	ringUnsafe          bool            // the retired ring's envelope came near a threshold
@@ -164,6 +171,12 @@ type run struct {
 
 func (r *run) note(t float64, format string, args ...any) {
 	r.res.Events = append(r.res.Events, Event{Time: t, What: fmt.Sprintf(format, args...)})
+}
+
+// noteImpact records an impact at a stop ("seat" or "rest-stop").
+func (r *run) noteImpact(t float64, stop string, speed float64) {
+	r.res.Events = append(r.res.Events, Event{Time: t, Part: stop, Kind: EventImpact, Speed: speed,
+		What: fmt.Sprintf("%s impact at %.3g m/s", stop, speed)})
 }
 
 // noteConduction records that part starts (or stops) conducting.
@@ -519,6 +532,28 @@ func (r *run) mechEvent(t float64, y []float64) {
 		if (atSeat && v >= 0) || (!atSeat && v <= 0) {
 			after, stick = 0, true
 		}
+		// Bounces at one stop whose speeds fall geometrically accumulate at
+		// a finite time after infinitely many impacts (a Zeno point) when
+		// the stick speed is tiny: take the plunger as resting after
+		// ZenoBounces of them (the speed left is restitution^ZenoBounces of
+		// the first impact's).
+		if atSeat != r.bounceAtSeat {
+			r.bounceRun, r.bounceAtSeat = 0, atSeat
+		}
+		zeno := false
+		if !stick {
+			if r.bounceRun++; r.bounceRun >= ZenoBounces {
+				after, stick, zeno = 0, true, true
+			}
+		}
+		defer func() {
+			if zeno {
+				r.note(t, "%d bounces in a row at the %s: the plunger is taken as resting there (the bounces accumulate; raise plunger.stick speed to end them sooner)", ZenoBounces, map[bool]string{true: "seat", false: "rest stop"}[atSeat])
+			}
+		}()
+		if stick {
+			r.bounceRun = 0
+		}
 		i := r.current(y)
 		if atSeat {
 			if r.energized && !m.PullIn.Happened {
@@ -529,12 +564,12 @@ func (r *run) mechEvent(t float64, y []float64) {
 			if r.energized && !stick {
 				m.Bounces++
 			}
-			r.note(t, "seat impact at %.3g m/s", math.Abs(v))
+			r.noteImpact(t, "seat", math.Abs(v))
 		} else {
 			if r.offDone && !m.Drop.Happened && m.ReleaseNotApplicable() == "" {
 				m.Drop = Interval{true, t - r.tOff}
 			}
-			r.note(t, "rest-stop impact at %.3g m/s", math.Abs(v))
+			r.noteImpact(t, "rest-stop", math.Abs(v))
 		}
 		if stick {
 			y[sVel] = 0
@@ -743,7 +778,7 @@ func Simulate(md *Model, opt *Options) (*Result, error) {
 		res.Stats.Method = fmt.Sprintf("Dormand–Prince 5(4), RODAS4 (Hairer–Wanner) where stiff (%d steps)", in.stats.StiffSteps)
 	}
 	if err != nil {
-		return res, fmt.Errorf("coilkick: simulation failed: %w", err)
+		return res, fmt.Errorf("%s: simulation failed: %w", sourceName(md), err)
 	}
 	if r.ringUnsafe {
 		// The retired ring's envelope came near a threshold: the averaging
@@ -753,7 +788,87 @@ func Simulate(md *Model, opt *Options) (*Result, error) {
 		return Simulate(md, &o)
 	}
 	r.finish(y)
+	if err := res.Metrics.check(); err != nil {
+		return res, fmt.Errorf("%s: %w", sourceName(md), err)
+	}
 	return res, nil
+}
+
+// words writes a Go field name as lower-case words for a message
+// ("PeakSwitchVoltage" → "peak switch voltage"), the names the reports use.
+func words(name string) string {
+	var b []byte
+	for k := 0; k < len(name); k++ {
+		c := name[k]
+		if c >= 'A' && c <= 'Z' {
+			if k > 0 && !(name[k-1] >= 'A' && name[k-1] <= 'Z') {
+				b = append(b, ' ')
+			}
+			c += 'a' - 'A'
+		}
+		b = append(b, c)
+	}
+	return string(b)
+}
+
+// sourceName names the scenario in messages.
+func sourceName(md *Model) string {
+	if md.Source != "" {
+		return md.Source
+	}
+	if md.Name != "" {
+		return fmt.Sprintf("scenario %q", md.Name)
+	}
+	return "scenario"
+}
+
+// ZenoBounces: this many bounces in a row at one stop end in the plunger
+// resting there.
+const ZenoBounces = 100
+
+// ResidualLimit: a run whose energy balance leaves more than this fraction
+// of the largest energy that flowed unexplained has failed (a sign or
+// coupling error, or an integration gone wrong); its figures are not
+// trustworthy. The demos leave 1e-8 to 1e-6.
+const ResidualLimit = 1e-4
+
+// ErrRunInvalid is matched (errors.Is) by a run that finished but whose
+// figures cannot be trusted: a non-finite figure, or an energy balance
+// that does not close.
+var ErrRunInvalid = errors.New("the run's figures are not trustworthy")
+
+// check refuses a run whose figures are not finite or whose energy balance
+// does not close.
+func (m *Metrics) check() error {
+	if name := nonFinite(reflect.ValueOf(m).Elem(), ""); name != "" {
+		return fmt.Errorf("%w: the figure %q is not a finite number (an input far outside its range?)", ErrRunInvalid, name)
+	}
+	if r := m.EnergyResidualRel(); r > ResidualLimit {
+		return fmt.Errorf("%w: the energy balance leaves %.2g of the largest energy that flowed (%.4g J) unexplained, above %g; tighten solver.tolerance, or check the inputs", ErrRunInvalid, r, m.EnergyFlow(), ResidualLimit)
+	}
+	return nil
+}
+
+// nonFinite returns the path of the first float field of v that is NaN or
+// infinite ("" if none).
+func nonFinite(v reflect.Value, path string) string {
+	switch v.Kind() {
+	case reflect.Float64:
+		if f := v.Float(); math.IsNaN(f) || math.IsInf(f, 0) {
+			return path
+		}
+	case reflect.Struct:
+		for k := 0; k < v.NumField(); k++ {
+			name := words(v.Type().Field(k).Name)
+			if path != "" {
+				name = path + " " + name
+			}
+			if p := nonFinite(v.Field(k), name); p != "" {
+				return p
+			}
+		}
+	}
+	return ""
 }
 
 // finish fills the energy figures.
