@@ -151,6 +151,13 @@ const (
 	convergedTol  = SteadyTol * 1e-2
 	heatGrid      = 5.0  // K: the electrical cycle is re-simulated on this temperature grid
 	maxHeatCycles = 2e6  // safety bound on the cycles stepped to find the steady state
+	// MaxStudyCycles bounds the cycles of a study with a duration; once the
+	// periodic steady state is found the rest is not stepped (a study of a
+	// year takes as long as one of a day).
+	MaxStudyCycles = 1e12
+	// steadyLead: cycles stepped at least before a long study may stop at
+	// its steady state.
+	steadyLead = 3
 	dutyTol       = 1e-4 // bisection tolerance on the relative on-time
 	supplyTol     = 5e-4 // relative bisection tolerance on the supply voltage
 )
@@ -318,6 +325,25 @@ type cycleRun struct {
 	stride             int
 }
 
+// addHistory records a cycle; past MaxHistory points it keeps every
+// second one of those kept so far and doubles the stride, and reports that
+// it did.
+func (out *cycleRun) addHistory(p HeatPoint) bool {
+	out.hist = append(out.hist, p)
+	if len(out.hist) < MaxHistory {
+		return false
+	}
+	out.stride *= 2
+	kept := out.hist[:0]
+	for _, q := range out.hist {
+		if q.Cycle%out.stride == 0 {
+			kept = append(kept, q)
+		}
+	}
+	out.hist = kept
+	return true
+}
+
 // run steps the thermal network cycle by cycle through the segments, for
 // duration (0: until the periodic steady state), and on past the duration
 // until the steady-state peak is found (HeatResult explains the terms).
@@ -330,7 +356,8 @@ func (h *heatModel) run(segs []DutySegment, duration float64, keep bool) cycleRu
 	}
 	study := int(maxHeatCycles) // cycles of the study; with no duration, until the steady state
 	if duration > 0 {
-		study = max(int(math.Ceil(duration/T-1e-9)), 1)
+		// In float first: a duration of 1e18 min overflowed the int.
+		study = int(math.Max(math.Min(math.Ceil(duration/T-1e-9), MaxStudyCycles), 1))
 	}
 	out := cycleRun{stride: 1}
 	tw, thh := ta, ta
@@ -360,17 +387,7 @@ func (h *heatModel) run(segs []DutySegment, duration float64, keep bool) cycleRu
 			startW, startH = w0, h0
 			copy(lastPowers, powers)
 			if keep && c%out.stride == 0 {
-				out.hist = append(out.hist, HeatPoint{Cycle: c, Time: float64(c) * T, Peak: peak, Valley: tw})
-				if len(out.hist) >= MaxHistory {
-					out.stride *= 2
-					kept := out.hist[:0]
-					for _, p := range out.hist {
-						if p.Cycle%out.stride == 0 {
-							kept = append(kept, p)
-						}
-					}
-					out.hist = kept
-				}
+				out.addHistory(HeatPoint{Cycle: c, Time: float64(c) * T, Peak: peak, Valley: tw})
 			}
 		}
 		if !out.found {
@@ -400,6 +417,21 @@ func (h *heatModel) run(segs []DutySegment, duration float64, keep bool) cycleRu
 		}
 		if duration == 0 && out.found {
 			study = c // the study ends in the steady state
+			break
+		}
+		if out.found && calm >= 3 && c < study && c > steadyLead {
+			// The periodic steady state is reached long before the study
+			// ends: every later cycle repeats this one (within
+			// convergedTol), so the study's last cycle is this one.
+			out.cycles = study
+			if keep {
+				// The history goes on with the repeated cycle.
+				for c2 := (c/out.stride + 1) * out.stride; c2 <= study; c2 += out.stride {
+					if out.addHistory(HeatPoint{Cycle: c2, Time: float64(c2) * T, Peak: peak, Valley: tw}) {
+						c2 = (c2 / out.stride) * out.stride
+					}
+				}
+			}
 			break
 		}
 		if c >= study && (out.found || c >= int(maxHeatCycles)) {

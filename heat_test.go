@@ -5,6 +5,7 @@ import (
 	"os"
 	"strings"
 	"testing"
+	"time"
 
 	"coilkick/circuit"
 	"coilkick/magnet"
@@ -382,6 +383,35 @@ func TestHeatHistoryEveryCycle(t *testing.T) {
 	for k, h := range long.History {
 		if h.Cycle != 2*(k+1) {
 			t.Fatalf("thinned history point %d is cycle %d, want %d", k, h.Cycle, 2*(k+1))
+		}
+	}
+}
+
+// TestHeatLongDurationStopsAtSteadyState: a study far longer than the time
+// to the periodic steady state stops stepping there (a year costs what a day
+// does) and reports the steady figures; a duration that overflowed the
+// cycle count (1e18 min) no longer gives −273 °C.
+func TestHeatLongDurationStopsAtSteadyState(t *testing.T) {
+	t.Parallel()
+	md, err := LoadModel("scenarios/door-strike-duty.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	day, err := Heat(md, DutyPattern{OnTime: 1.25, Period: 5, Duration: 24 * 3600})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, d := range []float64{365 * 24 * 3600, 1e18 * 60} {
+		start := time.Now()
+		long, err := Heat(md, DutyPattern{OnTime: 1.25, Period: 5, Duration: d})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if el := time.Since(start); el > 5*time.Second {
+			t.Errorf("duration %g s took %v", d, el)
+		}
+		if math.Abs(long.Peak-day.Peak) > SteadyTol || !long.Steady || long.Peak < 273.15 {
+			t.Errorf("duration %g s: peak %.4f K, a day gives %.4f K (steady %v)", d, long.Peak, day.Peak, long.Steady)
 		}
 	}
 }
