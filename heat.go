@@ -149,8 +149,8 @@ const (
 	// peaks move by less than this per cycle and the geometric tail of
 	// the remaining approach is below it too (three cycles running).
 	convergedTol  = SteadyTol * 1e-2
-	heatGrid      = 5.0  // K: the electrical cycle is re-simulated on this temperature grid
-	maxHeatCycles = 2e6  // safety bound on the cycles stepped to find the steady state
+	heatGrid      = 5.0 // K: the electrical cycle is re-simulated on this temperature grid
+	maxHeatCycles = 2e6 // safety bound on the cycles stepped to find the steady state
 	// MaxStudyCycles bounds the cycles of a study with a duration; once the
 	// periodic steady state is found the rest is not stepped (a study of a
 	// year takes as long as one of a day).
@@ -158,8 +158,8 @@ const (
 	// steadyLead: cycles stepped at least before a long study may stop at
 	// its steady state.
 	steadyLead = 3
-	dutyTol       = 1e-4 // bisection tolerance on the relative on-time
-	supplyTol     = 5e-4 // relative bisection tolerance on the supply voltage
+	dutyTol    = 1e-4 // bisection tolerance on the relative on-time
+	supplyTol  = 5e-4 // relative bisection tolerance on the supply voltage
 )
 
 // cycleLoss is the electrical cycle at one winding temperature.
