@@ -453,3 +453,42 @@ func TestZenoBounces(t *testing.T) {
 		t.Errorf("last/first impact speed %.3g, Newton's law gives about %.3g", ratio, math.Pow(0.9, 99))
 	}
 }
+
+// TestTraceBounded: the trace stays within its row bound on a long run
+// (here the bound lowered to 4096 rows), keeps the current's envelope, and
+// says it was thinned; the figures do not depend on it.
+func TestTraceBounded(t *testing.T) {
+	// Not parallel: it lowers a package variable.
+	keep := traceRows
+	traceRows = 4096
+	defer func() { traceRows = keep }()
+	md, err := LoadModel("scenarios/peak-hold-valve.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, follow := range []bool{true, false} {
+		res, err := Simulate(md, &Options{FollowPeriods: follow})
+		if err != nil {
+			t.Fatal(err)
+		}
+		tr := &res.Trace
+		hi, lo := math.Inf(-1), math.Inf(1)
+		for k, tt := range tr.Time {
+			if tt > 0.5 && tt < 0.9 {
+				hi, lo = math.Max(hi, tr.Current[k]), math.Min(lo, tr.Current[k])
+			}
+		}
+		h := res.Metrics.Hold
+		if len(tr.Time) > traceRows || tr.Thinned == 0 {
+			t.Errorf("follow %v: %d rows, thinned %d times", follow, len(tr.Time), tr.Thinned)
+		}
+		if math.Abs(hi-h.MaxCurrent) > 0.05*h.Ripple || math.Abs(lo-h.MinCurrent) > 0.05*h.Ripple {
+			t.Errorf("follow %v: thinned trace spans %.6g..%.6g A in the hold, the hold %.6g..%.6g A", follow, lo, hi, h.MinCurrent, h.MaxCurrent)
+		}
+		for k := 1; k < len(tr.Time); k++ {
+			if tr.Time[k] < tr.Time[k-1] {
+				t.Fatalf("follow %v: time goes back at row %d", follow, k)
+			}
+		}
+	}
+}

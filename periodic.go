@@ -153,14 +153,21 @@ func (r *run) fastForward(t float64, y []float64) float64 {
 }
 
 // repeat appends n copies of the samples [from, to), shifted by multiples
-// of period (s), after the last sample.
+// of period (s), after the last sample (fewer when that would pass half of
+// MaxTraceRows).
 func (tr *Trace) repeat(from, to, n int, period float64) {
 	if to <= from {
 		return
 	}
-	cols := [...]*[]float64{&tr.Current, &tr.CoilVoltage, &tr.SwitchVoltage, &tr.Gap, &tr.Velocity,
-		&tr.MagneticForce, &tr.PassiveForce, &tr.WindingTemperature}
-	for k := 1; k <= n; k++ {
+	// Within MaxTraceRows: every k-th period only (they are identical, the
+	// envelope stays).
+	every := 1
+	if rows := n * (to - from); len(tr.Time)+rows > traceRows/2 {
+		every = (rows + traceRows/4 - 1) / (traceRows / 4)
+		tr.Thinned++
+	}
+	cols := tr.columns()
+	for k := every; k <= n; k += every {
 		shift := float64(k) * period
 		for j := from; j < to; j++ {
 			tr.Time = append(tr.Time, tr.Time[j]+shift)

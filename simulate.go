@@ -59,9 +59,65 @@ type Trace struct {
 	PassiveForce  []float64 // spring + load − damping, pushing the gap open
 	// WindingTemperature (K): constant unless the scenario has a thermal model.
 	WindingTemperature []float64
+	// Thinned: the trace grew past MaxTraceRows and was thinned this many
+	// times, each time to the rows of the lowest and highest current in each
+	// run of four (the envelope stays; 0: every step is there).
+	Thinned int
+}
+
+// MaxTraceRows bounds the trace kept in memory (about 80 MB): a long run
+// keeps the envelope of its current, not every step. Figures and events
+// are computed during the run and do not depend on it.
+const MaxTraceRows = 1 << 20
+
+// traceRows is MaxTraceRows (a variable so that a test can lower it).
+var traceRows = MaxTraceRows
+
+// columns returns the trace's columns other than time.
+func (tr *Trace) columns() [8]*[]float64 {
+	return [...]*[]float64{&tr.Current, &tr.CoilVoltage, &tr.SwitchVoltage, &tr.Gap, &tr.Velocity,
+		&tr.MagneticForce, &tr.PassiveForce, &tr.WindingTemperature}
+}
+
+// thin halves the trace: of each run of four rows it keeps those of the
+// lowest and the highest current, in time order.
+func (tr *Trace) thin() {
+	n := len(tr.Time)
+	keep := make([]int, 0, n/2+2)
+	for k := 0; k < n; k += 4 {
+		end := min(k+4, n)
+		lo, hi := k, k
+		for j := k; j < end; j++ {
+			if tr.Current[j] < tr.Current[lo] {
+				lo = j
+			}
+			if tr.Current[j] > tr.Current[hi] {
+				hi = j
+			}
+		}
+		if lo > hi {
+			lo, hi = hi, lo
+		}
+		keep = append(keep, lo)
+		if hi != lo {
+			keep = append(keep, hi)
+		}
+	}
+	c8 := tr.columns()
+	cols := append(c8[:], &tr.Time)
+	for _, c := range cols {
+		for i, j := range keep {
+			(*c)[i] = (*c)[j]
+		}
+		*c = (*c)[:len(keep)]
+	}
+	tr.Thinned++
 }
 
 func (tr *Trace) add(t float64, o outputs) {
+	if len(tr.Time) >= traceRows {
+		tr.thin()
+	}
 	tr.Time = append(tr.Time, t)
 	tr.Current = append(tr.Current, o.Current)
 	tr.CoilVoltage = append(tr.CoilVoltage, o.CoilVoltage)

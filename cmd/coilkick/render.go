@@ -137,6 +137,9 @@ func printSummary(w io.Writer, path string, md *coilkick.Model, res *coilkick.Re
 		fmt.Fprintf(b, ", %d periods of the steady hold repeated", n)
 	}
 	fmt.Fprintln(b)
+	if n := res.Trace.Thinned; n > 0 {
+		fmt.Fprintf(b, "Trace: thinned %d times to stay within %d rows (the rows of the lowest and highest current are kept; the figures above do not depend on it)\n", n, coilkick.MaxTraceRows)
+	}
 	// Notes not printed beside a figure, and the general ones.
 	var rest []coilkick.Note
 	for _, n := range as.Notes {
