@@ -2,7 +2,9 @@ package coilkick
 
 import (
 	"errors"
+	"fmt"
 	"math"
+	"reflect"
 )
 
 // MagnetSummary is what the magnet alone does at the scenario's supply:
@@ -59,6 +61,15 @@ func (md *Model) MagnetSummary() MagnetSummary {
 	s.SaturationSeated = saturationOnset(md, p.GapMin, s.RatedCurrent)
 	s.SaturationRest = saturationOnset(md, p.GapMax, s.RatedCurrent)
 	return s
+}
+
+// Check refuses a summary with a figure that is not a finite number (an
+// input far outside its range), naming the figure.
+func (s MagnetSummary) Check() error {
+	if name := nonFinite(reflect.ValueOf(s), ""); name != "" {
+		return fmt.Errorf("the magnet figure %q is not a finite number (an input far outside its range?)", name)
+	}
+	return nil
 }
 
 // incremental returns ∂λ/∂i at (i, x) by a central difference.
