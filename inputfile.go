@@ -44,19 +44,35 @@ func ReadInput(path, what string, limit int64) ([]byte, error) {
 func OpenInput(path, what string, limit int64) (*os.File, error) {
 	st, err := os.Stat(path)
 	if err != nil {
-		return nil, fmt.Errorf("%s: %s: %v", path, what, unwrapPathError(err))
+		return nil, fmt.Errorf("%s: cannot read %s: %v", path, what, unwrapPathError(err))
 	}
 	if !st.Mode().IsRegular() {
-		return nil, fmt.Errorf("%s: %s is not a regular file (%v): refused", path, what, st.Mode().Type())
+		return nil, fmt.Errorf("%s: %s is %s, not a regular file: refused", path, what, describeFileMode(st.Mode()))
 	}
 	if st.Size() > limit {
 		return nil, fmt.Errorf("%s: %s of %d bytes is larger than %d bytes: refused", path, what, st.Size(), limit)
 	}
 	f, err := os.Open(path)
 	if err != nil {
-		return nil, fmt.Errorf("%s: %s: %v", path, what, unwrapPathError(err))
+		return nil, fmt.Errorf("%s: cannot read %s: %v", path, what, unwrapPathError(err))
 	}
 	return f, nil
+}
+
+// describeFileMode names the type of a file that is not a regular one,
+// for messages: "a directory", "a named pipe (FIFO)", "a device".
+func describeFileMode(m os.FileMode) string {
+	switch {
+	case m.IsDir():
+		return "a directory"
+	case m&os.ModeNamedPipe != 0:
+		return "a named pipe (FIFO)"
+	case m&os.ModeSocket != 0:
+		return "a socket"
+	case m&os.ModeDevice != 0:
+		return "a device"
+	}
+	return "a special file"
 }
 
 // unwrapPathError drops the path os.PathError repeats.

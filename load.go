@@ -12,20 +12,21 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"unicode"
+	"unicode/utf8"
+
+	"coilkick/magnet"
 
 	"gopkg.in/yaml.v3"
 )
 
 // Load reads and checks the scenario file at path. See Parse for the
-// file's keys, units and defaults.
+// file's keys, units and defaults. The file must be a regular file of at
+// most MaxScenarioBytes (see ReadInput).
 func Load(path string) (*Scenario, error) {
-	data, err := os.ReadFile(path)
+	data, err := ReadInput(path, "scenario file", MaxScenarioBytes)
 	if err != nil {
-		var pe *os.PathError
-		if errors.As(err, &pe) {
-			err = pe.Err
-		}
-		return nil, fmt.Errorf("%s: cannot read scenario file: %v", path, err)
+		return nil, err
 	}
 	return Parse(data, path)
 }
@@ -156,6 +157,9 @@ func parse(data []byte, name string, sections map[string][]string) (s *Scenario,
 		if r := recover(); r != nil {
 			s, err = nil, fmt.Errorf("%sinternal error while reading the scenario (please report this): %v", filePrefix(name), r)
 		}
+		if err != nil {
+			err = escapeLines(err)
+		}
 	}()
 	s = &Scenario{Source: name, pos: map[string]Pos{}}
 	if len(bytes.TrimSpace(data)) == 0 {
@@ -276,7 +280,7 @@ func (l *scenarioLoader) errAt(field string, p Pos, format string, args ...any) 
 	default:
 		full = fmt.Sprintf("%s%s: %s", filePrefix(l.name), field, msg)
 	}
-	l.errs = append(l.errs, loadError{p, full})
+	l.errs = append(l.errs, loadError{p, escapeControl(full)})
 }
 
 // errf records an error at the recorded position of field.
@@ -478,22 +482,26 @@ func (l *scenarioLoader) quantity(sec *yamlSection, key string, dim Dim, require
 	return v, true
 }
 
-// Range rules for a quantity read from path.
-type rangeRule int
+// get reads a quantity, checks it against its key's range (see
+// scenarioRanges) and stores it in *dst. An optional missing key stores def
+// (describing it as defText for messages).
+func (l *scenarioLoader) get(sec *yamlSection, key string, dim Dim, dst *float64, required bool, def float64, defText string) bool {
+	if sec == nil {
+		return false
+	}
+	return l.getIn(sec, key, dim, fieldPath(sec.path, key), dst, required, def, defText)
+}
 
-const (
-	ruleAny      rangeRule = iota
-	rulePositive           // > 0
-	ruleNonNeg             // >= 0
-)
-
-// get reads a quantity, checks rule, and stores it in *dst. An optional
-// missing key stores def (describing it as defText for messages).
-func (l *scenarioLoader) get(sec *yamlSection, key string, dim Dim, r rangeRule, dst *float64, required bool, def float64, defText string) bool {
+// getIn is get with the range of scenarioRanges[rangeKey].
+func (l *scenarioLoader) getIn(sec *yamlSection, key string, dim Dim, rangeKey string, dst *float64, required bool, def float64, defText string) bool {
 	if sec == nil {
 		return false
 	}
 	path := fieldPath(sec.path, key)
+	r, ok := scenarioRanges[rangeKey]
+	if !ok || r.dim != dim {
+		panic(fmt.Sprintf("no range of %s for %s", dim.Name(), rangeKey)) // a programmer error: every key has one
+	}
 	if !sec.has(key) && !required {
 		*dst = def
 		l.ok[path] = true
@@ -504,13 +512,8 @@ func (l *scenarioLoader) get(sec *yamlSection, key string, dim Dim, r rangeRule,
 	if !ok {
 		return false
 	}
-	switch {
-	case r == rulePositive && !(v > 0):
-		l.errf(path, "%q must be greater than 0", l.text[path])
-		l.ok[path] = false
-		return false
-	case r == ruleNonNeg && v < 0:
-		l.errf(path, "%q must not be negative", l.text[path])
+	if !r.contains(v) {
+		l.errf(path, "%s", r.problem(l.text[path], v))
 		l.ok[path] = false
 		return false
 	}
@@ -641,7 +644,11 @@ func (l *scenarioLoader) load(root *yaml.Node) {
 	}
 	s := l.s
 	if text, ok := l.scalar(top, "name", false, "a name (text)"); ok {
-		s.Name = text
+		if why := badName(text); why != "" {
+			l.errf("name", "%s", why)
+		} else {
+			s.Name = text
+		}
 	}
 	need := func(key string, keys []string) *yamlSection {
 		if !top.has(key) {
@@ -661,15 +668,15 @@ func (l *scenarioLoader) load(root *yaml.Node) {
 	solver := l.sub(top, "solver", solverKeys)
 
 	// supply
-	l.get(supply, "voltage", Voltage, rulePositive, &s.Supply.Voltage, true, 0, "")
-	l.get(supply, "source resistance", Resistance, ruleNonNeg, &s.Supply.SourceResistance, false, 0, "0 ohm")
+	l.get(supply, "voltage", Voltage, &s.Supply.Voltage, true, 0, "")
+	l.get(supply, "source resistance", Resistance, &s.Supply.SourceResistance, false, 0, "0 ohm")
 	if supply != nil && supply.has("low voltage") {
-		if l.get(supply, "low voltage", Voltage, rulePositive, &s.Supply.LowVoltage, true, 0, "") {
+		if l.get(supply, "low voltage", Voltage, &s.Supply.LowVoltage, true, 0, "") {
 			l.exceed("supply.voltage", s.Supply.Voltage, "supply.low voltage", s.Supply.LowVoltage, true)
 		}
 	}
 	if supply != nil && supply.has("bulk capacitance") {
-		if l.get(supply, "bulk capacitance", Capacitance, rulePositive, &s.Supply.BulkCapacitance, true, 0, "") && !(s.Supply.SourceResistance > 0) {
+		if l.get(supply, "bulk capacitance", Capacitance, &s.Supply.BulkCapacitance, true, 0, "") && !(s.Supply.SourceResistance > 0) {
 			l.errf("supply.bulk capacitance", "needs a supply.source resistance > 0 (the capacitor would be tied to an ideal source)")
 		}
 	}
@@ -679,12 +686,12 @@ func (l *scenarioLoader) load(root *yaml.Node) {
 	l.loadPlunger(plunger)
 
 	// switch
-	l.get(sw, "on resistance", Resistance, ruleNonNeg, &s.Switch.OnResistance, true, 0, "")
-	l.get(sw, "output capacitance", Capacitance, ruleNonNeg, &s.Switch.OutputCapacitance, false, 0, "0 F")
-	l.get(sw, "breakdown voltage", Voltage, rulePositive, &s.Switch.BreakdownVoltage, true, 0, "")
-	l.get(sw, "body diode drop", Voltage, rulePositive, &s.Switch.BodyDiodeDrop, false, defaultBodyDiodeDrop, "0.7 V")
-	l.get(sw, "rise time", Time, ruleNonNeg, &s.Switch.RiseTime, false, 0, "0 s")
-	l.get(sw, "fall time", Time, ruleNonNeg, &s.Switch.FallTime, false, 0, "0 s")
+	l.get(sw, "on resistance", Resistance, &s.Switch.OnResistance, true, 0, "")
+	l.get(sw, "output capacitance", Capacitance, &s.Switch.OutputCapacitance, false, 0, "0 F")
+	l.get(sw, "breakdown voltage", Voltage, &s.Switch.BreakdownVoltage, true, 0, "")
+	l.get(sw, "body diode drop", Voltage, &s.Switch.BodyDiodeDrop, false, defaultBodyDiodeDrop, "0.7 V")
+	l.get(sw, "rise time", Time, &s.Switch.RiseTime, false, 0, "0 s")
+	l.get(sw, "fall time", Time, &s.Switch.FallTime, false, 0, "0 s")
 	l.exceed("switch.breakdown voltage", s.Switch.BreakdownVoltage, "supply.voltage", s.Supply.Voltage, false)
 
 	l.loadSuppression(supp)
@@ -693,21 +700,19 @@ func (l *scenarioLoader) load(root *yaml.Node) {
 	if tol := l.sub(top, "tolerances", toleranceKeys); tol != nil {
 		t := &s.Tolerances
 		frac := func(key string, dst *float64) {
-			if l.get(tol, key, Dimensionless, ruleNonNeg, dst, false, 0, "0 %") && *dst >= 1 {
-				l.errf("tolerances."+key, "%q must be below 100 %%", l.text["tolerances."+key])
-			}
+			l.get(tol, key, Dimensionless, dst, false, 0, "0 %")
 		}
 		frac("supply", &t.Supply)
 		frac("coil resistance", &t.CoilResistance)
 		frac("spring", &t.Spring)
 		frac("load", &t.Load)
-		if l.get(tol, "ambient", Temperature, ruleNonNeg, &t.Ambient, false, 0, "0 K") {
+		if l.get(tol, "ambient", Temperature, &t.Ambient, false, 0, "0 K") {
 			if txt := l.text["tolerances.ambient"]; strings.Contains(txt, "C") {
 				l.errf("tolerances.ambient", "%q: a temperature spread is written in K, e.g. \"10 K\"", txt)
 			}
 		}
 		if tol.has("hot winding") {
-			l.get(tol, "hot winding", Temperature, rulePositive, &t.HotWinding, true, 0, "")
+			l.get(tol, "hot winding", Temperature, &t.HotWinding, true, 0, "")
 		}
 	}
 	if duty := l.sub(top, "duty", dutyKeys); duty != nil {
@@ -719,24 +724,25 @@ func (l *scenarioLoader) load(root *yaml.Node) {
 			}
 			l.loadSegments(n, d)
 		} else {
-			l.get(duty, "on time", Time, rulePositive, &d.OnTime, true, 0, "")
-			l.get(duty, "period", Time, rulePositive, &d.Period, true, 0, "")
+			l.get(duty, "on time", Time, &d.OnTime, true, 0, "")
+			l.get(duty, "period", Time, &d.Period, true, 0, "")
 			l.exceed("duty.period", d.Period, "duty.on time", d.OnTime, false)
 		}
-		l.get(duty, "duration", Time, ruleNonNeg, &d.Duration, false, 0, "until the periodic steady state")
+		l.get(duty, "duration", Time, &d.Duration, false, 0, "until the periodic steady state")
 	}
 
 	// timing
-	l.get(timing, "energize at", Time, ruleNonNeg, &s.Timing.EnergizeAt, false, 0, "0 s")
-	l.get(timing, "de-energize at", Time, rulePositive, &s.Timing.DeenergizeAt, true, 0, "")
-	l.get(timing, "end", Time, rulePositive, &s.Timing.End, true, 0, "")
+	l.get(timing, "energize at", Time, &s.Timing.EnergizeAt, false, 0, "0 s")
+	l.get(timing, "de-energize at", Time, &s.Timing.DeenergizeAt, true, 0, "")
+	l.get(timing, "end", Time, &s.Timing.End, true, 0, "")
 	l.exceed("timing.de-energize at", s.Timing.DeenergizeAt, "timing.energize at", s.Timing.EnergizeAt, false)
 	l.exceed("timing.end", s.Timing.End, "timing.de-energize at", s.Timing.DeenergizeAt, false)
+	l.checkFrequency()
 
 	// ratings: every key optional; a missing key stays 0 (not checked)
 	rating := func(key string, dim Dim, dst *float64) {
 		if ratings.has(key) {
-			l.get(ratings, key, dim, rulePositive, dst, true, 0, "")
+			l.get(ratings, key, dim, dst, true, 0, "")
 		}
 	}
 	rating("switch voltage", Voltage, &s.Limits.SwitchVoltage)
@@ -750,25 +756,116 @@ func (l *scenarioLoader) load(root *yaml.Node) {
 
 	// solver
 	if solver.has("tolerance") {
-		var tol float64
-		if l.get(solver, "tolerance", Dimensionless, ruleAny, &tol, true, 0, "") {
-			if tol < 1e-12 || tol > 1e-3 {
-				l.errf("solver.tolerance", "%q must be between 1e-12 and 1e-3", l.text["solver.tolerance"])
-			} else {
-				s.Solver.Tolerance = tol
-			}
-		}
+		l.get(solver, "tolerance", Dimensionless, &s.Solver.Tolerance, true, 0, "")
 	}
 	if solver.has("max steps") {
 		var n float64
-		if l.get(solver, "max steps", Dimensionless, rulePositive, &n, true, 0, "") {
-			if n != math.Trunc(n) || n > 1<<53 {
-				l.errf("solver.max steps", "%q must be a whole number", l.text["solver.max steps"])
-			} else {
-				s.Solver.MaxSteps = int(n)
-			}
+		if l.get(solver, "max steps", Dimensionless, &n, true, 0, "") {
+			s.Solver.MaxSteps = int(n)
 		}
 	}
+}
+
+// checkFrequency checks that a PWM or fixed-frequency chopping frequency
+// gives at least one whole period while it applies: the energized time
+// (de-energize at − energize at), less the peak time of a peak-and-hold
+// drive. A slower one never completes a period, and its hold figures would
+// mean nothing.
+func (l *scenarioLoader) checkFrequency() {
+	d, t := &l.s.Drive, &l.s.Timing
+	if !l.ok["drive.frequency"] || !l.ok["timing.energize at"] || !l.ok["timing.de-energize at"] || !(t.DeenergizeAt > t.EnergizeAt) {
+		return
+	}
+	window := t.DeenergizeAt - t.EnergizeAt
+	what := "the drive is energized (timing.de-energize at − timing.energize at)"
+	if d.Mode == DrivePeakHold {
+		if !l.ok["drive.peak time"] || !(window > d.PeakTime) {
+			return // no hold: the peak phase lasts until de-energize
+		}
+		window -= d.PeakTime
+		what = "the hold lasts (timing.de-energize at − timing.energize at − drive.peak time)"
+	}
+	if d.Frequency*window < 1 {
+		l.errf("drive.frequency", "%s gives less than one period in the %.4g s %s; expected a frequency of at least %.4g Hz",
+			l.show("drive.frequency"), window, what, 1/window)
+	}
+}
+
+// maxNameRunes bounds the scenario's name, which is printed in every
+// output (common practice, no source).
+const maxNameRunes = 200
+
+// badName says why a scenario name cannot be printed as it is, or "" when
+// it can: control characters (a terminal would act on escape sequences),
+// bidirectional-text controls (they reorder what is shown), invalid UTF-8
+// and names longer than maxNameRunes are rejected, not escaped, so that
+// what the file says and what the outputs print are the same.
+func badName(text string) string {
+	if !utf8.ValidString(text) {
+		return fmt.Sprintf("%q is not valid UTF-8 text", text)
+	}
+	for _, r := range text {
+		if isControlRune(r) {
+			return fmt.Sprintf("%q contains the control character %U; expected printable text (control characters are refused, so that no terminal acts on them)", text, r)
+		}
+	}
+	if n := utf8.RuneCountInString(text); n > maxNameRunes {
+		return fmt.Sprintf("is %d characters long; expected at most %d", n, maxNameRunes)
+	}
+	return ""
+}
+
+// isControlRune reports control characters (C0, DEL, C1) and the
+// bidirectional-text controls (U+200E, U+200F, U+202A–U+202E,
+// U+2066–U+2069), which a terminal acts on or which reorder text.
+func isControlRune(r rune) bool {
+	return unicode.IsControl(r) || r == '\u200e' || r == '\u200f' || (r >= '\u202a' && r <= '\u202e') || (r >= '\u2066' && r <= '\u2069')
+}
+
+// escapeControl writes the control characters of msg (see isControlRune)
+// and its invalid UTF-8 bytes as Go escapes (\x1b, \u202e), so that a
+// message quoting the file never prints them raw.
+func escapeControl(msg string) string {
+	clean := true
+	for _, r := range msg {
+		if r == utf8.RuneError || isControlRune(r) {
+			clean = false
+			break
+		}
+	}
+	if clean {
+		return msg
+	}
+	var b strings.Builder
+	for i := 0; i < len(msg); {
+		r, size := utf8.DecodeRuneInString(msg[i:])
+		switch {
+		case r == utf8.RuneError && size <= 1:
+			fmt.Fprintf(&b, "\\x%02x", msg[i])
+		case isControlRune(r) && r < 0x100:
+			fmt.Fprintf(&b, "\\x%02x", r)
+		case isControlRune(r):
+			fmt.Fprintf(&b, "\\u%04x", r)
+		default:
+			b.WriteString(msg[i : i+size])
+		}
+		i += size
+	}
+	return b.String()
+}
+
+// escapeLines is err with the control characters of each of its lines
+// escaped (see escapeControl); the lines stay one message each.
+func escapeLines(err error) error {
+	msg := err.Error()
+	lines := strings.Split(msg, "\n")
+	for i, line := range lines {
+		lines[i] = escapeControl(line)
+	}
+	if out := strings.Join(lines, "\n"); out != msg {
+		return errors.New(out)
+	}
+	return err
 }
 
 func (l *scenarioLoader) loadCoil(coil *yamlSection) {
@@ -785,21 +882,21 @@ func (l *scenarioLoader) loadCoil(coil *yamlSection) {
 			l.errf("coil.turns", "with coil.build, give the turns (or a fill factor) inside the build")
 		}
 	default:
-		l.get(coil, "resistance", Resistance, rulePositive, &c.Resistance, true, 0, "")
+		l.get(coil, "resistance", Resistance, &c.Resistance, true, 0, "")
 	}
-	l.get(coil, "reference temperature", Temperature, ruleAny, &c.RefTemperature, false, defaultRefTemperature, "20 degC")
+	l.get(coil, "reference temperature", Temperature, &c.RefTemperature, false, defaultRefTemperature, "20 degC")
 	if coil.has("temperature") {
-		l.get(coil, "temperature", Temperature, ruleAny, &c.Temperature, true, 0, "")
+		l.get(coil, "temperature", Temperature, &c.Temperature, true, 0, "")
 	} else if l.ok["coil.reference temperature"] {
 		c.Temperature = c.RefTemperature
 		l.ok["coil.temperature"] = true
 		l.text["coil.temperature"] = "default reference temperature"
 	}
-	l.get(coil, "temperature coefficient", PerKelvin, ruleAny, &c.TempCoeff, false, defaultTempCoeff, "0.00393 /K")
-	l.get(coil, "winding capacitance", Capacitance, rulePositive, &c.WindingCapacitance, false, 0, "none")
-	l.get(coil, "core loss resistance", Resistance, rulePositive, &c.CoreLossResistance, false, 0, "none")
+	l.get(coil, "temperature coefficient", PerKelvin, &c.TempCoeff, false, defaultTempCoeff, "0.00393 /K")
+	l.get(coil, "winding capacitance", Capacitance, &c.WindingCapacitance, false, 0, "none")
+	l.get(coil, "core loss resistance", Resistance, &c.CoreLossResistance, false, 0, "none")
 	if coil.has("turns") {
-		l.get(coil, "turns", Dimensionless, rulePositive, &c.Turns, true, 0, "")
+		l.get(coil, "turns", Dimensionless, &c.Turns, true, 0, "")
 	}
 	// The winding resistance at the run temperature must stay positive.
 	if (l.ok["coil.resistance"] || c.Build != nil) && l.ok["coil.reference temperature"] && l.ok["coil.temperature"] && l.ok["coil.temperature coefficient"] {
@@ -816,7 +913,7 @@ func (l *scenarioLoader) loadMagnet(magnet *yamlSection) {
 		return
 	}
 	m := &l.s.Magnet
-	l.get(magnet, "eddy resistance", Resistance, rulePositive, &m.EddyResistance, false, 0, "none")
+	l.get(magnet, "eddy resistance", Resistance, &m.EddyResistance, false, 0, "none")
 	var given []string
 	for _, k := range []string{MagnetGapLaw, MagnetTable, MagnetGeom} {
 		if magnet.has(k) {
@@ -843,11 +940,11 @@ func (l *scenarioLoader) loadMagnet(magnet *yamlSection) {
 		if g == nil {
 			return
 		}
-		l.get(g, "closed inductance", Inductance, rulePositive, &m.ClosedInductance, true, 0, "")
-		l.get(g, "open inductance", Inductance, rulePositive, &m.OpenInductance, true, 0, "")
+		l.get(g, "closed inductance", Inductance, &m.ClosedInductance, true, 0, "")
+		l.get(g, "open inductance", Inductance, &m.OpenInductance, true, 0, "")
 		l.exceed("magnet.gap law.closed inductance", m.ClosedInductance, "magnet.gap law.open inductance", m.OpenInductance, false)
 		if g.has("pole area") {
-			if l.get(g, "pole area", Area, rulePositive, &m.PoleArea, true, 0, "") && !l.ok["coil.turns"] {
+			if l.get(g, "pole area", Area, &m.PoleArea, true, 0, "") && !l.ok["coil.turns"] {
 				l.errf("magnet.gap law.pole area", "needs coil.turns, which is not given")
 			}
 		}
@@ -859,25 +956,88 @@ func (l *scenarioLoader) loadMagnet(magnet *yamlSection) {
 		return
 	}
 	if file, ok := l.scalar(t, "file", true, `a file name, e.g. "valve_flux.csv"`); ok {
-		path := "magnet.table.file"
-		resolved := file
-		if !filepath.IsAbs(file) {
-			resolved = filepath.Join(l.dir, file)
-		}
-		switch fi, err := os.Stat(resolved); {
-		case strings.TrimSpace(file) == "":
-			l.errf(path, "is empty; expected a file name")
-		case err != nil:
-			l.errf(path, "table file %q not found (looked for %s, relative to the scenario file's folder)", file, resolved)
-		case fi.IsDir():
-			l.errf(path, "%q is a folder, not a table file", resolved)
-		default:
-			m.TableFile = resolved
-		}
+		m.TableFile = l.inputFile("magnet.table.file", file, "table")
 	}
 	l.unit(t, "current unit", Current, "A", &m.CurrentScale)
 	l.unit(t, "gap unit", Length, "mm", &m.GapScale)
 	l.unit(t, "flux linkage unit", FluxLinkage, "mWb", &m.FluxScale)
+	m.TableUnits = fmt.Sprintf("current in %s, gap in %s, flux linkage in %s (magnet.table)",
+		strings.TrimSpace(l.text["magnet.table.current unit"]), strings.TrimSpace(l.text["magnet.table.gap unit"]),
+		strings.TrimSpace(l.text["magnet.table.flux linkage unit"]))
+}
+
+// inputFile checks the CSV file named at path (a field such as
+// "magnet.table.file"), resolved against the scenario's folder: it must be
+// a regular file of at most MaxTableBytes. It returns the resolved name, or
+// "" after recording an error. kind names the file in messages ("table").
+func (l *scenarioLoader) inputFile(path, file, kind string) string {
+	if strings.TrimSpace(file) == "" {
+		l.errf(path, "is empty; expected a file name")
+		return ""
+	}
+	resolved := file
+	if !filepath.IsAbs(file) {
+		resolved = filepath.Join(l.dir, file)
+	}
+	fi, err := os.Stat(resolved)
+	switch {
+	case err != nil:
+		l.errf(path, "%s file %q not found (looked for %q, relative to the scenario file's folder)", kind, file, resolved)
+	case fi.IsDir():
+		l.errf(path, "%q is a folder, not a %s file", resolved, kind)
+	case !fi.Mode().IsRegular():
+		l.errf(path, "%q is %s, not a regular file: refused; expected a CSV file", resolved, describeFileMode(fi.Mode()))
+	case fi.Size() > MaxTableBytes:
+		l.errf(path, "%q has %d bytes, more than the limit of %d bytes (%d MiB): refused", resolved, fi.Size(), int64(MaxTableBytes), MaxTableBytes>>20)
+	default:
+		return resolved
+	}
+	return ""
+}
+
+// readFluxTable reads the scenario's flux-linkage table file through
+// OpenInput (a regular file of at most MaxTableBytes). Its errors point at
+// magnet.table.file and name the table's file, line and column, and the
+// table's units.
+func readFluxTable(s *Scenario) (*magnet.Table, error) {
+	m := &s.Magnet
+	f, err := OpenInput(m.TableFile, "flux-linkage table", MaxTableBytes)
+	if err != nil {
+		return nil, s.Errorf("magnet.table.file", "%v", err)
+	}
+	defer f.Close()
+	tb, err := magnet.ReadTableCSV(f, m.TableFile, m.CurrentScale, m.GapScale, m.FluxScale)
+	if err != nil {
+		return nil, s.Errorf("magnet.table.file", "%s; the table's units: %s", inputDetail(err), m.TableUnits)
+	}
+	return tb, nil
+}
+
+// readSteelCurve reads the scenario's B–H curve file as readFluxTable
+// reads the table.
+func readSteelCurve(s *Scenario) (*magnet.BHTable, error) {
+	gs := &s.Magnet.Geometry
+	const field = "magnet.geometry.steel curve.file"
+	f, err := OpenInput(gs.SteelCurveFile, "steel curve", MaxTableBytes)
+	if err != nil {
+		return nil, s.Errorf(field, "%v", err)
+	}
+	defer f.Close()
+	bh, err := magnet.ReadBHCSV(f, gs.SteelCurveFile, gs.HScale, gs.BScale)
+	if err != nil {
+		return nil, s.Errorf(field, "%s; the curve's units: %s", inputDetail(err), gs.CurveUnits)
+	}
+	return bh, nil
+}
+
+// inputDetail is the message of a CSV reader's error without the package
+// prefix: "file:line:column: message".
+func inputDetail(err error) string {
+	var ie *magnet.InputError
+	if errors.As(err, &ie) {
+		return ie.Detail()
+	}
+	return trimPackagePrefix(err.Error())
 }
 
 // unit reads a unit alone (such as "mWb") and stores its SI value.
@@ -920,25 +1080,23 @@ func (l *scenarioLoader) loadPlunger(pl *yamlSection) {
 		return
 	}
 	p := &l.s.Plunger
-	l.get(pl, "mass", Mass, rulePositive, &p.Mass, true, 0, "")
-	l.get(pl, "rest gap", Length, rulePositive, &p.RestGap, true, 0, "")
-	l.get(pl, "seated gap", Length, ruleNonNeg, &p.SeatedGap, true, 0, "")
+	l.get(pl, "mass", Mass, &p.Mass, true, 0, "")
+	l.get(pl, "rest gap", Length, &p.RestGap, true, 0, "")
+	l.get(pl, "seated gap", Length, &p.SeatedGap, true, 0, "")
 	l.exceed("plunger.rest gap", p.RestGap, "plunger.seated gap", p.SeatedGap, false)
-	l.get(pl, "spring preload", Force, ruleNonNeg, &p.SpringPreload, true, 0, "")
-	l.get(pl, "spring rate", ForcePerLength, ruleNonNeg, &p.SpringRate, true, 0, "")
-	l.get(pl, "damping", Damping, ruleNonNeg, &p.Damping, false, 0, "0 N*s/m")
+	l.get(pl, "spring preload", Force, &p.SpringPreload, true, 0, "")
+	l.get(pl, "spring rate", ForcePerLength, &p.SpringRate, true, 0, "")
+	l.get(pl, "damping", Damping, &p.Damping, false, 0, "0 N*s/m")
 	if pl.has("restitution") {
-		if l.get(pl, "restitution", Dimensionless, ruleNonNeg, &p.Restitution, true, 0, "") && p.Restitution > 1 {
-			l.errf("plunger.restitution", "%q must be between 0 and 1", l.text["plunger.restitution"])
-		}
+		l.get(pl, "restitution", Dimensionless, &p.Restitution, true, 0, "")
 	}
-	l.get(pl, "stick speed", Velocity, rulePositive, &p.StickSpeed, false, defaultStickSpeed, "0.05 m/s")
+	l.get(pl, "stick speed", Velocity, &p.StickSpeed, false, defaultStickSpeed, "0.05 m/s")
 
 	ld := l.sub(pl, "load", loadKeys)
 	if ld == nil {
 		return
 	}
-	l.get(ld, "constant force", Force, ruleAny, &p.ConstantLoad, false, 0, "0 N")
+	l.get(ld, "constant force", Force, &p.ConstantLoad, false, 0, "0 N")
 	if !ld.has("pressure") {
 		for _, k := range []string{"orifice diameter", "orifice area", "seal travel"} {
 			if ld.has(k) {
@@ -947,7 +1105,7 @@ func (l *scenarioLoader) loadPlunger(pl *yamlSection) {
 		}
 		return
 	}
-	l.get(ld, "pressure", Pressure, ruleNonNeg, &p.Pressure, true, 0, "")
+	l.get(ld, "pressure", Pressure, &p.Pressure, true, 0, "")
 	hasD, hasA := ld.has("orifice diameter"), ld.has("orifice area")
 	switch {
 	case hasD && hasA:
@@ -955,11 +1113,11 @@ func (l *scenarioLoader) loadPlunger(pl *yamlSection) {
 		l.errf(at, "give either plunger.load.orifice diameter or plunger.load.orifice area, not both")
 	case hasD:
 		var d float64
-		if l.get(ld, "orifice diameter", Length, rulePositive, &d, true, 0, "") {
+		if l.get(ld, "orifice diameter", Length, &d, true, 0, "") {
 			p.OrificeArea = math.Pi * d * d / 4
 		}
 	case hasA:
-		l.get(ld, "orifice area", Area, rulePositive, &p.OrificeArea, true, 0, "")
+		l.get(ld, "orifice area", Area, &p.OrificeArea, true, 0, "")
 	default:
 		l.errf("plunger.load.pressure", "needs plunger.load.orifice diameter or plunger.load.orifice area")
 	}
@@ -967,7 +1125,7 @@ func (l *scenarioLoader) loadPlunger(pl *yamlSection) {
 		l.errf("plunger.load.pressure", "needs plunger.load.seal travel, e.g. \"0.3 mm\"")
 		return
 	}
-	if l.get(ld, "seal travel", Length, rulePositive, &p.SealTravel, true, 0, "") &&
+	if l.get(ld, "seal travel", Length, &p.SealTravel, true, 0, "") &&
 		l.ok["plunger.rest gap"] && l.ok["plunger.seated gap"] && p.RestGap > p.SeatedGap {
 		if stroke := p.RestGap - p.SeatedGap; p.SealTravel > stroke {
 			l.errf("plunger.load.seal travel", "%s must not exceed the stroke plunger.rest gap − plunger.seated gap = %s − %s (lines %d, %d)",
@@ -1007,28 +1165,28 @@ func (l *scenarioLoader) loadSuppression(sec *yamlSection) {
 	}
 	switch kind {
 	case SuppressFreewheel:
-		l.get(sec, "forward drop", Voltage, rulePositive, &sp.ForwardDrop, true, 0, "")
-		l.get(sec, "resistance", Resistance, ruleNonNeg, &sp.Resistance, false, 0, "0 ohm")
+		l.get(sec, "forward drop", Voltage, &sp.ForwardDrop, true, 0, "")
+		l.get(sec, "resistance", Resistance, &sp.Resistance, false, 0, "0 ohm")
 	case SuppressDiodeZener:
-		l.get(sec, "forward drop", Voltage, rulePositive, &sp.ForwardDrop, true, 0, "")
-		l.get(sec, "zener voltage", Voltage, rulePositive, &sp.ZenerVoltage, true, 0, "")
-		l.get(sec, "resistance", Resistance, ruleNonNeg, &sp.Resistance, false, 0, "0 ohm")
+		l.get(sec, "forward drop", Voltage, &sp.ForwardDrop, true, 0, "")
+		l.get(sec, "zener voltage", Voltage, &sp.ZenerVoltage, true, 0, "")
+		l.get(sec, "resistance", Resistance, &sp.Resistance, false, 0, "0 ohm")
 	case SuppressTVS:
-		l.get(sec, "clamp voltage", Voltage, rulePositive, &sp.ClampVoltage, true, 0, "")
-		l.get(sec, "resistance", Resistance, ruleNonNeg, &sp.Resistance, false, 0, "0 ohm")
+		l.get(sec, "clamp voltage", Voltage, &sp.ClampVoltage, true, 0, "")
+		l.get(sec, "resistance", Resistance, &sp.Resistance, false, 0, "0 ohm")
 		l.exceed("suppression.clamp voltage", sp.ClampVoltage, "supply.voltage", l.s.Supply.Voltage, false)
 	case SuppressSwitchClamp:
-		l.get(sec, "clamp voltage", Voltage, rulePositive, &sp.ClampVoltage, true, 0, "")
-		l.get(sec, "resistance", Resistance, ruleNonNeg, &sp.Resistance, false, 0, "0 ohm")
+		l.get(sec, "clamp voltage", Voltage, &sp.ClampVoltage, true, 0, "")
+		l.get(sec, "resistance", Resistance, &sp.Resistance, false, 0, "0 ohm")
 		l.exceed("suppression.clamp voltage", sp.ClampVoltage, "supply.voltage", l.s.Supply.Voltage, false)
 		l.exceed("switch.breakdown voltage", l.s.Switch.BreakdownVoltage, "suppression.clamp voltage", sp.ClampVoltage, false)
 	case SuppressSnubber:
-		l.get(sec, "resistance", Resistance, rulePositive, &sp.Resistance, true, 0, "")
-		l.get(sec, "capacitance", Capacitance, rulePositive, &sp.Capacitance, true, 0, "")
+		l.getIn(sec, "resistance", Resistance, rangeSnubberResistance, &sp.Resistance, true, 0, "")
+		l.get(sec, "capacitance", Capacitance, &sp.Capacitance, true, 0, "")
 	case SuppressBridge:
-		l.get(sec, "forward drop", Voltage, rulePositive, &sp.ForwardDrop, true, 0, "")
-		l.get(sec, "resistance", Resistance, ruleNonNeg, &sp.Resistance, false, 0, "0 ohm")
-		l.get(sec, "reverse pulse", Time, ruleNonNeg, &sp.ReversePulse, false, 0, "0 s")
+		l.get(sec, "forward drop", Voltage, &sp.ForwardDrop, true, 0, "")
+		l.get(sec, "resistance", Resistance, &sp.Resistance, false, 0, "0 ohm")
+		l.get(sec, "reverse pulse", Time, &sp.ReversePulse, false, 0, "0 s")
 	}
 }
 
@@ -1040,24 +1198,20 @@ func (l *scenarioLoader) loadCoilBuild(coil *yamlSection) {
 	}
 	cb := &CoilBuildSpec{}
 	l.s.Coil.Build = cb
-	l.get(b, "inner diameter", Length, rulePositive, &cb.InnerDiameter, true, 0, "")
-	l.get(b, "outer diameter", Length, rulePositive, &cb.OuterDiameter, true, 0, "")
-	l.get(b, "length", Length, rulePositive, &cb.Length, true, 0, "")
+	l.get(b, "inner diameter", Length, &cb.InnerDiameter, true, 0, "")
+	l.get(b, "outer diameter", Length, &cb.OuterDiameter, true, 0, "")
+	l.get(b, "length", Length, &cb.Length, true, 0, "")
 	l.exceed("coil.build.outer diameter", cb.OuterDiameter, "coil.build.inner diameter", cb.InnerDiameter, false)
 	switch g, d := b.has("wire gauge"), b.has("wire diameter"); {
 	case g && d:
 		l.errf(l.later("coil.build.wire gauge", "coil.build.wire diameter"), "give either a wire gauge (AWG) or a wire diameter, not both")
 	case g:
 		var v float64
-		if l.get(b, "wire gauge", Dimensionless, ruleNonNeg, &v, true, 0, "") {
-			if v != math.Trunc(v) || v > 46 {
-				l.errf("coil.build.wire gauge", "%q must be a whole AWG number from 0 to 46", l.text["coil.build.wire gauge"])
-			} else {
-				cb.WireGauge = int(v)
-			}
+		if l.get(b, "wire gauge", Dimensionless, &v, true, 0, "") {
+			cb.WireGauge = int(v)
 		}
 	case d:
-		l.get(b, "wire diameter", Length, rulePositive, &cb.WireDiameter, true, 0, "")
+		l.get(b, "wire diameter", Length, &cb.WireDiameter, true, 0, "")
 	default:
 		l.errAt("coil.build.wire gauge", b.pos, "missing: give a wire gauge (AWG number) or a bare wire diameter")
 	}
@@ -1065,15 +1219,11 @@ func (l *scenarioLoader) loadCoilBuild(coil *yamlSection) {
 	case o && gr:
 		l.errf(l.later("coil.build.overall diameter", "coil.build.insulation grade"), "give either the insulated overall diameter or the insulation grade, not both")
 	case o:
-		l.get(b, "overall diameter", Length, rulePositive, &cb.OverallDiameter, true, 0, "")
+		l.get(b, "overall diameter", Length, &cb.OverallDiameter, true, 0, "")
 	case gr:
 		var v float64
-		if l.get(b, "insulation grade", Dimensionless, rulePositive, &v, true, 0, "") {
-			if v != 1 && v != 2 && v != 3 {
-				l.errf("coil.build.insulation grade", "%q must be 1, 2 or 3 (enamel grade)", l.text["coil.build.insulation grade"])
-			} else {
-				cb.Grade = int(v)
-			}
+		if l.get(b, "insulation grade", Dimensionless, &v, true, 0, "") {
+			cb.Grade = int(v)
 		}
 	default:
 		l.errAt("coil.build.insulation grade", b.pos, "missing: give the enamel insulation grade (1, 2 or 3) or the insulated overall diameter")
@@ -1082,11 +1232,9 @@ func (l *scenarioLoader) loadCoilBuild(coil *yamlSection) {
 	case t && f:
 		l.errf(l.later("coil.build.turns", "coil.build.fill factor"), "give either the turns or a fill factor, not both")
 	case t:
-		l.get(b, "turns", Dimensionless, rulePositive, &cb.Turns, true, 0, "")
+		l.get(b, "turns", Dimensionless, &cb.Turns, true, 0, "")
 	case f:
-		if l.get(b, "fill factor", Dimensionless, rulePositive, &cb.FillFactor, true, 0, "") && cb.FillFactor >= 0.91 {
-			l.errf("coil.build.fill factor", "%q is not possible with round wire (at most about 0.9)", l.text["coil.build.fill factor"])
-		}
+		l.get(b, "fill factor", Dimensionless, &cb.FillFactor, true, 0, "")
 	default:
 		l.errAt("coil.build.turns", b.pos, "missing: give the turns or a copper fill factor")
 	}
@@ -1117,7 +1265,7 @@ func (l *scenarioLoader) loadGeometry(magnet *yamlSection) {
 		{"shell length", &gs.ShellLength}, {"end plate thickness", &gs.EndPlateThickness},
 		{"sliding gap", &gs.SlidingGap}, {"sliding length", &gs.SlidingLength},
 	} {
-		l.get(g, f.key, Length, rulePositive, f.dst, true, 0, "")
+		l.get(g, f.key, Length, f.dst, true, 0, "")
 	}
 	if l.s.Coil.Build == nil {
 		l.errAt("magnet.geometry", g.pos, "needs coil.build: the winding space and turns come from the bobbin")
@@ -1129,24 +1277,16 @@ func (l *scenarioLoader) loadGeometry(magnet *yamlSection) {
 		sc := l.sub(g, "steel curve", steelCurveKeys)
 		if sc != nil {
 			if file, ok := l.scalar(sc, "file", true, `a file name, e.g. "steel_bh.csv"`); ok {
-				resolved := file
-				if !filepath.IsAbs(file) {
-					resolved = filepath.Join(l.dir, file)
-				}
-				if fi, err := os.Stat(resolved); err != nil || fi.IsDir() {
-					l.errf("magnet.geometry.steel curve.file", "steel curve file %q not found (looked for %s)", file, resolved)
-				} else {
-					gs.SteelCurveFile = resolved
-				}
+				gs.SteelCurveFile = l.inputFile("magnet.geometry.steel curve.file", file, "steel curve")
 			}
 			l.unit(sc, "field unit", FieldStrength, "A/m", &gs.HScale)
 			l.unit(sc, "flux density unit", FluxDensity, "T", &gs.BScale)
+			gs.CurveUnits = fmt.Sprintf("field strength in %s, flux density in %s (magnet.geometry.steel curve)",
+				strings.TrimSpace(l.text["magnet.geometry.steel curve.field unit"]), strings.TrimSpace(l.text["magnet.geometry.steel curve.flux density unit"]))
 		}
 	default:
-		l.get(g, "steel saturation", FluxDensity, rulePositive, &gs.SteelSaturation, true, 0, "")
-		if l.get(g, "steel permeability", Dimensionless, rulePositive, &gs.SteelPermeability, true, 0, "") && gs.SteelPermeability <= 1 {
-			l.errf("magnet.geometry.steel permeability", "%q must exceed 1 (relative permeability of steel)", l.text["magnet.geometry.steel permeability"])
-		}
+		l.get(g, "steel saturation", FluxDensity, &gs.SteelSaturation, true, 0, "")
+		l.get(g, "steel permeability", Dimensionless, &gs.SteelPermeability, true, 0, "")
 	}
 	for _, f := range []struct {
 		key string
@@ -1154,15 +1294,11 @@ func (l *scenarioLoader) loadGeometry(magnet *yamlSection) {
 		def int
 	}{{"table currents", &gs.TableCurrents, defaultTableCurrents}, {"table gaps", &gs.TableGaps, defaultTableGaps}} {
 		var v float64
-		if l.get(g, f.key, Dimensionless, rulePositive, &v, false, float64(f.def), strconv.Itoa(f.def)) {
-			if v != math.Trunc(v) || v < 4 || v > 400 {
-				l.errf("magnet.geometry."+f.key, "%q must be a whole number from 4 to 400", l.text["magnet.geometry."+f.key])
-			} else {
-				*f.dst = int(v)
-			}
+		if l.get(g, f.key, Dimensionless, &v, false, float64(f.def), strconv.Itoa(f.def)) {
+			*f.dst = int(v)
 		}
 	}
-	l.get(g, "max current", Current, rulePositive, &gs.MaxCurrent, false, 0, "3 × supply voltage / coil resistance")
+	l.get(g, "max current", Current, &gs.MaxCurrent, false, 0, "3 × supply voltage / coil resistance")
 }
 
 // loadDrive reads the optional drive section (default: constant drive).
@@ -1198,8 +1334,8 @@ func (l *scenarioLoader) loadDrive(sec *yamlSection) {
 			l.errf("drive.decay", "%q: expected \"slow\" (through the recirculation path) or \"fast\" (through the suppression part)", text)
 		}
 		if d.Decay == "slow" {
-			l.get(sec, "recirculation drop", Voltage, ruleNonNeg, &d.RecirculationDrop, true, 0, "")
-			l.get(sec, "recirculation resistance", Resistance, ruleNonNeg, &d.RecirculationResistance, false, 0, "0 ohm")
+			l.get(sec, "recirculation drop", Voltage, &d.RecirculationDrop, true, 0, "")
+			l.get(sec, "recirculation resistance", Resistance, &d.RecirculationResistance, false, 0, "0 ohm")
 		} else {
 			for _, k := range []string{"recirculation drop", "recirculation resistance"} {
 				if sec.has(k) {
@@ -1210,22 +1346,20 @@ func (l *scenarioLoader) loadDrive(sec *yamlSection) {
 	}
 	switch mode {
 	case DrivePWM:
-		l.get(sec, "frequency", Frequency, rulePositive, &d.Frequency, true, 0, "")
-		if l.get(sec, "duty", Dimensionless, rulePositive, &d.Duty, true, 0, "") && d.Duty > 1 {
-			l.errf("drive.duty", "%q must be a fraction in (0, 1]", l.text["drive.duty"])
-		}
+		l.get(sec, "frequency", Frequency, &d.Frequency, true, 0, "")
+		l.get(sec, "duty", Dimensionless, &d.Duty, true, 0, "")
 		decay()
 	case DrivePeakHold:
-		l.get(sec, "peak current", Current, rulePositive, &d.PeakCurrent, true, 0, "")
-		l.get(sec, "peak time", Time, rulePositive, &d.PeakTime, true, 0, "")
-		l.get(sec, "hold current", Current, rulePositive, &d.HoldCurrent, true, 0, "")
+		l.get(sec, "peak current", Current, &d.PeakCurrent, true, 0, "")
+		l.get(sec, "peak time", Time, &d.PeakTime, true, 0, "")
+		l.get(sec, "hold current", Current, &d.HoldCurrent, true, 0, "")
 		l.exceed("drive.peak current", d.PeakCurrent, "drive.hold current", d.HoldCurrent, true)
 		reg, ok := l.scalar(sec, "regulation", true, `"hysteresis" or "fixed frequency"`)
 		switch {
 		case !ok:
 		case reg == "hysteresis":
 			d.Regulation = reg
-			l.get(sec, "band", Current, rulePositive, &d.Band, true, 0, "")
+			l.get(sec, "band", Current, &d.Band, true, 0, "")
 			if sec.has("frequency") {
 				l.errf("drive.frequency", "applies to fixed-frequency regulation only")
 			}
@@ -1234,7 +1368,7 @@ func (l *scenarioLoader) loadDrive(sec *yamlSection) {
 			}
 		case reg == "fixed frequency":
 			d.Regulation = reg
-			l.get(sec, "frequency", Frequency, rulePositive, &d.Frequency, true, 0, "")
+			l.get(sec, "frequency", Frequency, &d.Frequency, true, 0, "")
 			if sec.has("band") {
 				l.errf("drive.band", "applies to hysteresis regulation only")
 			}
@@ -1243,8 +1377,8 @@ func (l *scenarioLoader) loadDrive(sec *yamlSection) {
 		}
 		decay()
 	case DriveBoostHold:
-		l.get(sec, "boost voltage", Voltage, rulePositive, &d.BoostVoltage, true, 0, "")
-		l.get(sec, "boost time", Time, rulePositive, &d.BoostTime, true, 0, "")
+		l.get(sec, "boost voltage", Voltage, &d.BoostVoltage, true, 0, "")
+		l.get(sec, "boost time", Time, &d.BoostTime, true, 0, "")
 		l.exceed("drive.boost voltage", d.BoostVoltage, "supply.voltage", l.s.Supply.Voltage, false)
 	}
 }
@@ -1258,7 +1392,7 @@ func (l *scenarioLoader) loadThermal(sec *yamlSection) {
 	}
 	t := &ThermalSpec{}
 	l.s.Thermal = t
-	l.get(sec, "ambient", Temperature, ruleAny, &t.Ambient, true, 0, "")
+	l.get(sec, "ambient", Temperature, &t.Ambient, true, 0, "")
 	if text, ok := l.scalar(sec, "insulation class", false, "an IEC 60085 class letter: A, E, B, F, H, N or R"); ok {
 		t.Class = strings.TrimSpace(text)
 	}
@@ -1278,26 +1412,26 @@ func (l *scenarioLoader) loadThermal(sec *yamlSection) {
 	switch {
 	case rating:
 		t.Kind = "rating"
-		if l.get(sec, "temperature rise", Temperature, rulePositive, &t.Rise, true, 0, "") {
+		if l.get(sec, "temperature rise", Temperature, &t.Rise, true, 0, "") {
 			if txt := l.text["thermal.temperature rise"]; strings.Contains(txt, "C") {
 				l.errf("thermal.temperature rise", "%q: a temperature rise is written in K, e.g. \"60 K\"", txt)
 			}
 		}
-		l.get(sec, "at power", Power, rulePositive, &t.AtPower, true, 0, "")
-		l.get(sec, "time constant", Time, rulePositive, &t.TimeConstant, true, 0, "")
+		l.get(sec, "at power", Power, &t.AtPower, true, 0, "")
+		l.get(sec, "time constant", Time, &t.TimeConstant, true, 0, "")
 	case surface:
 		t.Kind = "surface"
-		l.get(sec, "surface area", Area, rulePositive, &t.SurfaceArea, true, 0, "")
-		l.get(sec, "convection coefficient", HeatTransfer, rulePositive, &t.Convection, true, 0, "")
+		l.get(sec, "surface area", Area, &t.SurfaceArea, true, 0, "")
+		l.get(sec, "convection coefficient", HeatTransfer, &t.Convection, true, 0, "")
 		if l.s.Coil.Build == nil || sec.has("heat capacity") {
-			l.get(sec, "heat capacity", HeatCapacity, rulePositive, &t.HeatCapacity, true, 0, "")
+			l.get(sec, "heat capacity", HeatCapacity, &t.HeatCapacity, true, 0, "")
 		}
 	case network:
 		t.Kind = "network"
-		l.get(sec, "winding heat capacity", HeatCapacity, rulePositive, &t.HeatCapacity, true, 0, "")
-		l.get(sec, "winding to housing", ThermalResistance, rulePositive, &t.WindingToHousing, true, 0, "")
-		l.get(sec, "housing heat capacity", HeatCapacity, rulePositive, &t.HousingCapacity, true, 0, "")
-		l.get(sec, "housing to ambient", ThermalResistance, rulePositive, &t.HousingToAmbient, true, 0, "")
+		l.get(sec, "winding heat capacity", HeatCapacity, &t.HeatCapacity, true, 0, "")
+		l.get(sec, "winding to housing", ThermalResistance, &t.WindingToHousing, true, 0, "")
+		l.get(sec, "housing heat capacity", HeatCapacity, &t.HousingCapacity, true, 0, "")
+		l.get(sec, "housing to ambient", ThermalResistance, &t.HousingToAmbient, true, 0, "")
 	}
 }
 
@@ -1324,12 +1458,14 @@ func (l *scenarioLoader) loadSegments(n *yaml.Node, d *DutySpec) {
 			l.errAt(at, nodePos(item), `%q: expected it to end in "on" or "off"`, text)
 			continue
 		}
-		dur, err := ParseQuantity(strings.Join(fields[:len(fields)-1], " "), Time)
-		if err != nil || !(dur > 0) {
-			if err == nil {
-				err = errors.New("must be longer than zero")
-			}
+		durText := strings.Join(fields[:len(fields)-1], " ")
+		dur, err := ParseQuantity(durText, Time)
+		if err != nil {
 			l.errAt(at, nodePos(item), "%v", err)
+			continue
+		}
+		if r := scenarioRanges[rangeDutySegment]; !r.contains(dur) {
+			l.errAt(at, nodePos(item), "%s", r.problem(durText, dur))
 			continue
 		}
 		d.Segments = append(d.Segments, DutySegment{On: state == "on", Duration: dur})

@@ -2,7 +2,6 @@ package coilkick
 
 import (
 	"math"
-	"os"
 
 	"coilkick/circuit"
 	"coilkick/magnet"
@@ -157,14 +156,9 @@ func Build(s *Scenario) (*Model, error) {
 		}
 		md.Magnet = gl
 	case MagnetTable:
-		f, err := os.Open(s.Magnet.TableFile)
+		tb, err := readFluxTable(s)
 		if err != nil {
-			return nil, s.Errorf("magnet.table.file", "%v", err)
-		}
-		defer f.Close()
-		tb, err := magnet.ReadTableCSV(f, s.Magnet.TableFile, s.Magnet.CurrentScale, s.Magnet.GapScale, s.Magnet.FluxScale)
-		if err != nil {
-			return nil, s.Errorf("magnet.table.file", "%v", err)
+			return nil, err
 		}
 		lo, hi := tb.GapRange()
 		if lo > p.SeatedGap*(1+1e-9) || hi < p.RestGap*(1-1e-9) {
@@ -326,14 +320,9 @@ func buildGeometry(s *Scenario, md *Model) (*magnet.PlungerMagnet, *magnet.Table
 	}
 	var steel magnet.BHCurve
 	if gs.SteelCurveFile != "" {
-		f, err := os.Open(gs.SteelCurveFile)
+		bh, err := readSteelCurve(s)
 		if err != nil {
-			return nil, nil, s.Errorf("magnet.geometry.steel curve.file", "%v", err)
-		}
-		defer f.Close()
-		bh, err := magnet.ReadBHCSV(f, gs.SteelCurveFile, gs.HScale, gs.BScale)
-		if err != nil {
-			return nil, nil, s.Errorf("magnet.geometry.steel curve.file", "%v", err)
+			return nil, nil, err
 		}
 		steel = bh
 	} else {

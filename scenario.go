@@ -1,6 +1,10 @@
 package coilkick
 
-import "fmt"
+import (
+	"errors"
+	"fmt"
+	"strings"
+)
 
 // Scenario is one drive set-up as read from a scenario file, in SI units
 // (V, A, ohm, H, m, kg, N, s, K). The loader (Load) fills it and checks
@@ -123,6 +127,7 @@ type MagnetSpec struct {
 	CurrentScale float64 // SI value of one table current unit (A)
 	GapScale     float64 // SI value of one table gap unit (m)
 	FluxScale    float64 // SI value of one table flux-linkage unit (Wb)
+	TableUnits   string  // the table's units as written, for messages
 
 	// geometry
 	Geometry GeometrySpec
@@ -140,6 +145,7 @@ type GeometrySpec struct {
 	SteelPermeability              float64 // initial relative permeability of the analytic law
 	SteelCurveFile                 string  // B–H table instead of the analytic law ("" for none)
 	HScale, BScale                 float64 // SI value of one file unit (A/m, T)
+	CurveUnits                     string  // the curve file's units as written, for messages
 	TableCurrents, TableGaps       int     // grid size of the built table
 	MaxCurrent                     float64 // A, top of the table's current range; 0: 3 × rated
 }
@@ -245,16 +251,38 @@ type SolverSpec struct {
 }
 
 // Errorf returns an error pointing at the place where field (a path such
-// as "plunger.mass") was written, or at the file alone when unknown.
+// as "plunger.mass") was written, or at the file alone when unknown. The
+// position and the field say where the error is, so a package prefix at
+// the start of the message ("magnet: ", "coilkick: ", as the packages'
+// own errors begin) is dropped; control characters are escaped (see
+// escapeControl).
 func (s *Scenario) Errorf(field, format string, args ...any) error {
-	msg := fmt.Sprintf(format, args...)
+	msg := trimPackagePrefix(fmt.Sprintf(format, args...))
 	p, ok := s.pos[field]
+	var full string
 	switch {
 	case ok && s.Source != "":
-		return fmt.Errorf("%s:%d:%d: %s: %s", s.Source, p.Line, p.Column, field, msg)
+		full = fmt.Sprintf("%s:%d:%d: %s: %s", s.Source, p.Line, p.Column, field, msg)
 	case s.Source != "":
-		return fmt.Errorf("%s: %s: %s", s.Source, field, msg)
+		full = fmt.Sprintf("%s: %s: %s", s.Source, field, msg)
 	default:
-		return fmt.Errorf("%s: %s", field, msg)
+		full = fmt.Sprintf("%s: %s", field, msg)
 	}
+	return errors.New(escapeControl(full))
+}
+
+// packagePrefixes begin the errors of coilkick's packages.
+var packagePrefixes = []string{"coilkick: ", "magnet: ", "mech: ", "circuit: "}
+
+// trimPackagePrefix drops the package prefixes at the start of msg.
+func trimPackagePrefix(msg string) string {
+	for again := true; again; {
+		again = false
+		for _, p := range packagePrefixes {
+			if rest, ok := strings.CutPrefix(msg, p); ok {
+				msg, again = rest, true
+			}
+		}
+	}
+	return msg
 }

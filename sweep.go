@@ -4,13 +4,13 @@ import (
 	"bytes"
 	"fmt"
 	"math"
-	"os"
 	"regexp"
 	"runtime"
 	"sort"
 	"strconv"
 	"strings"
 	"sync"
+	"unicode/utf8"
 
 	"gopkg.in/yaml.v3"
 )
@@ -38,6 +38,12 @@ const VarySyntax = `KEY=FROM:TO:STEPS (e.g. "supply.voltage=18 V:30 V:13": 13 va
 // maxSweepSteps bounds STEPS of one range.
 const maxSweepSteps = 1000000
 
+// MaxSweepPoints bounds the number of points of a sweep (the product of
+// the numbers of values of its keys): the grid is held in memory, and a
+// million points of a millisecond each already take a quarter of an hour
+// on all cores (common practice, no source).
+const MaxSweepPoints = 1000000
+
 // ParseVary reads "KEY=FROM:TO:STEPS" (STEPS values from FROM to TO, both
 // ends included; TO may leave out FROM's unit) or "KEY=V1,V2,V3". Its
 // errors name the flag (--vary) and state the syntax. The key is checked
@@ -61,6 +67,11 @@ func ParseVary(spec string) (Vary, error) {
 		}
 	}
 	v := Vary{Key: strings.Join(parts, "."), Spec: spec}
+	for _, r := range v.Key {
+		if isControlRune(r) || r == utf8.RuneError {
+			return bad("the key has the control character or invalid byte %U", r)
+		}
+	}
 	if strings.TrimSpace(rng) == "" {
 		return bad("no values after \"=\"")
 	}
@@ -99,7 +110,12 @@ func ParseVary(spec string) (Vary, error) {
 		for k := 0; k < n; k++ {
 			x := a
 			if n > 1 {
-				x = a + (b-a)*float64(k)/float64(n-1)
+				u := float64(k) / float64(n-1)
+				if d := b - a; !math.IsInf(d, 0) {
+					x = a + d*u
+				} else {
+					x = a*(1-u) + b*u // FROM and TO far apart: b − a overflows
+				}
 			}
 			v.Values = append(v.Values, strings.TrimSpace(strconv.FormatFloat(x, 'g', 10, 64)+" "+ua))
 		}
@@ -157,6 +173,10 @@ type SweepPoint struct {
 	// on one line, without the file name.
 	Invalid string
 	Err     string // the point was valid but could not be simulated
+	// Failed: the point did not pass: it is invalid, could not be
+	// simulated, or a rating or requirement fails (Figures.Failed). A point
+	// without figures has Figures nil (null in JSON), never zeros.
+	Failed bool
 }
 
 // Sweeper runs a scenario over a grid of key values.
@@ -168,9 +188,9 @@ type Sweeper struct {
 
 // NewSweeper reads the scenario file at path.
 func NewSweeper(path string) (*Sweeper, error) {
-	data, err := os.ReadFile(path)
+	data, err := ReadInput(path, "scenario file", MaxScenarioBytes)
 	if err != nil {
-		return nil, fmt.Errorf("%s: %v", path, err)
+		return nil, err
 	}
 	if _, err := Parse(data, path); err != nil {
 		return nil, err
@@ -213,6 +233,7 @@ func (sw *Sweeper) Check(vs []Vary) error {
 	}
 	seen := map[string]bool{}
 	first := make([]string, len(vs))
+	points := 1
 	for i, v := range vs {
 		if seen[v.Key] {
 			return fmt.Errorf("--vary %q: %s is varied twice; give all its values in one --vary", v.spec(), v.Key)
@@ -222,6 +243,10 @@ func (sw *Sweeper) Check(vs []Vary) error {
 			return fmt.Errorf("--vary %q: no values; expected %s", v.spec(), VarySyntax)
 		}
 		first[i] = v.Values[0]
+		if points > MaxSweepPoints/len(v.Values) {
+			return fmt.Errorf("--vary: the sweep has more than %d points (the product of the numbers of values of its keys); sweep fewer values", MaxSweepPoints)
+		}
+		points *= len(v.Values)
 	}
 	sections := map[string][]string{}
 	text, _, err := sw.text(vs, first)
@@ -638,6 +663,7 @@ func (sw *Sweeper) Sweep(vs []Vary, workers int, progress func(done, total int))
 				} else {
 					p.Figures = &f
 				}
+				p.Failed = p.Figures == nil || p.Figures.Failed
 				out[k] = p
 				if progress != nil {
 					mu.Lock()

@@ -1,7 +1,6 @@
 package magnet
 
 import (
-	"encoding/csv"
 	"errors"
 	"fmt"
 	"io"
@@ -219,31 +218,31 @@ func searchNodes(v []float64, x float64) int {
 }
 
 // ReadBHCSV reads a B–H curve from CSV and builds a BHTable. Lines starting
-// with '#' are comments. Each row holds H then B; a first row whose first
-// cell is not a number is taken as a header and skipped. Values are
-// multiplied by hScale (A/m per file unit, e.g. 1000 for kA/m) and bScale
-// (T per file unit, e.g. 1e-4 for gauss). The first point must be (0, 0).
-// Errors name the file and line: "magnet: name:LINE: ...".
+// with '#' are comments and a UTF-8 byte-order mark is skipped. Each row
+// holds H then B; a first row whose first cell is not a number is taken as
+// a header and skipped. Values are multiplied by hScale (A/m per file unit,
+// e.g. 1000 for kA/m) and bScale (T per file unit, e.g. 1e-4 for gauss).
+// The first point must be (0, 0); at most MaxBHPoints are read. Errors are
+// *InputError naming the file, line and column: "magnet: name:LINE:COLUMN:
+// ...".
 func ReadBHCSV(r io.Reader, name string, hScale, bScale float64) (*BHTable, error) {
 	for _, sc := range []struct {
 		what string
 		v    float64
 	}{{"H", hScale}, {"B", bScale}} {
 		if !(sc.v > 0) || math.IsInf(sc.v, 0) {
-			return nil, fmt.Errorf("magnet: %s: %s scale must be positive and finite, got %g", name, sc.what, sc.v)
+			return nil, inputErr(name, 0, 0, "%s scale must be positive and finite, got %g", sc.what, sc.v)
 		}
 	}
-	cr := csv.NewReader(r)
-	cr.Comment = '#'
-	cr.FieldsPerRecord = -1
-	cr.TrimLeadingSpace = true
+	in := newCSVInput(r, name)
 	var (
 		hs, bs []float64
 		lines  []int
+		cols   [][2]int
 		first  = true
 	)
 	for {
-		rec, line, err := readRecord(cr, name)
+		rec, line, err := in.next()
 		if err == io.EOF {
 			break
 		}
@@ -257,26 +256,35 @@ func ReadBHCSV(r io.Reader, name string, hScale, bScale float64) (*BHTable, erro
 			}
 		}
 		if len(rec) != 2 {
-			return nil, fmt.Errorf("magnet: %s:%d: row has %d cells, want 2 (H, B)", name, line, len(rec))
+			return nil, inputErr(name, line, 1, "row has %d cells, want 2 (H, B)", len(rec))
 		}
+		if len(hs) == MaxBHPoints {
+			return nil, inputErr(name, line, 1, "more than %d points: a B–H curve may have at most %d", MaxBHPoints, MaxBHPoints)
+		}
+		c := [2]int{in.column(0), in.column(1)}
 		h, err := parseCell(rec[0])
 		if err != nil {
-			return nil, fmt.Errorf("magnet: %s:%d: H in column 1: %v", name, line, err)
+			return nil, inputErr(name, line, c[0], "H (cell 1): %v", err)
 		}
 		b, err := parseCell(rec[1])
 		if err != nil {
-			return nil, fmt.Errorf("magnet: %s:%d: B in column 2: %v", name, line, err)
+			return nil, inputErr(name, line, c[1], "B (cell 2): %v", err)
 		}
 		hs = append(hs, h*hScale)
 		bs = append(bs, b*bScale)
 		lines = append(lines, line)
+		cols = append(cols, c)
 	}
 	t, idx, msg := newBHTable(hs, bs)
 	if msg != "" {
 		if idx >= 0 && idx < len(lines) {
-			return nil, fmt.Errorf("magnet: %s:%d: %s", name, lines[idx], msg)
+			col := cols[idx][0]
+			if strings.HasPrefix(msg, "flux density") {
+				col = cols[idx][1]
+			}
+			return nil, inputErr(name, lines[idx], col, "%s", msg)
 		}
-		return nil, fmt.Errorf("magnet: %s: %s", name, msg)
+		return nil, inputErr(name, 0, 0, "%s", msg)
 	}
 	return t, nil
 }

@@ -1,6 +1,8 @@
 package magnet
 
 import (
+	"errors"
+	"fmt"
 	"math"
 	"os"
 	"strings"
@@ -215,16 +217,21 @@ func TestReadBHCSV(t *testing.T) {
 	bad := []struct {
 		text, want string
 	}{
-		{"H,B\n0,0\n1,x\n", "bad.csv:3: B in column 2"},
-		{"# c\n0,0\n1\n", "bad.csv:3: row has 1 cells"},
-		{"0,0\n0.1,1\n0.05,1.2\n", "bad.csv:3: field strength must be strictly increasing"},
-		{"0.1,0\n0.2,1\n", "bad.csv:1: the curve must start"},
+		{"H,B\n0,0\n1,x\n", `bad.csv:3:3: B (cell 2): not a finite number: "x"`},
+		{"H,B\n0,0\nx,1\n", `bad.csv:3:1: H (cell 1): not a finite number: "x"`},
+		{"# c\n0,0\n1\n", "bad.csv:3:1: row has 1 cells"},
+		{"0,0\n0.1,1\n0.05,1.2\n", "bad.csv:3:1: field strength must be strictly increasing"},
+		{"0,0\n0.1,1\n0.2, 0.9\n", "bad.csv:3:6: flux density must be strictly increasing"},
+		{"0.1,0\n0.2,1\n", "bad.csv:1:1: the curve must start"},
 		{"H,B\n", "bad.csv: need at least 2 points"},
 		{"0,0\n\"1,2\n", "bad.csv:2:"},
+		{"\ufeff# steel, kA/m and T\n0,0\n0.1,1\n0.05,1.2\n", "bad.csv:4:1: field strength must be strictly increasing"},
+		{"0,0\n" + strings.Repeat("1,1\n", MaxBHPoints), fmt.Sprintf("bad.csv:%d:1: more than %d points", MaxBHPoints+1, MaxBHPoints)},
 	}
 	for _, c := range bad {
 		_, err := ReadBHCSV(strings.NewReader(c.text), "bad.csv", 1000, 1)
-		if err == nil || !strings.Contains(err.Error(), "magnet: "+c.want) {
+		var ie *InputError
+		if err == nil || !strings.HasPrefix(err.Error(), "magnet: "+c.want) || !errors.As(err, &ie) || ie.File != "bad.csv" {
 			t.Errorf("ReadBHCSV(%q): err = %v, want %q", c.text, err, c.want)
 		}
 	}

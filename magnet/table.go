@@ -1,7 +1,6 @@
 package magnet
 
 import (
-	"encoding/csv"
 	"errors"
 	"fmt"
 	"io"
@@ -66,16 +65,23 @@ type gapPoint struct {
 }
 
 // gridErr is a data error tied to a row of the grid: row −1 is the gap
-// (header) row, 0.. a current row, noRow none.
+// (header) row, 0.. a current row, noRow none; cell is the cell of the
+// row (0: the label or current, 1 + j: gap j), −1 none.
 type gridErr struct {
-	row int
-	msg string
+	row, cell int
+	msg       string
 }
 
 const noRow = -2
 
 func newGridErr(row int, format string, args ...any) *gridErr {
-	return &gridErr{row: row, msg: fmt.Sprintf(format, args...)}
+	return &gridErr{row: row, cell: -1, msg: fmt.Sprintf(format, args...)}
+}
+
+// at sets the cell of the error.
+func (g *gridErr) at(cell int) *gridErr {
+	g.cell = cell
+	return g
 }
 
 // NewTable builds the model. currents (A) ascend from currents[0] == 0,
@@ -144,15 +150,18 @@ func checkGrid(currents, gaps []float64, flux [][]float64) *gridErr {
 	if nI < 2 {
 		return newGridErr(noRow, "need at least 2 currents, got %d", nI)
 	}
+	if nX > MaxTableGaps || nI > MaxTableCurrents {
+		return newGridErr(noRow, "%d currents × %d gaps is larger than a table may be (at most %d currents and %d gaps)", nI, nX, MaxTableCurrents, MaxTableGaps)
+	}
 	for j, x := range gaps {
 		if !isFinite(x) {
-			return newGridErr(-1, "gap %d is not finite: %g m", j+1, x)
+			return newGridErr(-1, "gap %d is not finite: %g m", j+1, x).at(j + 1)
 		}
 		if j == 0 && x < 0 {
-			return newGridErr(-1, "gaps must not be negative, first gap is %g m", x)
+			return newGridErr(-1, "gaps must not be negative, first gap is %g m", x).at(j + 1)
 		}
 		if j > 0 && !(x > gaps[j-1]) {
-			return newGridErr(-1, "gaps must be strictly ascending: gap %d (%g m) <= gap %d (%g m)", j+1, x, j, gaps[j-1])
+			return newGridErr(-1, "gaps must be strictly ascending: gap %d (%g m) <= gap %d (%g m)", j+1, x, j, gaps[j-1]).at(j + 1)
 		}
 	}
 	if len(flux) != nI {
@@ -160,20 +169,20 @@ func checkGrid(currents, gaps []float64, flux [][]float64) *gridErr {
 	}
 	for k, c := range currents {
 		if !isFinite(c) {
-			return newGridErr(k, "current is not finite: %g A", c)
+			return newGridErr(k, "current is not finite: %g A", c).at(0)
 		}
 		if k == 0 && c != 0 {
-			return newGridErr(k, "first current must be 0 A (no permanent magnet), got %g A", c)
+			return newGridErr(k, "first current must be 0 A (no permanent magnet), got %g A", c).at(0)
 		}
 		if k > 0 && !(c > currents[k-1]) {
-			return newGridErr(k, "currents must be strictly ascending: %g A after %g A", c, currents[k-1])
+			return newGridErr(k, "currents must be strictly ascending: %g A after %g A", c, currents[k-1]).at(0)
 		}
 		if len(flux[k]) != nX {
 			return newGridErr(k, "flux row has %d values, want one per gap (%d)", len(flux[k]), nX)
 		}
 		for j, v := range flux[k] {
 			if !isFinite(v) {
-				return newGridErr(k, "flux linkage at gap %g m is not finite: %g Wb", gaps[j], v)
+				return newGridErr(k, "flux linkage at gap %g m is not finite: %g Wb", gaps[j], v).at(j + 1)
 			}
 		}
 	}
@@ -183,7 +192,7 @@ func checkGrid(currents, gaps []float64, flux [][]float64) *gridErr {
 			big = math.Max(big, math.Abs(flux[k][j]))
 		}
 		if math.Abs(flux[0][j]) > zeroFluxTol*big {
-			return newGridErr(0, "flux linkage at 0 A must be 0 (no permanent magnet), got %g Wb at gap %g m", flux[0][j], gaps[j])
+			return newGridErr(0, "flux linkage at 0 A must be 0 (no permanent magnet), got %g Wb at gap %g m", flux[0][j], gaps[j]).at(j + 1)
 		}
 		for k := 1; k < nI; k++ {
 			prev := flux[k-1][j]
@@ -192,7 +201,7 @@ func checkGrid(currents, gaps []float64, flux [][]float64) *gridErr {
 			}
 			if !(flux[k][j] > prev) {
 				return newGridErr(k, "flux linkage must be strictly increasing in current: at gap %g m, %g Wb at %g A after %g Wb at %g A",
-					gaps[j], flux[k][j], currents[k], prev, currents[k-1])
+					gaps[j], flux[k][j], currents[k], prev, currents[k-1]).at(j + 1)
 			}
 		}
 	}
@@ -488,32 +497,40 @@ func (t *Table) Partials(lam, x float64) (diDlam, diDx float64) {
 }
 
 // ReadTableCSV reads the grid from CSV and builds the model with NewTable.
-// Lines starting with '#' are comments; the first data row is a header: an
-// empty or any label cell, then the gaps; each further row: current, then λ
-// at each gap. Values are multiplied by the given scales, the SI value of
-// one file unit, for current (A), gap (m) and flux linkage (Wb). Errors name
-// the file and line: "magnet: name:LINE: ...".
+// Lines starting with '#' are comments and a UTF-8 byte-order mark is
+// skipped; the first data row is a header: an empty or any label cell, then
+// the gaps; each further row: current, then λ at each gap. Values are
+// multiplied by the given scales, the SI value of one file unit, for
+// current (A), gap (m) and flux linkage (Wb). At most MaxTableCurrents rows
+// and MaxTableGaps gaps are read. Errors are *InputError naming the file,
+// line and column: "magnet: name:LINE:COLUMN: ...".
 func ReadTableCSV(r io.Reader, name string, currentScale, gapScale, fluxScale float64) (*Table, error) {
 	for _, sc := range []struct {
 		what string
 		v    float64
 	}{{"current", currentScale}, {"gap", gapScale}, {"flux", fluxScale}} {
 		if !(sc.v > 0) || math.IsInf(sc.v, 0) {
-			return nil, fmt.Errorf("magnet: %s: %s scale must be positive and finite, got %g", name, sc.what, sc.v)
+			return nil, inputErr(name, 0, 0, "%s scale must be positive and finite, got %g", sc.what, sc.v)
 		}
 	}
-	cr := csv.NewReader(r)
-	cr.Comment = '#'
-	cr.FieldsPerRecord = -1
-	cr.TrimLeadingSpace = true
+	in := newCSVInput(r, name)
 	var (
 		gaps, currents []float64
 		flux           [][]float64
 		headerLine     int
-		rowLines       []int
+		headerCols     []int   // column of each header cell
+		rowLines       []int   // line of each current row
+		rowCols        [][]int // column of each cell of each current row
 	)
+	cols := func(n int) []int {
+		c := make([]int, n)
+		for k := range c {
+			c[k] = in.column(k)
+		}
+		return c
+	}
 	for {
-		rec, line, err := readRecord(cr, name)
+		rec, line, err := in.next()
 		if err == io.EOF {
 			break
 		}
@@ -523,49 +540,66 @@ func ReadTableCSV(r io.Reader, name string, currentScale, gapScale, fluxScale fl
 		if gaps == nil {
 			headerLine = line
 			if len(rec) < 3 {
-				return nil, fmt.Errorf("magnet: %s:%d: header needs a label cell and at least 2 gaps, got %d cells", name, line, len(rec))
+				return nil, inputErr(name, line, 1, "header needs a label cell and at least 2 gaps, got %d cells", len(rec))
 			}
+			if len(rec)-1 > MaxTableGaps {
+				return nil, inputErr(name, line, in.column(MaxTableGaps+1), "header has %d gaps, more than the %d a table may have", len(rec)-1, MaxTableGaps)
+			}
+			headerCols = cols(len(rec))
 			gaps = make([]float64, len(rec)-1)
 			for j, cell := range rec[1:] {
 				v, err := parseCell(cell)
 				if err != nil {
-					return nil, fmt.Errorf("magnet: %s:%d: gap in column %d: %v", name, line, j+2, err)
+					return nil, inputErr(name, line, headerCols[j+1], "gap (cell %d of the header): %v", j+2, err)
 				}
 				gaps[j] = v * gapScale
 			}
 			continue
 		}
 		if len(rec) != len(gaps)+1 {
-			return nil, fmt.Errorf("magnet: %s:%d: row has %d cells, want %d (a current and one flux linkage per gap)", name, line, len(rec), len(gaps)+1)
+			return nil, inputErr(name, line, 1, "row has %d cells, want %d (a current and one flux linkage per gap)", len(rec), len(gaps)+1)
 		}
+		if len(currents) == MaxTableCurrents {
+			return nil, inputErr(name, line, 1, "more than %d current rows: a table may have at most %d", MaxTableCurrents, MaxTableCurrents)
+		}
+		rc := cols(len(rec))
 		v, err := parseCell(rec[0])
 		if err != nil {
-			return nil, fmt.Errorf("magnet: %s:%d: current in column 1: %v", name, line, err)
+			return nil, inputErr(name, line, rc[0], "current (cell 1): %v", err)
 		}
 		row := make([]float64, len(gaps))
 		for j, cell := range rec[1:] {
 			f, err := parseCell(cell)
 			if err != nil {
-				return nil, fmt.Errorf("magnet: %s:%d: flux linkage in column %d: %v", name, line, j+2, err)
+				return nil, inputErr(name, line, rc[j+1], "flux linkage (cell %d): %v", j+2, err)
 			}
 			row[j] = f * fluxScale
 		}
 		currents = append(currents, v*currentScale)
 		flux = append(flux, row)
 		rowLines = append(rowLines, line)
+		rowCols = append(rowCols, rc)
 	}
 	if gaps == nil {
-		return nil, fmt.Errorf("magnet: %s: no data: want a header row of gaps and at least 2 current rows", name)
+		return nil, inputErr(name, 0, 0, "no data: want a header row of gaps and at least 2 current rows")
 	}
 	t, ge := newTable(currents, gaps, flux)
 	if ge != nil {
 		switch {
 		case ge.row == -1:
-			return nil, fmt.Errorf("magnet: %s:%d: %s", name, headerLine, ge.msg)
+			col := 0
+			if ge.cell >= 0 && ge.cell < len(headerCols) {
+				col = headerCols[ge.cell]
+			}
+			return nil, inputErr(name, headerLine, col, "%s", ge.msg)
 		case ge.row >= 0 && ge.row < len(rowLines):
-			return nil, fmt.Errorf("magnet: %s:%d: %s", name, rowLines[ge.row], ge.msg)
+			col := 0
+			if ge.cell >= 0 && ge.cell < len(rowCols[ge.row]) {
+				col = rowCols[ge.row][ge.cell]
+			}
+			return nil, inputErr(name, rowLines[ge.row], col, "%s", ge.msg)
 		default:
-			return nil, fmt.Errorf("magnet: %s: %s", name, ge.msg)
+			return nil, inputErr(name, 0, 0, "%s", ge.msg)
 		}
 	}
 	return t, nil
@@ -575,29 +609,11 @@ func ReadTableCSV(r io.Reader, name string, currentScale, gapScale, fluxScale fl
 func parseCell(cell string) (float64, error) {
 	s := strings.TrimSpace(cell)
 	if s == "" {
-		return 0, errors.New("empty cell")
+		return 0, errors.New("empty cell; expected a number")
 	}
 	v, err := strconv.ParseFloat(s, 64)
 	if err != nil || !isFinite(v) {
 		return 0, fmt.Errorf("not a finite number: %q", s)
 	}
 	return v, nil
-}
-
-// readRecord reads the next CSV record and the line it starts on; io.EOF at
-// the end. Parse errors name the file and line.
-func readRecord(cr *csv.Reader, name string) (rec []string, line int, err error) {
-	rec, err = cr.Read()
-	if err == io.EOF {
-		return nil, 0, err
-	}
-	if err != nil {
-		var pe *csv.ParseError
-		if errors.As(err, &pe) {
-			return nil, 0, fmt.Errorf("magnet: %s:%d: %v", name, pe.Line, pe.Err)
-		}
-		return nil, 0, fmt.Errorf("magnet: %s: %v", name, err)
-	}
-	line, _ = cr.FieldPos(0)
-	return rec, line, nil
 }

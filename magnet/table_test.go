@@ -1,6 +1,8 @@
 package magnet
 
 import (
+	"errors"
+	"fmt"
 	"math"
 	"os"
 	"strings"
@@ -192,23 +194,31 @@ func TestReadTableCSVErrors(t *testing.T) {
 	}{
 		{"empty", "", "mem.csv: no data"},
 		{"comments only", "# nothing\n# here\n", "mem.csv: no data"},
-		{"non-numeric cell", "i,1,2\n0,0,0\n1,0.5,abc\n", "mem.csv:3: flux linkage in column 3: not a finite number"},
-		{"non-numeric gap", "#c\ni,1,x2\n0,0,0\n", "mem.csv:2: gap in column 3"},
-		{"ragged row", "i,1,2\n0,0,0\n1,0.5\n", "mem.csv:3: row has 2 cells, want 3"},
-		{"gaps not ascending", "# units A, mm, Wb\ni,2,1\n0,0,0\n1,0.5,0.6\n", "mem.csv:2: gaps must be strictly ascending"},
-		{"current not from 0", "i,1,2\n0.5,0.1,0.1\n1,0.5,0.4\n", "mem.csv:2: first current must be 0"},
-		{"flux not increasing", "i,1,2\n0,0,0\n1,0.5,0.4\n2,0.7,0.3\n", "mem.csv:4: flux linkage must be strictly increasing"},
+		{"non-numeric cell", "i,1,2\n0,0,0\n1,0.5,abc\n", `mem.csv:3:7: flux linkage (cell 3): not a finite number: "abc"`},
+		{"empty cell", "i,1,2\n0,0,0\n1,,0.5\n", "mem.csv:3:3: flux linkage (cell 2): empty cell"},
+		{"non-numeric gap", "#c\ni,1,x2\n0,0,0\n", "mem.csv:2:5: gap (cell 3 of the header)"},
+		{"non-numeric current", "i,1,2\n0,0,0\nx,0.5,0.4\n", "mem.csv:3:1: current (cell 1)"},
+		{"ragged row", "i,1,2\n0,0,0\n1,0.5\n", "mem.csv:3:1: row has 2 cells, want 3"},
+		{"gaps not ascending", "# units A, mm, Wb\ni,2,1\n0,0,0\n1,0.5,0.6\n", "mem.csv:2:5: gaps must be strictly ascending"},
+		{"current not from 0", "i,1,2\n0.5,0.1,0.1\n1,0.5,0.4\n", "mem.csv:2:1: first current must be 0"},
+		{"flux not increasing", "i,1,2\n0,0,0\n1,0.5,0.4\n2,0.7,0.3\n", "mem.csv:4:7: flux linkage must be strictly increasing"},
+		{"flux at 0 A", "i,1,2\n0,0,0.1\n1,0.5,0.4\n", "mem.csv:2:5: flux linkage at 0 A must be 0"},
 		{"one current row", "i,1,2\n0,0,0\n", "mem.csv: need at least 2 currents"},
-		{"header too short", "i,1\n0,0\n", "mem.csv:1: header needs"},
+		{"header too short", "i,1\n0,0\n", "mem.csv:1:1: header needs"},
 		{"bad quote", "i,1,2\n0,0,0\n1,\"0.5,0.4\n", "mem.csv:3:"},
-		{"infinite cell", "i,1,2\n0,0,0\n1,Inf,0.4\n", "mem.csv:3:"},
+		{"bare quote", "i,1,2\n0,0,0\n1,0\"5,0.4\n", "mem.csv:3:4: not valid CSV"},
+		{"infinite cell", "i,1,2\n0,0,0\n1,Inf,0.4\n", "mem.csv:3:3:"},
+		{"BOM then comment", "\ufeff# units A, mm, Wb\ni,2,1\n0,0,0\n1,0.5,0.6\n", "mem.csv:2:5: gaps must be strictly ascending"},
+		{"too many gaps", "i" + strings.Repeat(",1", MaxTableGaps+1) + "\n", fmt.Sprintf("mem.csv:1:%d: header has %d gaps, more than the %d", 2*(MaxTableGaps+1)+1, MaxTableGaps+1, MaxTableGaps)},
+		{"too many currents", "i,1,2\n" + strings.Repeat("0,0,0\n", MaxTableCurrents+1), fmt.Sprintf("mem.csv:%d:1: more than %d current rows", MaxTableCurrents+2, MaxTableCurrents)},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			t.Parallel()
 			_, err := ReadTableCSV(strings.NewReader(tt.in), "mem.csv", 1, 1e-3, 1)
-			if err == nil || !strings.HasPrefix(err.Error(), "magnet: "+tt.want) && !strings.Contains(err.Error(), tt.want) {
-				t.Errorf("ReadTableCSV(%q) error = %v, want one containing %q", tt.in, err, tt.want)
+			var ie *InputError
+			if err == nil || !strings.HasPrefix(err.Error(), "magnet: "+tt.want) || !errors.As(err, &ie) || ie.File != "mem.csv" {
+				t.Errorf("ReadTableCSV(%q) error = %v, want an *InputError starting %q", tt.in, err, "magnet: "+tt.want)
 			}
 		})
 	}
