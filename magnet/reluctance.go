@@ -35,59 +35,62 @@ type PlungerGeometry struct {
 	WindingLength      float64 // m, axial length of the winding
 }
 
-// Validate reports the first field out of range: every dimension must be
-// positive and finite, the shell wall thinner than the shell radius, the
+// Validate reports the first dimension out of range: every dimension must
+// be positive and finite, the shell wall thinner than the shell radius, the
 // plunger (with its sliding gap) and the pole must fit in the coil bore,
 // the winding must fit inside the shell and between the end plates, and the
-// pole must leave room for a working gap between the end plates.
+// pole must leave room for a working gap between the end plates. Its
+// messages name the dimensions in plain words, as a drawing or a scenario
+// file does ("shell wall", "the winding's inner diameter"), in mm.
 func (g PlungerGeometry) Validate() error {
 	for _, f := range []struct {
 		name string
 		v    float64
 	}{
-		{"PlungerDiameter", g.PlungerDiameter},
-		{"PlungerLength", g.PlungerLength},
-		{"PoleDiameter", g.PoleDiameter},
-		{"PoleLength", g.PoleLength},
-		{"ShellOuterDiameter", g.ShellOuterDiameter},
-		{"ShellWall", g.ShellWall},
-		{"ShellLength", g.ShellLength},
-		{"EndPlateThickness", g.EndPlateThickness},
-		{"SlidingGap", g.SlidingGap},
-		{"SlidingLength", g.SlidingLength},
-		{"WindingInnerRadius", g.WindingInnerRadius},
-		{"WindingOuterRadius", g.WindingOuterRadius},
-		{"WindingLength", g.WindingLength},
+		{"plunger diameter", g.PlungerDiameter},
+		{"plunger length", g.PlungerLength},
+		{"pole diameter", g.PoleDiameter},
+		{"pole length", g.PoleLength},
+		{"shell outer diameter", g.ShellOuterDiameter},
+		{"shell wall", g.ShellWall},
+		{"shell length", g.ShellLength},
+		{"end plate thickness", g.EndPlateThickness},
+		{"sliding gap", g.SlidingGap},
+		{"sliding length", g.SlidingLength},
+		{"the winding's inner radius", g.WindingInnerRadius},
+		{"the winding's outer radius", g.WindingOuterRadius},
+		{"the winding's length", g.WindingLength},
 	} {
 		if !(f.v > 0) || math.IsInf(f.v, 0) {
-			return fmt.Errorf("magnet: plunger geometry: %s must be positive and finite, got %g m", f.name, f.v)
+			return fmt.Errorf("magnet: plunger geometry: %s must be positive and finite, got %g mm", f.name, f.v*1e3)
 		}
 	}
+	const mm = 1e3
 	rShellIn := g.ShellOuterDiameter/2 - g.ShellWall
 	inner := g.ShellLength - 2*g.EndPlateThickness
 	switch {
 	case !(rShellIn > 0):
-		return fmt.Errorf("magnet: plunger geometry: ShellWall %g m must be less than the shell outer radius %g m", g.ShellWall, g.ShellOuterDiameter/2)
+		return fmt.Errorf("magnet: plunger geometry: shell wall %.4g mm must be less than half the shell outer diameter, %.4g mm", g.ShellWall*mm, g.ShellOuterDiameter/2*mm)
 	case g.PlungerDiameter/2+g.SlidingGap > g.WindingInnerRadius:
-		return fmt.Errorf("magnet: plunger geometry: plunger radius plus SlidingGap (%g m) must fit in the coil bore, WindingInnerRadius %g m",
-			g.PlungerDiameter/2+g.SlidingGap, g.WindingInnerRadius)
+		return fmt.Errorf("magnet: plunger geometry: the plunger with its sliding gap (plunger diameter + 2 × sliding gap = %.4g mm) must fit in the coil bore, the winding's inner diameter %.4g mm",
+			(g.PlungerDiameter+2*g.SlidingGap)*mm, 2*g.WindingInnerRadius*mm)
 	case g.PoleDiameter/2 > g.WindingInnerRadius:
-		return fmt.Errorf("magnet: plunger geometry: pole radius %g m (PoleDiameter/2) must fit in the coil bore, WindingInnerRadius %g m",
-			g.PoleDiameter/2, g.WindingInnerRadius)
+		return fmt.Errorf("magnet: plunger geometry: pole diameter %.4g mm must fit in the coil bore, the winding's inner diameter %.4g mm",
+			g.PoleDiameter*mm, 2*g.WindingInnerRadius*mm)
 	case !(g.WindingOuterRadius > g.WindingInnerRadius):
-		return fmt.Errorf("magnet: plunger geometry: WindingOuterRadius %g m must exceed WindingInnerRadius %g m", g.WindingOuterRadius, g.WindingInnerRadius)
+		return fmt.Errorf("magnet: plunger geometry: the winding's outer diameter %.4g mm must exceed its inner diameter %.4g mm", 2*g.WindingOuterRadius*mm, 2*g.WindingInnerRadius*mm)
 	case g.WindingOuterRadius > rShellIn:
-		return fmt.Errorf("magnet: plunger geometry: WindingOuterRadius %g m must fit inside the shell, inner radius %g m (ShellOuterDiameter/2 − ShellWall)",
-			g.WindingOuterRadius, rShellIn)
+		return fmt.Errorf("magnet: plunger geometry: the winding's outer diameter %.4g mm must fit inside the shell, whose inner diameter is %.4g mm (shell outer diameter − 2 × shell wall)",
+			2*g.WindingOuterRadius*mm, 2*rShellIn*mm)
 	case !(inner > 0):
-		return fmt.Errorf("magnet: plunger geometry: ShellLength %g m must exceed the two end plates, 2 × EndPlateThickness = %g m",
-			g.ShellLength, 2*g.EndPlateThickness)
+		return fmt.Errorf("magnet: plunger geometry: shell length %.4g mm must exceed the two end plates, 2 × end plate thickness = %.4g mm",
+			g.ShellLength*mm, 2*g.EndPlateThickness*mm)
 	case g.WindingLength > inner:
-		return fmt.Errorf("magnet: plunger geometry: WindingLength %g m must fit between the end plates, %g m (ShellLength − 2 × EndPlateThickness)",
-			g.WindingLength, inner)
+		return fmt.Errorf("magnet: plunger geometry: the winding's length %.4g mm must fit between the end plates, %.4g mm (shell length − 2 × end plate thickness)",
+			g.WindingLength*mm, inner*mm)
 	case !(g.PoleLength < inner):
-		return fmt.Errorf("magnet: plunger geometry: PoleLength %g m must be shorter than the space between the end plates, %g m, to leave room for the working gap",
-			g.PoleLength, inner)
+		return fmt.Errorf("magnet: plunger geometry: pole length %.4g mm must be shorter than the space between the end plates, %.4g mm (shell length − 2 × end plate thickness), to leave room for the working gap",
+			g.PoleLength*mm, inner*mm)
 	}
 	return nil
 }

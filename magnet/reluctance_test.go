@@ -2,6 +2,7 @@ package magnet
 
 import (
 	"math"
+	"regexp"
 	"strings"
 	"testing"
 )
@@ -415,15 +416,15 @@ func TestPlungerGeometryValidate(t *testing.T) {
 		edit func(*PlungerGeometry)
 		want string
 	}{
-		{"zero plunger", func(g *PlungerGeometry) { g.PlungerDiameter = 0 }, "PlungerDiameter must be positive"},
-		{"NaN pole", func(g *PlungerGeometry) { g.PoleLength = math.NaN() }, "PoleLength must be positive"},
-		{"inf shell", func(g *PlungerGeometry) { g.ShellLength = math.Inf(1) }, "ShellLength must be positive"},
-		{"negative gap", func(g *PlungerGeometry) { g.SlidingGap = -1e-5 }, "SlidingGap must be positive"},
-		{"zero winding length", func(g *PlungerGeometry) { g.WindingLength = 0 }, "WindingLength must be positive"},
-		{"wall too thick", func(g *PlungerGeometry) { g.ShellWall = 16e-3 }, "ShellWall"},
+		{"zero plunger", func(g *PlungerGeometry) { g.PlungerDiameter = 0 }, "plunger diameter must be positive"},
+		{"NaN pole", func(g *PlungerGeometry) { g.PoleLength = math.NaN() }, "pole length must be positive"},
+		{"inf shell", func(g *PlungerGeometry) { g.ShellLength = math.Inf(1) }, "shell length must be positive"},
+		{"negative gap", func(g *PlungerGeometry) { g.SlidingGap = -1e-5 }, "sliding gap must be positive"},
+		{"zero winding length", func(g *PlungerGeometry) { g.WindingLength = 0 }, "the winding's length must be positive"},
+		{"wall too thick", func(g *PlungerGeometry) { g.ShellWall = 16e-3 }, "shell wall 16 mm must be less than half the shell outer diameter, 16 mm"},
 		{"plunger too fat", func(g *PlungerGeometry) { g.PlungerDiameter = 9.95e-3 }, "must fit in the coil bore"},
-		{"pole too fat", func(g *PlungerGeometry) { g.PoleDiameter = 11e-3 }, "pole radius"},
-		{"winding inverted", func(g *PlungerGeometry) { g.WindingOuterRadius = 4.5e-3; g.WindingInnerRadius = 5e-3 }, "WindingOuterRadius"},
+		{"pole too fat", func(g *PlungerGeometry) { g.PoleDiameter = 11e-3 }, "pole diameter 11 mm must fit in the coil bore, the winding's inner diameter 10 mm"},
+		{"winding inverted", func(g *PlungerGeometry) { g.WindingOuterRadius = 4.5e-3; g.WindingInnerRadius = 5e-3 }, "the winding's outer diameter 9 mm must exceed its inner diameter 10 mm"},
 		{"winding outside shell", func(g *PlungerGeometry) { g.WindingOuterRadius = 15e-3 }, "fit inside the shell"},
 		{"plates too thick", func(g *PlungerGeometry) { g.EndPlateThickness = 14e-3 }, "two end plates"},
 		{"winding too long", func(g *PlungerGeometry) { g.WindingLength = 24e-3 }, "fit between the end plates"},
@@ -435,6 +436,10 @@ func TestPlungerGeometryValidate(t *testing.T) {
 		err := g.Validate()
 		if err == nil || !strings.HasPrefix(err.Error(), "magnet: plunger geometry: ") || !strings.Contains(err.Error(), c.want) {
 			t.Errorf("%s: err = %v, want %q", c.name, err, c.want)
+		}
+		// No Go field names (PlungerDiameter, WindingInnerRadius) in messages.
+		if err != nil && camelCase.MatchString(err.Error()) {
+			t.Errorf("%s: err = %v names an internal field", c.name, err)
 		}
 		if _, err2 := NewPlungerMagnet(g, LowCarbonSteel(), 100); err2 == nil || err2.Error() != err.Error() {
 			t.Errorf("%s: NewPlungerMagnet err = %v, want %v", c.name, err2, err)
@@ -453,3 +458,7 @@ func BenchmarkBuildTable40x40(b *testing.B) {
 		}
 	}
 }
+
+// camelCase matches a Go-style identifier with an inner capital letter
+// (ShellWall, WindingInnerRadius), which a user's message must not show.
+var camelCase = regexp.MustCompile(`\b[A-Za-z][a-z]+[A-Z][a-z]+`)
