@@ -47,7 +47,7 @@ func OpenInput(path, what string, limit int64) (*os.File, error) {
 		return nil, fmt.Errorf("%s: cannot read %s: %v", path, what, unwrapPathError(err))
 	}
 	if !st.Mode().IsRegular() {
-		return nil, fmt.Errorf("%s: %s is %s, not a regular file: refused", path, what, describeFileMode(st.Mode()))
+		return nil, fmt.Errorf("%s: %s is not a regular file (it is %s): refused", path, what, describeFileMode(st.Mode()))
 	}
 	if st.Size() > limit {
 		return nil, fmt.Errorf("%s: %s of %d bytes is larger than %d bytes: refused", path, what, st.Size(), limit)
