@@ -47,7 +47,7 @@ func OpenInput(path, what string, limit int64) (*os.File, error) {
 		return nil, fmt.Errorf("%s: cannot read %s: %v", path, what, unwrapPathError(err))
 	}
 	if !st.Mode().IsRegular() {
-		return nil, fmt.Errorf("%s: %s is not a regular file (it is %s): refused", path, what, describeFileMode(st.Mode()))
+		return nil, fmt.Errorf("%s: %s is not a regular file (%s): refused", path, what, describeFileMode(st.Mode()))
 	}
 	if st.Size() > limit {
 		return nil, fmt.Errorf("%s: %s of %d bytes is larger than %d bytes: refused", path, what, st.Size(), limit)
@@ -60,13 +60,13 @@ func OpenInput(path, what string, limit int64) (*os.File, error) {
 }
 
 // describeFileMode names the type of a file that is not a regular one,
-// for messages: "a directory", "a named pipe (FIFO)", "a device".
+// for messages: "a directory", "a FIFO (named pipe)", "a device".
 func describeFileMode(m os.FileMode) string {
 	switch {
 	case m.IsDir():
 		return "a directory"
 	case m&os.ModeNamedPipe != 0:
-		return "a named pipe (FIFO)"
+		return "a FIFO (named pipe)"
 	case m&os.ModeSocket != 0:
 		return "a socket"
 	case m&os.ModeDevice != 0:

@@ -986,7 +986,7 @@ func (l *scenarioLoader) inputFile(path, file, kind string) string {
 	case fi.IsDir():
 		l.errf(path, "%q is a folder, not a %s file", resolved, kind)
 	case !fi.Mode().IsRegular():
-		l.errf(path, "%q is not a regular file (it is %s): refused; expected a CSV file", resolved, describeFileMode(fi.Mode()))
+		l.errf(path, "%q is not a regular file (%s): refused; expected a CSV file", resolved, describeFileMode(fi.Mode()))
 	case fi.Size() > MaxTableBytes:
 		l.errf(path, "%q has %d bytes, more than the limit of %d bytes (%d MiB): refused", resolved, fi.Size(), int64(MaxTableBytes), MaxTableBytes>>20)
 	default:

@@ -8,8 +8,10 @@ import (
 	"os"
 	"path/filepath"
 	"reflect"
+	"regexp"
 	"strings"
 	"testing"
+	"time"
 )
 
 func TestLoadMinimal(t *testing.T) {
@@ -170,6 +172,47 @@ func TestLoadBad(t *testing.T) {
 		{"seal_travel_too_long.yaml", 20, 18, []string{"plunger.load.seal travel", `"2 mm" must not exceed`, "plunger.rest gap"}},
 		{"nan_value.yaml", 4, 12, []string{"supply.voltage", "not a finite number", "expected a voltage"}},
 		{"scalar_top.yaml", 2, 1, []string{"(top level)", "expected a section of keys"}},
+
+		// Ranges: every value is bounded, the message states the range and its unit.
+		{"pwm_frequency_huge.yaml", 29, 14, []string{`drive.frequency: "1e21 Hz" is too large; expected a frequency from 1 Hz to 10 MHz`}},
+		{"pwm_frequency_below_window.yaml", 29, 14, []string{`drive.frequency: "5 Hz" gives less than one period in the 0.1 s the drive is energized`, "expected a frequency of at least 10 Hz"}},
+		{"chopping_frequency_below_hold.yaml", 33, 14, []string{`drive.frequency: "20 Hz" gives less than one period in the 0.04 s the hold lasts`, "drive.peak time", "expected a frequency of at least 25 Hz"}},
+		{"mass_underflow.yaml", 13, 9, []string{`plunger.mass: "1e-30 g" is too small; expected a mass from 1 mg to 100 kg`}},
+		{"solver_tolerance_tiny.yaml", 28, 14, []string{`solver.tolerance: "1e-30" is too small; expected a plain number from 1e-12 to 1e-3`}},
+		{"duty_duration_huge.yaml", 30, 13, []string{`duty.duration: "1e18 min" is too large; expected a time from 0 s to 525600 min (at most a year)`}},
+		{"duty_segment_tiny.yaml", 28, 14, []string{`duty.segments[1]: "1 ns" is too small; expected a time from 1 ms to 1440 min`}},
+		{"stick_speed_zeno.yaml", 19, 16, []string{`plunger.stick speed: "1e-30 m/s" is too small; expected a velocity from 100 µm/s to 10 m/s`}},
+		{"bulk_capacitance_huge.yaml", 7, 21, []string{`supply.bulk capacitance: "1e30 uF" is too large; expected a capacitance from 1 nF to 1 F`}},
+		{"supply_voltage_huge.yaml", 5, 12, []string{`supply.voltage: "24 MV" is too large; expected a voltage from 100 mV to 1 kV`}},
+		{"temperature_coefficient_negative.yaml", 8, 28, []string{`coil.temperature coefficient: "-0.004 /K" must not be negative; expected a temperature coefficient (per kelvin) from 0 /K to 0.01 /K`}},
+		{"coil_temperature_hot.yaml", 8, 16, []string{`coil.temperature: "900 degC" is too large; expected a temperature from -100 degC to 400 degC`}},
+		{"max_steps_huge.yaml", 28, 14, []string{`solver.max steps: "1e12" is too large; expected a whole number from 1 to 100000000`}},
+		{"timing_end_long.yaml", 26, 8, []string{`timing.end: "1e9 s" is too large; expected a time from 1 µs to 60 min`}},
+		{"switch_capacitance_tiny.yaml", 20, 23, []string{`switch.output capacitance: "1e-30 F" is too small; expected a capacitance of 0, or from 1 pF to 1 µF`}},
+		{"shell_wall_tiny.yaml", 25, 17, []string{`magnet.geometry.shell wall: "1e-20 mm" is too small; expected a length from 100 µm to 1 m`}},
+		// Whole numbers.
+		{"turns_fractional.yaml", 8, 10, []string{`coil.turns: "2400.5" must be a whole number; expected a whole number from 1 to 1000000`}},
+		{"build_turns_fractional.yaml", 17, 12, []string{`coil.build.turns: "2500.5" must be a whole number; expected a whole number from 1 to 1000000`}},
+		// Control characters: refused in the name, escaped wherever else a message quotes the file.
+		{"name_escape.yaml", 3, 7, []string{`name: "test valve \x1b[2J\x1b[31mRED" contains the control character U+001B`, "expected printable text"}},
+		{"name_bidi.yaml", 3, 7, []string{`name: "test \u202eevlav" contains the control character U+202E`, "expected printable text"}},
+		{"unknown_key_control.yaml", 18, 3, []string{`plunger.\x1b[31mcolour: unknown key "\x1b[31mcolour"`, "allowed keys: mass"}},
+		// Input files that are not regular files.
+		{"table_device.yaml", 9, 11, []string{`magnet.table.file: "/dev/zero" is not a regular file (a device): refused; expected a CSV file`}},
+		{"table_folder.yaml", 9, 11, []string{`magnet.table.file: "testdata/bad" is a folder, not a table file`}},
+		{"curve_device.yaml", 31, 13, []string{`magnet.geometry.steel curve.file: "/dev/zero" is not a regular file (a device): refused`}},
+		// CSV inputs (read by Build): the scenario's field, the CSV's line and column, the units.
+		{"table_bad_cell.yaml", 9, 11, []string{"magnet.table.file: testdata/bad/table_bad_cell.csv:9:32: flux linkage (cell 5): not a finite number: \"abc\"",
+			"the table's units: current in mA, gap in mm, flux linkage in mWb"}},
+		{"table_bom_bad.yaml", 9, 11, []string{"magnet.table.file: testdata/bad/table_bom_bad.csv:9:14: flux linkage must be strictly increasing in current",
+			"the table's units: current in mA, gap in mm, flux linkage in mWb"}},
+		{"table_too_many_gaps.yaml", 9, 11, []string{"magnet.table.file: testdata/bad/table_too_many_gaps.csv:2:3342: header has 501 gaps, more than the 500 a table may have"}},
+		{"curve_bad_cell.yaml", 31, 13, []string{"magnet.geometry.steel curve.file: testdata/bad/curve_bad_cell.csv:8:6: B (cell 2): not a finite number: \"1.2x\"",
+			"the curve's units: field strength in kA/m, flux density in T"}},
+		{"curve_bom_bad.yaml", 31, 13, []string{"magnet.geometry.steel curve.file: testdata/bad/curve_bom_bad.csv:9:6: flux density must be strictly increasing: 0.85 T after 0.9 T"}},
+		// Geometry: plain words, no Go field names.
+		{"geometry_pole_too_fat.yaml", 19, 3, []string{"magnet.geometry: plunger geometry: pole diameter 12 mm must fit in the coil bore, the winding's inner diameter 10 mm"}},
+		{"geometry_plunger_too_fat.yaml", 19, 3, []string{"magnet.geometry: plunger geometry: the plunger with its sliding gap (plunger diameter + 2 × sliding gap = 11 mm) must fit in the coil bore"}},
 	}
 	seen := map[string]bool{}
 	for _, c := range cases {
@@ -178,9 +221,13 @@ func TestLoadBad(t *testing.T) {
 		t.Run(c.file, func(t *testing.T) {
 			s, err := Load(path)
 			if err == nil {
-				t.Fatalf("Load(%s) succeeded: %+v", path, s)
+				// Defects of the files a scenario names show when it is built.
+				if _, err = Build(s); err == nil {
+					t.Fatalf("LoadModel(%s) succeeded: %+v", path, s)
+				}
 			}
 			msg := err.Error()
+			checkMessage(t, msg)
 			where := path + ":"
 			if c.line > 0 {
 				where = fmt.Sprintf("%s:%d:", path, c.line)
@@ -206,6 +253,33 @@ func TestLoadBad(t *testing.T) {
 	for _, f := range files {
 		if !seen[filepath.Base(f)] {
 			t.Errorf("%s has no test case", f)
+		}
+	}
+}
+
+// camelCase matches a Go identifier with an inner capital letter
+// (SlidingGap, WindingInnerRadius): internal names a message must not show.
+var camelCase = regexp.MustCompile(`\b[A-Za-z][a-z]+[A-Z][a-z]+`)
+
+// checkMessage fails on what no user message may hold: a raw control
+// character (a terminal would act on it), a package prefix after a file
+// position ("coilkick: " is the CLI's own), a Go field name, NaN or Inf.
+func checkMessage(t *testing.T, msg string) {
+	t.Helper()
+	for _, line := range strings.Split(msg, "\n") {
+		for _, r := range line {
+			if isControlRune(r) {
+				t.Errorf("message holds the raw control character %U: %q", r, line)
+			}
+		}
+		if strings.Contains(line, "coilkick: ") || strings.Contains(line, ": magnet: ") {
+			t.Errorf("message repeats a package prefix: %q", line)
+		}
+		if m := camelCase.FindString(line); m != "" {
+			t.Errorf("message names the internal %q: %q", m, line)
+		}
+		if strings.Contains(line, "NaN") || strings.Contains(line, "Inf") {
+			t.Errorf("message holds a non-finite number: %q", line)
 		}
 	}
 }
@@ -575,5 +649,177 @@ func TestLoadThermalErrors(t *testing.T) {
 		if err == nil || !strings.Contains(err.Error(), c.want) || !strings.Contains(err.Error(), "h.yaml:") {
 			t.Errorf("edit %q → %q: error %v, want one naming h.yaml and containing %q", c.from, c.to, err, c.want)
 		}
+	}
+}
+
+// A flux-linkage table saved with a UTF-8 byte-order mark (as spreadsheet
+// programs write) loads as the same table without it; so does a B–H curve.
+func TestLoadCSVWithByteOrderMark(t *testing.T) {
+	t.Parallel()
+	plain, err := LoadModel(filepath.Join("testdata", "good", "table.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	bom, err := LoadModel(filepath.Join("testdata", "good", "table_bom.yaml"))
+	if err != nil {
+		t.Fatalf("table with a byte-order mark: %v", err)
+	}
+	for _, x := range []float64{0.1e-3, 0.7e-3, 2e-3} {
+		for _, i := range []float64{0.1, 0.5, 1.5} {
+			if a, b := plain.Magnet.FluxLinkage(i, x), bom.Magnet.FluxLinkage(i, x); a != b {
+				t.Errorf("λ(%g A, %g m): %g with the mark, %g without", i, x, b, a)
+			}
+		}
+	}
+	// The steel curve: the geometry demo with a curve file that starts with the mark.
+	dir := t.TempDir()
+	curve, err := os.ReadFile(filepath.Join("testdata", "magnet", "steel_bh.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(filepath.Join(dir, "steel.csv"), append([]byte("\ufeff"), curve...), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	good, err := os.ReadFile(filepath.Join("scenarios", "dosing-valve-geometry.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	text := strings.Replace(string(good), "    steel saturation: 2.0 T        # typical of low-carbon steel, from memory\n    steel permeability: 1500       # initial relative permeability, from memory\n",
+		"    steel curve:\n      file: steel.csv\n      field unit: kA/m\n      flux density unit: T\n", 1)
+	s, err := Parse([]byte(text), filepath.Join(dir, "curve.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := Build(s); err != nil {
+		t.Errorf("B–H curve with a byte-order mark: %v", err)
+	}
+}
+
+// Input files that are not regular files, or too large, are refused at
+// once with the file and the reason: a FIFO must not block, /dev/zero must
+// not be read until memory runs out.
+func TestLoadRefusesNonRegularAndOversize(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
+	fifo := filepath.Join(dir, "scenario.fifo")
+	if err := mkfifo(fifo); err != nil {
+		t.Skipf("no FIFO here: %v", err)
+	}
+	big := filepath.Join(dir, "big.yaml")
+	bigTable := filepath.Join(dir, "big.csv")
+	for _, f := range []struct {
+		name string
+		size int64
+	}{{big, MaxScenarioBytes + 1}, {bigTable, MaxTableBytes + 1}} {
+		fh, err := os.Create(f.name)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := fh.Truncate(f.size); err != nil { // sparse: no disk used
+			t.Fatal(err)
+		}
+		fh.Close()
+	}
+	minimal, err := os.ReadFile(filepath.Join("testdata", "good", "table.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	withTable := func(file string) string {
+		p := filepath.Join(dir, filepath.Base(file)+".yaml")
+		text := strings.Replace(string(minimal), "file: table_flux.csv", "file: "+file, 1)
+		if err := os.WriteFile(p, []byte(text), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	cases := []struct {
+		path string
+		want []string
+	}{
+		{fifo, []string{fifo + ": scenario file is not a regular file (a FIFO (named pipe)): refused"}},
+		{"/dev/zero", []string{"/dev/zero: scenario file is not a regular file (a device): refused"}},
+		{dir, []string{dir + ": scenario file is not a regular file (a directory): refused"}},
+		{big, []string{big + ": scenario file of 1048577 bytes is larger than 1048576 bytes: refused"}},
+		{withTable(fifo), []string{":8:11: magnet.table.file: ", "is not a regular file (a FIFO (named pipe)): refused; expected a CSV file"}},
+		{withTable(bigTable), []string{":8:11: magnet.table.file: ", "has 67108865 bytes, more than the limit of 67108864 bytes (64 MiB): refused"}},
+	}
+	for _, c := range cases {
+		done := make(chan error, 1)
+		go func() { _, err := LoadModel(c.path); done <- err }()
+		select {
+		case err := <-done:
+			if err == nil {
+				t.Errorf("LoadModel(%s) succeeded", c.path)
+				continue
+			}
+			for _, w := range c.want {
+				if !strings.Contains(err.Error(), w) {
+					t.Errorf("LoadModel(%s): error %q lacks %q", c.path, err, w)
+				}
+			}
+			checkMessage(t, strings.ReplaceAll(err.Error(), dir, "DIR")) // the temporary folder is named after the test
+		case <-time.After(10 * time.Second):
+			t.Fatalf("LoadModel(%s) blocked", c.path)
+		}
+	}
+	// The same checks guard a table that became a FIFO after loading.
+	s, err := Load(filepath.Join("testdata", "good", "table.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	s.Magnet.TableFile = fifo
+	if _, err := Build(s); err == nil || !strings.Contains(err.Error(), "magnet.table.file: "+fifo+": flux-linkage table is not a regular file") {
+		t.Errorf("Build with a FIFO table: %v", err)
+	}
+}
+
+// Scenario.Errorf points at the field and drops the package prefix of a
+// wrapped error ("magnet: ", "coilkick: "), so the CLI's own "coilkick: "
+// is never doubled; control characters are escaped.
+func TestScenarioErrorfComposition(t *testing.T) {
+	t.Parallel()
+	s, err := Load(filepath.Join("testdata", "good", "minimal.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	wrapped := fmt.Errorf("coilkick: magnet: gap law: closed inductance must exceed open inductance")
+	got := s.Errorf("magnet.gap law", "%v", wrapped).Error()
+	want := "testdata/good/minimal.yaml:8:3: magnet.gap law: gap law: closed inductance must exceed open inductance"
+	if got != want {
+		t.Errorf("Errorf = %q, want %q", got, want)
+	}
+	got = s.Errorf("name", "bad \x1b[2J here").Error()
+	if strings.Contains(got, "\x1b") || !strings.Contains(got, `bad \x1b[2J here`) {
+		t.Errorf("Errorf did not escape a control character: %q", got)
+	}
+}
+
+// The name is printed in every output: control characters and bidirectional
+// controls are refused, printable text of any script is kept.
+func TestBadName(t *testing.T) {
+	t.Parallel()
+	for _, c := range []struct {
+		name string
+		ok   bool
+	}{
+		{"door latch (demo data)", true},
+		{"Magnetventil Größe 2 — 24 V, 電磁弁", true},
+		{"tab\there", false},
+		{"new\nline", false},
+		{"bell\a", false},
+		{"csi \u009b31m", false}, // C1 control: some terminals act on it
+		{"del \x7f", false},
+		{"rtl \u202e", false},
+		{"isolate \u2066", false},
+		{"bad \xff byte", false},
+		{strings.Repeat("x", maxNameRunes), true},
+		{strings.Repeat("x", maxNameRunes+1), false},
+	} {
+		if got := badName(c.name) == ""; got != c.ok {
+			t.Errorf("badName(%q) = %q, want ok %v", c.name, badName(c.name), c.ok)
+		}
+	}
+	if got := escapeControl("a\x1bb\u202ec\xffd\u009b"); got != `a\x1bb\u202ec\xffd\x9b` {
+		t.Errorf("escapeControl = %q", got)
 	}
 }

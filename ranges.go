@@ -48,6 +48,9 @@ func (r valueRange) expected() string {
 	if r.whole {
 		s = "a whole number"
 	}
+	if r.zeroOK {
+		s += " of"
+	}
 	s += " " + r.text
 	if r.note != "" {
 		s += " (" + r.note + ")"
