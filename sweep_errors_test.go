@@ -1,6 +1,7 @@
 package coilkick
 
 import (
+	"encoding/json"
 	"os"
 	"path/filepath"
 	"strings"
@@ -90,8 +91,14 @@ func TestSweepInvalidPointGoesOn(t *testing.T) {
 		t.Fatalf("%d points, want 5", len(pts))
 	}
 	p := pts[0]
-	if p.Values[0] != "21 V" || p.Figures != nil || p.Err != "" {
-		t.Errorf("21 V: want invalid without figures, got %+v", p)
+	if p.Values[0] != "21 V" || p.Figures != nil || p.Err != "" || !p.Failed {
+		t.Errorf("21 V: want invalid and failed without figures, got %+v", p)
+	}
+	// In JSON a point without figures has null figures and failed true,
+	// never zeros.
+	js, err := json.Marshal(p)
+	if err != nil || !strings.Contains(string(js), `"Figures":null`) || !strings.Contains(string(js), `"Failed":true`) {
+		t.Errorf("21 V in JSON: %s (%v)", js, err)
 	}
 	// The reason is the loader's, on one line, at the file's own line 10.
 	for _, s := range []string{"line 10:", "supply.low voltage", `"21.6 V"`, `"21 V"`} {
@@ -105,6 +112,9 @@ func TestSweepInvalidPointGoesOn(t *testing.T) {
 	for _, p := range pts[1:] {
 		if p.Figures == nil || p.Invalid != "" || p.Err != "" || !p.Figures.PullIn.Happened {
 			t.Errorf("%s: want a valid point that pulls in, got %+v", p.Values[0], p)
+		}
+		if p.Figures != nil && p.Failed != p.Figures.Failed {
+			t.Errorf("%s: Failed %v, figures' verdict %v", p.Values[0], p.Failed, p.Figures.Failed)
 		}
 	}
 }
@@ -215,5 +225,43 @@ func TestCloseKey(t *testing.T) {
 		if got := closeKey(c.key, supplyKeys); got != c.want {
 			t.Errorf("closeKey(%q) = %q, want %q", c.key, got, c.want)
 		}
+	}
+}
+
+// A sweep whose grid is larger than MaxSweepPoints is refused before any
+// point is made (a 10⁶ × 10⁶ grid used to exhaust memory), and so is a
+// key given twice.
+func TestSweepCheckLimits(t *testing.T) {
+	t.Parallel()
+	sw, err := NewSweeper("scenarios/irrigation-valve.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	big := []Vary{mustVary(t, "supply.voltage=18 V:30 V:1000000"), mustVary(t, "plunger.mass=5 g:9 g:1000000")}
+	if err := sw.Check(big); err == nil || !strings.Contains(err.Error(), "more than 1000000 points") {
+		t.Errorf("10⁶ × 10⁶ grid: %v", err)
+	}
+	ok := []Vary{mustVary(t, "supply.voltage=18 V:30 V:1000"), mustVary(t, "plunger.mass=5 g:9 g:1000")}
+	if err := sw.Check(ok); err != nil {
+		t.Errorf("10³ × 10³ grid: %v", err)
+	}
+	twice := []Vary{mustVary(t, "supply.voltage=20 V"), mustVary(t, "plunger.mass=5 g"), mustVary(t, " supply . voltage =22 V")}
+	if err := sw.Check(twice); err == nil || !strings.Contains(err.Error(), "supply.voltage is varied twice") {
+		t.Errorf("a key given twice: %v", err)
+	}
+}
+
+// A range whose ends are far apart gives finite values (b − a overflowed to
+// +Inf and every inner value read "+Inf V"); a key with a control
+// character is refused.
+func TestParseVaryFiniteValues(t *testing.T) {
+	t.Parallel()
+	v := mustVary(t, "supply.voltage=-1e308 V:1e308 V:5")
+	want := []string{"-1e+308 V", "-5e+307 V", "0 V", "5e+307 V", "1e+308 V"}
+	if strings.Join(v.Values, ",") != strings.Join(want, ",") {
+		t.Errorf("values %q, want %q", v.Values, want)
+	}
+	if _, err := ParseVary("supply.\x1bvoltage=1 V"); err == nil || !strings.Contains(err.Error(), "control character") {
+		t.Errorf("key with a control character: %v", err)
 	}
 }
