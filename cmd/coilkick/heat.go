@@ -28,15 +28,17 @@ func cmdHeat(c *cli.Context, w io.Writer) error {
 		return err
 	}
 	csvFile := c.String("csv")
+	outs := newOutputs(w)
 	if csvFile != "" {
-		if err := writeFile(csvFile, w, func(out io.Writer) error { return writeHeatCSV(out, res) }); err != nil {
+		outs.add(csvFile, func(out io.Writer) error { return writeHeatCSV(out, res) })
+	}
+	if f := c.String("plot"); f != "" {
+		if err := outs.addFigure(f, plot.HeatHistory("Winding temperature — "+md.Name, plotHistory(res))); err != nil {
 			return err
 		}
 	}
-	if f := c.String("plot"); f != "" {
-		if err := plot.HeatHistory("Winding temperature — "+md.Name, plotHistory(res)).Save(f); err != nil {
-			return err
-		}
+	if err := outs.commit(); err != nil {
+		return err
 	}
 	if csvFile == "-" {
 		return heatVerdict(res)

@@ -4,8 +4,8 @@ import (
 	"bufio"
 	"fmt"
 	"io"
+	"math"
 	"strconv"
-	"strings"
 
 	"github.com/urfave/cli/v2"
 
@@ -19,20 +19,32 @@ func cmdMagnet(c *cli.Context, w io.Writer) error {
 		return err
 	}
 	s := md.MagnetSummary()
-	currents := []float64{}
-	if txt := c.String("currents"); txt != "" {
-		for _, f := range strings.Split(txt, ",") {
-			v, err := strconv.ParseFloat(strings.TrimSpace(strings.TrimSuffix(strings.TrimSpace(f), "A")), 64)
-			if err != nil || !(v >= 0) {
-				return fmt.Errorf("--currents: %q is not a current in A", f)
+	if err := s.Check(); err != nil {
+		return fmt.Errorf("%s: %v", path, err)
+	}
+	if g := md.Geometry; g != nil {
+		for _, x := range []float64{md.Plunger.GapMin, md.Plunger.GapMax} {
+			if b, _, err := g.SteelFluxDensity(s.RatedCurrent, x); err == nil && (math.IsNaN(b) || math.IsInf(b, 0)) {
+				return fmt.Errorf("%s: the steel flux density at the %s gap is not a finite number (a dimension far outside its range?)", path, si(x, "m"))
 			}
-			currents = append(currents, v)
+		}
+	}
+	var currents []float64
+	if txt := c.String("currents"); txt != "" {
+		if currents, err = parseCurrents(txt); err != nil {
+			return err
+		}
+		for _, i := range currents {
+			if i > maxCurrentRatio*s.RatedCurrent {
+				return fmt.Errorf("--currents: %s is more than %d × the rated current %s", si(i, "A"), maxCurrentRatio, si(s.RatedCurrent, "A"))
+			}
 		}
 	} else {
 		for _, k := range []float64{0.25, 0.5, 0.75, 1, 1.25, 1.5} {
 			currents = append(currents, k*s.RatedCurrent)
 		}
 	}
+	outs := newOutputs(w)
 	if f := c.String("plot"); f != "" {
 		curves, err := md.ForceCurves(currents, 81)
 		if err != nil {
@@ -42,7 +54,7 @@ func cmdMagnet(c *cli.Context, w io.Writer) error {
 		for k, x := range curves[0].Gap {
 			passive[k] = md.Plunger.PassiveForce(x, 0)
 		}
-		if err := plot.ForceVsGap("Magnetic pull versus air gap — "+md.Name, curves, passive).Save(f); err != nil {
+		if err := outs.addFigure(f, plot.ForceVsGap("Magnetic pull versus air gap — "+md.Name, curves, passive)); err != nil {
 			return err
 		}
 	}
@@ -51,9 +63,10 @@ func cmdMagnet(c *cli.Context, w io.Writer) error {
 		if err != nil {
 			return err
 		}
-		if err := writeFile(f, w, func(out io.Writer) error { return writeCurves(out, curves) }); err != nil {
-			return err
-		}
+		outs.add(f, func(out io.Writer) error { return writeCurves(out, curves) })
+	}
+	if err := outs.commit(); err != nil {
+		return err
 	}
 	printMagnet(w, path, md, &s)
 	return nil

@@ -2,24 +2,37 @@
 // scenario file and reports pull-in, release, switch stress and clamp
 // energy against the scenario's ratings.
 //
-// Exit status: 0 ok, 1 error (bad input, failed simulation), 2 a rating
-// or requirement fails.
+// Exit status: 0 ok, 1 error (bad input, failed simulation, failed write,
+// internal error), 2 only when a rating or requirement fails.
 package main
 
 import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"os"
+	"os/signal"
+	"path/filepath"
+	"runtime/debug"
+	"strconv"
 	"strings"
+	"syscall"
 
 	"github.com/urfave/cli/v2"
+	"gopkg.in/yaml.v3"
 
 	"coilkick"
 	"coilkick/cmd/coilkick/outfile"
+	"coilkick/cmd/coilkick/plot"
 )
 
 func main() {
+	// A reader that closes the pipe early (coilkick sweep ... | head) makes
+	// writes to standard output fail with EPIPE; run handles that. Without
+	// this the runtime would kill the process with SIGPIPE, possibly before
+	// the output files are written.
+	signal.Ignore(syscall.SIGPIPE)
 	os.Exit(run(os.Stdout, os.Stderr, os.Args))
 }
 
@@ -63,13 +76,54 @@ func permute(args []string) []string {
 	return append(flags, pos...)
 }
 
-func run(stdout, stderr io.Writer, args []string) int {
+// run runs the command line args (args[0] is the program name) and returns
+// the exit status: 0 ok, 1 an error (bad input, failed run, failed write,
+// also a failed write to standard output and an internal error), 2 only
+// when a rating or requirement fails.
+//
+// Standard output closed by its reader (EPIPE: "coilkick sweep ... |
+// head") is not an error: printing stops quietly, the command finishes and
+// writes its output files, and the status is the command's own.
+func run(stdout, stderr io.Writer, args []string) (code int) {
+	out := &stdoutGuard{w: stdout}
+	defer func() {
+		// A panic is a bug, never a verdict on the drive: status 1, not
+		// the runtime's 2.
+		if r := recover(); r != nil {
+			fmt.Fprintf(stderr, "coilkick: internal error (a bug in coilkick, not a fault of the input): %v\n"+
+				"Please report it with the command line and the input files. Details:\n%s", r, debug.Stack())
+			code = exitError
+		}
+	}()
+	code = runApp(out, stderr, args)
+	if out.err != nil && !errors.Is(out.err, syscall.EPIPE) {
+		fmt.Fprintf(stderr, "coilkick: standard output: %v\n", out.err)
+		code = exitError
+	}
+	return code
+}
+
+// stdoutGuard passes writes to standard output on and records the first
+// error; after it, writes are dropped and reported as done, so that a
+// command goes on to finish its output files. run checks err at the end.
+type stdoutGuard struct {
+	w   io.Writer
+	err error
+}
+
+func (g *stdoutGuard) Write(p []byte) (int, error) {
+	if g.err != nil {
+		return len(p), nil
+	}
+	if _, err := g.w.Write(p); err != nil {
+		g.err = err
+	}
+	return len(p), nil
+}
+
+func runApp(stdout, stderr io.Writer, args []string) int {
 	if len(args) > 2 {
 		args = append(args[:2:2], permute(args[2:])...)
-		if err := checkOutputs(args[2:]); err != nil {
-			fmt.Fprintf(stderr, "coilkick: %v\n", err)
-			return exitError
-		}
 	}
 	app := &cli.App{
 		Name:      "coilkick",
@@ -88,7 +142,7 @@ func run(stdout, stderr io.Writer, args []string) int {
 				Flags: []cli.Flag{
 					&cli.StringFlag{Name: "csv", Usage: "write the time series to `FILE`"},
 					&cli.StringFlag{Name: "json", Usage: "write the summary to `FILE` (- for standard output)"},
-					&cli.Float64Flag{Name: "tolerance", Usage: "relative tolerance of the integrator (default: scenario's, else 1e-8)"},
+					&cli.Float64Flag{Name: "tolerance", Usage: "relative tolerance of the integrator, 1e-12 to 1e-3 (default: scenario's, else 1e-8)"},
 					&cli.StringFlag{Name: "plot", Usage: "write the waveform plot to `FILE` (.png or .svg)"},
 					&cli.StringFlag{Name: "plot-window", Usage: "plot only `FROM:TO` (ms), e.g. 0:20 for the pull-in"},
 				},
@@ -100,7 +154,7 @@ func run(stdout, stderr io.Writer, args []string) int {
 				ArgsUsage: "SCENARIO.yaml",
 				Flags: []cli.Flag{
 					&cli.StringFlag{Name: "curves", Usage: "write force versus gap for a family of currents to `FILE` (CSV)"},
-					&cli.StringFlag{Name: "currents", Usage: "currents of the family, in A, comma-separated (default: 0.25 to 1.5 × rated)"},
+					&cli.StringFlag{Name: "currents", Usage: "currents of the family, comma-separated, in A or with a unit (\"0.2, 500 mA\"; default: 0.25 to 1.5 × rated)"},
 					&cli.StringFlag{Name: "plot", Usage: "plot force versus gap for the family, with spring + load, to `FILE` (.png or .svg)"},
 				},
 				Action: func(c *cli.Context) error { return cmdMagnet(c, stdout) },
@@ -123,6 +177,11 @@ func run(stdout, stderr io.Writer, args []string) int {
 			},
 		}, append(studyCommands(stdout), reportCommands(stdout)...)...),
 	}
+	ownHelp(app)
+	for _, cmd := range app.Commands {
+		// Every argument is checked before anything runs or is written.
+		cmd.Before = checkArgs
+	}
 	err := app.Run(args)
 	switch {
 	case err == nil:
@@ -130,9 +189,41 @@ func run(stdout, stderr io.Writer, args []string) int {
 	case errors.Is(err, errFailing):
 		return exitFailing
 	default:
-		fmt.Fprintf(stderr, "coilkick: %v\n", err)
+		// Library errors may carry the program's name already.
+		fmt.Fprintf(stderr, "coilkick: %s\n", strings.TrimPrefix(err.Error(), "coilkick: "))
 		return exitError
 	}
+}
+
+// ownHelp gives the app its own --help flags and help command in place of
+// the CLI library's package-level ones, which every run of an app writes
+// to (flag defaults, the help command's fields): commands run in parallel
+// (the tests do) would race on them.
+func ownHelp(app *cli.App) {
+	helpFlag := func() cli.Flag {
+		return &cli.BoolFlag{Name: "help", Aliases: []string{"h"}, Usage: "show help", DisableDefaultText: true}
+	}
+	app.HideHelp = true
+	app.Flags = append(app.Flags, helpFlag())
+	for _, cmd := range app.Commands {
+		cmd.HideHelp, cmd.HideHelpCommand = true, true
+		cmd.Flags = append(cmd.Flags, helpFlag())
+	}
+	app.Commands = append(app.Commands, &cli.Command{
+		Name:            "help",
+		Aliases:         []string{"h"},
+		Usage:           "show the commands, or the help of one command",
+		ArgsUsage:       "[COMMAND]",
+		HideHelp:        true,
+		HideHelpCommand: true,
+		Action: func(c *cli.Context) error {
+			parent := c.Lineage()[1]
+			if name := c.Args().First(); name != "" {
+				return cli.ShowCommandHelp(parent, name)
+			}
+			return cli.ShowAppHelp(parent)
+		},
+	})
 }
 
 // oneFile returns the single scenario argument.
@@ -171,32 +262,38 @@ func cmdRun(c *cli.Context, w io.Writer) error {
 	if err != nil {
 		return err
 	}
+	from, to, windowed, err := plotWindow(c)
+	if err != nil {
+		return err
+	}
+	if windowed && (to <= 0 || from >= md.Timing.End) {
+		return fmt.Errorf("--plot-window %q lies outside the run, which ends at %g ms (timing.end)", c.String("plot-window"), md.Timing.End*1e3)
+	}
 	res, err := coilkick.Simulate(md, &coilkick.Options{Tolerance: c.Float64("tolerance")})
 	if err != nil {
 		return err
 	}
 	as := md.Assess(res)
+	outs := newOutputs(w)
 	if f := c.String("csv"); f != "" {
-		if err := writeFile(f, w, func(out io.Writer) error { return writeCSV(out, &res.Trace) }); err != nil {
-			return err
-		}
+		outs.add(f, func(out io.Writer) error { return writeCSV(out, &res.Trace) })
 	}
 	if f := c.String("json"); f != "" {
-		if err := writeFile(f, w, func(out io.Writer) error { return writeJSON(out, md, res, &as) }); err != nil {
-			return err
-		}
+		outs.add(f, func(out io.Writer) error { return writeJSON(out, md, res, &as) })
 	}
 	if f := c.String("plot"); f != "" {
 		pr := res
-		if win := c.String("plot-window"); win != "" {
-			var err error
-			if pr, err = cropResult(res, win); err != nil {
+		if windowed {
+			if pr, err = cropResult(res, from, to, c.String("plot-window")); err != nil {
 				return err
 			}
 		}
-		if err := plotRun(f, path, md, pr); err != nil {
+		if err := outs.addFigure(f, waveformFigure(path, md, pr)); err != nil {
 			return err
 		}
+	}
+	if err := outs.commit(); err != nil {
+		return err
 	}
 	if c.String("json") != "-" {
 		printSummary(w, path, md, res, &as)
@@ -216,52 +313,330 @@ func writeFile(name string, w io.Writer, write func(io.Writer) error) error {
 	return outfile.Write(name, write)
 }
 
-// outputFlags name files the commands write; inputFlags files they read.
-var (
-	outputFlags = map[string]bool{"csv": true, "json": true, "plot": true, "curves": true, "o": true, "output": true}
-	inputFlags  = map[string]bool{"trace": true}
-)
+// outputs are the files a command writes, written together by commit
+// (outfile.Set): each to a temporary file first, and renamed into place
+// only when all were written, so that a failure (a full disk) changes
+// none. "-" is standard output, written after the files.
+type outputs struct {
+	stdout   io.Writer
+	files    outfile.Set
+	toStdout []func(io.Writer) error
+}
 
-// checkOutputs refuses a command line whose output file names one of its
-// input files (the scenario, a trace): an output never overwrites an
-// input. args are the arguments after the command name, flags first.
-func checkOutputs(args []string) error {
-	type file struct{ flag, path string }
-	var outs []file
-	var ins []string
-	kind := map[string]string{}
-	for i := 0; i < len(args); i++ {
-		a := args[i]
-		if a == "--" {
-			for _, p := range args[i+1:] {
-				ins, kind[p] = append(ins, p), "scenario file"
-			}
-			break
-		}
-		if !strings.HasPrefix(a, "-") || len(a) == 1 {
-			ins, kind[a] = append(ins, a), "scenario file"
-			continue
-		}
-		name, value, hasValue := strings.Cut(strings.TrimLeft(a, "-"), "=")
-		if !hasValue && valueFlags[name] && i+1 < len(args) {
-			value = args[i+1]
-			i++
-		}
-		switch {
-		case outputFlags[name]:
-			outs = append(outs, file{name, value})
-		case inputFlags[name]:
-			ins, kind[value] = append(ins, value), name+" file"
-		}
+func newOutputs(stdout io.Writer) *outputs { return &outputs{stdout: stdout} }
+
+// add queues the output name (a file, or "-").
+func (o *outputs) add(name string, write func(io.Writer) error) {
+	if name == "-" {
+		o.toStdout = append(o.toStdout, write)
+		return
 	}
-	for _, o := range outs {
-		if in := outfile.SameAsAny(o.path, ins...); in != "" {
-			dash := "--"
-			if len(o.flag) == 1 {
-				dash = "-"
-			}
-			return fmt.Errorf("%s%s %s is the %s %s: choose another name (an output never overwrites an input)", dash, o.flag, o.path, kind[in], in)
+	o.files.Add(name, write)
+}
+
+// addFigure queues a figure, PNG or SVG by the file's extension.
+func (o *outputs) addFigure(name string, fig *plot.Figure) error {
+	write, err := fig.Encoder(name)
+	if err != nil {
+		return err
+	}
+	o.add(name, write)
+	return nil
+}
+
+func (o *outputs) commit() error {
+	if err := o.files.Commit(); err != nil {
+		return err
+	}
+	for _, write := range o.toStdout {
+		if err := write(o.stdout); err != nil {
+			return err
 		}
 	}
 	return nil
+}
+
+// Caps on the flags that scale the work and the memory. A larger value is
+// refused with an error naming the flag, never left to run out of memory.
+const (
+	// maxWorkers: more parallel simulations than this gains nothing on
+	// any machine this tool runs on and costs a goroutine stack each.
+	maxWorkers = 256
+	// maxSamples: Monte Carlo samples of corners; at 100 000 the 95 %
+	// interval of a yield is already narrower than ±0.3 %, and each sample
+	// is a full simulation.
+	maxSamples = 100000
+	// maxCurrents: currents of the magnet's force family.
+	maxCurrents = 100
+	// maxCurrentRatio: the largest current of the family, in multiples of
+	// the rated current (supply / R).
+	maxCurrentRatio = 100
+)
+
+// outputFlags name files the commands write, with the flag as it is
+// written in messages; inputFlags files they read.
+var (
+	outputFlags = []struct{ name, shown string }{{"csv", "--csv"}, {"json", "--json"}, {"plot", "--plot"}, {"curves", "--curves"}, {"output", "-o"}}
+	inputFlags  = []string{"trace"}
+)
+
+// checkArgs runs before every command, after its flags are parsed: it
+// checks the flags' values and the output names, so that a bad argument is
+// reported before anything is simulated or written.
+func checkArgs(c *cli.Context) error {
+	if err := checkFlagValues(c); err != nil {
+		return err
+	}
+	return checkOutputs(c)
+}
+
+// checkFlagValues applies to the flags the rules of the scenario keys they
+// stand for (solver.tolerance, ratings.hold force margin) and the caps.
+func checkFlagValues(c *cli.Context) error {
+	if c.IsSet("tolerance") {
+		if tol := c.Float64("tolerance"); !(tol >= 1e-12 && tol <= 1e-3) {
+			return fmt.Errorf("--tolerance %g: must be between 1e-12 and 1e-3 (as solver.tolerance in a scenario)", tol)
+		}
+	}
+	if c.IsSet("margin") {
+		if m := c.Float64("margin"); !(m > 0) || math.IsInf(m, 0) {
+			return fmt.Errorf("--margin %g: must be a finite number above 0 (as ratings.hold force margin in a scenario), e.g. 1.2", m)
+		}
+	}
+	if c.IsSet("samples") {
+		if n := c.Int("samples"); n < 0 || n > maxSamples {
+			return fmt.Errorf("--samples %d: must be from 0 (no Monte Carlo) to %d", n, maxSamples)
+		}
+	}
+	if c.IsSet("workers") {
+		if n := c.Int("workers"); n < 0 || n > maxWorkers {
+			return fmt.Errorf("--workers %d: must be from 0 (all cores) to %d", n, maxWorkers)
+		}
+	}
+	if c.IsSet("currents") {
+		if _, err := parseCurrents(c.String("currents")); err != nil {
+			return err
+		}
+	}
+	if c.IsSet("plot-window") {
+		if c.String("plot") == "" {
+			return fmt.Errorf("--plot-window %q: needs --plot (the window is of the plot)", c.String("plot-window"))
+		}
+		if _, _, _, err := plotWindow(c); err != nil {
+			return err
+		}
+	}
+	if c.IsSet("figure") {
+		if _, _, ok := sweepFigure(c.String("figure"), coilkick.SweepFigures{}); !ok {
+			return fmt.Errorf("--figure %q: unknown figure; expected one of: %s", c.String("figure"), strings.Join(sweepFigureNames, ", "))
+		}
+	}
+	if c.IsSet("vary") {
+		if _, err := parseVaries(c); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// parseVaries reads the --vary flags and checks the grid's size.
+func parseVaries(c *cli.Context) ([]coilkick.Vary, error) {
+	var vs []coilkick.Vary
+	points := 1
+	for _, spec := range c.StringSlice("vary") {
+		v, err := coilkick.ParseVary(spec)
+		if err != nil {
+			return nil, err
+		}
+		if n := len(v.Values); n > 0 && points > coilkick.MaxSweepPoints/n {
+			return nil, fmt.Errorf("--vary: the sweep has more than %d points (the product of the numbers of values of its keys); sweep fewer values", coilkick.MaxSweepPoints)
+		} else if n > 0 {
+			points *= n
+		}
+		vs = append(vs, v)
+	}
+	return vs, nil
+}
+
+// plotWindow reads --plot-window "FROM:TO" (ms) into seconds; ok is false
+// when the flag is not given.
+func plotWindow(c *cli.Context) (from, to float64, ok bool, err error) {
+	win := c.String("plot-window")
+	if win == "" {
+		return 0, 0, false, nil
+	}
+	a, b, found := strings.Cut(win, ":")
+	from, err1 := strconv.ParseFloat(strings.TrimSpace(a), 64)
+	to, err2 := strconv.ParseFloat(strings.TrimSpace(b), 64)
+	if !found || err1 != nil || err2 != nil || math.IsInf(from, 0) || math.IsInf(to, 0) || !(to > from) {
+		return 0, 0, false, fmt.Errorf("--plot-window %q: expected FROM:TO in ms, finite, with FROM < TO, e.g. 0:20", win)
+	}
+	return from * 1e-3, to * 1e-3, true, nil
+}
+
+// parseCurrents reads --currents: comma-separated currents, each a plain
+// number in A or a quantity with its unit ("0.2, 500 mA"), at most
+// maxCurrents of them, finite and not negative.
+func parseCurrents(txt string) ([]float64, error) {
+	fields := strings.Split(txt, ",")
+	if len(fields) > maxCurrents {
+		return nil, fmt.Errorf("--currents: %d currents; at most %d", len(fields), maxCurrents)
+	}
+	var out []float64
+	for _, f := range fields {
+		s := strings.TrimSpace(f)
+		v, err := strconv.ParseFloat(s, 64)
+		if err != nil {
+			v, err = coilkick.ParseQuantity(s, coilkick.Current)
+		}
+		if err != nil || !(v >= 0) || math.IsInf(v, 0) {
+			return nil, fmt.Errorf("--currents: %q is not a current (a number in A, or with a unit such as \"500 mA\"), finite and not negative", s)
+		}
+		out = append(out, v)
+	}
+	return out, nil
+}
+
+// checkOutputs refuses, before anything runs, output names that cannot be
+// written (a plot that is not .png or .svg, a report that is not .html, a
+// missing or read-only folder, a folder or a device as the target), two
+// outputs onto one file, and an output that names one of the command's
+// input files: the scenario, the files it refers to (flux table, steel
+// curve), a trace. Paths are compared with symbolic links followed.
+func checkOutputs(c *cli.Context) error {
+	type named struct{ flag, path string }
+	var outs []named
+	for _, f := range outputFlags {
+		if v := c.String(f.name); v != "" {
+			outs = append(outs, named{f.shown, v})
+		}
+	}
+	if len(outs) == 0 {
+		return nil
+	}
+	kind := map[string]string{}
+	var ins []string
+	addIn := func(p, what string) {
+		if _, ok := kind[p]; !ok && p != "" {
+			ins, kind[p] = append(ins, p), what
+		}
+	}
+	for _, p := range c.Args().Slice() {
+		addIn(p, "scenario file")
+		for _, ref := range scenarioFiles(p, c) {
+			addIn(ref.path, ref.what+" of the scenario")
+		}
+	}
+	for _, name := range inputFlags {
+		addIn(c.String(name), name+" file")
+	}
+	// First the worst mistake: an output onto an input.
+	for _, o := range outs {
+		if in := outfile.SameAsAny(o.path, ins...); in != "" {
+			return fmt.Errorf("%s %s is the %s %s: choose another name (an output never overwrites an input)", o.flag, o.path, kind[in], in)
+		}
+	}
+	stdoutBy := ""
+	for k, o := range outs {
+		switch {
+		case o.path == "-" && o.flag == "--plot":
+			return fmt.Errorf("--plot -: plots are written to a file (.png or .svg), not to standard output")
+		case o.path == "-" && stdoutBy != "":
+			return fmt.Errorf("%s - and %s - both write to standard output; give one of them a file", stdoutBy, o.flag)
+		case o.path == "-":
+			stdoutBy = o.flag
+			continue
+		}
+		for _, p := range outs[:k] {
+			if p.path != "-" && outfile.SameAsAny(o.path, p.path) != "" {
+				return fmt.Errorf("%s %s and %s %s name the same file: give each output its own name", p.flag, p.path, o.flag, o.path)
+			}
+		}
+		if o.flag == "--plot" {
+			if err := plot.CheckFileName(o.path); err != nil {
+				return fmt.Errorf("--plot %s: %v", o.path, err)
+			}
+		}
+		if o.flag == "-o" && c.Command.Name == "report" {
+			if ext := strings.ToLower(filepath.Ext(o.path)); ext != ".html" && ext != ".htm" {
+				return fmt.Errorf("-o %s: the report is HTML; name it .html (or - for standard output)", o.path)
+			}
+		}
+		if err := outfile.Check(o.path); err != nil {
+			return fmt.Errorf("%s: %v", o.flag, err)
+		}
+	}
+	return nil
+}
+
+// scenarioFile is a file a scenario refers to.
+type scenarioFile struct{ path, what string }
+
+// scenarioFiles lists the files the scenario at path refers to (its flux
+// table, its steel curve) and, for a sweep, the files --vary puts in their
+// place, resolved against the scenario's folder. It reads the file
+// leniently: a scenario it cannot read or parse lists nothing here (the
+// loader reports it).
+func scenarioFiles(path string, c *cli.Context) []scenarioFile {
+	data, err := coilkick.ReadInput(path, "scenario", coilkick.MaxScenarioBytes)
+	if err != nil {
+		return nil
+	}
+	var doc yaml.Node
+	if yaml.Unmarshal(data, &doc) != nil || len(doc.Content) == 0 {
+		return nil
+	}
+	dir := filepath.Dir(path)
+	resolve := func(f string) string {
+		if f = strings.TrimSpace(f); f != "" && !filepath.IsAbs(f) {
+			f = filepath.Join(dir, f)
+		}
+		return f
+	}
+	keys := []struct {
+		key  []string
+		what string
+	}{
+		{[]string{"magnet", coilkick.MagnetTable, "file"}, "flux-linkage table (magnet.table.file)"},
+		{[]string{"magnet", coilkick.MagnetGeom, "steel curve", "file"}, "steel curve (magnet.geometry.steel curve.file)"},
+	}
+	var out []scenarioFile
+	for _, k := range keys {
+		if n := yamlLookup(doc.Content[0], k.key); n != nil && n.Kind == yaml.ScalarNode {
+			out = append(out, scenarioFile{resolve(n.Value), k.what})
+		}
+	}
+	if c.IsSet("vary") {
+		vs, _ := parseVaries(c)
+		for _, v := range vs {
+			for _, k := range keys {
+				if v.Key == strings.Join(k.key, ".") {
+					for _, val := range v.Values {
+						out = append(out, scenarioFile{resolve(val), k.what + " swept by --vary"})
+					}
+				}
+			}
+		}
+	}
+	return out
+}
+
+// yamlLookup follows a path of mapping keys from n.
+func yamlLookup(n *yaml.Node, path []string) *yaml.Node {
+	for _, key := range path {
+		if n.Kind != yaml.MappingNode {
+			return nil
+		}
+		var next *yaml.Node
+		for i := 0; i+1 < len(n.Content); i += 2 {
+			if strings.TrimSpace(n.Content[i].Value) == key {
+				next = n.Content[i+1]
+			}
+		}
+		if next == nil {
+			return nil
+		}
+		n = next
+	}
+	return n
 }

@@ -31,11 +31,6 @@ func reportCommands(stdout io.Writer) []*cli.Command {
 	}}
 }
 
-// plotRun writes the waveform plot of a run to file (.png or .svg).
-func plotRun(file, path string, md *coilkick.Model, res *coilkick.Result) error {
-	return waveformFigure(path, md, res).Save(file)
-}
-
 func waveformFigure(path string, md *coilkick.Model, res *coilkick.Result) *plot.Figure {
 	return plot.Waveform(&res.Trace, plot.EventMarkers(res.Events), plot.WaveformOptions{
 		Title:    displayName(path, md),

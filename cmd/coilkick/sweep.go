@@ -58,23 +58,14 @@ func cmdSweep(c *cli.Context, w io.Writer) error {
 	if err != nil {
 		return err
 	}
-	var vs []coilkick.Vary
-	for _, spec := range c.StringSlice("vary") {
-		v, err := coilkick.ParseVary(spec)
-		if err != nil {
-			return err
-		}
-		vs = append(vs, v)
+	vs, err := parseVaries(c)
+	if err != nil {
+		return err
 	}
 	var xs []float64
-	if c.String("plot") != "" {
-		if _, _, ok := sweepFigure(c.String("figure"), coilkick.SweepFigures{}); !ok {
-			return fmt.Errorf("--figure %q: unknown figure; expected one of: %s", c.String("figure"), strings.Join(sweepFigureNames, ", "))
-		}
-		if len(vs) > 0 {
-			if xs, err = sweepAxis(vs[0]); err != nil {
-				return err
-			}
+	if c.String("plot") != "" && len(vs) > 0 {
+		if xs, err = sweepAxis(vs[0]); err != nil {
+			return err
 		}
 	}
 	sw, err := coilkick.NewSweeper(path)
@@ -116,24 +107,24 @@ func cmdSweep(c *cli.Context, w io.Writer) error {
 	if invalid > 0 {
 		fmt.Fprintf(w, "\n%d of %d points invalid: their values break a rule of the scenario (reason in the row).\n", invalid, len(pts))
 	}
+	outs := newOutputs(w)
 	if f := c.String("csv"); f != "" {
-		if err := writeFile(f, w, func(out io.Writer) error { return writeSweepCSV(out, vs, pts) }); err != nil {
-			return err
-		}
+		outs.add(f, func(out io.Writer) error { return writeSweepCSV(out, vs, pts) })
 	}
 	if f := c.String("json"); f != "" {
-		if err := writeFile(f, w, func(out io.Writer) error {
+		outs.add(f, func(out io.Writer) error {
 			enc := json.NewEncoder(out)
 			enc.SetIndent("", "  ")
 			return enc.Encode(pts)
-		}); err != nil {
+		})
+	}
+	if f := c.String("plot"); f != "" && ran > 0 {
+		if err := outs.addFigure(f, sweepPlot(c.String("figure"), xs, vs, pts)); err != nil {
 			return err
 		}
 	}
-	if f := c.String("plot"); f != "" && ran > 0 {
-		if err := plotSweep(f, c.String("figure"), xs, vs, pts); err != nil {
-			return err
-		}
+	if err := outs.commit(); err != nil {
+		return err
 	}
 	switch {
 	case ran == 0:
@@ -230,9 +221,9 @@ func sweepFigure(name string, f coilkick.SweepFigures) (float64, string, bool) {
 	return 0, "", false
 }
 
-// plotSweep draws a figure versus the first key (xs), one line per value
+// sweepPlot draws a figure versus the first key (xs), one line per value
 // of the other keys; points without figures are gaps in their line.
-func plotSweep(file, figure string, xs []float64, vs []coilkick.Vary, pts []coilkick.SweepPoint) error {
+func sweepPlot(figure string, xs []float64, vs []coilkick.Vary, pts []coilkick.SweepPoint) *plot.Figure {
 	nx := len(xs)
 	xLabel := vs[0].Key
 	if f := strings.Fields(vs[0].Values[0]); len(f) > 1 {
@@ -256,11 +247,12 @@ func plotSweep(file, figure string, xs []float64, vs []coilkick.Vary, pts []coil
 		}
 		series = append(series, plot.Series{Label: label, Ys: ys})
 	}
-	return plot.Lines(yLabel+" versus "+vs[0].Key, xLabel, yLabel, xs, series).Save(file)
+	return plot.Lines(yLabel+" versus "+vs[0].Key, xLabel, yLabel, xs, series)
 }
 
 // writeSweepCSV writes one row per point; a point without figures has
-// empty figure and "failed" cells and its reason under "invalid" or "error".
+// empty figure cells, "failed" true and its reason under "invalid" or
+// "error".
 func writeSweepCSV(w io.Writer, vs []coilkick.Vary, pts []coilkick.SweepPoint) error {
 	cw := csv.NewWriter(w)
 	var h []string
@@ -284,7 +276,7 @@ func writeSweepCSV(w io.Writer, vs []coilkick.Vary, pts []coilkick.SweepPoint) e
 				num(f.PeakSwitchVoltage), num(f.ClampEnergy), num(f.AvalancheEnergy), strconv.FormatBool(f.Failed),
 				strconv.FormatBool(f.DroppedOut))
 		} else {
-			row = append(row, "", "", "", "", "", "", "", "", "", "") // no figures, no verdict
+			row = append(row, "", "", "", "", "", "", "", "", "true", "") // no figures (never zeros), failed
 		}
 		cw.Write(append(row, p.Invalid, p.Err))
 	}

@@ -141,8 +141,8 @@ func TestSweepInvalidRow(t *testing.T) {
 			t.Fatalf("CSV lacks column %q: %v", h, recs[0])
 		}
 	}
-	if r := recs[1]; r[col["invalid"]] == "" || r[col["peak_current_A"]] != "" || r[col["failed"]] != "" {
-		t.Errorf("invalid CSV row: reason %q, peak current %q (want empty), failed %q (want empty)", r[col["invalid"]], r[col["peak_current_A"]], r[col["failed"]])
+	if r := recs[1]; r[col["invalid"]] == "" || r[col["peak_current_A"]] != "" || r[col["failed"]] != "true" {
+		t.Errorf("invalid CSV row: reason %q, peak current %q (want empty), failed %q (want true)", r[col["invalid"]], r[col["peak_current_A"]], r[col["failed"]])
 	}
 	for _, r := range recs[2:] {
 		if r[col["invalid"]] != "" || r[col["pull_in_time_s"]] == "" || r[col["failed"]] != "false" {

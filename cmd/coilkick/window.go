@@ -2,22 +2,13 @@ package main
 
 import (
 	"fmt"
-	"strconv"
-	"strings"
 
 	"coilkick"
 )
 
 // cropResult returns a copy of res whose trace and events are limited to
-// the window "FROM:TO" in milliseconds.
-func cropResult(res *coilkick.Result, win string) (*coilkick.Result, error) {
-	a, b, ok := strings.Cut(win, ":")
-	from, err1 := strconv.ParseFloat(strings.TrimSpace(a), 64)
-	to, err2 := strconv.ParseFloat(strings.TrimSpace(b), 64)
-	if !ok || err1 != nil || err2 != nil || !(to > from) {
-		return nil, fmt.Errorf("--plot-window %q: expected FROM:TO in ms with FROM < TO, e.g. 0:20", win)
-	}
-	from, to = from*1e-3, to*1e-3
+// the window from–to (s; plotWindow reads it from --plot-window "win").
+func cropResult(res *coilkick.Result, from, to float64, win string) (*coilkick.Result, error) {
 	out := *res
 	tr := &res.Trace
 	var ct coilkick.Trace

@@ -73,16 +73,34 @@ func (f *Figure) WriteSVG(w io.Writer) error {
 	return err
 }
 
-// Save writes the figure to file, as PNG or SVG by the file's extension.
-func (f *Figure) Save(file string) error {
-	var write func(io.Writer) error
+// CheckFileName tells whether file names a figure the package writes:
+// .png or .svg (any case).
+func CheckFileName(file string) error {
 	switch strings.ToLower(filepath.Ext(file)) {
-	case ".png":
-		write = f.WritePNG
-	case ".svg":
-		write = f.WriteSVG
-	default:
-		return fmt.Errorf("%s: plot files end in .png or .svg", file)
+	case ".png", ".svg":
+		return nil
+	}
+	return fmt.Errorf("plot files end in .png or .svg")
+}
+
+// Encoder returns the writer of the figure in file's format, PNG or SVG
+// by its extension.
+func (f *Figure) Encoder(file string) (func(io.Writer) error, error) {
+	if err := CheckFileName(file); err != nil {
+		return nil, fmt.Errorf("%s: %v", file, err)
+	}
+	if strings.ToLower(filepath.Ext(file)) == ".png" {
+		return f.WritePNG, nil
+	}
+	return f.WriteSVG, nil
+}
+
+// Save writes the figure to file, as PNG or SVG by the file's extension,
+// atomically (outfile.Write: a failed write leaves the old file).
+func (f *Figure) Save(file string) error {
+	write, err := f.Encoder(file)
+	if err != nil {
+		return err
 	}
 	return outfile.Write(file, write)
 }
