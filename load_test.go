@@ -409,18 +409,53 @@ func checkFinite(t *testing.T, i int, v reflect.Value) {
 	}
 }
 
+// FuzzParse: the loader never panics (an "internal error" is a recovered
+// panic); every error line names the file and holds no raw control
+// character; a scenario read has finite values inside their ranges and a
+// printable name.
 func FuzzParse(f *testing.F) {
-	for _, name := range []string{"minimal.yaml", "full.yaml"} {
-		data, err := os.ReadFile(filepath.Join("testdata", "good", name))
+	for _, name := range []string{"good/minimal.yaml", "good/full.yaml", "good/coilbuild.yaml", "bad/name_escape.yaml",
+		"bad/pwm_frequency_below_window.yaml", "bad/duty_segment_tiny.yaml", "bad/turns_fractional.yaml"} {
+		data, err := os.ReadFile(filepath.Join("testdata", name))
+		if err != nil {
+			f.Fatal(err)
+		}
+		f.Add(data)
+	}
+	demos, _ := filepath.Glob(filepath.Join("scenarios", "*.yaml"))
+	for _, name := range demos {
+		data, err := os.ReadFile(name)
 		if err != nil {
 			f.Fatal(err)
 		}
 		f.Add(data)
 	}
 	f.Fuzz(func(t *testing.T, data []byte) {
-		_, err := Parse(data, "fuzz.yaml")
-		if err != nil && (!strings.Contains(err.Error(), "fuzz.yaml") || strings.Contains(err.Error(), "internal error")) {
-			t.Errorf("bad error: %v", err)
+		s, err := Parse(data, "fuzz.yaml")
+		if err != nil {
+			for _, line := range strings.Split(err.Error(), "\n") {
+				if !strings.Contains(line, "fuzz.yaml") || strings.Contains(line, "internal error") {
+					t.Fatalf("bad error: %q", line)
+				}
+				for _, r := range line {
+					if isControlRune(r) {
+						t.Fatalf("error holds the raw control character %U: %q", r, line)
+					}
+				}
+			}
+			return
+		}
+		checkFinite(t, 0, reflect.ValueOf(*s))
+		if badName(s.Name) != "" {
+			t.Fatalf("name %q accepted: %s", s.Name, badName(s.Name))
+		}
+		for path, r := range map[string]valueRange{"supply.voltage": scenarioRanges["supply.voltage"], "plunger.mass": scenarioRanges["plunger.mass"],
+			"timing.end": scenarioRanges["timing.end"], "coil.temperature": scenarioRanges["coil.temperature"]} {
+			v := map[string]float64{"supply.voltage": s.Supply.Voltage, "plunger.mass": s.Plunger.Mass,
+				"timing.end": s.Timing.End, "coil.temperature": s.Coil.Temperature}[path]
+			if !r.contains(v) {
+				t.Fatalf("%s = %g accepted outside %s", path, v, r.text)
+			}
 		}
 	})
 }

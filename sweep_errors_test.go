@@ -2,8 +2,10 @@ package coilkick
 
 import (
 	"encoding/json"
+	"math"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -264,4 +266,61 @@ func TestParseVaryFiniteValues(t *testing.T) {
 	if _, err := ParseVary("supply.\x1bvoltage=1 V"); err == nil || !strings.Contains(err.Error(), "control character") {
 		t.Errorf("key with a control character: %v", err)
 	}
+}
+
+// FuzzParseVary: ParseVary never panics; an error names the flag, quotes
+// the text (no raw control character) and states the syntax, on one line;
+// a parsed sweep has a clean dotted key and 1 to maxSweepSteps values, and
+// the values of a range are finite numbers with the unit.
+func FuzzParseVary(f *testing.F) {
+	for _, s := range []string{"supply.voltage=18 V:30 V:13", "plunger.mass=5 g,8 g", " plunger . mass = 5 g, 8 g ",
+		"supply.voltage=10 V:14:5", "supply.voltage=-1e308 V:1e308 V:3", "supply.voltage=10 V:14 V", "supply.voltage=:14 V:5",
+		"supply.voltage=10 V:14 V:0", "supply.voltage=10 V:14 A:5", "=10 V", "supply..voltage=10 V", "supply.voltage=",
+		"drive.frequency=1e3 Hz:2e3 Hz:2", "timing.end=1e-3 s:1 s:1000", "a=1e+3:2e-3:3", "a=1e:2e:2", "a=.5:-.5:3"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, spec string) {
+		v, err := ParseVary(spec)
+		if err != nil {
+			msg := err.Error()
+			if !strings.HasPrefix(msg, "--vary ") || !strings.Contains(msg, VarySyntax) || strings.Contains(msg, "\n") {
+				t.Fatalf("ParseVary(%q): malformed error %q", spec, msg)
+			}
+			for _, r := range msg {
+				if isControlRune(r) {
+					t.Fatalf("ParseVary(%q): error holds the raw control character %U", spec, r)
+				}
+			}
+			return
+		}
+		if v.Key == "" || v.Spec != spec {
+			t.Fatalf("ParseVary(%q): key %q, spec %q", spec, v.Key, v.Spec)
+		}
+		for _, p := range strings.Split(v.Key, ".") {
+			if p == "" || p != strings.TrimSpace(p) {
+				t.Fatalf("ParseVary(%q): key %q has an empty or padded part", spec, v.Key)
+			}
+		}
+		for _, r := range v.Key {
+			if isControlRune(r) {
+				t.Fatalf("ParseVary(%q): key %q holds a control character", spec, v.Key)
+			}
+		}
+		if len(v.Values) < 1 || len(v.Values) > maxSweepSteps {
+			t.Fatalf("ParseVary(%q): %d values", spec, len(v.Values))
+		}
+		_, rng, _ := strings.Cut(spec, "=")
+		isRange := strings.Contains(rng, ":")
+		for _, x := range v.Values {
+			if x == "" || x != strings.TrimSpace(x) {
+				t.Fatalf("ParseVary(%q): value %q empty or padded", spec, x)
+			}
+			if isRange {
+				num, _, _ := strings.Cut(x, " ")
+				if f, err := strconv.ParseFloat(num, 64); err != nil || math.IsNaN(f) || math.IsInf(f, 0) {
+					t.Fatalf("ParseVary(%q): range value %q is not a finite number", spec, x)
+				}
+			}
+		}
+	})
 }

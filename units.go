@@ -251,7 +251,7 @@ func ParseQuantity(s string, dim Dim) (float64, error) {
 	unitText := strings.TrimSpace(rest)
 	if unitText == "" {
 		if dim == Dimensionless {
-			return finishQuantity(s, mant, exp, unitValue{mult: 1}, dim)
+			return expecting(dim)(finishQuantity(s, mant, exp, unitValue{mult: 1}, dim))
 		}
 		return 0, fmt.Errorf("%q has no unit; expected %s, e.g. %q", s, dim.Name(), dim.Example())
 	}
@@ -262,7 +262,18 @@ func ParseQuantity(s string, dim Dim) (float64, error) {
 	if u.dim != dim {
 		return 0, fmt.Errorf("%q is %s; expected %s, e.g. %q", s, u.dim.Name(), dim.Name(), dim.Example())
 	}
-	return finishQuantity(s, mant, exp, u, dim)
+	return expecting(dim)(finishQuantity(s, mant, exp, u, dim))
+}
+
+// expecting returns a function that adds what was expected (dim) to an
+// error of finishQuantity, as every other error of ParseQuantity says it.
+func expecting(dim Dim) func(float64, error) (float64, error) {
+	return func(v float64, err error) (float64, error) {
+		if err != nil {
+			return 0, fmt.Errorf("%v; expected %s, e.g. %q", err, dim.Name(), dim.Example())
+		}
+		return v, nil
+	}
 }
 
 // finishQuantity combines the decimal mantissa and exponent with the unit. Powers
@@ -498,7 +509,7 @@ func (p *unitExprParser) factor() (unitValue, error) {
 		return unitValue{}, err
 	}
 	if p.pos < len(p.s) && isUnitLetter(p.peek()) {
-		return unitValue{}, fmt.Errorf(`write products with "*", e.g. "%s*%s"`, p.s[start:p.pos], p.s[p.pos:])
+		return unitValue{}, fmt.Errorf(`write products with "*", e.g. %q`, p.s[start:p.pos]+"*"+p.s[p.pos:])
 	}
 	u := unitValue{dim: def.dim, exp10: def.exp10, mult: def.mult, offsetCenti: def.offsetCenti, absOff: def.absOffset}
 	if def.absOffset && e != 1 {
@@ -569,7 +580,7 @@ func unknownUnitError(sym string) error {
 		}
 		if _, ok := lookupUnit(sym[:i]); ok {
 			if _, ok := lookupUnit(sym[i:]); ok {
-				return fmt.Errorf(`unknown unit %q (for a product write "%s*%s")`, sym, sym[:i], sym[i:])
+				return fmt.Errorf(`unknown unit %q (for a product write %q)`, sym, sym[:i]+"*"+sym[i:])
 			}
 		}
 	}

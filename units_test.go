@@ -2,6 +2,7 @@ package coilkick
 
 import (
 	"math"
+	"sort"
 	"strings"
 	"testing"
 )
@@ -179,4 +180,64 @@ func TestUnitsDimNames(t *testing.T) {
 	if got := Voltage.String(); got != "kg*m^2*s^-3*A^-1" {
 		t.Errorf("Voltage.String() = %q", got)
 	}
+}
+
+// fuzzDims are the named dimensions, in a fixed order, for the fuzz target.
+func fuzzDims() []Dim {
+	var ds []Dim
+	for d := range dimInfos {
+		ds = append(ds, d)
+	}
+	sort.Slice(ds, func(i, j int) bool { return ds[i].formula() < ds[j].formula() })
+	return ds
+}
+
+// FuzzParseQuantity: ParseQuantity never panics; a parsed value is finite
+// (and not below absolute zero for a temperature) and of the right
+// dimension: the same text parses as no other named dimension; an error is
+// one line, with no raw control character, and says what was expected.
+func FuzzParseQuantity(f *testing.F) {
+	for _, s := range []string{"24 V", "250 mH", "1.2 mm", "0.8 N/mm", "0.5 N*s/m", "3 bar", "45 psi", "40 degC", "-40 °C",
+		"0.00393 /K", "1.5 mm2", "12 W*m^-2*K^-1", "20 kHz", "10 %", "1e-8", "2 min", "48 Ω", "10 µs", "1e999 V", "1e-400 V",
+		"NaN V", "0.5 Ns/m", "1 W/m/K", "3 V V", "2 m2s", "1,5 mm", "-300 degC", "5e-324 V", "1.7976931348623157e308 V"} {
+		for k := range 3 {
+			f.Add(s, uint8(k*7))
+		}
+	}
+	dims := fuzzDims()
+	f.Fuzz(func(t *testing.T, s string, which uint8) {
+		dim := dims[int(which)%len(dims)]
+		v, err := ParseQuantity(s, dim)
+		if err != nil {
+			msg := err.Error()
+			if msg == "" || strings.Contains(msg, "\n") {
+				t.Fatalf("ParseQuantity(%q, %s): malformed error %q", s, dim.Name(), msg)
+			}
+			for _, r := range msg {
+				if isControlRune(r) {
+					t.Fatalf("ParseQuantity(%q, %s): error holds the raw control character %U: %q", s, dim.Name(), r, msg)
+				}
+			}
+			if !strings.Contains(msg, "expected "+dim.Name()) {
+				t.Fatalf("ParseQuantity(%q, %s): error does not say what was expected: %q", s, dim.Name(), msg)
+			}
+			return
+		}
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			t.Fatalf("ParseQuantity(%q, %s) = %v, not finite", s, dim.Name(), v)
+		}
+		if dim == Temperature && v < 0 {
+			t.Fatalf("ParseQuantity(%q, temperature) = %v K, below absolute zero", s, v)
+		}
+		for _, other := range dims {
+			if other != dim {
+				if w, err := ParseQuantity(s, other); err == nil {
+					t.Fatalf("%q parses as %s (%v) and as %s (%v)", s, dim.Name(), v, other.Name(), w)
+				}
+			}
+		}
+		if w, _ := ParseQuantity(s, dim); w != v {
+			t.Fatalf("ParseQuantity(%q) is not deterministic: %v, %v", s, v, w)
+		}
+	})
 }

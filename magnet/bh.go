@@ -115,6 +115,19 @@ type BHTable struct {
 	c    []float64 // per interval k: c0..c3 of H in (B − b[k])
 }
 
+// Bounds of a B–H table's points: the field strength of any measured
+// steel curve stays far below 1e8 A/m (µ0·H is then 126 T) and its flux
+// density below 100 T; a curve that ends below 1 mA/m or 1 mT is in the
+// wrong units; neighbouring points closer than 1e-9 of the curve's span
+// are a mistake (common practice, no source).
+const (
+	maxBHField          = 1e8   // A/m
+	maxBHFluxDensity    = 100.0 // T
+	minBHFieldTop       = 1e-3  // A/m
+	minBHFluxDensityTop = 1e-3  // T
+	minBHSpacing        = 1e-9
+)
+
 // NewBHTable builds the law from field strengths h (A/m) and flux
 // densities b (T). It returns an error unless there are at least two
 // points, of equal count, all finite, starting at exactly (0, 0), with h
@@ -139,12 +152,20 @@ func newBHTable(h, b []float64) (*BHTable, int, string) {
 	if len(h) < 2 {
 		return nil, -1, fmt.Sprintf("need at least 2 points, (0, 0) and one more, got %d", len(h))
 	}
+	n := len(h)
+	if n > MaxBHPoints {
+		return nil, -1, fmt.Sprintf("%d points, more than the %d a B–H curve may have", n, MaxBHPoints)
+	}
 	for k := range h {
 		switch {
 		case !isFinite(h[k]):
 			return nil, k, fmt.Sprintf("field strength is not finite: %g A/m", h[k])
 		case !isFinite(b[k]):
 			return nil, k, fmt.Sprintf("flux density is not finite: %g T", b[k])
+		case h[k] > maxBHField:
+			return nil, k, fmt.Sprintf("field strength %g A/m is above %g A/m, beyond any measured steel curve: check the field unit", h[k], maxBHField)
+		case b[k] > maxBHFluxDensity:
+			return nil, k, fmt.Sprintf("flux density %g T is above %g T, beyond any steel: check the flux density unit", b[k], maxBHFluxDensity)
 		case k == 0 && (h[0] != 0 || b[0] != 0):
 			return nil, k, fmt.Sprintf("the curve must start at H = 0 A/m, B = 0 T (no remanence), got (%g A/m, %g T)", h[0], b[0])
 		case k > 0 && !(h[k] > h[k-1]):
@@ -153,7 +174,19 @@ func newBHTable(h, b []float64) (*BHTable, int, string) {
 			return nil, k, fmt.Sprintf("flux density must be strictly increasing: %g T after %g T", b[k], b[k-1])
 		}
 	}
-	n := len(h)
+	if h[n-1] < minBHFieldTop || b[n-1] < minBHFluxDensityTop {
+		return nil, n - 1, fmt.Sprintf("the curve ends at %g A/m, %g T: a steel curve reaches at least %g A/m and %g T; check the units", h[n-1], b[n-1], minBHFieldTop, minBHFluxDensityTop)
+	}
+	// Points closer than minBHSpacing of the curve's span in H or B give
+	// slopes that overflow between them.
+	for k := 1; k < n; k++ {
+		switch {
+		case h[k]-h[k-1] < minBHSpacing*h[n-1]:
+			return nil, k, fmt.Sprintf("field strength %g A/m is too close to the previous point's %g A/m (less than %g of the curve's span)", h[k], h[k-1], minBHSpacing)
+		case b[k]-b[k-1] < minBHSpacing*b[n-1]:
+			return nil, k, fmt.Sprintf("flux density %g T is too close to the previous point's %g T (less than %g of the curve's span)", b[k], b[k-1], minBHSpacing)
+		}
+	}
 	t := &BHTable{
 		b: append([]float64(nil), b...),
 		h: append([]float64(nil), h...),

@@ -141,6 +141,20 @@ func newTable(currents, gaps []float64, flux [][]float64) (*Table, *gridErr) {
 	return t, nil
 }
 
+// Bounds of a table's values, far outside any solenoid yet inside what
+// the interpolation's arithmetic handles without overflow: the last current
+// from 1 nA to 1 MA, the last gap from 1 nm to 10 m, each gap column's
+// largest flux linkage from 1e-15 Wb to 1 MWb; neighbouring currents and
+// gaps at least 1e-9 of their span apart, flux linkages at least 1e-12 of
+// their column's largest (common practice, no source).
+const (
+	minTableCurrent, maxTableCurrent = 1e-9, 1e6  // A
+	minTableGap, maxTableGap         = 1e-9, 10.0 // m
+	minTableFlux, maxTableFlux       = 1e-15, 1e6 // Wb
+	minTableSpacing                  = 1e-9       // of the span, currents and gaps
+	minFluxStep                      = 1e-12      // of the column's largest flux linkage
+)
+
 // checkGrid validates the shape and values of the grid.
 func checkGrid(currents, gaps []float64, flux [][]float64) *gridErr {
 	nI, nX := len(currents), len(gaps)
@@ -162,6 +176,14 @@ func checkGrid(currents, gaps []float64, flux [][]float64) *gridErr {
 		}
 		if j > 0 && !(x > gaps[j-1]) {
 			return newGridErr(-1, "gaps must be strictly ascending: gap %d (%g m) <= gap %d (%g m)", j+1, x, j, gaps[j-1]).at(j + 1)
+		}
+	}
+	if last := gaps[nX-1]; last < minTableGap || last > maxTableGap {
+		return newGridErr(-1, "the last gap, %g m, is outside %g m to %g m: check the gap unit", last, minTableGap, maxTableGap).at(nX)
+	}
+	for j := 1; j < nX; j++ {
+		if gaps[j]-gaps[j-1] < minTableSpacing*gaps[nX-1] {
+			return newGridErr(-1, "gap %d (%g m) is too close to gap %d (%g m): less than %g of the last gap", j+1, gaps[j], j, gaps[j-1], minTableSpacing).at(j + 1)
 		}
 	}
 	if len(flux) != nI {
@@ -186,10 +208,23 @@ func checkGrid(currents, gaps []float64, flux [][]float64) *gridErr {
 			}
 		}
 	}
+	if last := currents[nI-1]; last < minTableCurrent || last > maxTableCurrent {
+		return newGridErr(nI-1, "the last current, %g A, is outside %g A to %g A: check the current unit", last, minTableCurrent, maxTableCurrent).at(0)
+	}
+	for k := 1; k < nI; k++ {
+		if currents[k]-currents[k-1] < minTableSpacing*currents[nI-1] {
+			return newGridErr(k, "current %g A is too close to the previous one, %g A: less than %g of the last current", currents[k], currents[k-1], minTableSpacing).at(0)
+		}
+	}
 	for j := range nX {
-		big := 0.0
+		big, kBig := 0.0, 0
 		for k := range nI {
-			big = math.Max(big, math.Abs(flux[k][j]))
+			if a := math.Abs(flux[k][j]); a > big {
+				big, kBig = a, k
+			}
+		}
+		if big < minTableFlux || big > maxTableFlux {
+			return newGridErr(kBig, "the largest flux linkage at gap %g m, %g Wb, is outside %g Wb to %g Wb: check the flux linkage unit", gaps[j], big, minTableFlux, maxTableFlux).at(j + 1)
 		}
 		if math.Abs(flux[0][j]) > zeroFluxTol*big {
 			return newGridErr(0, "flux linkage at 0 A must be 0 (no permanent magnet), got %g Wb at gap %g m", flux[0][j], gaps[j]).at(j + 1)
@@ -202,6 +237,10 @@ func checkGrid(currents, gaps []float64, flux [][]float64) *gridErr {
 			if !(flux[k][j] > prev) {
 				return newGridErr(k, "flux linkage must be strictly increasing in current: at gap %g m, %g Wb at %g A after %g Wb at %g A",
 					gaps[j], flux[k][j], currents[k], prev, currents[k-1]).at(j + 1)
+			}
+			if flux[k][j]-prev < minFluxStep*big {
+				return newGridErr(k, "flux linkage barely increases in current: at gap %g m, %g Wb at %g A after %g Wb at %g A (less than %g of the column's largest)",
+					gaps[j], flux[k][j], currents[k], prev, currents[k-1], minFluxStep).at(j + 1)
 			}
 		}
 	}
