@@ -226,6 +226,10 @@ func TestReadBHCSV(t *testing.T) {
 		{"H,B\n", "bad.csv: need at least 2 points"},
 		{"0,0\n\"1,2\n", "bad.csv:2:"},
 		{"\ufeff# steel, kA/m and T\n0,0\n0.1,1\n0.05,1.2\n", "bad.csv:4:1: field strength must be strictly increasing"},
+		{"0,0\n1e6,2\n", "bad.csv:2:1: field strength 1e+09 A/m is above 1e+08 A/m"},
+		{"0,0\n1,200\n", "bad.csv:2:3: flux density 200 T is above 100 T"},
+		{"0,0\n1,1e-200\n", "bad.csv:2:1: the curve ends at 1000 A/m, 1e-200 T"},
+		{"0,0\n1,1\n1.0000000000001,2\n", "bad.csv:3:1: field strength 1000.0000000000999 A/m is too close to the previous point"},
 		{"0,0\n" + strings.Repeat("1,1\n", MaxBHPoints), fmt.Sprintf("bad.csv:%d:1: more than %d points", MaxBHPoints+1, MaxBHPoints)},
 	}
 	for _, c := range bad {

@@ -209,6 +209,12 @@ func TestReadTableCSVErrors(t *testing.T) {
 		{"bare quote", "i,1,2\n0,0,0\n1,0\"5,0.4\n", "mem.csv:3:4: not valid CSV"},
 		{"infinite cell", "i,1,2\n0,0,0\n1,Inf,0.4\n", "mem.csv:3:3:"},
 		{"BOM then comment", "\ufeff# units A, mm, Wb\ni,2,1\n0,0,0\n1,0.5,0.6\n", "mem.csv:2:5: gaps must be strictly ascending"},
+		{"current unit wrong", "i,1,2\n0,0,0\n1e7,0.5,0.4\n", "mem.csv:3:1: the last current, 1e+07 A, is outside 1e-09 A to 1e+06 A: check the current unit"},
+		{"gap unit wrong", "i,1,2e5\n0,0,0\n1,0.5,0.4\n", "mem.csv:1:5: the last gap, 200 m, is outside 1e-09 m to 10 m: check the gap unit"},
+		{"gaps too close", "i,1,1.0000000000001,2\n0,0,0,0\n1,0.5,0.4,0.3\n", "mem.csv:1:5: gap 2 (0.0010000000000001 m) is too close to gap 1"},
+		{"currents too close", "i,1,2\n0,0,0\n1,0.5,0.4\n1.0000000000001,0.6,0.5\n", "mem.csv:4:1: current 1.0000000000001 A is too close to the previous one"},
+		{"flux barely increases", "i,1,2\n0,0,0\n1,0.5,0.4\n2,0.5000000000000001,0.6\n", "mem.csv:4:3: flux linkage barely increases in current"},
+		{"flux unit wrong", "i,1,2\n0,0,0\n1,1e-20,0.4\n", "mem.csv:3:3: the largest flux linkage at gap 0.001 m, 1e-20 Wb, is outside 1e-15 Wb to 1e+06 Wb"},
 		{"too many gaps", "i" + strings.Repeat(",1", MaxTableGaps+1) + "\n", fmt.Sprintf("mem.csv:1:%d: header has %d gaps, more than the %d", 2*(MaxTableGaps+1)+1, MaxTableGaps+1, MaxTableGaps)},
 		{"too many currents", "i,1,2\n" + strings.Repeat("0,0,0\n", MaxTableCurrents+1), fmt.Sprintf("mem.csv:%d:1: more than %d current rows", MaxTableCurrents+2, MaxTableCurrents)},
 	}
