@@ -16,6 +16,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"os"
 	"path/filepath"
 )
@@ -69,6 +70,11 @@ func (s *Set) Commit() (err error) {
 	}()
 	for _, f := range s.files {
 		target := resolveTarget(f.name)
+		// Never rename over a folder or a special file (a device, a
+		// FIFO): Check says so first; this is the last guard.
+		if st, err := os.Stat(target); err == nil && !st.Mode().IsRegular() {
+			return fmt.Errorf("%s is not a regular file (%v): not replaced", f.name, st.Mode().Type())
+		}
 		tmp, err := writeTemp(target, f.write, s.Wrap)
 		if tmp != "" {
 			temps = append(temps, done{tmp, target})
@@ -147,6 +153,8 @@ func Check(name string) error {
 	dir := filepath.Dir(target)
 	st, err := os.Stat(dir)
 	switch {
+	case errors.Is(err, fs.ErrNotExist):
+		return fmt.Errorf("%s: folder %s does not exist", name, dir)
 	case err != nil:
 		return fmt.Errorf("%s: folder %s: %v", name, dir, unwrapPath(err))
 	case !st.IsDir():

@@ -156,7 +156,7 @@ func TestCheck(t *testing.T) {
 		{dir, "is a folder"},
 		{fifo, "not a regular file"},
 		{"/dev/null", "not a regular file"},
-		{filepath.Join(dir, "no", "such", "x.csv"), "no such file"},
+		{filepath.Join(dir, "no", "such", "x.csv"), "does not exist"},
 		{filepath.Join(file, "x.csv"), "not a folder"},
 		{"", "empty"},
 	} {
@@ -205,5 +205,31 @@ func TestSameAsAny(t *testing.T) {
 	// Two outputs, neither existing yet, one through a linked folder.
 	if got := SameAsAny(filepath.Join(dirLink, "new.csv"), filepath.Join(dir, "new.csv")); got == "" {
 		t.Errorf("the same new file by two paths not recognized")
+	}
+}
+
+// TestWriteNeverReplacesSpecialFiles: even without Check first, Write
+// refuses to rename over a FIFO or a folder (as root, a rename would
+// replace a device node such as /dev/null with a plain file).
+func TestWriteNeverReplacesSpecialFiles(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
+	fifo := filepath.Join(dir, "fifo")
+	if err := syscall.Mkfifo(fifo, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	folder := filepath.Join(dir, "folder")
+	os.Mkdir(folder, 0o755)
+	for _, name := range []string{fifo, folder} {
+		err := Write(name, func(w io.Writer) error { _, err := io.WriteString(w, "data"); return err })
+		if err == nil || !strings.Contains(err.Error(), "not a regular file") {
+			t.Errorf("Write(%s) = %v, want a refusal", filepath.Base(name), err)
+		}
+	}
+	if st, err := os.Lstat(fifo); err != nil || st.Mode()&os.ModeNamedPipe == 0 {
+		t.Errorf("the FIFO was replaced")
+	}
+	if entries, _ := os.ReadDir(dir); len(entries) != 2 {
+		t.Errorf("%d entries in the folder, want 2 (no temporary file left)", len(entries))
 	}
 }
