@@ -803,8 +803,15 @@ func TestLoadRefusesNonRegularAndOversize(t *testing.T) {
 		t.Fatal(err)
 	}
 	s.Magnet.TableFile = fifo
-	if _, err := Build(s); err == nil || !strings.Contains(err.Error(), "magnet.table.file: "+fifo+": flux-linkage table is not a regular file") {
-		t.Errorf("Build with a FIFO table: %v", err)
+	done := make(chan error, 1)
+	go func() { _, err := Build(s); done <- err }()
+	select {
+	case err := <-done:
+		if err == nil || !strings.Contains(err.Error(), "magnet.table.file: "+fifo+": flux-linkage table is not a regular file") {
+			t.Errorf("Build with a FIFO table: %v", err)
+		}
+	case <-time.After(10 * time.Second):
+		t.Fatalf("Build with a FIFO table blocked")
 	}
 }
 
