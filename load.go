@@ -43,6 +43,12 @@ func Load(path string) (*Scenario, error) {
 // spaces. Unknown keys, duplicate keys, empty values and keys that do not
 // apply (to the suppression type, say) are errors.
 //
+// Every number must also lie in its key's range (scenarioRanges, listed in
+// the README), whole numbers must be whole, and a pwm or fixed-frequency
+// drive must give at least one period while it applies; the name must be
+// printable text (control characters are refused). Table and curve files
+// must be regular files of at most MaxTableBytes.
+//
 // Keys (required unless marked optional) and the defaults of optional ones:
 //
 //	name: text                                  optional, default ""
@@ -56,7 +62,7 @@ func Load(path string) (*Scenario, error) {
 //	  temperature coefficient: 0.00393 /K       optional, default 0.00393 /K (annealed copper,
 //	                                            IEC 60028); the resistance at the run
 //	                                            temperature must stay > 0
-//	  turns: 1800                               optional plain number > 0; default 0 (not given)
+//	  turns: 1800                               optional whole number > 0; default 0 (not given)
 //	  build:                                    instead of resistance: the winding from bobbin
 //	                                            and wire (resistance at 20 degC from IEC 60028)
 //	    inner diameter: 10 mm                   > 0, winding space
@@ -66,7 +72,7 @@ func Load(path string) (*Scenario, error) {
 //	    wire diameter: 0.2 mm                   bare copper
 //	    insulation grade: 2                     enamel grade 1, 2 or 3, or
 //	    overall diameter: 0.23 mm               insulated diameter
-//	    turns: 2500                             or
+//	    turns: 2500                             whole number, or
 //	    fill factor: 0.5                        copper area / winding window, < 0.91
 //	magnet:                                     exactly one of "gap law", "table", "geometry"
 //	  eddy resistance: 200 ohm                  optional, default none; > 0: equivalent
