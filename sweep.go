@@ -105,7 +105,7 @@ func ParseVary(spec string) (Vary, error) {
 		case err != nil || n < 1 || n > maxSweepSteps:
 			return bad("STEPS %q must be a whole number from 1 to %d", strings.TrimSpace(r[2]), maxSweepSteps)
 		case n == 1 && a != b:
-			return bad("STEPS 1 gives FROM alone; a range from %s to %s needs STEPS of 2 or more", strings.TrimSpace(r[0]), strings.TrimSpace(r[1]))
+			return bad("STEPS 1 gives FROM alone; a range from %q to %q needs STEPS of 2 or more", strings.TrimSpace(r[0]), strings.TrimSpace(r[1]))
 		}
 		for k := 0; k < n; k++ {
 			x := a
