@@ -981,6 +981,12 @@ func (l *scenarioLoader) inputFile(path, file, kind string) string {
 		l.errf(path, "is empty; expected a file name")
 		return ""
 	}
+	for _, r := range file {
+		if isControlRune(r) || r == utf8.RuneError {
+			l.errf(path, "%q: a file name with the control character or invalid byte %U is refused; expected a file name", file, r)
+			return ""
+		}
+	}
 	resolved := file
 	if !filepath.IsAbs(file) {
 		resolved = filepath.Join(l.dir, file)

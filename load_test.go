@@ -200,6 +200,7 @@ func TestLoadBad(t *testing.T) {
 		// Input files that are not regular files.
 		{"table_device.yaml", 9, 11, []string{`magnet.table.file: "/dev/zero" is not a regular file (a device): refused; expected a CSV file`}},
 		{"table_folder.yaml", 9, 11, []string{`magnet.table.file: "testdata/bad" is a folder, not a table file`}},
+		{"table_file_control.yaml", 9, 11, []string{`magnet.table.file: "table\x1b[31m.csv": a file name with the control character or invalid byte U+001B is refused`}},
 		{"curve_device.yaml", 31, 13, []string{`magnet.geometry.steel curve.file: "/dev/zero" is not a regular file (a device): refused`}},
 		// CSV inputs (read by Build): the scenario's field, the CSV's line and column, the units.
 		{"table_bad_cell.yaml", 9, 11, []string{"magnet.table.file: testdata/bad/table_bad_cell.csv:9:32: flux linkage (cell 5): not a finite number: \"abc\"",
