@@ -1,6 +1,7 @@
 package coilkick
 
 import (
+	"bufio"
 	"encoding/csv"
 	"errors"
 	"fmt"
@@ -23,6 +24,10 @@ type MeasuredTrace struct {
 	// previous row's (coilkick's own run CSV has one row on each side of
 	// every event); the first row of each instant is kept.
 	Repeated int
+	// HeaderLine is the file line of the header; Columns the columns read
+	// (time, current, and voltage when recorded), with their units.
+	HeaderLine int
+	Columns    []TraceColumn
 }
 
 // columnRE splits a header cell into a name and a unit: "time (ms)",
@@ -35,49 +40,161 @@ var columnRE = regexp.MustCompile(`^\s*([A-Za-z][A-Za-z _]*?)\s*(?:[\(\[]\s*([^\
 var ignoredColumns = map[string]bool{"switch voltage": true, "gap": true, "velocity": true,
 	"magnetic force": true, "passive force": true, "winding temperature": true}
 
-// ReadTraceCSV reads a trace from CSV. Lines starting with '#' are
-// comments. The first row names the columns with their units: "time (ms)",
-// "current [mA]" or "time_s", "current_A", and optionally "voltage (V)"
-// or "coil_voltage_V" (the coil voltage); names may be abbreviated t, i,
-// v. The other columns of coilkick's own run CSV (switch voltage, gap,
+// Trace limits. A trace above MaxTraceSamples samples is refused with a
+// request to decimate it: the fit compares at most FitMaxPoints of them
+// and the event detection needs nothing like a million. The range bounds
+// keep every sum of squares finite and lie far beyond any solenoid drive
+// (common practice, no source).
+const (
+	MaxTraceSamples = 1_000_000
+	// maxTraceColumns and maxHeaderCell bound the header: coilkick's run
+	// CSV has 9 columns and its longest cell has 21 characters. A longer
+	// cell is refused before the unit parser sees it (its work grows with
+	// the square of a unit's length: a 1 MB cell found by FuzzReadTrace
+	// took over a minute).
+	maxTraceColumns = 100
+	maxHeaderCell   = 100  // bytes
+	maxTraceTime    = 1e10 // s, magnitude (a logger's epoch time stamps are about 1.8e9 s)
+	maxTraceCurrent = 1e6  // A, magnitude
+	maxTraceVoltage = 1e6  // V, magnitude
+)
+
+// TraceColumn is a column of the trace that was read.
+type TraceColumn struct {
+	Quantity string  // "time", "current" or "voltage"
+	Index    int     // the CSV column, from 1
+	Header   string  // the header cell as written
+	Unit     string  // the unit as written: "ms", "mA", "V"
+	Scale    float64 // SI per unit
+}
+
+// String describes the column for messages: column 2 "current (mA)".
+func (c TraceColumn) String() string {
+	return fmt.Sprintf("column %d %s", c.Index, quoteCell(c.Header))
+}
+
+// LoadTrace reads the trace file at path (ReadTraceCSV) after the checks
+// of OpenInput: a regular file (not a FIFO or a device) of at most
+// MaxTableBytes.
+func LoadTrace(path string) (*MeasuredTrace, error) {
+	f, err := OpenInput(path, "trace", MaxTableBytes)
+	if err != nil {
+		return nil, err
+	}
+	defer f.Close()
+	return ReadTraceCSV(f, path)
+}
+
+// errTraceTooLarge is returned by limitedReader past its limit.
+var errTraceTooLarge = fmt.Errorf("the trace is larger than %d bytes: refused", MaxTableBytes)
+
+// limitedReader reads at most n bytes and then fails with
+// errTraceTooLarge (io.LimitReader would end quietly, truncating the
+// trace).
+type limitedReader struct {
+	r io.Reader
+	n int64
+}
+
+func (l *limitedReader) Read(p []byte) (int, error) {
+	if l.n <= 0 {
+		return 0, errTraceTooLarge
+	}
+	if int64(len(p)) > l.n {
+		p = p[:l.n]
+	}
+	k, err := l.r.Read(p)
+	l.n -= int64(k)
+	return k, err
+}
+
+// quoteCell quotes a cell for a message, cut to 40 characters.
+func quoteCell(s string) string {
+	n := 0
+	for k := range s {
+		if n == 40 {
+			return strconv.Quote(s[:k]) + "…"
+		}
+		n++
+	}
+	return strconv.Quote(s)
+}
+
+// utf8BOM is the byte-order mark some programs write at the start of a
+// UTF-8 file.
+const utf8BOM = "\uFEFF"
+
+// ReadTraceCSV reads a trace from CSV. A UTF-8 byte-order mark at the
+// start is skipped; lines starting with '#' are comments. The first row
+// names the columns with their units: "time (ms)", "current [mA]" or
+// "time_s", "current_A", and optionally "voltage (V)" or
+// "coil_voltage_V" (the coil voltage); names may be abbreviated t, i, v.
+// The other columns of coilkick's own run CSV (switch voltage, gap,
 // velocity, forces, winding temperature) are ignored, so that file reads
 // as a trace. A row at the same time as the previous one is dropped (the
 // first is kept: the state just before an event, as Simulate samples an
-// instant that falls on an event) and counted in Repeated. Errors name the
-// file and line: a missing or unknown column, a unit of the wrong kind, a
-// value that is not a number, time that goes back, and, in a uniformly
-// sampled record, gaps in the time base (a step above 10 times the median
-// step).
+// instant that falls on an event) and counted in Repeated.
+//
+// Errors name the file, the line and the column with its expected unit: a
+// missing, unknown or repeated column, a unit of the wrong kind, a cell
+// that is not a finite number or lies outside the range a trace may hold
+// (|time| ≤ 1e10 s, |current| ≤ 1e6 A, |voltage| ≤ 1e6 V), time that goes
+// back, in a uniformly sampled record gaps in the time base (a step above
+// 10 times the median step), fewer than 10 or more than MaxTraceSamples
+// samples, and more than MaxTableBytes bytes. The reader keeps only the
+// samples, never the whole file.
 func ReadTraceCSV(r io.Reader, name string) (*MeasuredTrace, error) {
-	cr := csv.NewReader(r)
+	br := bufio.NewReader(&limitedReader{r: r, n: MaxTableBytes})
+	if b, err := br.Peek(len(utf8BOM)); err == nil && string(b) == utf8BOM {
+		br.Discard(len(utf8BOM))
+	}
+	cr := csv.NewReader(br)
 	cr.Comment = '#'
 	cr.FieldsPerRecord = -1
 	cr.TrimLeadingSpace = true
-	var rows [][]string
-	var lines []int // the file line of each row
-	for {
+	cr.ReuseRecord = true
+	cr.LazyQuotes = true // a stray quote stays in its cell, which is then not a number (named by column)
+	lastLine := 0
+	// read returns the next record and its file line, or io.EOF.
+	read := func(expect string) ([]string, int, error) {
 		rec, err := cr.Read()
 		if err == io.EOF {
-			break
+			return nil, 0, err
 		}
 		if err != nil {
-			return nil, fmt.Errorf("%s: %v", name, err)
+			var pe *csv.ParseError
+			switch {
+			case errors.As(err, &pe):
+				return nil, 0, fmt.Errorf("%s:%d: character %d: %v; expected %s", name, pe.Line, pe.Column, pe.Err, expect)
+			case errors.Is(err, errTraceTooLarge):
+				return nil, 0, fmt.Errorf("%s:%d: %v", name, lastLine+1, err)
+			}
+			return nil, 0, fmt.Errorf("%s:%d: %v", name, lastLine+1, err)
 		}
-		line, _ := cr.FieldPos(0)
-		rows, lines = append(rows, rec), append(lines, line)
+		lastLine, _ = cr.FieldPos(0)
+		return rec, lastLine, nil
 	}
-	if len(rows) == 0 {
-		return nil, fmt.Errorf("%s: the trace is empty", name)
+	header, headerLine, err := read(`a header naming the columns with their units, e.g. "time (ms), current (mA)"`)
+	if err == io.EOF {
+		return nil, fmt.Errorf("%s:1: the trace is empty; expected a header naming the columns with their units, e.g. \"time (ms), current (mA)\", then a row per sample", name)
 	}
-	// Errors below name the file line: "scope.csv:12: ...".
-	header := rows[0]
-	col := map[string]int{}
-	scale := map[string]float64{}
+	if err != nil {
+		return nil, err
+	}
+	nHeader := len(header) // the record is reused by the next read
+	if nHeader > maxTraceColumns {
+		return nil, fmt.Errorf("%s:%d: the header has %d columns; a trace has at most %d (time, current, voltage and the columns of coilkick's run CSV)", name, headerLine, nHeader, maxTraceColumns)
+	}
+	tr := &MeasuredTrace{Source: name, HeaderLine: headerLine}
+	at := map[string]int{} // quantity -> index in tr.Columns
 	dims := map[string]Dim{"time": Time, "current": Current, "voltage": Voltage}
 	for k, h := range header {
+		if len(h) > maxHeaderCell {
+			return nil, fmt.Errorf("%s:%d: column %d %s: a header cell of %d bytes; expected a name and a unit of at most %d, e.g. \"current (mA)\"", name, headerLine, k+1, quoteCell(h), len(h), maxHeaderCell)
+		}
 		m := columnRE.FindStringSubmatch(h)
 		if m == nil {
-			return nil, fmt.Errorf("%s:%d: column %d %q: expected a name and a unit, e.g. \"time (ms)\"", name, lines[0], k+1, h)
+			return nil, fmt.Errorf("%s:%d: column %d %s: expected a name and a unit, e.g. \"time (ms)\" or \"current (mA)\"", name, headerLine, k+1, quoteCell(h))
 		}
 		n := strings.ToLower(strings.Join(strings.Fields(strings.ReplaceAll(m[1], "_", " ")), " "))
 		if ignoredColumns[n] {
@@ -93,62 +210,107 @@ func ReadTraceCSV(r io.Reader, name string) (*MeasuredTrace, error) {
 		}
 		dim, ok := dims[n]
 		if !ok {
-			return nil, fmt.Errorf("%s:%d: column %d %q: unknown quantity; expected time, current or (coil) voltage, or a column of coilkick's run CSV", name, lines[0], k+1, h)
+			return nil, fmt.Errorf("%s:%d: column %d %s: unknown quantity; expected time, current or (coil) voltage with a unit, e.g. \"current (mA)\", or a column of coilkick's run CSV", name, headerLine, k+1, quoteCell(h))
 		}
-		unit := m[2] + m[3]
+		example := n + " (" + strings.Fields(dim.Example())[1] + ")"
+		unit := strings.TrimSpace(m[2] + m[3])
 		if unit == "" {
-			return nil, fmt.Errorf("%s:%d: column %q has no unit; expected %s, e.g. %q", name, lines[0], h, dim.Name(), n+" ("+strings.Fields(dim.Example())[1]+")")
+			return nil, fmt.Errorf("%s:%d: column %d %s has no unit; expected %s, e.g. %q", name, headerLine, k+1, quoteCell(h), dim.Name(), example)
 		}
-		v, err := ParseQuantity("1 "+unit, dim)
+		scale, err := ParseQuantity("1 "+unit, dim)
+		if err == nil && !(scale > 0 && !math.IsInf(scale, 0)) {
+			err = fmt.Errorf("%s is out of range", quoteCell(unit))
+		}
 		if err != nil {
-			return nil, fmt.Errorf("%s:%d: column %q: %v", name, lines[0], h, err)
+			// the unit parser speaks of the quantity "1 unit" it was given
+			msg := strings.ReplaceAll(err.Error(), strconv.Quote("1 "+unit), "unit "+quoteCell(unit))
+			if cut, _, ok := strings.Cut(msg, ", e.g. "); ok {
+				msg = cut
+			}
+			return nil, fmt.Errorf("%s:%d: column %d %s: %s, e.g. %q", name, headerLine, k+1, quoteCell(h), msg, example)
 		}
-		if _, dup := col[n]; dup {
-			return nil, fmt.Errorf("%s:%d: two %s columns", name, lines[0], n)
+		if j, dup := at[n]; dup {
+			return nil, fmt.Errorf("%s:%d: column %d %s: a second %s column (the first is column %d); expected one", name, headerLine, k+1, quoteCell(h), n, tr.Columns[j].Index)
 		}
-		col[n], scale[n] = k, v
+		at[n] = len(tr.Columns)
+		tr.Columns = append(tr.Columns, TraceColumn{Quantity: n, Index: k + 1, Header: strings.TrimSpace(h), Unit: unit, Scale: scale})
 	}
 	for _, need := range []string{"time", "current"} {
-		if _, ok := col[need]; !ok {
-			return nil, fmt.Errorf("%s:%d: no %s column (the header needs time and current, e.g. \"time (ms), current (mA)\")", name, lines[0], need)
+		if _, ok := at[need]; !ok {
+			return nil, fmt.Errorf("%s:%d: no %s column; the header needs time and current with their units, e.g. \"time (ms), current (mA)\"", name, headerLine, need)
 		}
 	}
-	tr := &MeasuredTrace{Source: name}
-	_, hasV := col["voltage"]
+	cTime, cCurrent := tr.Columns[at["time"]], tr.Columns[at["current"]]
+	jv, hasV := at["voltage"]
+	var cVoltage TraceColumn
+	if hasV {
+		cVoltage = tr.Columns[jv]
+	}
+	var expect []string
+	for _, c := range tr.Columns {
+		expect = append(expect, c.Quantity+" in "+c.Unit)
+	}
+	rowExpect := "a row of numbers: " + strings.Join(expect, ", ")
+	limits := map[string]struct {
+		max  float64
+		text string
+	}{"time": {maxTraceTime, "1e10 s"}, "current": {maxTraceCurrent, "1e6 A"}, "voltage": {maxTraceVoltage, "1e6 V"}}
 	var rowLine []int // the file line of each sample
-	for li, row := range rows[1:] {
-		line := lines[li+1]
-		if len(row) != len(header) {
-			return nil, fmt.Errorf("%s:%d: %d cells, the header has %d", name, line, len(row), len(header))
+	for {
+		row, line, err := read(rowExpect)
+		if err == io.EOF {
+			break
 		}
-		get := func(n string) (float64, error) {
-			s := strings.TrimSpace(row[col[n]])
-			x, err := strconv.ParseFloat(s, 64)
-			if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
-				return 0, fmt.Errorf("%s:%d: %s %q is not a number", name, line, n, s)
-			}
-			return x * scale[n], nil
-		}
-		t, err := get("time")
 		if err != nil {
 			return nil, err
 		}
-		i, err := get("current")
+		if len(row) != nHeader {
+			cells := fmt.Sprintf("%d cells", len(row))
+			if len(row) == 1 {
+				cells = "1 cell"
+			}
+			if len(row) < nHeader {
+				return nil, fmt.Errorf("%s:%d: %s, the header (line %d) has %d: no cell for column %d; expected %s", name, line, cells, headerLine, nHeader, len(row)+1, rowExpect)
+			}
+			return nil, fmt.Errorf("%s:%d: %s, the header (line %d) has %d: column %d has no header; expected %s", name, line, cells, headerLine, nHeader, nHeader+1, rowExpect)
+		}
+		get := func(c TraceColumn) (float64, error) {
+			s := strings.TrimSpace(row[c.Index-1])
+			x, err := strconv.ParseFloat(s, 64)
+			if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
+				return 0, fmt.Errorf("%s:%d: %s: %s is not a finite number; expected a %s in %s", name, line, c, quoteCell(s), c.Quantity, c.Unit)
+			}
+			v, lim := x*c.Scale, limits[c.Quantity]
+			if !(math.Abs(v) <= lim.max) {
+				return 0, fmt.Errorf("%s:%d: %s: %s %s is beyond the ±%s a trace may hold; expected a %s in %s", name, line, c, quoteCell(s), c.Unit, lim.text, c.Quantity, c.Unit)
+			}
+			return v, nil
+		}
+		t, err := get(cTime)
+		if err != nil {
+			return nil, err
+		}
+		i, err := get(cCurrent)
 		if err != nil {
 			return nil, err
 		}
 		v := 0.0
 		if hasV {
-			if v, err = get("voltage"); err != nil {
+			if v, err = get(cVoltage); err != nil {
 				return nil, err
 			}
 		}
-		if k := len(tr.Time); k > 0 && t == tr.Time[k-1] {
+		k := len(tr.Time)
+		if k > 0 && t == tr.Time[k-1] {
 			tr.Repeated++
 			continue
 		}
-		if k := len(tr.Time); k > 0 && !(t > tr.Time[k-1]) {
-			return nil, fmt.Errorf("%s:%d: time %g s does not increase (previous %g s)", name, line, t, tr.Time[k-1])
+		if k > 0 && !(t > tr.Time[k-1]) {
+			return nil, fmt.Errorf("%s:%d: %s: time %s %s does not increase (the previous sample, line %d, is at %.6g %s)", name, line, cTime,
+				strings.TrimSpace(row[cTime.Index-1]), cTime.Unit, rowLine[k-1], tr.Time[k-1]/cTime.Scale, cTime.Unit)
+		}
+		if k == MaxTraceSamples {
+			return nil, fmt.Errorf("%s:%d: more than %d samples: decimate the record (fit compares at most %d points)", name, line, MaxTraceSamples, FitMaxPoints)
 		}
 		tr.Time = append(tr.Time, t)
 		rowLine = append(rowLine, line)
@@ -158,19 +320,15 @@ func ReadTraceCSV(r io.Reader, name string) (*MeasuredTrace, error) {
 		}
 	}
 	if len(tr.Time) < 10 {
-		return nil, fmt.Errorf("%s: only %d samples; a trace needs at least 10", name, len(tr.Time))
+		return nil, fmt.Errorf("%s:%d: only %d samples after the header (line %d); a trace needs at least 10 rows of %s", name, max(lastLine, headerLine), len(tr.Time), headerLine, strings.Join(expect, ", "))
 	}
-	steps := make([]float64, len(tr.Time)-1)
-	for k := range steps {
-		steps[k] = tr.Time[k+1] - tr.Time[k]
-	}
-	med := tr.MedianStep()
 	if !tr.Uniform() {
 		return tr, nil // a variable-step record (a simulation's): no gap check
 	}
-	for k, s := range steps {
-		if s > 10*med {
-			return nil, fmt.Errorf("%s:%d: a gap of %.3g s in the time base (median step %.3g s)", name, rowLine[k+1], s, med)
+	med := tr.MedianStep()
+	for k := 1; k < len(tr.Time); k++ {
+		if s := tr.Time[k] - tr.Time[k-1]; s > 10*med {
+			return nil, fmt.Errorf("%s:%d: %s: a gap of %.3g %s in the time base (median step %.3g %s); expected a uniformly sampled record", name, rowLine[k], cTime, s/cTime.Scale, cTime.Unit, med/cTime.Scale, cTime.Unit)
 		}
 	}
 	return tr, nil
@@ -196,15 +354,21 @@ func (tr *MeasuredTrace) Resample(dt float64, window int) (t, i []float64) {
 	if window <= 1 {
 		return t, raw
 	}
+	// centred moving average by a running sum (the window is cut at the
+	// ends): O(n) whatever the window
 	h := window / 2
 	i = make([]float64, n)
+	sum, lo, hi := 0.0, 0, -1 // raw[lo..hi] summed
 	for j := range i {
-		lo, hi := max(0, j-h), min(n-1, j+h)
-		s := 0.0
-		for m := lo; m <= hi; m++ {
-			s += raw[m]
+		for hi < min(n-1, j+h) {
+			hi++
+			sum += raw[hi]
 		}
-		i[j] = s / float64(hi-lo+1)
+		for lo < max(0, j-h) {
+			sum -= raw[lo]
+			lo++
+		}
+		i[j] = sum / float64(hi-lo+1)
 	}
 	return t, i
 }
