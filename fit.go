@@ -5,7 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"os"
+	"sort"
 	"strconv"
 	"strings"
 
@@ -92,10 +92,44 @@ type FitResult struct {
 	// Overlay: measured (offset removed) and simulated current on the fit grid.
 	Time, Measured, Simulated []float64
 	SeatModel                 Interval // model's pull-in (seat) instant, from its energize command
-	// Warnings are shown to the user, not fatal: an alignment at the edge
-	// of its search range, uncertainties the trace does not determine.
+	// NoiseRef (A) is the noise the residual is judged against: the
+	// largest of the trace's noise before energizing (Noise), its
+	// sample-to-sample noise over the whole record (DiffNoise, uniformly
+	// sampled records only), the rounding noise of its resolution
+	// (Quantum/√12) and NoiseFloor. Quantum (A) is the smallest step
+	// between successive current samples.
+	NoiseRef, DiffNoise, Quantum float64
+	// Warnings are shown to the user, not fatal: an alignment near the
+	// edge of its search range.
 	Warnings []string
+	// Failure gives the reasons the fit failed (FitResidualLimit, a
+	// quantity the trace does not determine, the alignment at the edge of
+	// its search), and hints at the cause (a unit in the trace's header);
+	// empty for a good fit. A failed result is returned with an error
+	// wrapping ErrFitFailed, for inspection; its values must not be used
+	// as a calibration.
+	Failure []string
 }
+
+// Failed reports whether the fit failed (see FitResult.Failure).
+func (fr *FitResult) Failed() bool { return len(fr.Failure) > 0 }
+
+// ErrFitFailed is wrapped by the error Fit returns with a failed result.
+var ErrFitFailed = errors.New("the fit failed")
+
+// FitResidualLimit is the failure criterion on the residual: a fit whose
+// RMS residual exceeds this multiple of the trace's noise (NoiseRef) has
+// not found a model that follows the trace, and fails. With a model that
+// explains the trace the RMS residual is about the noise: over the 50
+// seeds of TestFitCoverage (white noise) RMS/NoiseRef lies between 0.57
+// and 1.03, over those of TestFitCoverageCorrelatedNoise (a band-limited
+// probe, whose short baseline underestimates the noise) between 0.71 and
+// 2.9. 5 keeps a margin of 1.7 over the worst of those and allows a
+// systematic model error of up to √(5²−1) ≈ 4.9 noise σ RMS, while a
+// wrong unit in the trace's header leaves some 50 times the noise (time
+// in µs on millisecond data, current in A on milliampere data:
+// TestFitFailsOnWrongUnits). The value is common practice, no source.
+const FitResidualLimit = 5
 
 // setFit writes parameter p = v into a copy of the model.
 func setFit(md *Model, p FitParam, v float64) error {
@@ -212,7 +246,9 @@ func Fit(md *Model, tr *MeasuredTrace, params []FitParam) (*FitResult, error) {
 	// s, the alignment search range about the detected energize instant:
 	// wide, because a threshold detector can be fooled by slow noise
 	// (TestFitCoverageCorrelatedNoise had a 0.4 ms miss).
-	window := math.Max(4*ev.EnergizeErr, 40*dt)
+	// Capped at 1000 samples so that the alignment scan stays bounded
+	// whatever the detector returned.
+	window := math.Min(math.Max(4*ev.EnergizeErr, 40*dt), 1000*dt)
 	res := &FitResult{Events: ev, Noise: ev.Noise, Shift: shift0, Offset: ev.Offset}
 	// The fit grid: the measured samples inside the model's run (kept
 	// away from its end by the search window), thinned.
@@ -337,6 +373,7 @@ func Fit(md *Model, tr *MeasuredTrace, params []FitParam) (*FitResult, error) {
 		hs[k] = 1e-3
 	}
 	hs[m] = 0.1 * dt / tau // a tenth of a sample step
+	var jacErr error       // why the last Jacobian could not be made
 	jacobian := func(x []float64) (*mat.Dense, bool) {
 		J := mat.NewDense(n, m+2, nil)
 		for k := 0; k <= m; k++ {
@@ -347,7 +384,7 @@ func Fit(md *Model, tr *MeasuredTrace, params []FitParam) (*FitResult, error) {
 			res.Evaluations += 2
 			sp, err1 := simulate(xp)
 			sm, err2 := simulate(xm)
-			if err1 != nil || err2 != nil {
+			if jacErr = errors.Join(err1, err2); jacErr != nil {
 				return nil, false
 			}
 			for j := range sp {
@@ -431,9 +468,16 @@ func Fit(md *Model, tr *MeasuredTrace, params []FitParam) (*FitResult, error) {
 			res.Inflation = (1 + rho) / (1 - rho)
 		}
 	}
+	quantities := make([]string, 0, m+2) // the columns of J, for messages
+	for _, p := range params {
+		quantities = append(quantities, string(p))
+	}
+	quantities = append(quantities, "time alignment", "baseline offset")
 	var cov *mat.Dense
-	if J, ok := jacobian(x); ok {
-		cov = covariance(J, res.ResidualSD*res.ResidualSD*res.Inflation)
+	var null []float64
+	J, jacOK := jacobian(x)
+	if jacOK {
+		cov, null = covariance(J, res.ResidualSD*res.ResidualSD*res.Inflation)
 	}
 	stdErr := func(k int) float64 {
 		if cov == nil {
@@ -441,11 +485,24 @@ func Fit(md *Model, tr *MeasuredTrace, params []FitParam) (*FitResult, error) {
 		}
 		return math.Sqrt(cov.At(k, k))
 	}
-	if cov == nil {
-		res.Warnings = append(res.Warnings, "the trace does not determine every fitted quantity (singular covariance): fit fewer parameters")
+	atEdge := false
+	switch d := x[m] * tau; {
+	case math.Abs(d) > 0.98*window:
+		atEdge = true
+		res.Failure = append(res.Failure, fmt.Sprintf("the time alignment ran to the edge of its search, %s from the detected energize instant (±%s): check the trace's energize edge and the scenario's timing", siText(d, "s"), siText(window, "s")))
+	case math.Abs(d) > 0.9*window:
+		res.Warnings = append(res.Warnings, fmt.Sprintf("the time alignment moved %s from the detected energize instant, near the edge of its ±%s search: check the trace's energize edge and the scenario's timing", siText(d, "s"), siText(window, "s")))
 	}
-	if d := x[m] * tau; math.Abs(d) > 0.9*window {
-		res.Warnings = append(res.Warnings, fmt.Sprintf("the time alignment moved %.3g ms from the detected energize instant, near the edge of its ±%.3g ms search: check the trace's energize edge and the scenario's timing", d*1e3, window*1e3))
+	switch {
+	case !jacOK && !(atEdge && errors.Is(jacErr, errShiftRange)):
+		why, _, _ := strings.Cut(strings.TrimPrefix(jacErr.Error(), "coilkick: "), "\n")
+		res.Failure = append(res.Failure, fmt.Sprintf("the uncertainties cannot be computed: a trial next to the optimum failed (%s)", why))
+	case jacOK && cov == nil:
+		what := "every fitted quantity"
+		if names := nullNames(null, quantities); names != "" {
+			what = names
+		}
+		res.Failure = append(res.Failure, fmt.Sprintf("the trace does not determine %s (singular covariance): fit fewer parameters", what))
 	}
 	res.ShiftErr = tau * stdErr(m)
 	res.OffsetErr = stdErr(m + 1)
@@ -461,6 +518,12 @@ func Fit(md *Model, tr *MeasuredTrace, params []FitParam) (*FitResult, error) {
 			fv.Sensitivity = math.Sqrt(f/base) - 1
 		}
 		res.Values = append(res.Values, fv)
+		if rel := stdErr(k); cov != nil && !(rel <= 1) {
+			res.Failure = append(res.Failure, fmt.Sprintf("the trace does not determine %s: its 1σ is %.2g times its value", p, rel))
+		}
+		if !isFinite(v) {
+			res.Failure = append(res.Failure, fmt.Sprintf("%s ran off to %g", p, v))
+		}
 	}
 	// The fitted model's seat instant.
 	v := *md
@@ -470,7 +533,114 @@ func Fit(md *Model, tr *MeasuredTrace, params []FitParam) (*FitResult, error) {
 	if r, err := Simulate(&v, &Options{NoTrace: true}); err == nil {
 		res.SeatModel = r.Metrics.PullIn
 	}
+	// The residual against the trace's noise.
+	res.Quantum = currentQuantum(tr.Current)
+	if tr.Uniform() {
+		res.DiffNoise = differenceNoise(tr.Current)
+	}
+	res.NoiseRef = max(ev.Noise, res.DiffNoise, res.Quantum/math.Sqrt(12), res.NoiseFloor)
+	if !(res.RMS <= FitResidualLimit*res.NoiseRef) {
+		// first: the most telling reason
+		res.Failure = append([]string{fmt.Sprintf("the RMS residual %s is %.3g times the trace's noise %s (a fit fails above %d times): the model does not follow the trace",
+			siText(res.RMS, "A"), res.RMS/res.NoiseRef, siText(res.NoiseRef, "A"), FitResidualLimit)}, res.Failure...)
+		res.Failure = append(res.Failure, unitHints(md, tr, ev)...)
+	}
+	if res.Failed() {
+		where := tr.Source
+		if tr.HeaderLine > 0 {
+			where = fmt.Sprintf("%s:%d", tr.Source, tr.HeaderLine)
+		}
+		return res, fmt.Errorf("%s: %w: %s", where, ErrFitFailed, strings.Join(res.Failure, "; "))
+	}
 	return res, nil
+}
+
+func isFinite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+
+// siText formats v (in unit) with an engineering prefix and 3 significant
+// digits for messages: siText(0.00763, "s") = "7.63 ms".
+func siText(v float64, unit string) string {
+	a := math.Abs(v)
+	if v == 0 || !isFinite(v) || a >= 1e12 || a < 1e-12 {
+		return strconv.FormatFloat(v, 'g', 3, 64) + " " + unit
+	}
+	for _, p := range []struct {
+		p string
+		f float64
+	}{{"G", 1e9}, {"M", 1e6}, {"k", 1e3}, {"", 1}, {"m", 1e-3}, {"µ", 1e-6}, {"n", 1e-9}, {"p", 1e-12}} {
+		if a >= p.f*0.9995 || p.p == "p" {
+			return strconv.FormatFloat(v/p.f, 'g', 3, 64) + " " + p.p + unit
+		}
+	}
+	return strconv.FormatFloat(v, 'g', 3, 64) + " " + unit
+}
+
+// currentQuantum returns the smallest nonzero step between successive
+// samples (A): the resolution of a quantised record, whose rounding
+// alone leaves a residual of Quantum/√12 (uniform rounding error).
+func currentQuantum(i []float64) float64 {
+	q := math.Inf(1)
+	for k := 1; k < len(i); k++ {
+		if d := math.Abs(i[k] - i[k-1]); d > 0 && d < q {
+			q = d
+		}
+	}
+	if math.IsInf(q, 0) {
+		return 0
+	}
+	return q
+}
+
+// differenceNoise estimates the noise σ (A) of a uniformly sampled record
+// from all its samples: the median absolute second difference
+// |i[k+1] − 2·i[k] + i[k−1]|, which for white noise of σ is Gaussian with
+// σ·√6, divided by 0.6745·√6 (the median of |N(0,1)| is 0.6745). A smooth
+// signal adds little (its second difference is d²i/dt²·Δt²), and the median
+// ignores the few samples at a kink. The baseline before energizing can
+// be short (10 samples at 10 kHz with 1 ms before energizing), so its σ
+// alone scatters by 22 %; this uses the whole record. Robust scale
+// estimation by the median absolute deviation: Hampel, J. Am. Stat.
+// Assoc. 69 (1974); the difference form is common practice, no source.
+func differenceNoise(i []float64) float64 {
+	if len(i) < 3 {
+		return 0
+	}
+	d := make([]float64, len(i)-2)
+	for k := range d {
+		d[k] = math.Abs(i[k+2] - 2*i[k+1] + i[k])
+	}
+	sort.Float64s(d)
+	return d[len(d)/2] / (0.6745 * math.Sqrt(6))
+}
+
+// unitHints says where a failed fit's trace differs from the model by a
+// large factor in current or in time (a wrong unit in the header names
+// mA data "A", or millisecond data "us"), naming the columns and their
+// units. The model runs with the scenario's own values.
+func unitHints(md *Model, tr *MeasuredTrace, ev *TraceEvents) []string {
+	col := map[string]string{"time": "the time column", "current": "the current column"}
+	for _, c := range tr.Columns {
+		col[c.Quantity] = fmt.Sprintf("%s (unit %s)", c, quoteCell(c.Unit))
+	}
+	hints := []string{}
+	r, err := Simulate(md, &Options{NoTrace: true})
+	far := func(ratio float64) bool { return ratio > 3 || ratio < 1.0/3 }
+	if err == nil {
+		peak := 0.0
+		for _, i := range tr.Current {
+			peak = math.Max(peak, math.Abs(i-ev.Offset))
+		}
+		if ratio := peak / r.Metrics.PeakCurrent; r.Metrics.PeakCurrent > 0 && far(ratio) {
+			hints = append(hints, fmt.Sprintf("the trace's peak current %s is %.3g times the scenario's %s: check the unit of %s", siText(peak, "A"), ratio, siText(r.Metrics.PeakCurrent, "A"), col["current"]))
+		}
+		if pi := r.Metrics.PullIn; ev.HasDip && pi.Happened && pi.Seconds > 0 {
+			if ratio := (ev.Seat - ev.Energize) / pi.Seconds; far(ratio) {
+				hints = append(hints, fmt.Sprintf("the trace's pull-in dip comes %s after energizing, the scenario pulls in after %s (%.3g times): check the unit of %s", siText(ev.Seat-ev.Energize, "s"), siText(pi.Seconds, "s"), ratio, col["time"]))
+			}
+		}
+	}
+	hints = append(hints, fmt.Sprintf("check the units in the trace's header: %s and %s", col["time"], col["current"]))
+	return hints
 }
 
 // coarseAlignment returns the alignment correction δ (s), a multiple of
@@ -518,17 +688,21 @@ func coarseAlignment(md *Model, grid, raw []float64, window, step float64) (floa
 }
 
 // covariance returns scale·(JᵀJ)⁻¹, or nil when JᵀJ is singular or a
-// variance is not positive. The columns are normalised first so that the
-// inverse is well conditioned whatever their units.
-func covariance(J *mat.Dense, scale float64) *mat.Dense {
+// variance is not positive; then null is the direction (over the columns
+// of J) that the data determine least: a column of zeros, or the
+// eigenvector of the smallest eigenvalue. The columns are normalised
+// first so that the inverse is well conditioned whatever their units.
+func covariance(J *mat.Dense, scale float64) (cov *mat.Dense, null []float64) {
 	n, c := J.Dims()
 	norm := make([]float64, c)
 	Js := mat.NewDense(n, c, nil)
 	for k := 0; k < c; k++ {
 		col := mat.Col(nil, k, J)
 		norm[k] = floats.Norm(col, 2)
-		if !(norm[k] > 0) {
-			return nil
+		if !(norm[k] > 0) || math.IsInf(norm[k], 0) {
+			null = make([]float64, c)
+			null[k] = 1
+			return nil, null
 		}
 		for j := range col {
 			Js.Set(j, k, col[j]/norm[k])
@@ -536,33 +710,71 @@ func covariance(J *mat.Dense, scale float64) *mat.Dense {
 	}
 	var a mat.SymDense
 	a.SymOuterK(1, Js.T())
+	weakest := func() []float64 {
+		var es mat.EigenSym
+		if !es.Factorize(&a, true) {
+			return nil
+		}
+		var ev mat.Dense
+		es.VectorsTo(&ev)
+		return mat.Col(nil, 0, &ev) // eigenvalues ascend
+	}
 	var ch mat.Cholesky
 	if !ch.Factorize(&a) {
-		return nil
+		return nil, weakest()
 	}
 	if cond := ch.Cond(); !(cond < 1e14) {
-		return nil
+		return nil, weakest()
 	}
 	var inv mat.SymDense
 	if err := ch.InverseTo(&inv); err != nil {
-		return nil
+		return nil, weakest()
 	}
-	cov := mat.NewDense(c, c, nil)
+	cov = mat.NewDense(c, c, nil)
 	for i := 0; i < c; i++ {
 		for k := 0; k < c; k++ {
 			cov.Set(i, k, scale*inv.At(i, k)/(norm[i]*norm[k]))
 		}
-		if !(cov.At(i, i) > 0) {
-			return nil
+		if v := cov.At(i, i); !(v > 0) || math.IsInf(v, 0) {
+			null = make([]float64, c)
+			null[i] = 1
+			return nil, null
 		}
 	}
-	return cov
+	return cov, nil
+}
+
+// nullNames names the quantities that take part in a direction the data
+// do not determine (components of at least 0.3 in magnitude, largest
+// first): "open inductance and mass".
+func nullNames(null []float64, quantities []string) string {
+	if len(null) != len(quantities) {
+		return ""
+	}
+	idx := make([]int, len(null))
+	for k := range idx {
+		idx[k] = k
+	}
+	sort.SliceStable(idx, func(a, b int) bool { return math.Abs(null[idx[a]]) > math.Abs(null[idx[b]]) })
+	var names []string
+	for _, k := range idx {
+		if math.Abs(null[k]) >= 0.3 {
+			names = append(names, quantities[k])
+		}
+	}
+	switch len(names) {
+	case 0:
+		return ""
+	case 1:
+		return names[0]
+	}
+	return strings.Join(names[:len(names)-1], ", ") + " and " + names[len(names)-1] + " apart"
 }
 
 // WriteFitted writes the scenario file at path with the fitted values
 // replaced (as text with units), to out.
 func WriteFitted(path string, fr *FitResult) ([]byte, error) {
-	data, err := os.ReadFile(path)
+	data, err := ReadInput(path, "scenario", MaxScenarioBytes)
 	if err != nil {
 		return nil, err
 	}
