@@ -2,10 +2,10 @@ package main
 
 import (
 	"bufio"
+	"errors"
 	"fmt"
 	"io"
 	"math"
-	"os"
 	"strings"
 
 	"github.com/urfave/cli/v2"
@@ -30,6 +30,7 @@ func fitCommand(stdout io.Writer) *cli.Command {
 			&cli.StringFlag{Name: "output", Aliases: []string{"o"}, Usage: "write the fitted scenario to `FILE`"},
 			&cli.StringFlag{Name: "csv", Usage: "write measured and simulated current to `FILE`"},
 			&cli.StringFlag{Name: "plot", Usage: "write the overlay of measured and simulated current to `FILE` (.png or .svg)"},
+			&cli.BoolFlag{Name: "keep-failed", Usage: "write the outputs (-o, --csv, --plot) even when the fit fails (exit status still 1)"},
 		},
 		Action: func(c *cli.Context) error { return cmdFit(c, stdout) },
 	}
@@ -53,18 +54,14 @@ func cmdFit(c *cli.Context, w io.Writer) error {
 			return fmt.Errorf("--params: unknown parameter %q", p)
 		}
 	}
-	f, err := os.Open(c.String("trace"))
-	if err != nil {
-		return err
-	}
-	tr, err := coilkick.ReadTraceCSV(f, c.String("trace"))
-	f.Close()
+	tr, err := coilkick.LoadTrace(c.String("trace"))
 	if err != nil {
 		return err
 	}
 	fr, err := coilkick.Fit(md, tr, params)
-	if err != nil {
-		return err
+	failed := errors.Is(err, coilkick.ErrFitFailed)
+	if err != nil && !failed {
+		return fmt.Errorf("fit of %s to %s: %w", path, tr.Source, trimPrefix(err))
 	}
 	b := bufio.NewWriter(w)
 	defer b.Flush()
@@ -85,10 +82,13 @@ func cmdFit(c *cli.Context, w io.Writer) error {
 	if ev.DecayEnd > 0 {
 		fmt.Fprintf(b, "  decay ends               %s ± %s\n", si(ev.DecayEnd, "s"), si(ev.DecayEndErr, "s"))
 	}
+	if failed {
+		fmt.Fprintln(b, "\nFIT FAILED: the values below are not a calibration")
+	}
 	fmt.Fprintln(b, "\nFitted parameters (± 1σ; sensitivity: RMS error rise for +1 %)")
 	for _, v := range fr.Values {
-		fmt.Fprintf(b, "  %-18s %10.5g -> %10.5g %-6s ± %s   sensitivity %.3g\n", v.Param, v.Start/v.DisplayScale, v.Value/v.DisplayScale,
-			v.Unit, stdErrText(v.StdErr/v.DisplayScale), v.Sensitivity)
+		fmt.Fprintf(b, "  %-18s %10s -> %10s %-6s ± %s   sensitivity %s\n", v.Param, finite(v.Start/v.DisplayScale, "%.5g"), finite(v.Value/v.DisplayScale, "%.5g"),
+			v.Unit, stdErrText(v.StdErr/v.DisplayScale), finite(v.Sensitivity, "%.3g"))
 	}
 	fmt.Fprintf(b, "  %-18s %s (fitted with the parameters)\n", "baseline offset", siPM(fr.Offset, fr.OffsetErr, "A"))
 	fmt.Fprintf(b, "  %-18s %s (trace time + this = model time)\n", "time alignment", siPM(fr.Shift, fr.ShiftErr, "s"))
@@ -101,43 +101,85 @@ func cmdFit(c *cli.Context, w io.Writer) error {
 		fmt.Fprintf(b, "  WARNING: %s\n", w)
 	}
 	fmt.Fprintf(b, "\nRMS current error: %s before, %s after (trace noise %s); %d simulations\n", si(fr.RMSStart, "A"), si(fr.RMS, "A"), si(fr.Noise, "A"), fr.Evaluations)
+	fmt.Fprintf(b, "Residual check: RMS error %.3g × the noise reference %s (a fit fails above %d ×; the reference is the largest of the noise before energizing, the sample-to-sample noise, the rounding noise of the trace's resolution and the σ floor)\n",
+		fr.RMS/fr.NoiseRef, si(fr.NoiseRef, "A"), coilkick.FitResidualLimit)
 	if fr.SeatModel.Happened && ev.HasDip {
 		fmt.Fprintf(b, "Pull-in: fitted model %s, trace dip %s after energize\n", si(fr.SeatModel.Seconds, "s"), si(ev.Seat-ev.Energize, "s"))
 	}
+	if failed {
+		fmt.Fprintln(b, "\nFIT FAILED:")
+		for _, f := range fr.Failure {
+			fmt.Fprintf(b, "  - %s\n", f)
+		}
+		if !c.Bool("keep-failed") {
+			if c.String("output") != "" || c.String("csv") != "" || c.String("plot") != "" {
+				fmt.Fprintln(b, "No output file written (--keep-failed writes them, for a look at the overlay).")
+			}
+			b.Flush()
+			return fmt.Errorf("fit of %s: %v", path, err)
+		}
+	}
+	// The outputs, written together (all or none) through temporary
+	// files; the command line was checked before the fit (checkArgs: not
+	// onto an input, links followed; plot extension; writable folder).
+	outs := newOutputs(b)
 	if out := c.String("output"); out != "" {
 		data, err := coilkick.WriteFitted(path, fr)
 		if err != nil {
 			return err
 		}
-		if err := writeFile(out, b, func(o io.Writer) error { _, err := o.Write(data); return err }); err != nil {
-			return err
-		}
-		fmt.Fprintf(b, "Fitted scenario written to %s\n", out)
+		outs.add(out, func(o io.Writer) error { _, err := o.Write(data); return err })
 	}
 	if f := c.String("csv"); f != "" {
-		if err := writeFile(f, b, func(out io.Writer) error {
+		outs.add(f, func(out io.Writer) error {
 			bw := bufio.NewWriter(out)
 			fmt.Fprintln(bw, "time_s,measured_A,simulated_A")
 			for k := range fr.Time {
 				fmt.Fprintf(bw, "%g,%g,%g\n", fr.Time[k], fr.Measured[k], fr.Simulated[k])
 			}
 			return bw.Flush()
-		}); err != nil {
+		})
+	}
+	if f := c.String("plot"); f != "" {
+		if err := outs.addFigure(f, fitFigure(md, fr)); err != nil {
 			return err
 		}
 	}
-	if f := c.String("plot"); f != "" {
-		if err := plotFit(f, md, fr); err != nil {
-			return err
-		}
+	if err := outs.commit(); err != nil {
+		return err
+	}
+	if out := c.String("output"); out != "" && out != "-" {
+		fmt.Fprintf(b, "Fitted scenario written to %s\n", out)
+	}
+	if failed {
+		b.Flush()
+		return fmt.Errorf("fit of %s (outputs kept as asked, --keep-failed): %v", path, err)
 	}
 	return nil
 }
 
+// finite formats v, or "n/a" when it is not a finite number (a failed
+// fit's parameter that ran off): never NaN or Inf in the output.
+func finite(v float64, format string) string {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return "n/a"
+	}
+	return fmt.Sprintf(format, v)
+}
+
+// trimPrefix drops the library's "coilkick: " prefix, which the command
+// adds itself.
+func trimPrefix(err error) error {
+	if s, ok := strings.CutPrefix(err.Error(), "coilkick: "); ok {
+		return errors.New(s)
+	}
+	return err
+}
+
 // stdErrText prints a standard error, or says that the trace does not
-// determine the parameter.
+// determine the parameter; never "0".
 func stdErrText(v float64) string {
-	if math.IsInf(v, 0) || math.IsNaN(v) {
+	if math.IsInf(v, 0) || math.IsNaN(v) || !(v > 0) {
 		return "(not determined by the trace)"
 	}
 	return fmt.Sprintf("%.2g", v)
@@ -146,7 +188,7 @@ func stdErrText(v float64) string {
 // siPM prints a value ± its standard error; a value below a hundredth of
 // its error prints as 0 (round-off, not information).
 func siPM(v, e float64, unit string) string {
-	if math.IsInf(e, 0) || math.IsNaN(e) {
+	if math.IsInf(e, 0) || math.IsNaN(e) || !(e > 0) {
 		return si(v, unit) + " ± (not determined by the trace)"
 	}
 	if math.Abs(v) < e/100 {
@@ -155,8 +197,8 @@ func siPM(v, e float64, unit string) string {
 	return si(v, unit) + " ± " + si(e, unit)
 }
 
-// plotFit writes the overlay of measured and fitted current (mA versus ms).
-func plotFit(file string, md *coilkick.Model, fr *coilkick.FitResult) error {
+// fitFigure is the overlay of measured and fitted current (mA versus ms).
+func fitFigure(md *coilkick.Model, fr *coilkick.FitResult) *plot.Figure {
 	ms := make([]float64, len(fr.Time))
 	meas := make([]float64, len(fr.Time))
 	sim := make([]float64, len(fr.Time))
@@ -165,7 +207,10 @@ func plotFit(file string, md *coilkick.Model, fr *coilkick.FitResult) error {
 		meas[k] = fr.Measured[k] * 1e3
 		sim[k] = fr.Simulated[k] * 1e3
 	}
-	fig := plot.Lines("Measured and fitted coil current — "+md.Name, "time (ms, model time base)", "coil current (mA)", ms,
+	title := "Measured and fitted coil current — " + md.Name
+	if fr.Failed() {
+		title = "FAILED fit: measured and model current — " + md.Name
+	}
+	return plot.Lines(title, "time (ms, model time base)", "coil current (mA)", ms,
 		[]plot.Series{{Label: "measured (offset removed)", Ys: meas}, {Label: "fitted model", Ys: sim}})
-	return fig.Save(file) // atomic (outfile.Write)
 }

@@ -2,11 +2,15 @@ package main
 
 import (
 	"bytes"
+	"fmt"
+	"io"
 	"math"
 	"os"
 	"path/filepath"
 	"strings"
+	"syscall"
 	"testing"
+	"time"
 
 	"coilkick"
 )
@@ -141,5 +145,263 @@ func TestFitOutputs(t *testing.T) {
 	}
 	if _, err := coilkick.LoadModel(fitted); err != nil {
 		t.Errorf("the fitted scenario does not load: %v", err)
+	}
+}
+
+// fitFiles lists the names in dir.
+func fitFiles(t *testing.T, dir string) []string {
+	t.Helper()
+	entries, err := os.ReadDir(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var names []string
+	for _, e := range entries {
+		names = append(names, e.Name())
+	}
+	return names
+}
+
+// runWithin runs the command line and fails the test if it does not end
+// within 20 s (a FIFO as the trace blocked the open before); unblock is
+// then called to let it end.
+func runWithin(t *testing.T, args []string, unblock func()) (code int, stdout, stderr string) {
+	t.Helper()
+	type result struct {
+		code     int
+		out, err string
+	}
+	done := make(chan result, 1)
+	go func() {
+		var out, errb bytes.Buffer
+		c := run(&out, &errb, args)
+		done <- result{c, out.String(), errb.String()}
+	}()
+	select {
+	case r := <-done:
+		return r.code, r.out, r.err
+	case <-time.After(20 * time.Second):
+		t.Errorf("%v did not end within 20 s", args)
+		if unblock != nil {
+			unblock()
+		}
+		r := <-done
+		return r.code, r.out, r.err
+	}
+}
+
+// TestFitHostileTraces: a trace that fits badly (a wrong unit in its
+// header, a parameter the trace does not determine) or that cannot be
+// read (not a regular file, too large, bad cells) ends with exit status 1
+// (an error; 2 is kept for a failing rating), an error naming the file,
+// the line, the column and its unit where one is at fault, and no output
+// file: neither the fitted scenario (-o) nor the overlay CSV or plot.
+// Before: the wrong units and the singular covariance "fitted" with exit
+// status 0 and wrote the fitted scenario; the FIFO blocked for ever; the
+// BOM was a header error.
+func TestFitHostileTraces(t *testing.T) {
+	t.Parallel()
+	const demo = "../../scenarios/irrigation-valve.yaml"
+	const bad = "../../testdata/fit/bad/"
+	work := t.TempDir()
+	// A plunger held by a 100 N preload does not move: its mass is not in
+	// the trace (a singular covariance when it is fitted).
+	src, err := os.ReadFile(demo)
+	if err != nil {
+		t.Fatal(err)
+	}
+	blockedYAML := filepath.Join(work, "blocked.yaml")
+	if err := os.WriteFile(blockedYAML, bytes.Replace(src, []byte("spring preload: 2 N"), []byte("spring preload: 100 N"), 1), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	blockedCSV := filepath.Join(work, "blocked.csv")
+	if code := run(io.Discard, io.Discard, []string{"coilkick", "run", blockedYAML, "--csv", blockedCSV}); code == exitError {
+		t.Fatal("run of the blocked plunger failed")
+	}
+	fifo := filepath.Join(work, "scope.fifo")
+	if err := syscall.Mkfifo(fifo, 0o600); err != nil {
+		t.Fatal(err)
+	}
+	big := filepath.Join(work, "big.csv")
+	if err := os.WriteFile(big, []byte("time (ms), current (mA)\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.Truncate(big, coilkick.MaxTableBytes+1); err != nil {
+		t.Fatal(err)
+	}
+	cases := []struct {
+		name, scenario, trace, params string
+		want                          []string
+	}{
+		{"time unit", demo, bad + "time-us.csv", "", []string{bad + "time-us.csv:4: the fit failed", "RMS residual", `column 1 "time (us)" (unit "us")`}},
+		{"current unit", demo, bad + "current-A.csv", "", []string{bad + "current-A.csv:4: the fit failed", "RMS residual", `column 2 "current (A)" (unit "A")`}},
+		{"singular", blockedYAML, blockedCSV, "resistance,mass", []string{blockedCSV + ":1: the fit failed", "does not determine mass (singular covariance)"}},
+		{"not determined", demo, "../../testdata/fit/irrigation-scope.csv", strings.Join([]string{"resistance", "closed inductance", "open inductance", "spring preload", "mass", "damping"}, ","), []string{"the fit failed", "does not determine damping: its 1σ is"}},
+		{"fifo", demo, fifo, "", []string{fifo, "trace is not a regular file"}},
+		{"device", demo, "/dev/zero", "", []string{"/dev/zero", "trace is not a regular file"}},
+		{"directory", demo, work, "", []string{work, "trace is not a regular file"}},
+		{"oversize", demo, big, "", []string{big, fmt.Sprintf("larger than %d bytes", coilkick.MaxTableBytes)}},
+		{"missing", demo, filepath.Join(work, "none.csv"), "", []string{filepath.Join(work, "none.csv"), "no such file"}},
+		{"NaN", demo, bad + "nan-current.csv", "", []string{bad + "nan-current.csv:6:", `column 2 "current (mA)"`, "expected a current in mA"}},
+		{"duplicate", demo, bad + "duplicate-current.csv", "", []string{bad + "duplicate-current.csv:2:", `column 3 "current (A)"`, "second current column"}},
+		{"wrong dimension", demo, bad + "wrong-dimension.csv", "", []string{bad + "wrong-dimension.csv:2:", `column 2 "current (mV)"`, "expected a current"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			out := t.TempDir()
+			args := []string{"coilkick", "fit", c.scenario, "--trace", c.trace, "-o", filepath.Join(out, "fitted.yaml"),
+				"--csv", filepath.Join(out, "fit.csv"), "--plot", filepath.Join(out, "fit.svg")}
+			if c.params != "" {
+				args = append(args, "--params", c.params)
+			}
+			unblock := func() {
+				if w, err := os.OpenFile(fifo, os.O_WRONLY, 0); err == nil {
+					w.Close()
+				}
+			}
+			code, stdout, stderr := runWithin(t, args, unblock)
+			if code != exitError {
+				t.Errorf("exit %d, want %d\n%s", code, exitError, stderr)
+			}
+			for _, w := range c.want {
+				if !strings.Contains(stderr, w) {
+					t.Errorf("stderr lacks %q:\n%s", w, stderr)
+				}
+			}
+			if strings.Count(stderr, "coilkick:") != 1 || strings.Count(stderr, "\n") != 1 {
+				t.Errorf("want one line with one \"coilkick:\" prefix on stderr:\n%s", stderr)
+			}
+			for _, no := range []string{"± 0 ", "± 0\n", "NaN", "Inf", "written to"} {
+				// (a quoted cell of the trace may be "NaN")
+				if strings.Contains(stdout+strings.ReplaceAll(stderr, `"NaN"`, ""), no) {
+					t.Errorf("output contains %q:\n%s%s", no, stdout, stderr)
+				}
+			}
+			if names := fitFiles(t, out); len(names) != 0 {
+				t.Errorf("files written by a failed fit: %v", names)
+			}
+			// A fit that ran prints its report with the reasons.
+			if strings.Contains(stderr, "the fit failed") && (!strings.Contains(stdout, "FIT FAILED:\n  - ") || !strings.Contains(stdout, "No output file written")) {
+				t.Errorf("stdout does not say the fit failed and why:\n%s", stdout)
+			}
+		})
+	}
+}
+
+// TestStdErrText: an uncertainty is never printed as 0: zero, negative,
+// NaN and infinite ones read "not determined".
+func TestStdErrText(t *testing.T) {
+	t.Parallel()
+	for _, e := range []float64{0, -1, math.NaN(), math.Inf(1)} {
+		if got := stdErrText(e); got != "(not determined by the trace)" {
+			t.Errorf("stdErrText(%g) = %q", e, got)
+		}
+		if got := siPM(1e-3, e, "A"); got != "1 mA ± (not determined by the trace)" {
+			t.Errorf("siPM(1e-3, %g) = %q", e, got)
+		}
+	}
+	if got := siPM(1e-3, 2e-5, "A"); got != "1 mA ± 20 µA" {
+		t.Errorf("siPM(1e-3, 2e-5) = %q", got)
+	}
+}
+
+// TestFitKeepFailed: --keep-failed writes the outputs of a failed fit
+// (to look at the overlay), still with exit status 1, and says the fit
+// failed on standard output too.
+func TestFitKeepFailed(t *testing.T) {
+	t.Parallel()
+	out := t.TempDir()
+	fitted := filepath.Join(out, "fitted.yaml")
+	var stdout, stderr bytes.Buffer
+	code := run(&stdout, &stderr, []string{"coilkick", "fit", "../../scenarios/irrigation-valve.yaml", "--trace", "../../testdata/fit/bad/current-A.csv",
+		"--keep-failed", "-o", fitted, "--csv", filepath.Join(out, "fit.csv")})
+	if code != exitError || !strings.Contains(stderr.String(), "--keep-failed") || !strings.Contains(stderr.String(), "the fit failed") {
+		t.Errorf("exit %d, stderr %q; want %d and the failure", code, stderr.String(), exitError)
+	}
+	if !strings.Contains(stdout.String(), "FIT FAILED") || !strings.Contains(stdout.String(), "check the unit of column 2 \"current (A)\"") {
+		t.Errorf("stdout does not say the fit failed and why:\n%s", stdout.String())
+	}
+	if names := fitFiles(t, out); strings.Join(names, " ") != "fit.csv fitted.yaml" {
+		t.Errorf("files after --keep-failed: %v", names)
+	}
+}
+
+// TestFitBOMTrace: a trace with a UTF-8 byte-order mark fits as the same
+// trace without it (before: "column 1 "\ufefftime (ms)": expected a name
+// and a unit").
+func TestFitBOMTrace(t *testing.T) {
+	t.Parallel()
+	var stdout, stderr bytes.Buffer
+	code := run(&stdout, &stderr, []string{"coilkick", "fit", "../../scenarios/irrigation-valve.yaml", "--trace", "../../testdata/fit/bom-scope.csv"})
+	if code != exitOK || !strings.Contains(stdout.String(), "resistance") || strings.Contains(stdout.String(), "FAILED") {
+		t.Errorf("exit %d\n%s%s", code, stdout.String(), stderr.String())
+	}
+}
+
+// TestFitNeverOverwritesInputs: an output (-o, --csv, --plot) that is the
+// scenario or the trace, also through a symbolic link either way, is
+// refused with exit status 1 before anything runs, the inputs intact;
+// and a plot with an extension other than .png or .svg is refused before
+// the fit, so that no other output is written.
+func TestFitNeverOverwritesInputs(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
+	scen, trace := filepath.Join(dir, "valve.yaml"), filepath.Join(dir, "scope.csv")
+	src, err := os.ReadFile("../../scenarios/irrigation-valve.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	scope, err := os.ReadFile("../../testdata/fit/irrigation-scope.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(scen, src, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(trace, scope, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	linkTrace, linkScen := filepath.Join(dir, "link-scope.csv"), filepath.Join(dir, "link-valve.yaml")
+	if err := os.Symlink(trace, linkTrace); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.Symlink("valve.yaml", linkScen); err != nil { // relative link
+		t.Fatal(err)
+	}
+	for _, c := range []struct {
+		scenario, trace string
+		out             []string
+	}{
+		{scen, trace, []string{"--csv", trace}},
+		{scen, trace, []string{"--csv=" + trace}},
+		{scen, trace, []string{"-o", scen}},
+		{scen, trace, []string{"--output", scen}},
+		{scen, trace, []string{"--plot", trace}},
+		{scen, trace, []string{"--csv", linkTrace}},                                                      // a link to the trace
+		{scen, trace, []string{"-o", linkScen}},                                                          // a link to the scenario
+		{linkScen, linkTrace, []string{"--csv", trace}},                                                  // inputs given by links
+		{scen, trace, []string{"--csv", filepath.Join(dir, ".", "..", filepath.Base(dir), "scope.csv")}}, // another spelling
+	} {
+		args := append([]string{"coilkick", "fit", c.scenario, "--trace", c.trace}, c.out...)
+		var stdout, stderr bytes.Buffer
+		if code := run(&stdout, &stderr, args); code != exitError || !strings.Contains(stderr.String(), "never overwrites an input") {
+			t.Errorf("%v: exit %d, stderr %q; want %d and a refusal", args[2:], code, stderr.String(), exitError)
+		}
+	}
+	if got, _ := os.ReadFile(scen); !bytes.Equal(got, src) {
+		t.Errorf("the scenario was changed")
+	}
+	if got, _ := os.ReadFile(trace); !bytes.Equal(got, scope) {
+		t.Errorf("the trace was changed")
+	}
+	// A bad plot name is refused before the fit writes -o.
+	fitted := filepath.Join(dir, "fitted.yaml")
+	var stdout, stderr bytes.Buffer
+	code := run(&stdout, &stderr, []string{"coilkick", "fit", scen, "--trace", trace, "-o", fitted, "--plot", filepath.Join(dir, "x.txt")})
+	if code != exitError || !strings.Contains(stderr.String(), ".png or .svg") {
+		t.Errorf("--plot x.txt: exit %d, stderr %q", code, stderr.String())
+	}
+	if _, err := os.Stat(fitted); err == nil {
+		t.Errorf("-o written although --plot was refused")
 	}
 }
