@@ -223,6 +223,10 @@ type unitValue struct {
 	absOff      bool // the unit is degC standing alone
 }
 
+// MaxQuantityText bounds the text of one quantity (the unit parser's work
+// grows with the square of the unit's length; no real unit is this long).
+const MaxQuantityText = 80
+
 // ParseQuantity reads a number followed by a unit (the space between them
 // is optional) and returns its value in SI units, after checking that the
 // unit has dimension dim. For Dimensionless a bare number is accepted;
@@ -240,6 +244,9 @@ func ParseQuantity(s string, dim Dim) (float64, error) {
 	t := strings.TrimSpace(s)
 	if t == "" {
 		return 0, fmt.Errorf("is empty; expected %s, e.g. %q", dim.Name(), dim.Example())
+	}
+	if len(t) > MaxQuantityText {
+		return 0, fmt.Errorf("is %d characters long, more than the %d a quantity may have; expected %s, e.g. %q", len(t), MaxQuantityText, dim.Name(), dim.Example())
 	}
 	mant, exp, rest, ok := splitNumber(t)
 	if !ok {

@@ -4,6 +4,7 @@ import (
 	"math"
 	"sort"
 	"strings"
+	"time"
 	"testing"
 )
 
@@ -240,4 +241,20 @@ func FuzzParseQuantity(f *testing.F) {
 			t.Fatalf("ParseQuantity(%q) is not deterministic: %v, %v", s, v, w)
 		}
 	})
+}
+
+// TestParseQuantityLongText: a quantity longer than MaxQuantityText is
+// refused at once (the unit parser's work grew with the square of a long
+// unit's length: an 80 000-character unit took a tenth of a second).
+func TestParseQuantityLongText(t *testing.T) {
+	t.Parallel()
+	s := "1 " + strings.Repeat("m", 80000)
+	start := time.Now()
+	_, err := ParseQuantity(s, Length)
+	if err == nil || !strings.Contains(err.Error(), "more than the 80") || time.Since(start) > 10*time.Millisecond {
+		t.Errorf("long unit: %v after %v", err, time.Since(start))
+	}
+	if v, err := ParseQuantity("1.5 mm", Length); err != nil || v != 1.5e-3 {
+		t.Errorf("1.5 mm: %v, %v", v, err)
+	}
 }
