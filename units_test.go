@@ -4,8 +4,8 @@ import (
 	"math"
 	"sort"
 	"strings"
-	"time"
 	"testing"
+	"time"
 )
 
 func TestUnitsParseGood(t *testing.T) {
