@@ -522,18 +522,18 @@ func checkOutputs(c *cli.Context) error {
 		}
 	}
 	for _, p := range c.Args().Slice() {
-		addIn(p, "scenario file")
+		addIn(p, "scenario file "+p)
 		for _, ref := range scenarioFiles(p, c) {
-			addIn(ref.path, ref.what+" of the scenario")
+			addIn(ref.path, ref.what)
 		}
 	}
 	for _, name := range inputFlags {
-		addIn(c.String(name), name+" file")
+		addIn(c.String(name), name+" file "+c.String(name))
 	}
 	// First the worst mistake: an output onto an input.
 	for _, o := range outs {
 		if in := outfile.SameAsAny(o.path, ins...); in != "" {
-			return fmt.Errorf("%s %s is the %s %s: choose another name (an output never overwrites an input)", o.flag, o.path, kind[in], in)
+			return fmt.Errorf("%s %s is the %s: choose another name (an output never overwrites an input)", o.flag, o.path, kind[in])
 		}
 	}
 	stdoutBy := ""
@@ -569,7 +569,8 @@ func checkOutputs(c *cli.Context) error {
 	return nil
 }
 
-// scenarioFile is a file a scenario refers to.
+// scenarioFile is a file a scenario refers to, with its description for
+// messages (naming the file and the key).
 type scenarioFile struct{ path, what string }
 
 // scenarioFiles lists the files the scenario at path refers to (its flux
@@ -597,23 +598,25 @@ func scenarioFiles(path string, c *cli.Context) []scenarioFile {
 		key  []string
 		what string
 	}{
-		{[]string{"magnet", coilkick.MagnetTable, "file"}, "flux-linkage table (magnet.table.file)"},
-		{[]string{"magnet", coilkick.MagnetGeom, "steel curve", "file"}, "steel curve (magnet.geometry.steel curve.file)"},
+		{[]string{"magnet", coilkick.MagnetTable, "file"}, "flux-linkage table"},
+		{[]string{"magnet", coilkick.MagnetGeom, "steel curve", "file"}, "steel curve"},
 	}
 	var out []scenarioFile
 	for _, k := range keys {
+		key := strings.Join(k.key, ".")
 		if n := yamlLookup(doc.Content[0], k.key); n != nil && n.Kind == yaml.ScalarNode {
-			out = append(out, scenarioFile{resolve(n.Value), k.what})
+			f := resolve(n.Value)
+			out = append(out, scenarioFile{f, fmt.Sprintf("scenario's %s %s (%s)", k.what, f, key)})
 		}
-	}
-	if c.IsSet("vary") {
+		if !c.IsSet("vary") {
+			continue
+		}
 		vs, _ := parseVaries(c)
 		for _, v := range vs {
-			for _, k := range keys {
-				if v.Key == strings.Join(k.key, ".") {
-					for _, val := range v.Values {
-						out = append(out, scenarioFile{resolve(val), k.what + " swept by --vary"})
-					}
+			if v.Key == key {
+				for _, val := range v.Values {
+					f := resolve(val)
+					out = append(out, scenarioFile{f, fmt.Sprintf("%s %s that --vary puts in %s", k.what, f, key)})
 				}
 			}
 		}
