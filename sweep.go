@@ -635,6 +635,34 @@ func Figures(md *Model) (SweepFigures, error) {
 		AvalancheEnergy: m.AvalancheEnergy, Failed: as.Failed(), DroppedOut: m.DropOut.Happened}, nil
 }
 
+// point builds and simulates one point of the grid. A panic in it (a bug)
+// becomes the point's error, so that a worker goroutine cannot end the
+// process (whose exit status would then be the runtime's 2).
+func (sw *Sweeper) point(vs []Vary, values []string) (p SweepPoint) {
+	p.Values = values
+	defer func() {
+		if r := recover(); r != nil {
+			p.Figures, p.Invalid = nil, ""
+			p.Err = fmt.Sprintf("internal error (a bug in coilkick): %v", r)
+		}
+		p.Failed = p.Figures == nil || p.Figures.Failed
+	}()
+	if sweepPointHook != nil {
+		sweepPointHook()
+	}
+	if md, inPlace, err := sw.model(vs, values); err != nil {
+		p.Invalid = sw.reason(err, inPlace)
+	} else if f, err := Figures(md); err != nil {
+		p.Err = oneLine(err.Error())
+	} else {
+		p.Figures = &f
+	}
+	return p
+}
+
+// sweepPointHook, when set (by a test), runs at the start of every point.
+var sweepPointHook func()
+
 // Sweep runs every point of the grid on workers goroutines (0: all cores)
 // and returns the points in grid order; the result does not depend on the
 // number of workers. A point whose values break a rule of the scenario is
@@ -655,16 +683,7 @@ func (sw *Sweeper) Sweep(vs []Vary, workers int, progress func(done, total int))
 		go func() {
 			defer wg.Done()
 			for k := range jobs {
-				p := SweepPoint{Values: grid[k]}
-				if md, inPlace, err := sw.model(vs, grid[k]); err != nil {
-					p.Invalid = sw.reason(err, inPlace)
-				} else if f, err := Figures(md); err != nil {
-					p.Err = oneLine(err.Error())
-				} else {
-					p.Figures = &f
-				}
-				p.Failed = p.Figures == nil || p.Figures.Failed
-				out[k] = p
+				out[k] = sw.point(vs, grid[k])
 				if progress != nil {
 					mu.Lock()
 					done++

@@ -324,3 +324,24 @@ func FuzzParseVary(f *testing.F) {
 		}
 	})
 }
+
+// TestSweepPointPanicBecomesError: a panic while building or simulating a
+// point is the point's error, not the end of the process (a panicking
+// worker goroutine would exit with the runtime's status 2, which is
+// reserved for failing ratings).
+func TestSweepPointPanicBecomesError(t *testing.T) {
+	// Not parallel: it sets a package hook.
+	sw, err := NewSweeper("scenarios/irrigation-valve.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	v, _ := ParseVary("supply.voltage=22 V,24 V")
+	sweepPointHook = func() { panic("injected") }
+	pts := sw.Sweep([]Vary{v}, 2, nil)
+	sweepPointHook = nil
+	for _, p := range pts {
+		if !strings.Contains(p.Err, "internal error") || !p.Failed || p.Figures != nil {
+			t.Errorf("point %+v", p)
+		}
+	}
+}
