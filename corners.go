@@ -409,12 +409,21 @@ func seatHoldingCurrent(md *Model, margin float64) (float64, bool) {
 	if need <= 0 {
 		return 0, true
 	}
-	iMax := 10 * md.Drive.Supply.Voltage / md.CoilResistance()
-	if !(md.Magnet.Force(iMax, p.GapMin) >= need) {
-		return 0, false
+	// Scan up from 1/64 of the rated current in steps of 2^(1/4) to the
+	// first current that holds, then bisect below it: the pull need not
+	// keep rising far beyond the data (a table's linear continuation can
+	// turn it over), so the top of the range is not a safe bracket.
+	rated := md.Drive.Supply.Voltage / md.CoilResistance()
+	holds := func(i float64) (bool, error) { return md.Magnet.Force(i, p.GapMin) >= need, nil }
+	lo := 0.0
+	for i := rated / 64; i <= 10*rated*(1+1e-12); i *= math.Pow(2, 0.25) {
+		if ok, _ := holds(i); ok {
+			x, err := bisect(lo, i, 1e-9, holds)
+			return x, err == nil
+		}
+		lo = i
 	}
-	x, err := bisect(0, iMax, 1e-9, func(i float64) (bool, error) { return md.Magnet.Force(i, p.GapMin) >= need, nil })
-	return x, err == nil
+	return 0, false
 }
 
 // LowestClamp returns the lowest clamp voltage of the model's clamp

@@ -551,3 +551,20 @@ func TestCompactEvents(t *testing.T) {
 		t.Errorf("compacted:\n%s\nwant:\n%s", strings.Join(whats, "\n"), strings.Join(want, "\n"))
 	}
 }
+
+// TestHoldingCurrentTableMagnet: the flux-table demo's pull turns over far
+// above its data (the table's linear continuation); the holding current is
+// still found where the pull first reaches the margin.
+func TestHoldingCurrentTableMagnet(t *testing.T) {
+	t.Parallel()
+	md, err := LoadModel("scenarios/door-latch-tvs-table.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	sol, err := LowestHold(md, 1.2)
+	p := md.Plunger
+	need := 1.2 * p.PassiveForce(p.GapMin, 0)
+	if err != nil || !sol.Found || math.Abs(md.Magnet.Force(sol.Value, p.GapMin)-need) > 1e-6*need {
+		t.Errorf("holding current %+v, %v: pull there %g N, need %g N", sol, err, md.Magnet.Force(sol.Value, p.GapMin), need)
+	}
+}
