@@ -336,14 +336,14 @@ func TestDipDetector(t *testing.T) {
 // event, the integrator's variable step) reads as a trace.
 func TestReadRunCSV(t *testing.T) {
 	t.Parallel()
-	text := "time_s,current_A,coil_voltage_V,switch_voltage_V,gap_m,velocity_m_per_s,magnetic_force_N,passive_force_N,winding_temperature_K\n"
+	text := "time_s,current_A,coil_voltage_V,switch_voltage_V,gap_m,velocity_m_per_s,magnetic_force_N,passive_force_N,winding_temperature_degC\n"
 	times := []float64{0, 1e-6, 6e-6, 3.1e-5, 1.56e-4, 7.81e-4, 1e-3, 1e-3, 1.18e-3, 1.37e-3, 1.56e-3, 5e-3, 11e-3, 17e-3}
 	for k, tm := range times {
 		i, v := 0.0, 0.0
 		if k >= 7 {
 			i, v = 0.01*float64(k-6), 24
 		}
-		text += fmt.Sprintf("%g,%g,%g,24,0.0012,0,0,2.2,293.15\n", tm, i, v)
+		text += fmt.Sprintf("%g,%g,%g,24,0.0012,0,0,2.2,20\n", tm, i, v)
 	}
 	tr, err := ReadTraceCSV(strings.NewReader(text), "run.csv")
 	if err != nil {

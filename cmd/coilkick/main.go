@@ -125,6 +125,78 @@ func runApp(stdout, stderr io.Writer, args []string) int {
 	if len(args) > 2 {
 		args = append(args[:2:2], permute(args[2:])...)
 	}
+	app := newApp(stdout, stderr)
+	// The conventions of command-line tools, before the library sees the
+	// arguments: no command prints the usage on stderr (exit 1); an unknown
+	// command is an error naming the known ones; --version.
+	if len(args) < 2 {
+		fmt.Fprintln(stderr, "coilkick: no command given")
+		printUsage(stderr, app)
+		return exitError
+	}
+	switch first := args[1]; {
+	case first == "--version" || first == "-version" || first == "version":
+		fmt.Fprintf(stdout, "coilkick %s\n", version())
+		return exitOK
+	case strings.HasPrefix(first, "-") && first != "--help" && first != "-h":
+		fmt.Fprintf(stderr, "coilkick: %s: flag before the command; the commands take their flags after them\n", first)
+		printUsage(stderr, app)
+		return exitError
+	case !strings.HasPrefix(first, "-") && app.Command(first) == nil:
+		fmt.Fprintf(stderr, "coilkick: unknown command %q; the commands are: %s\n", first, strings.Join(commandNames(app), ", "))
+		return exitError
+	}
+	err := app.Run(args)
+	var ue usageError
+	switch {
+	case err == nil:
+		return exitOK
+	case errors.Is(err, errFailing):
+		return exitFailing
+	case errors.As(err, &ue):
+		fmt.Fprintf(stderr, "coilkick: %s\n", strings.TrimPrefix(ue.err.Error(), "coilkick: "))
+		if cmd := app.Command(ue.command); cmd != nil {
+			fmt.Fprintf(stderr, "usage: coilkick %s [options] %s\n(coilkick help %s lists the options)\n", cmd.Name, cmd.ArgsUsage, cmd.Name)
+		}
+		return exitError
+	default:
+		// Library errors may carry the program's name already.
+		fmt.Fprintf(stderr, "coilkick: %s\n", strings.TrimPrefix(err.Error(), "coilkick: "))
+		return exitError
+	}
+}
+
+// usageError is a command line the command cannot take (an unknown flag,
+// a missing file argument): one line of reason and the command's usage.
+type usageError struct {
+	command string
+	err     error
+}
+
+func (e usageError) Error() string { return e.err.Error() }
+func (e usageError) Unwrap() error { return e.err }
+
+// printUsage writes the list of commands.
+func printUsage(w io.Writer, app *cli.App) {
+	fmt.Fprintln(w, "usage: coilkick COMMAND [options] SCENARIO.yaml")
+	fmt.Fprintln(w, "commands:")
+	for _, c := range app.Commands {
+		fmt.Fprintf(w, "  %-8s %s\n", c.Name, c.Usage)
+	}
+	fmt.Fprintln(w, "coilkick help COMMAND lists a command's options; coilkick --version prints the version.")
+}
+
+// commandNames lists the commands.
+func commandNames(app *cli.App) []string {
+	var out []string
+	for _, c := range app.Commands {
+		out = append(out, c.Name)
+	}
+	return out
+}
+
+// newApp builds the command line.
+func newApp(stdout, stderr io.Writer) *cli.App {
 	app := &cli.App{
 		Name:      "coilkick",
 		Usage:     "simulate the transient behaviour of a DC solenoid drive",
@@ -181,18 +253,13 @@ func runApp(stdout, stderr io.Writer, args []string) int {
 	for _, cmd := range app.Commands {
 		// Every argument is checked before anything runs or is written.
 		cmd.Before = checkArgs
+		name := cmd.Name
+		cmd.OnUsageError = func(_ *cli.Context, err error, _ bool) error {
+			return usageError{command: name, err: err}
+		}
 	}
-	err := app.Run(args)
-	switch {
-	case err == nil:
-		return exitOK
-	case errors.Is(err, errFailing):
-		return exitFailing
-	default:
-		// Library errors may carry the program's name already.
-		fmt.Fprintf(stderr, "coilkick: %s\n", strings.TrimPrefix(err.Error(), "coilkick: "))
-		return exitError
-	}
+	app.OnUsageError = func(_ *cli.Context, err error, _ bool) error { return usageError{err: err} }
+	return app
 }
 
 // ownHelp gives the app its own --help flags and help command in place of
@@ -229,7 +296,8 @@ func ownHelp(app *cli.App) {
 // oneFile returns the single scenario argument.
 func oneFile(c *cli.Context) (string, error) {
 	if c.NArg() != 1 {
-		return "", fmt.Errorf("%s needs exactly one scenario file, got %d arguments", c.Command.Name, c.NArg())
+		return "", usageError{command: c.Command.Name,
+			err: fmt.Errorf("%s needs exactly one scenario file, got %d arguments", c.Command.Name, c.NArg())}
 	}
 	return c.Args().First(), nil
 }
@@ -466,12 +534,28 @@ func plotWindow(c *cli.Context) (from, to float64, ok bool, err error) {
 		return 0, 0, false, nil
 	}
 	a, b, found := strings.Cut(win, ":")
-	from, err1 := strconv.ParseFloat(strings.TrimSpace(a), 64)
-	to, err2 := strconv.ParseFloat(strings.TrimSpace(b), 64)
-	if !found || err1 != nil || err2 != nil || math.IsInf(from, 0) || math.IsInf(to, 0) || !(to > from) {
-		return 0, 0, false, fmt.Errorf("--plot-window %q: expected FROM:TO in ms, finite, with FROM < TO, e.g. 0:20", win)
+	from, err1 := timeFlag(a)
+	to, err2 := timeFlag(b)
+	if !found || err1 != nil || err2 != nil || !(to > from) {
+		return 0, 0, false, fmt.Errorf("--plot-window %q: expected FROM:TO, each a plain number in ms or a time with its unit (\"2 ms:40 ms\"), finite, with FROM < TO", win)
 	}
-	return from * 1e-3, to * 1e-3, true, nil
+	return from, to, true, nil
+}
+
+// timeFlag reads a time (s) from a flag: a plain number in ms, or a
+// quantity with its unit through the scenario files' unit parser.
+func timeFlag(s string) (float64, error) {
+	s = strings.TrimSpace(s)
+	v, err := strconv.ParseFloat(s, 64)
+	if err == nil {
+		v *= 1e-3
+	} else {
+		v, err = coilkick.ParseQuantity(s, coilkick.Time)
+	}
+	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
+		return 0, fmt.Errorf("%q is not a time", s)
+	}
+	return v, nil
 }
 
 // parseCurrents reads --currents: comma-separated currents, each a plain

@@ -86,7 +86,7 @@ func TestRunExitCodes(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	want := "time_s,current_A,coil_voltage_V,switch_voltage_V,gap_m,velocity_m_per_s,magnetic_force_N,passive_force_N,winding_temperature_K"
+	want := "time_s,current_A,coil_voltage_V,switch_voltage_V,gap_m,velocity_m_per_s,magnetic_force_N,passive_force_N,winding_temperature_degC"
 	if got := strings.Join(rows[0], ","); got != want || len(rows) < 50 {
 		t.Fatalf("CSV header %q (%d rows), want %q", got, len(rows), want)
 	}

@@ -303,11 +303,11 @@ func (s *summary) balance(m *coilkick.Metrics) {
 
 func writeCSV(w io.Writer, tr *coilkick.Trace) error {
 	b := bufio.NewWriter(w)
-	fmt.Fprintln(b, "time_s,current_A,coil_voltage_V,switch_voltage_V,gap_m,velocity_m_per_s,magnetic_force_N,passive_force_N,winding_temperature_K")
+	fmt.Fprintln(b, "time_s,current_A,coil_voltage_V,switch_voltage_V,gap_m,velocity_m_per_s,magnetic_force_N,passive_force_N,winding_temperature_degC")
 	f := func(v float64) string { return strconv.FormatFloat(v, 'g', 10, 64) }
 	for k := range tr.Time {
 		fmt.Fprintf(b, "%s,%s,%s,%s,%s,%s,%s,%s,%s\n", f(tr.Time[k]), f(tr.Current[k]), f(tr.CoilVoltage[k]),
-			f(tr.SwitchVoltage[k]), f(tr.Gap[k]), f(tr.Velocity[k]), f(tr.MagneticForce[k]), f(tr.PassiveForce[k]), f(tr.WindingTemperature[k]))
+			f(tr.SwitchVoltage[k]), f(tr.Gap[k]), f(tr.Velocity[k]), f(tr.MagneticForce[k]), f(tr.PassiveForce[k]), f(toDegC(tr.WindingTemperature[k])))
 	}
 	return b.Flush()
 }
@@ -315,14 +315,29 @@ func writeCSV(w io.Writer, tr *coilkick.Trace) error {
 // jsonSummary is the --json document. Quantities are in SI units named in
 // the keys; a time that did not happen is null.
 type jsonSummary struct {
-	Scenario string               `json:"scenario"`
-	Source   string               `json:"source"`
+	jsonHeader
 	Metrics  jsonMetrics          `json:"metrics"`
 	Checks   []jsonCheck          `json:"checks"`
 	Notes    []coilkickNote       `json:"notes"`
 	Events   []jsonEvent          `json:"events"`
-	Solver   coilkick.SolverStats `json:"solver"`
+	Solver   jsonSolver           `json:"solver"`
 	Failed   bool                 `json:"failed"`
+}
+
+// jsonSolver is the integrator's work.
+type jsonSolver struct {
+	Method          string `json:"method"`
+	Steps           int    `json:"steps"`
+	Rejected        int    `json:"rejected_steps"`
+	StiffSteps      int    `json:"implicit_steps"`
+	Events          int    `json:"events"`
+	Evaluations     int    `json:"evaluations"`
+	PeriodsRepeated int    `json:"periods_repeated"`
+}
+
+func newJSONSolver(s coilkick.SolverStats) jsonSolver {
+	return jsonSolver{Method: s.Method, Steps: s.Steps, Rejected: s.Rejected, StiffSteps: s.StiffSteps, Events: s.Events,
+		Evaluations: s.Evaluations, PeriodsRepeated: s.PeriodsRepeated}
 }
 
 type coilkickNote struct {
@@ -443,7 +458,7 @@ func newJSONHold(h coilkick.HoldMetrics) *jsonHold {
 func writeJSON(w io.Writer, md *coilkick.Model, res *coilkick.Result, as *coilkick.Assessment) error {
 	m := &res.Metrics
 	doc := jsonSummary{
-		Scenario: md.Name, Source: md.Source, Solver: res.Stats, Failed: as.Failed(),
+		jsonHeader: newHeader("run", md, md.Source), Solver: newJSONSolver(res.Stats), Failed: as.Failed(),
 		Metrics: jsonMetrics{
 			MotionDelay: m.MotionDelay, PullIn: m.PullIn, SeatImpactSpeed: m.SeatImpactSpeed, Bounces: m.Bounces,
 			CurrentAtSeating: m.CurrentAtSeating, PeakCurrent: m.PeakCurrent, CurrentAtTurnOff: m.CurrentAtTurnOff,

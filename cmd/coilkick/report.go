@@ -255,7 +255,7 @@ func buildReport(path string, md *coilkick.Model, sc *coilkick.Scenario, res *co
 		Checks  []jsonCheck          `json:"checks"`
 		Notes   []coilkickNote       `json:"notes"`
 		Events  []jsonEvent          `json:"events"`
-		Solver  coilkick.SolverStats `json:"solver"`
+		Solver  jsonSolver           `json:"solver"`
 		Failed  bool                 `json:"failed"`
 	}
 	if err := json.Unmarshal(buf.Bytes(), &doc); err != nil {
