@@ -316,12 +316,12 @@ func writeCSV(w io.Writer, tr *coilkick.Trace) error {
 // the keys; a time that did not happen is null.
 type jsonSummary struct {
 	jsonHeader
-	Metrics  jsonMetrics          `json:"metrics"`
-	Checks   []jsonCheck          `json:"checks"`
-	Notes    []coilkickNote       `json:"notes"`
-	Events   []jsonEvent          `json:"events"`
-	Solver   jsonSolver           `json:"solver"`
-	Failed   bool                 `json:"failed"`
+	Metrics jsonMetrics    `json:"metrics"`
+	Checks  []jsonCheck    `json:"checks"`
+	Notes   []coilkickNote `json:"notes"`
+	Events  []jsonEvent    `json:"events"`
+	Solver  jsonSolver     `json:"solver"`
+	Failed  bool           `json:"failed"`
 }
 
 // jsonSolver is the integrator's work.

@@ -251,12 +251,12 @@ func buildReport(path string, md *coilkick.Model, sc *coilkick.Scenario, res *co
 	// The summary's own types, but the metrics as a generic object (an
 	// Interval reads back as a number or null): every metric is shown.
 	var doc struct {
-		Metrics map[string]any       `json:"metrics"`
-		Checks  []jsonCheck          `json:"checks"`
-		Notes   []coilkickNote       `json:"notes"`
-		Events  []jsonEvent          `json:"events"`
-		Solver  jsonSolver           `json:"solver"`
-		Failed  bool                 `json:"failed"`
+		Metrics map[string]any `json:"metrics"`
+		Checks  []jsonCheck    `json:"checks"`
+		Notes   []coilkickNote `json:"notes"`
+		Events  []jsonEvent    `json:"events"`
+		Solver  jsonSolver     `json:"solver"`
+		Failed  bool           `json:"failed"`
 	}
 	if err := json.Unmarshal(buf.Bytes(), &doc); err != nil {
 		return nil, false, err
