@@ -14,6 +14,7 @@ import (
 	"os"
 	"os/signal"
 	"path/filepath"
+	"regexp"
 	"runtime/debug"
 	"strconv"
 	"strings"
@@ -154,7 +155,7 @@ func runApp(stdout, stderr io.Writer, args []string) int {
 	case errors.Is(err, errFailing):
 		return exitFailing
 	case errors.As(err, &ue):
-		fmt.Fprintf(stderr, "coilkick: %s\n", strings.TrimPrefix(ue.err.Error(), "coilkick: "))
+		fmt.Fprintf(stderr, "coilkick: %s\n", flagMessage(strings.TrimPrefix(ue.err.Error(), "coilkick: ")))
 		if cmd := app.Command(ue.command); cmd != nil {
 			fmt.Fprintf(stderr, "usage: coilkick %s [options] %s\n(coilkick help %s lists the options)\n", cmd.Name, cmd.ArgsUsage, cmd.Name)
 		}
@@ -175,6 +176,36 @@ type usageError struct {
 
 func (e usageError) Error() string { return e.err.Error() }
 func (e usageError) Unwrap() error { return e.err }
+
+// flagSyntax is the flag package's wording of a value it could not parse.
+var flagSyntax = regexp.MustCompile(`^invalid value "(.*)" for flag -{1,2}([A-Za-z0-9-]+): (.*)$`)
+
+// flagMessage rewords the flag package's "invalid value" error the way
+// the rest of the program names a field: --flag "value": reason.
+func flagMessage(msg string) string {
+	if name, ok := strings.CutPrefix(msg, "flag provided but not defined: "); ok {
+		name = strings.TrimLeft(name, "-")
+		if len(name) == 1 {
+			return fmt.Sprintf("-%s: no such option", name)
+		}
+		return fmt.Sprintf("--%s: no such option", name)
+	}
+	m := flagSyntax.FindStringSubmatch(msg)
+	if m == nil {
+		return msg
+	}
+	reason := m[3]
+	switch reason {
+	case "parse error":
+		reason = "not a number"
+		if _, err := strconv.ParseFloat(m[1], 64); err == nil {
+			reason = "not a whole number"
+		}
+	case "value out of range":
+		reason = "out of range"
+	}
+	return fmt.Sprintf("--%s %q: %s", m[2], m[1], reason)
+}
 
 // printUsage writes the list of commands.
 func printUsage(w io.Writer, app *cli.App) {
@@ -228,6 +259,8 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 					&cli.StringFlag{Name: "curves", Usage: "write force versus gap for a family of currents to `FILE` (CSV)"},
 					&cli.StringFlag{Name: "currents", Usage: "currents of the family, comma-separated, in A or with a unit (\"0.2, 500 mA\"; default: 0.25 to 1.5 × rated)"},
 					&cli.StringFlag{Name: "plot", Usage: "plot force versus gap for the family, with spring + load, to `FILE` (.png or .svg)"},
+					&cli.StringFlag{Name: "json", Usage: "write the figures and the force curves to `FILE` (- for standard output)"},
+					&cli.StringFlag{Name: "csv", Usage: "write the figures to `FILE` as one CSV row (- for standard output)"},
 				},
 				Action: func(c *cli.Context) error { return cmdMagnet(c, stdout) },
 			},
@@ -238,6 +271,7 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 				Flags: []cli.Flag{
 					&cli.StringFlag{Name: "csv", Usage: "write the temperature history (peak and valley per cycle) to `FILE`"},
 					&cli.StringFlag{Name: "plot", Usage: "plot the temperature history to `FILE` (.png or .svg)"},
+					&cli.StringFlag{Name: "json", Usage: "write the study's figures and history to `FILE` (- for standard output)"},
 				},
 				Action: func(c *cli.Context) error { return cmdHeat(c, stdout) },
 			},
@@ -245,6 +279,10 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 				Name:      "check",
 				Usage:     "validate a scenario file without simulating",
 				ArgsUsage: "SCENARIO.yaml",
+				Flags: []cli.Flag{
+					&cli.StringFlag{Name: "json", Usage: "write the verdict to `FILE` (- for standard output); nothing on an error"},
+					&cli.StringFlag{Name: "csv", Usage: "write the verdict to `FILE` as one CSV row (- for standard output); nothing on an error"},
+				},
 				Action:    func(c *cli.Context) error { return cmdCheck(c, stdout) },
 			},
 		}, append(studyCommands(stdout), reportCommands(stdout)...)...),
