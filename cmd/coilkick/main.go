@@ -283,7 +283,7 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 					&cli.StringFlag{Name: "json", Usage: "write the verdict to `FILE` (- for standard output); nothing on an error"},
 					&cli.StringFlag{Name: "csv", Usage: "write the verdict to `FILE` as one CSV row (- for standard output); nothing on an error"},
 				},
-				Action:    func(c *cli.Context) error { return cmdCheck(c, stdout) },
+				Action: func(c *cli.Context) error { return cmdCheck(c, stdout) },
 			},
 		}, append(studyCommands(stdout), reportCommands(stdout)...)...),
 	}
