@@ -245,7 +245,7 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 				Flags: []cli.Flag{
 					&cli.StringFlag{Name: "csv", Usage: "write the time series to `FILE`"},
 					&cli.StringFlag{Name: "json", Usage: "write the summary to `FILE` (- for standard output)"},
-					&cli.Float64Flag{Name: "tolerance", Usage: "relative tolerance of the integrator, 1e-12 to 1e-3 (default: scenario's, else 1e-8)"},
+					&cli.Float64Flag{Name: "tolerance", Usage: "relative tolerance of the integrator, 1e-12 to 1e-3", DefaultText: "the scenario's, else 1e-8"},
 					&cli.StringFlag{Name: "plot", Usage: "write the waveform plot to `FILE` (.png or .svg)"},
 					&cli.StringFlag{Name: "plot-window", Usage: "plot only `FROM:TO` (ms), e.g. 0:20 for the pull-in"},
 				},

@@ -25,7 +25,7 @@ func reportCommands(stdout io.Writer) []*cli.Command {
 		ArgsUsage: "SCENARIO.yaml",
 		Flags: []cli.Flag{
 			&cli.StringFlag{Name: "output", Aliases: []string{"o"}, Usage: "write the report to `FILE` (- for standard output)", Required: true},
-			&cli.Float64Flag{Name: "tolerance", Usage: "relative tolerance of the integrator (default: scenario's, else 1e-8)"},
+			&cli.Float64Flag{Name: "tolerance", Usage: "relative tolerance of the integrator, 1e-12 to 1e-3", DefaultText: "the scenario's, else 1e-8"},
 		},
 		Action: func(c *cli.Context) error { return cmdReport(c, stdout) },
 	}}
