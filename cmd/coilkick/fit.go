@@ -28,9 +28,10 @@ func fitCommand(stdout io.Writer) *cli.Command {
 			&cli.StringFlag{Name: "params", Value: "resistance,closed inductance,open inductance",
 				Usage: "comma-separated parameters to fit: " + strings.Join(names, ", ")},
 			&cli.StringFlag{Name: "output", Aliases: []string{"o"}, Usage: "write the fitted scenario to `FILE`"},
-			&cli.StringFlag{Name: "csv", Usage: "write measured and simulated current to `FILE`"},
+			&cli.StringFlag{Name: "csv", Usage: "write the overlay (time, measured and model current, residual) to `FILE` (- for standard output)"},
+			&cli.StringFlag{Name: "json", Usage: "write the fit's figures (events, parameters with σ, residuals, failure reasons) to `FILE` (- for standard output)"},
 			&cli.StringFlag{Name: "plot", Usage: "write the overlay of measured and simulated current to `FILE` (.png or .svg)"},
-			&cli.BoolFlag{Name: "keep-failed", Usage: "write the outputs (-o, --csv, --plot) even when the fit fails (exit status still 1)"},
+			&cli.BoolFlag{Name: "keep-failed", Usage: "write the outputs (-o, --csv, --json, --plot) even when the fit fails (exit status still 1)"},
 		},
 		Action: func(c *cli.Context) error { return cmdFit(c, stdout) },
 	}
@@ -63,7 +64,14 @@ func cmdFit(c *cli.Context, w io.Writer) error {
 	if err != nil && !failed {
 		return fmt.Errorf("fit of %s to %s: %w", path, tr.Source, trimPrefix(err))
 	}
-	b := bufio.NewWriter(w)
+	// With --json - or --csv - standard output carries that document
+	// alone: the report is not printed (a failed fit's reasons are in the
+	// error message).
+	text, stdout := w, w
+	if toStdout(c, "json", "csv") {
+		text = io.Discard
+	}
+	b := bufio.NewWriter(text)
 	defer b.Flush()
 	ev := fr.Events
 	fmt.Fprintf(b, "coilkick fit: %s\nscenario: %s\ntrace: %s (%d samples, offset %s, noise %s rms)\n",
@@ -112,7 +120,7 @@ func cmdFit(c *cli.Context, w io.Writer) error {
 			fmt.Fprintf(b, "  - %s\n", f)
 		}
 		if !c.Bool("keep-failed") {
-			if c.String("output") != "" || c.String("csv") != "" || c.String("plot") != "" {
+			if c.String("output") != "" || c.String("csv") != "" || c.String("json") != "" || c.String("plot") != "" {
 				fmt.Fprintln(b, "No output file written (--keep-failed writes them, for a look at the overlay).")
 			}
 			b.Flush()
@@ -123,6 +131,10 @@ func cmdFit(c *cli.Context, w io.Writer) error {
 	// files; the command line was checked before the fit (checkArgs: not
 	// onto an input, links followed; plot extension; writable folder).
 	outs := newOutputs(b)
+	if toStdout(c, "json", "csv") {
+		b.Flush()
+		outs = newOutputs(stdout)
+	}
 	if out := c.String("output"); out != "" {
 		data, err := coilkick.WriteFitted(path, fr)
 		if err != nil {
@@ -131,14 +143,11 @@ func cmdFit(c *cli.Context, w io.Writer) error {
 		outs.add(out, func(o io.Writer) error { _, err := o.Write(data); return err })
 	}
 	if f := c.String("csv"); f != "" {
-		outs.add(f, func(out io.Writer) error {
-			bw := bufio.NewWriter(out)
-			fmt.Fprintln(bw, "time_s,measured_A,simulated_A")
-			for k := range fr.Time {
-				fmt.Fprintf(bw, "%g,%g,%g\n", fr.Time[k], fr.Measured[k], fr.Simulated[k])
-			}
-			return bw.Flush()
-		})
+		outs.add(f, func(out io.Writer) error { return writeFitCSV(out, fr) })
+	}
+	if f := c.String("json"); f != "" {
+		doc := newFitDoc(path, md, tr, fr)
+		outs.add(f, func(out io.Writer) error { return writeJSONDoc(out, doc) })
 	}
 	if f := c.String("plot"); f != "" {
 		if err := outs.addFigure(f, fitFigure(md, fr)); err != nil {
@@ -213,4 +222,134 @@ func fitFigure(md *coilkick.Model, fr *coilkick.FitResult) *plot.Figure {
 	}
 	return plot.Lines(title, "time (ms, model time base)", "coil current (mA)", ms,
 		[]plot.Series{{Label: "measured (offset removed)", Ys: meas}, {Label: "fitted model", Ys: sim}})
+}
+
+// writeFitCSV writes the overlay on the fit grid: the model's time base
+// (trace time + alignment), the measured current (baseline offset
+// removed), the model's current and their difference.
+func writeFitCSV(w io.Writer, fr *coilkick.FitResult) error {
+	rows := make([][]string, len(fr.Time))
+	for k := range fr.Time {
+		rows[k] = []string{num(fr.Time[k]), num(fr.Measured[k]), num(fr.Simulated[k]), num(fr.Measured[k] - fr.Simulated[k])}
+	}
+	return writeCSVRows(w, []string{"time_s", "measured_current_A", "model_current_A", "residual_A"}, rows)
+}
+
+// fitSIUnits are the SI units of the fit parameters' values in --json.
+var fitSIUnits = map[coilkick.FitParam]string{
+	coilkick.FitResistance: "ohm", coilkick.FitClosedInductance: "H", coilkick.FitOpenInductance: "H",
+	coilkick.FitPreload: "N", coilkick.FitMass: "kg", coilkick.FitDamping: "N*s/m",
+}
+
+// fitDoc is the --json document of fit (README "Machine-readable
+// output"). A figure a failed fit left without a finite value is null.
+type fitDoc struct {
+	jsonHeader
+	Trace             fitTrace       `json:"trace"`
+	Events            fitEvents      `json:"events"`
+	Parameters        []fitParameter `json:"parameters"`
+	Offset            *float64       `json:"baseline_offset_A"` // fitted
+	OffsetErr         *float64       `json:"baseline_offset_std_error_A"`
+	Shift             *float64       `json:"time_alignment_s"`
+	ShiftErr          *float64       `json:"time_alignment_std_error_s"`
+	UncertaintyMethod string         `json:"uncertainty_method"`
+	Residual          fitResidual    `json:"residual"`
+	ModelPullIn       *float64       `json:"model_pull_in_time_s"`
+	Simulations       int            `json:"simulations"`
+	Warnings          []string       `json:"warnings"`
+	Failed            bool           `json:"failed"`
+	Failure           []string       `json:"failure"`
+}
+
+type fitTrace struct {
+	Source   string `json:"source"`
+	Samples  int    `json:"samples"`
+	Repeated int    `json:"repeated_rows_dropped"`
+	Points   int    `json:"points_compared"`
+}
+
+type fitEvents struct {
+	Step        *float64 `json:"sample_step_s"`
+	Offset      *float64 `json:"pre_energize_offset_A"`
+	Noise       *float64 `json:"pre_energize_noise_A"`
+	Energize    *float64 `json:"energize_s"`
+	EnergizeErr *float64 `json:"energize_std_error_s"`
+	// The pull-in dip: null when none was found.
+	PeakBeforeDip *float64 `json:"peak_before_dip_s"`
+	PeakCurrent   *float64 `json:"peak_before_dip_current_A"`
+	Seat          *float64 `json:"seated_s"`
+	SeatCurrent   *float64 `json:"seated_current_A"`
+	SeatErr       *float64 `json:"seated_std_error_s"`
+	PullIn        *float64 `json:"pull_in_time_s"`
+	TurnOff       *float64 `json:"turn_off_s"`
+	DecayEnd      *float64 `json:"decay_end_s"`
+	DecayEndErr   *float64 `json:"decay_end_std_error_s"`
+}
+
+// fitParameter: values in the SI unit named by unit; std_error null when
+// the trace does not determine the parameter.
+type fitParameter struct {
+	Name        string   `json:"name"`
+	Unit        string   `json:"unit"`
+	Start       *float64 `json:"start"`
+	Value       *float64 `json:"value"`
+	StdErr      *float64 `json:"std_error"`
+	Sensitivity *float64 `json:"sensitivity"` // relative RMS-error rise for +1 %
+}
+
+type fitResidual struct {
+	RMSStart        *float64 `json:"rms_error_start_A"`
+	RMS             *float64 `json:"rms_error_A"`
+	Noise           *float64 `json:"baseline_noise_A"`
+	DiffNoise       *float64 `json:"sample_to_sample_noise_A"`
+	Quantum         *float64 `json:"resolution_A"`
+	NoiseFloor      *float64 `json:"noise_floor_A"`
+	NoiseRef        *float64 `json:"noise_reference_A"`
+	Ratio           *float64 `json:"rms_to_noise_ratio"`
+	Limit           float64  `json:"rms_to_noise_limit"`
+	SD              *float64 `json:"standard_deviation_A"`
+	FloorUsed       bool     `json:"floor_used"`
+	Autocorrelation *float64 `json:"lag1_autocorrelation"`
+	Inflation       *float64 `json:"variance_inflation"`
+}
+
+// fin is v, or nil when it is not a finite number.
+func fin(v float64) *float64 {
+	return optional(v, !math.IsNaN(v) && !math.IsInf(v, 0))
+}
+
+// positive is v when it is a finite number above 0, else nil (a σ the
+// trace does not determine, an instant not found).
+func positive(v float64) *float64 { return optional(v, v > 0 && !math.IsInf(v, 0)) }
+
+func newFitDoc(path string, md *coilkick.Model, tr *coilkick.MeasuredTrace, fr *coilkick.FitResult) *fitDoc {
+	d := &fitDoc{jsonHeader: newHeader("fit", md, path),
+		Trace:  fitTrace{Source: tr.Source, Samples: len(tr.Time), Repeated: tr.Repeated, Points: fr.Points},
+		Offset: fin(fr.Offset), OffsetErr: positive(fr.OffsetErr), Shift: fin(fr.Shift), ShiftErr: positive(fr.ShiftErr),
+		UncertaintyMethod: coilkick.FitUncertaintyMethod, ModelPullIn: seconds(fr.SeatModel), Simulations: fr.Evaluations,
+		Parameters: []fitParameter{}, Warnings: append([]string{}, fr.Warnings...), Failed: fr.Failed(),
+		Failure: append([]string{}, fr.Failure...),
+		Residual: fitResidual{RMSStart: fin(fr.RMSStart), RMS: fin(fr.RMS), Noise: fin(fr.Noise), DiffNoise: positive(fr.DiffNoise),
+			Quantum: positive(fr.Quantum), NoiseFloor: fin(fr.NoiseFloor), NoiseRef: fin(fr.NoiseRef),
+			Ratio: fin(fr.RMS / fr.NoiseRef), Limit: coilkick.FitResidualLimit, SD: fin(fr.ResidualSD), FloorUsed: fr.FloorUsed,
+			Autocorrelation: fin(fr.Autocorrelation), Inflation: fin(fr.Inflation)},
+	}
+	for _, v := range fr.Values {
+		d.Parameters = append(d.Parameters, fitParameter{Name: string(v.Param), Unit: fitSIUnits[v.Param],
+			Start: fin(v.Start), Value: fin(v.Value), StdErr: positive(v.StdErr), Sensitivity: fin(v.Sensitivity)})
+	}
+	if ev := fr.Events; ev != nil {
+		d.Events = fitEvents{Step: positive(ev.Step), Offset: fin(ev.Offset), Noise: fin(ev.Noise),
+			Energize: fin(ev.Energize), EnergizeErr: positive(ev.EnergizeErr),
+			TurnOff: optional(ev.TurnOff, ev.TurnOff > 0), DecayEnd: optional(ev.DecayEnd, ev.DecayEnd > 0)}
+		if ev.HasDip {
+			d.Events.PeakBeforeDip, d.Events.PeakCurrent = fin(ev.Peak), fin(ev.PeakI)
+			d.Events.Seat, d.Events.SeatCurrent, d.Events.SeatErr = fin(ev.Seat), fin(ev.SeatI), positive(ev.SeatErr)
+			d.Events.PullIn = fin(ev.Seat - ev.Energize)
+		}
+		if ev.DecayEnd > 0 {
+			d.Events.DecayEndErr = positive(ev.DecayEndErr)
+		}
+	}
+	return d
 }

@@ -27,10 +27,14 @@ func cmdHeat(c *cli.Context, w io.Writer) error {
 	if err != nil {
 		return err
 	}
-	csvFile := c.String("csv")
+	csvFile, jsonFile := c.String("csv"), c.String("json")
 	outs := newOutputs(w)
 	if csvFile != "" {
 		outs.add(csvFile, func(out io.Writer) error { return writeHeatCSV(out, res) })
+	}
+	if jsonFile != "" {
+		doc := newHeatDoc(path, md, res)
+		outs.add(jsonFile, func(out io.Writer) error { return writeJSONDoc(out, doc) })
 	}
 	if f := c.String("plot"); f != "" {
 		if err := outs.addFigure(f, plot.HeatHistory("Winding temperature — "+md.Name, plotHistory(res))); err != nil {
@@ -40,7 +44,7 @@ func cmdHeat(c *cli.Context, w io.Writer) error {
 	if err := outs.commit(); err != nil {
 		return err
 	}
-	if csvFile == "-" {
+	if toStdout(c, "csv", "json") {
 		return heatVerdict(res)
 	}
 	failed := printHeat(w, path, md, res)
@@ -222,15 +226,125 @@ func printHeat(w io.Writer, path string, md *coilkick.Model, r *coilkick.HeatRes
 }
 
 // writeHeatCSV writes the history: one row per cycle of the study (see
-// coilkick.HeatResult.History for the thinning of very long studies).
+// coilkick.HeatResult.History for the thinning of very long studies),
+// temperatures in °C.
 func writeHeatCSV(w io.Writer, r *coilkick.HeatResult) error {
 	if len(r.History) == 0 {
 		return errors.New("no history")
 	}
-	b := bufio.NewWriter(w)
-	fmt.Fprintln(b, "cycle,time_s,peak_winding_K,valley_winding_K")
-	for _, h := range r.History {
-		fmt.Fprintf(b, "%d,%g,%.6f,%.6f\n", h.Cycle, h.Time, h.Peak, h.Valley)
+	rows := make([][]string, len(r.History))
+	for k, h := range r.History {
+		rows[k] = []string{strconv.Itoa(h.Cycle), num(h.Time), num(toDegC(h.Peak)), num(toDegC(h.Valley))}
 	}
-	return b.Flush()
+	return writeCSVRows(w, []string{"cycle", "time_s", "peak_winding_degC", "valley_winding_degC"}, rows)
+}
+
+// heatDoc is the --json document of heat (README "Machine-readable
+// output"): temperatures in °C, temperature differences in K, null for
+// what did not happen or does not apply.
+type heatDoc struct {
+	jsonHeader
+	Duty    heatDuty `json:"duty"`
+	Ambient float64  `json:"ambient_degC"`
+	// The last cycle of the study.
+	Peak   float64 `json:"winding_peak_degC"`
+	Mean   float64 `json:"winding_mean_degC"`
+	Valley float64 `json:"winding_valley_degC"`
+	Ripple float64 `json:"winding_ripple_K"`
+	Cycles int     `json:"cycles"`
+	Steady bool    `json:"steady"`
+	// Steady state: null when not found (runaway, or not within the
+	// cycles stepped).
+	SteadyPeak    *float64       `json:"steady_peak_degC"`
+	SteadyAfter   *float64       `json:"steady_after_s"`
+	SteadyTol     float64        `json:"steady_tolerance_K"`
+	Runaway       bool           `json:"thermal_runaway"`
+	HotResistance float64        `json:"resistance_at_peak_ohm"`
+	HeldSteady    float64        `json:"held_on_steady_degC"`
+	Insulation    *heatClass     `json:"insulation"` // null without an insulation class
+	HotCoil       heatHotCoil    `json:"hot_coil"`
+	Notes         []coilkickNote `json:"notes"`
+	Simulations   int            `json:"simulations"`
+	Failed        bool           `json:"failed"`
+	History       heatHistory    `json:"history"`
+}
+
+type heatDuty struct {
+	OnTime         *float64      `json:"on_time_s"` // null for a pattern of segments
+	Period         *float64      `json:"period_s"`
+	Segments       []heatSegment `json:"segments"` // the cycle, also for on time and period
+	CycleTime      float64       `json:"cycle_time_s"`
+	RelativeOnTime float64       `json:"relative_on_time"`
+	Duration       *float64      `json:"duration_s"` // null: until the periodic steady state
+}
+
+type heatSegment struct {
+	On       bool    `json:"on"`
+	Duration float64 `json:"duration_s"`
+}
+
+type heatClass struct {
+	Class             string   `json:"class"`
+	Limit             float64  `json:"limit_degC"`
+	Margin            float64  `json:"margin_K"`
+	Pass              bool     `json:"pass"`
+	HeldToLimit       *float64 `json:"held_on_time_to_limit_s"` // null: never reaches it
+	MaxRelativeOnTime float64  `json:"largest_relative_on_time"`
+}
+
+type heatHotCoil struct {
+	PullIn             *float64 `json:"pull_in_time_s"` // null: does not pull in
+	LowSupply          *float64 `json:"low_supply_V"`   // null: no low supply given
+	PullInLow          *float64 `json:"pull_in_time_low_supply_s"`
+	LowestPullInSupply *float64 `json:"lowest_pull_in_supply_V"` // null: not even the nominal supply
+}
+
+// heatHistory holds the CSV's columns.
+type heatHistory struct {
+	Stride int       `json:"stride_cycles"`
+	Cycle  []int     `json:"cycle"`
+	Time   []float64 `json:"time_s"`
+	Peak   []float64 `json:"peak_winding_degC"`
+	Valley []float64 `json:"valley_winding_degC"`
+}
+
+func newHeatDoc(path string, md *coilkick.Model, r *coilkick.HeatResult) *heatDoc {
+	p := r.Pattern
+	d := &heatDoc{jsonHeader: newHeader("heat", md, path), Ambient: toDegC(r.Ambient),
+		Peak: toDegC(r.Peak), Mean: toDegC(r.Mean), Valley: toDegC(r.Valley), Ripple: r.Ripple,
+		Cycles: r.Cycles, Steady: r.Steady, SteadyTol: coilkick.SteadyTol,
+		Runaway:       r.SteadyAfter == 0 && r.Peak > coilkick.RunawayTemperature,
+		HotResistance: r.HotResistance, HeldSteady: toDegC(r.HeldSteady),
+		Notes: []coilkickNote{}, Simulations: r.Simulations, Failed: heatVerdict(r) != nil}
+	d.Duty = heatDuty{CycleTime: p.CycleTime(), RelativeOnTime: p.RelativeOnTime(), Duration: optional(p.Duration, p.Duration > 0)}
+	if len(p.Segments) > 0 {
+		for _, sg := range p.Segments {
+			d.Duty.Segments = append(d.Duty.Segments, heatSegment{sg.On, sg.Duration})
+		}
+	} else {
+		d.Duty.OnTime, d.Duty.Period = optional(p.OnTime, true), optional(p.Period, true)
+		d.Duty.Segments = []heatSegment{{true, p.OnTime}, {false, p.Period - p.OnTime}}
+	}
+	if r.SteadyAfter > 0 {
+		d.SteadyPeak, d.SteadyAfter = optional(toDegC(r.SteadyPeak), true), optional(r.SteadyAfter, true)
+	}
+	if r.Limit > 0 {
+		d.Insulation = &heatClass{Class: r.Class, Limit: toDegC(r.Limit), Margin: r.Limit - r.Peak, Pass: r.Peak <= r.Limit,
+			HeldToLimit: seconds(r.HeldToLimit), MaxRelativeOnTime: r.MaxRelativeOnTime}
+	}
+	d.HotCoil = heatHotCoil{PullIn: seconds(r.HotPullIn), LowSupply: optional(r.LowSupply, r.LowSupply > 0),
+		LowestPullInSupply: optional(r.LowestPullInSupply, r.LowestPullInSupply > 0)}
+	if r.LowSupply > 0 {
+		d.HotCoil.PullInLow = seconds(r.HotPullInLow)
+	}
+	for _, n := range r.Notes {
+		d.Notes = append(d.Notes, coilkickNote{n.Figure, n.Level, n.Text})
+	}
+	h := heatHistory{Stride: max(r.HistoryStride, 1), Cycle: make([]int, len(r.History)), Time: make([]float64, len(r.History)),
+		Peak: make([]float64, len(r.History)), Valley: make([]float64, len(r.History))}
+	for k, pt := range r.History {
+		h.Cycle[k], h.Time[k], h.Peak[k], h.Valley[k] = pt.Cycle, pt.Time, toDegC(pt.Peak), toDegC(pt.Valley)
+	}
+	d.History = h
+	return d
 }

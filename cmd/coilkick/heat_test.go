@@ -80,7 +80,7 @@ func TestHeatOutput(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(rows) != 5761 || strings.Join(rows[0], ",") != "cycle,time_s,peak_winding_K,valley_winding_K" {
+	if len(rows) != 5761 || strings.Join(rows[0], ",") != "cycle,time_s,peak_winding_degC,valley_winding_degC" {
 		t.Fatalf("CSV: %d rows (want a header and 5760), header %q", len(rows), rows[0])
 	}
 	for k, r := range rows[1:] {

@@ -58,18 +58,45 @@ func cmdMagnet(c *cli.Context, w io.Writer) error {
 			return err
 		}
 	}
-	if f := c.String("curves"); f != "" {
-		curves, err := md.ForceCurves(currents, 41)
-		if err != nil {
+	// The curves of the CSV and the JSON: 41 gaps over the stroke.
+	var curves []coilkick.ForceCurve
+	if c.String("curves") != "" || c.String("json") != "" {
+		if curves, err = md.ForceCurves(currents, curveGaps); err != nil {
 			return err
 		}
-		outs.add(f, func(out io.Writer) error { return writeCurves(out, curves) })
+	}
+	if f := c.String("curves"); f != "" {
+		outs.add(f, func(out io.Writer) error { return writeCurves(out, md, curves) })
+	}
+	doc := newMagnetDoc(path, md, &s, curves)
+	if f := c.String("json"); f != "" {
+		outs.add(f, func(out io.Writer) error { return writeJSONDoc(out, doc) })
+	}
+	if f := c.String("csv"); f != "" {
+		outs.add(f, func(out io.Writer) error { return writeMagnetCSV(out, doc) })
 	}
 	if err := outs.commit(); err != nil {
 		return err
 	}
-	printMagnet(w, path, md, &s)
+	if !toStdout(c, "json", "csv", "curves") {
+		printMagnet(w, path, md, &s)
+	}
 	return nil
+}
+
+// curveGaps is the number of gaps of the force curves in --curves and
+// --json.
+const curveGaps = 41
+
+// toStdout reports whether one of the outputs named by flags goes to
+// standard output ("-"); the text is then not printed.
+func toStdout(c *cli.Context, flags ...string) bool {
+	for _, f := range flags {
+		if c.String(f) == "-" {
+			return true
+		}
+	}
+	return false
 }
 
 func printMagnet(w io.Writer, path string, md *coilkick.Model, s *coilkick.MagnetSummary) {
@@ -128,21 +155,153 @@ func printMagnet(w io.Writer, path string, md *coilkick.Model, s *coilkick.Magne
 	}
 }
 
-func writeCurves(w io.Writer, curves []coilkick.ForceCurve) error {
-	b := bufio.NewWriter(w)
-	fmt.Fprint(b, "gap_m")
+// writeCurves writes the force curves in long form, one row per current
+// and gap: current_A, gap_m, force_N, spring_and_load_N (the passive force
+// at that gap, the same for every current).
+func writeCurves(w io.Writer, md *coilkick.Model, curves []coilkick.ForceCurve) error {
+	var rows [][]string
 	for _, c := range curves {
-		fmt.Fprintf(b, ",force_N_at_%sA", strconv.FormatFloat(c.Current, 'g', 4, 64))
-	}
-	fmt.Fprintln(b)
-	if len(curves) > 0 {
-		for k := range curves[0].Gap {
-			fmt.Fprint(b, strconv.FormatFloat(curves[0].Gap[k], 'g', 8, 64))
-			for _, c := range curves {
-				fmt.Fprint(b, ",", strconv.FormatFloat(c.Force[k], 'g', 8, 64))
-			}
-			fmt.Fprintln(b)
+		for k, x := range c.Gap {
+			rows = append(rows, []string{num(c.Current), num(x), num(c.Force[k]), num(md.Plunger.PassiveForce(x, 0))})
 		}
 	}
-	return b.Flush()
+	return writeCSVRows(w, []string{"current_A", "gap_m", "force_N", "spring_and_load_N"}, rows)
+}
+
+// magnetDoc is the --json document of magnet (README "Machine-readable
+// output"); magnetCoil, magnetFigures and magnetCurves its parts.
+type magnetDoc struct {
+	jsonHeader
+	Coil   magnetCoil    `json:"coil"`
+	Magnet magnetFigures `json:"magnet"`
+	Curves magnetCurves  `json:"force_curves"`
+}
+
+type magnetCoil struct {
+	Turns *float64 `json:"turns"` // null when the scenario gives none (a flux table or gap law)
+	// Winding build: null unless the coil is given as wire and bobbin.
+	MeanTurnLength *float64 `json:"mean_turn_length_m"`
+	WireLength     *float64 `json:"wire_length_m"`
+	CopperMass     *float64 `json:"copper_mass_kg"`
+	Layers         *int     `json:"layers"`
+	TurnsPerLayer  *int     `json:"turns_per_layer"`
+	FillFactor     *float64 `json:"copper_fill_factor"`
+	Resistance20   float64  `json:"resistance_at_20_celsius_ohm"`
+	Temperature    float64  `json:"winding_temperature_degC"`
+	Resistance     float64  `json:"resistance_ohm"` // at the winding temperature
+	Supply         float64  `json:"supply_voltage_V"`
+	RatedCurrent   float64  `json:"rated_current_A"`
+	RatedPower     float64  `json:"rated_power_W"`
+}
+
+type magnetFigures struct {
+	GapSeated             float64  `json:"seated_gap_m"`
+	GapRest               float64  `json:"rest_gap_m"`
+	InductanceSeated      float64  `json:"inductance_seated_H"`
+	InductanceSeatedRated float64  `json:"inductance_seated_at_rated_current_H"`
+	InductanceRest        float64  `json:"inductance_rest_H"`
+	InductanceRestRated   float64  `json:"inductance_rest_at_rated_current_H"`
+	TimeConstantSeated    float64  `json:"time_constant_seated_s"`
+	TimeConstantRest      float64  `json:"time_constant_rest_s"`
+	PullRest              float64  `json:"pull_at_rest_gap_N"`
+	PassiveRest           float64  `json:"spring_and_load_at_rest_gap_N"`
+	PullSeated            float64  `json:"pull_at_seated_gap_N"`
+	PassiveSeated         float64  `json:"spring_and_load_at_seated_gap_N"`
+	PullsIn               bool     `json:"pulls_in_at_rated_current"`
+	SaturationSeated      *float64 `json:"saturation_onset_seated_A"`
+	SaturationRest        *float64 `json:"saturation_onset_rest_A"`
+	SaturationFraction    float64  `json:"saturation_fraction"`
+	SaturationSearch      float64  `json:"saturation_search_rated_multiple"`
+	SteelFluxSeated       *float64 `json:"steel_flux_density_seated_T"`
+	SteelFluxSeatedPart   *string  `json:"steel_flux_density_seated_part"`
+	SteelFluxRest         *float64 `json:"steel_flux_density_rest_T"`
+	SteelFluxRestPart     *string  `json:"steel_flux_density_rest_part"`
+}
+
+// magnetCurves: the force curves over the stroke, gaps shared.
+type magnetCurves struct {
+	Gap     []float64     `json:"gap_m"`
+	Passive []float64     `json:"spring_and_load_N"`
+	Curves  []magnetCurve `json:"curves"`
+}
+
+type magnetCurve struct {
+	Current float64   `json:"current_A"`
+	Force   []float64 `json:"force_N"`
+}
+
+func newMagnetDoc(path string, md *coilkick.Model, s *coilkick.MagnetSummary, curves []coilkick.ForceCurve) *magnetDoc {
+	r := md.CoilResistance()
+	d := &magnetDoc{jsonHeader: newHeader("magnet", md, path)}
+	d.Coil = magnetCoil{Turns: optional(md.Coil.Turns, md.Coil.Turns > 0), Resistance20: md.Coil.ResistanceAt(293.15),
+		Temperature: toDegC(md.Temperature), Resistance: r, Supply: md.Drive.Supply.Voltage,
+		RatedCurrent: s.RatedCurrent, RatedPower: md.Drive.Supply.Voltage * s.RatedCurrent}
+	if cb := md.CoilBuild; cb != nil {
+		layers, perLayer := cb.Layers, cb.TurnsPerLayer
+		d.Coil.MeanTurnLength, d.Coil.WireLength, d.Coil.CopperMass = &cb.MeanTurnLength, &cb.WireLength, &cb.CopperMass
+		d.Coil.Layers, d.Coil.TurnsPerLayer, d.Coil.FillFactor = &layers, &perLayer, &cb.FillFactor
+	}
+	p := md.Plunger
+	d.Magnet = magnetFigures{GapSeated: p.GapMin, GapRest: p.GapMax,
+		InductanceSeated: s.ClosedInductance, InductanceSeatedRated: s.ClosedInductanceRated,
+		InductanceRest: s.OpenInductance, InductanceRestRated: s.OpenInductanceRated,
+		TimeConstantSeated: s.TimeConstantClosed, TimeConstantRest: s.TimeConstantOpen,
+		PullRest: s.ForceAtRest, PassiveRest: s.SpringAtRest, PullSeated: s.ForceSeated, PassiveSeated: s.SpringSeated,
+		PullsIn:            s.ForceAtRest > s.SpringAtRest,
+		SaturationSeated:   optional(s.SaturationSeated, s.SaturationSeated > 0),
+		SaturationRest:     optional(s.SaturationRest, s.SaturationRest > 0),
+		SaturationFraction: coilkick.SaturationFraction, SaturationSearch: coilkick.SaturationSearch}
+	if g := md.Geometry; g != nil {
+		if b, part, err := g.SteelFluxDensity(s.RatedCurrent, p.GapMin); err == nil {
+			d.Magnet.SteelFluxSeated, d.Magnet.SteelFluxSeatedPart = &b, &part
+		}
+		if b, part, err := g.SteelFluxDensity(s.RatedCurrent, p.GapMax); err == nil {
+			d.Magnet.SteelFluxRest, d.Magnet.SteelFluxRestPart = &b, &part
+		}
+	}
+	d.Curves = magnetCurves{Gap: []float64{}, Passive: []float64{}, Curves: []magnetCurve{}}
+	if len(curves) > 0 {
+		d.Curves.Gap = curves[0].Gap
+		for _, x := range curves[0].Gap {
+			d.Curves.Passive = append(d.Curves.Passive, p.PassiveForce(x, 0))
+		}
+	}
+	for _, c := range curves {
+		d.Curves.Curves = append(d.Curves.Curves, magnetCurve{Current: c.Current, Force: c.Force})
+	}
+	return d
+}
+
+// writeMagnetCSV writes the summary figures as one row: the keys of the
+// document's coil and magnet parts, less the text (the steel part's
+// name) and the constants of the saturation definition.
+func writeMagnetCSV(w io.Writer, d *magnetDoc) error {
+	c, m := &d.Coil, &d.Magnet
+	intPtr := func(v *int) string {
+		if v == nil {
+			return ""
+		}
+		return strconv.Itoa(*v)
+	}
+	cols := []struct{ key, cell string }{
+		{"turns", numPtr(c.Turns)}, {"mean_turn_length_m", numPtr(c.MeanTurnLength)}, {"wire_length_m", numPtr(c.WireLength)},
+		{"copper_mass_kg", numPtr(c.CopperMass)}, {"layers", intPtr(c.Layers)}, {"turns_per_layer", intPtr(c.TurnsPerLayer)},
+		{"copper_fill_factor", numPtr(c.FillFactor)}, {"resistance_at_20_celsius_ohm", num(c.Resistance20)},
+		{"winding_temperature_degC", num(c.Temperature)}, {"resistance_ohm", num(c.Resistance)},
+		{"supply_voltage_V", num(c.Supply)}, {"rated_current_A", num(c.RatedCurrent)}, {"rated_power_W", num(c.RatedPower)},
+		{"seated_gap_m", num(m.GapSeated)}, {"rest_gap_m", num(m.GapRest)},
+		{"inductance_seated_H", num(m.InductanceSeated)}, {"inductance_seated_at_rated_current_H", num(m.InductanceSeatedRated)},
+		{"inductance_rest_H", num(m.InductanceRest)}, {"inductance_rest_at_rated_current_H", num(m.InductanceRestRated)},
+		{"time_constant_seated_s", num(m.TimeConstantSeated)}, {"time_constant_rest_s", num(m.TimeConstantRest)},
+		{"pull_at_rest_gap_N", num(m.PullRest)}, {"spring_and_load_at_rest_gap_N", num(m.PassiveRest)},
+		{"pull_at_seated_gap_N", num(m.PullSeated)}, {"spring_and_load_at_seated_gap_N", num(m.PassiveSeated)},
+		{"pulls_in_at_rated_current", strconv.FormatBool(m.PullsIn)},
+		{"saturation_onset_seated_A", numPtr(m.SaturationSeated)}, {"saturation_onset_rest_A", numPtr(m.SaturationRest)},
+		{"steel_flux_density_seated_T", numPtr(m.SteelFluxSeated)}, {"steel_flux_density_rest_T", numPtr(m.SteelFluxRest)},
+	}
+	header, row := make([]string, len(cols)), make([]string, len(cols))
+	for k, col := range cols {
+		header[k], row[k] = col.key, col.cell
+	}
+	return writeCSVRows(w, header, [][]string{row})
 }
