@@ -350,9 +350,26 @@ func loadArg(c *cli.Context) (string, *coilkick.Model, error) {
 	return path, md, err
 }
 
+// cmdCheck validates the scenario. --json and --csv write the verdict
+// ({header, "ok": true}; a CSV row ok=true); on an error nothing is
+// written, the error goes to standard error and the status is 1.
 func cmdCheck(c *cli.Context, w io.Writer) error {
 	path, md, err := loadArg(c)
 	if err != nil {
+		return err
+	}
+	outs := newOutputs(w)
+	if f := c.String("json"); f != "" {
+		doc := struct {
+			jsonHeader
+			OK bool `json:"ok"`
+		}{newHeader("check", md, path), true}
+		outs.add(f, func(out io.Writer) error { return writeJSONDoc(out, doc) })
+	}
+	if f := c.String("csv"); f != "" {
+		outs.add(f, func(out io.Writer) error { return writeCSVRows(out, []string{"ok"}, [][]string{{"true"}}) })
+	}
+	if err := outs.commit(); err != nil || c.String("json") == "-" || c.String("csv") == "-" {
 		return err
 	}
 	name := md.Name
