@@ -7,6 +7,7 @@ import (
 	"strconv"
 
 	gplot "gonum.org/v1/plot"
+	"gonum.org/v1/plot/text"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 
@@ -310,4 +311,440 @@ func rectDistance(r vg.Rectangle, p vg.Point) vg.Length {
 
 func clampTo(v, lo, hi vg.Length) vg.Length {
 	return vg.Length(math.Max(float64(lo), math.Min(float64(hi), float64(v))))
+}
+
+// Reference is a requirement or a rating drawn as a dashed straight line
+// across a study plot: horizontal at y = Value, or vertical at x = Value.
+// Its label is the legend entry; the axis range always includes it.
+type Reference struct {
+	Value    float64
+	Vertical bool
+	Label    string
+}
+
+// StudySeries is one line of a sweep with the state of each point: Ys has
+// one value per x (NaN: the point has no value: the figure did not happen,
+// or the point was invalid or could not be simulated); Failed marks the
+// points that fail a rating or requirement (nil: none).
+type StudySeries struct {
+	Label  string
+	Ys     []float64
+	Failed []bool
+}
+
+// SweepChart is a figure of a sweep: one line per series against Xs.
+type SweepChart struct {
+	Title, XLabel, YLabel string
+	Xs                    []float64
+	// KeyName names what labels the series (the second swept key, say
+	// "plunger.mass"); it opens the legend.
+	KeyName string
+	Series  []StudySeries
+	Limits  []Reference
+	// FailedLabel and MissingLabel are the legend entries of the failed
+	// marker and of the no-value marker (shown when such points exist).
+	FailedLabel, MissingLabel string
+	// Notes are legend entries of text alone.
+	Notes []string
+}
+
+// Marker styles of the study plots: a failed point is a bold cross in
+// colFailed over its dot; a point without a value is an open triangle
+// pointing down, in its series' colour, in a band at the top of the plot.
+var colFailed = color.RGBA{0xd5, 0x00, 0x00, 0xff}
+
+const (
+	failedRadius       = 4.5 // pt
+	failedInsideRadius = 3.0 // pt, a cross inside a no-value triangle
+	missingRadius      = 6.0 // pt
+)
+
+// studyInk are the colours of a sweep's lines: the package's accents
+// without the reds, which mark limits and failed points here.
+var studyInk = []color.Color{colCurrent, colGap, colSwitchV, colCoilV, color.RGBA{0x00, 0x83, 0x8f, 0xff}, color.RGBA{0x8d, 0x6e, 0x63, 0xff}, ink}
+
+func studyColor(k int) color.Color { return studyInk[k%len(studyInk)] }
+
+// SweepLines draws a sweep: one line per series with dots (markers only
+// when a series has at most maxDots points), failed points crossed, points
+// without a value as triangles in a band at the top, and the limits as
+// dashed lines; the legend names the series' key, the lines, the markers
+// and the limits.
+func SweepLines(ch SweepChart) *Figure {
+	p := newPlot(ch.XLabel, ch.YLabel)
+	addGrid(p)
+	var entries []legendEntry
+	if ch.KeyName != "" && len(ch.Series) > 0 {
+		entries = append(entries, legendEntry{label: ch.KeyName + ":"})
+	}
+	lo, hi := math.Inf(1), math.Inf(-1)
+	var failX, failY []float64
+	var missing []missingPoint
+	anyFailed := false
+	for k, s := range ch.Series {
+		n := min(len(ch.Xs), len(s.Ys))
+		col := studyColor(k)
+		xs, ys := ch.Xs[:n], s.Ys[:n]
+		p.Add(linesOf(xs, ys, col, 1.4, nil)...)
+		if n <= maxDots {
+			p.Add(&dots{xs: xs, ys: ys, color: col})
+		}
+		l, h := extent(ys)
+		lo, hi = math.Min(lo, l), math.Max(hi, h)
+		for j := 0; j < n; j++ {
+			failed := j < len(s.Failed) && s.Failed[j]
+			anyFailed = anyFailed || failed
+			if !finite(ys[j]) {
+				missing = append(missing, missingPoint{x: xs[j], color: col, failed: failed})
+				continue
+			}
+			if failed {
+				failX, failY = append(failX, xs[j]), append(failY, ys[j])
+			}
+		}
+		if s.Label != "" {
+			entries = append(entries, legendEntry{label: s.Label, color: col, line: true})
+		}
+	}
+	xlo, xhi := extent(ch.Xs)
+	for _, r := range ch.Limits {
+		if !finite(r.Value) {
+			continue
+		}
+		if r.Vertical {
+			xlo, xhi = math.Min(xlo, r.Value), math.Max(xhi, r.Value)
+		} else {
+			lo, hi = math.Min(lo, r.Value), math.Max(hi, r.Value)
+		}
+	}
+	setRange(&p.X, xlo, xhi, 0.03)
+	setRange(&p.Y, lo, hi, 0.08)
+	// Points without a value sit in a band at the top, one row per series
+	// missing at the same x (so that each shows its colour).
+	row := map[float64]int{}
+	rows := 0
+	for k := range missing {
+		missing[k].row = row[missing[k].x]
+		row[missing[k].x]++
+		rows = max(rows, row[missing[k].x])
+	}
+	band := missingBand(p, rows)
+	entries = append(entries, addLimits(p, ch.Limits)...)
+	if len(missing) > 0 {
+		for _, m := range missing {
+			y := band(m.row)
+			p.Add(&glyphs{xs: []float64{m.x}, ys: []float64{y}, shape: openTriangle{down: true}, color: m.color, radius: missingRadius})
+			if m.failed {
+				p.Add(&glyphs{xs: []float64{m.x}, ys: []float64{y}, shape: boldCross{}, color: colFailed, radius: failedInsideRadius})
+			}
+		}
+		if ch.MissingLabel != "" {
+			entries = append(entries, legendEntry{label: ch.MissingLabel, glyph: openTriangle{down: true}, color: ink, radius: missingRadius})
+		}
+	}
+	if len(failX) > 0 {
+		p.Add(&glyphs{xs: failX, ys: failY, shape: boldCross{}, color: colFailed, radius: failedRadius})
+	}
+	if anyFailed && ch.FailedLabel != "" {
+		entries = append(entries, legendEntry{label: ch.FailedLabel, glyph: boldCross{}, color: colFailed, radius: failedRadius})
+	}
+	for _, n := range ch.Notes {
+		entries = append(entries, legendEntry{label: n})
+	}
+	return studyFigure(ch.Title, p, entries)
+}
+
+// missingPoint is a sweep point without a value; row is its place in
+// the band at the top.
+type missingPoint struct {
+	x      float64
+	color  color.Color
+	failed bool
+	row    int
+}
+
+// missingBand widens the y axis by a band at the top with rows for the
+// markers of points without a value, and returns the y of each row (row 0
+// at the top).
+func missingBand(p *gplot.Plot, rows int) func(row int) float64 {
+	span := p.Y.Max - p.Y.Min
+	const step = 0.06 // of the span, per row
+	if rows > 0 {
+		p.Y.Max += step * float64(rows) * span
+	}
+	top := p.Y.Max
+	return func(row int) float64 { return top - step*span*(float64(row)+0.5) }
+}
+
+// addLimits draws the references as dashed lines across the plot and
+// returns their legend entries.
+func addLimits(p *gplot.Plot, refs []Reference) []legendEntry {
+	var out []legendEntry
+	dash := []vg.Length{vg.Points(6), vg.Points(3)}
+	for _, r := range refs {
+		if !finite(r.Value) {
+			continue
+		}
+		p.Add(&referenceLine{ref: r, sty: draw.LineStyle{Color: colLimit, Width: vg.Points(1.4), Dashes: dash}})
+		out = append(out, legendEntry{label: r.Label, color: colLimit, dash: dash, line: true})
+	}
+	return out
+}
+
+// referenceLine draws a Reference from edge to edge of the plot.
+type referenceLine struct {
+	ref Reference
+	sty draw.LineStyle
+}
+
+func (l *referenceLine) Plot(c draw.Canvas, p *gplot.Plot) {
+	trX, trY := p.Transforms(&c)
+	if l.ref.Vertical {
+		x := trX(l.ref.Value)
+		c.StrokeLine2(l.sty, x, c.Min.Y, x, c.Max.Y)
+		return
+	}
+	y := trY(l.ref.Value)
+	c.StrokeLine2(l.sty, c.Min.X, y, c.Max.X, y)
+}
+
+// ScatterPoint is a point of a marked scatter: Y NaN puts it in a band at
+// the top of the plot (no value: the plunger did not release, say);
+// Failed crosses it.
+type ScatterPoint struct {
+	X, Y   float64
+	Label  string
+	Failed bool
+}
+
+// Scatter is a labelled scatter with requirement and rating lines (the
+// clamp comparison: release time against peak switch voltage, the release
+// requirement horizontal, the derated switch rating vertical).
+type Scatter struct {
+	Title, XLabel, YLabel string
+	Points                []ScatterPoint
+	Limits                []Reference
+	// Legend entries of the ordinary point, the failed marker and the
+	// no-value marker (each shown when such points exist).
+	PointLabel, FailedLabel, MissingLabel string
+	Notes                                 []string
+}
+
+// MarkedScatter draws s: each point as a dot with its label beside it,
+// failed points crossed, points without a value as triangles in a band at
+// the top, and the limits as dashed lines.
+func MarkedScatter(s Scatter) *Figure {
+	p := newPlot(s.XLabel, s.YLabel)
+	addGrid(p)
+	var xs, ys []float64
+	anyMissing := false
+	for _, pt := range s.Points {
+		if !finite(pt.X) {
+			continue
+		}
+		xs = append(xs, pt.X)
+		if finite(pt.Y) {
+			ys = append(ys, pt.Y)
+		} else {
+			anyMissing = true
+		}
+	}
+	xlo, xhi := extent(xs)
+	ylo, yhi := extent(ys)
+	for _, r := range s.Limits {
+		if !finite(r.Value) {
+			continue
+		}
+		if r.Vertical {
+			xlo, xhi = math.Min(xlo, r.Value), math.Max(xhi, r.Value)
+		} else {
+			ylo, yhi = math.Min(ylo, r.Value), math.Max(yhi, r.Value)
+		}
+	}
+	setRange(&p.X, xlo, xhi, 0.12)
+	setRange(&p.Y, ylo, yhi, 0.12)
+	rows := 0
+	if anyMissing {
+		rows = 1
+	}
+	yMissing := missingBand(p, rows)(0)
+	var entries []legendEntry
+	const radius = 3.5
+	var placed []LabelledPoint
+	var okX, okY, failX, failY, failInX, failInY, missX, missY []float64
+	for _, pt := range s.Points {
+		if !finite(pt.X) {
+			continue
+		}
+		y := pt.Y
+		if !finite(y) {
+			y = yMissing
+			missX, missY = append(missX, pt.X), append(missY, y)
+		} else {
+			okX, okY = append(okX, pt.X), append(okY, y)
+		}
+		if pt.Failed && finite(pt.Y) {
+			failX, failY = append(failX, pt.X), append(failY, y)
+		} else if pt.Failed {
+			failInX, failInY = append(failInX, pt.X), append(failInY, y)
+		}
+		placed = append(placed, LabelledPoint{X: pt.X, Y: y, Label: pt.Label})
+	}
+	entries = append(entries, addLimits(p, s.Limits)...)
+	if len(okX) > 0 {
+		p.Add(&dots{xs: okX, ys: okY, color: colCurrent, radius: radius})
+		if s.PointLabel != "" {
+			entries = append(entries, legendEntry{label: s.PointLabel, glyph: draw.CircleGlyph{}, color: colCurrent, radius: radius})
+		}
+	}
+	if len(missX) > 0 {
+		p.Add(&glyphs{xs: missX, ys: missY, shape: openTriangle{down: true}, color: colCurrent, radius: missingRadius})
+		if s.MissingLabel != "" {
+			entries = append(entries, legendEntry{label: s.MissingLabel, glyph: openTriangle{down: true}, color: colCurrent, radius: missingRadius})
+		}
+	}
+	if len(failX)+len(failInX) > 0 {
+		p.Add(&glyphs{xs: failX, ys: failY, shape: boldCross{}, color: colFailed, radius: failedRadius})
+		p.Add(&glyphs{xs: failInX, ys: failInY, shape: boldCross{}, color: colFailed, radius: failedInsideRadius})
+		if s.FailedLabel != "" {
+			entries = append(entries, legendEntry{label: s.FailedLabel, glyph: boldCross{}, color: colFailed, radius: failedRadius})
+		}
+	}
+	p.Add(&pointLabels{pts: placed, radius: radius})
+	for _, n := range s.Notes {
+		entries = append(entries, legendEntry{label: n})
+	}
+	return studyFigure(s.Title, p, entries)
+}
+
+func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+
+// glyphs draws a marker at each finite point.
+type glyphs struct {
+	xs, ys []float64
+	shape  draw.GlyphDrawer
+	color  color.Color
+	radius float64 // pt
+}
+
+func (g *glyphs) Plot(c draw.Canvas, p *gplot.Plot) {
+	trX, trY := p.Transforms(&c)
+	sty := draw.GlyphStyle{Color: g.color, Radius: vg.Points(g.radius), Shape: g.shape}
+	for k := range g.xs {
+		if !finite(g.xs[k]) || !finite(g.ys[k]) {
+			continue
+		}
+		c.DrawGlyph(sty, vg.Point{X: trX(g.xs[k]), Y: trY(g.ys[k])})
+	}
+}
+
+// boldCross is an × drawn with a heavy stroke (the failed marker).
+type boldCross struct{}
+
+func (boldCross) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
+	c.SetLineStyle(draw.LineStyle{Color: sty.Color, Width: vg.Points(1.8)})
+	r := sty.Radius * 0.75
+	for _, s := range []vg.Length{1, -1} {
+		var path vg.Path
+		path.Move(vg.Point{X: pt.X - r, Y: pt.Y - s*r})
+		path.Line(vg.Point{X: pt.X + r, Y: pt.Y + s*r})
+		c.Stroke(path)
+	}
+}
+
+// openTriangle is the outline of a triangle, pointing down when down is set
+// (the no-value marker).
+type openTriangle struct{ down bool }
+
+func (t openTriangle) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
+	c.SetLineStyle(draw.LineStyle{Color: sty.Color, Width: vg.Points(1.3)})
+	r := sty.Radius
+	s := vg.Length(1)
+	if t.down {
+		s = -1
+	}
+	var path vg.Path
+	path.Move(vg.Point{X: pt.X, Y: pt.Y + s*r})
+	path.Line(vg.Point{X: pt.X - r*0.866, Y: pt.Y - s*r*0.5})
+	path.Line(vg.Point{X: pt.X + r*0.866, Y: pt.Y - s*r*0.5})
+	path.Close()
+	c.Stroke(path)
+}
+
+// legendEntry is an entry of a study figure's legend: a short line (line),
+// a marker (glyph), or text alone (neither).
+type legendEntry struct {
+	label  string
+	color  color.Color
+	dash   []vg.Length
+	line   bool
+	glyph  draw.GlyphDrawer
+	radius float64 // pt, of the glyph
+}
+
+// width is the room the entry takes in a legend row (pt).
+func (e legendEntry) width(sty text.Style) vg.Length {
+	w := sty.Width(e.label) + vg.Points(14)
+	if e.line || e.glyph != nil {
+		w += vg.Points(20)
+	}
+	return w
+}
+
+// drawLegend draws the entries in rows that wrap within width, the first
+// row's top at pt, and returns the height used.
+func drawLegend(c draw.Canvas, pt vg.Point, width vg.Length, entries []legendEntry) vg.Length {
+	sty := textStyle(sizeSmall, ink)
+	asc := sty.FontExtents().Ascent
+	var rows [][]legendEntry
+	var row []legendEntry
+	var used vg.Length
+	for _, e := range entries {
+		w := e.width(sty)
+		if len(row) > 0 && used+w > width {
+			rows, row, used = append(rows, row), nil, 0
+		}
+		row, used = append(row, e), used+w
+	}
+	if len(row) > 0 {
+		rows = append(rows, row)
+	}
+	for r, row := range rows {
+		x := pt.X
+		base := pt.Y - asc - vg.Length(r)*keyLine()
+		y := base + asc*0.35
+		for _, e := range row {
+			switch {
+			case e.line:
+				c.StrokeLine2(draw.LineStyle{Color: e.color, Width: vg.Points(2), Dashes: e.dash}, x, y, x+vg.Points(16), y)
+			case e.glyph != nil:
+				c.DrawGlyphNoClip(draw.GlyphStyle{Color: e.color, Radius: vg.Points(e.radius), Shape: e.glyph}, vg.Point{X: x + vg.Points(8), Y: y})
+			}
+			if e.line || e.glyph != nil {
+				x += vg.Points(20)
+			}
+			c.FillText(sty, vg.Point{X: x, Y: base}, e.label)
+			x += sty.Width(e.label) + vg.Points(14)
+		}
+	}
+	return vg.Length(len(rows)) * keyLine()
+}
+
+// studyFigure is a figure of one plot with a title and a legend of
+// entries above it (single's layout, with markers and text in the legend).
+func studyFigure(title string, p *gplot.Plot, entries []legendEntry) *Figure {
+	return &Figure{Width: StudyWidth, Height: StudyHeight, Title: title, draw: func(c draw.Canvas) {
+		pad := vg.Points(8)
+		c = draw.Crop(c, pad, -pad, pad, -pad)
+		top := c.Max.Y
+		ts := textStyle(sizeTitle, ink)
+		ts.YAlign = draw.YTop
+		c.FillText(ts, vg.Point{X: c.Min.X, Y: top}, title)
+		top -= ts.Height(title) + vg.Points(4)
+		if len(entries) > 0 {
+			top -= drawLegend(c, vg.Point{X: c.Min.X + vg.Points(4), Y: top}, c.Max.X-c.Min.X, entries) + vg.Points(2)
+		}
+		c.Max.Y = top
+		p.Draw(c)
+	}}
 }
