@@ -1,8 +1,6 @@
 package main
 
 import (
-	"encoding/csv"
-	"encoding/json"
 	"fmt"
 	"io"
 	"math"
@@ -25,8 +23,8 @@ func sweepCommand(stdout io.Writer) *cli.Command {
 		ArgsUsage: "SCENARIO.yaml --vary KEY=FROM:TO:STEPS [--vary ...]",
 		Flags: []cli.Flag{
 			&cli.StringSliceFlag{Name: "vary", Usage: "a scenario key and its values: KEY=FROM:TO:STEPS (\"supply.voltage=18 V:30 V:13\") or KEY=V1,V2,... (\"plunger.mass=5 g,8 g\"); repeat for a grid"},
-			&cli.StringFlag{Name: "csv", Usage: "write the results to `FILE` (CSV)"},
-			&cli.StringFlag{Name: "json", Usage: "write the results to `FILE` (JSON)"},
+			&cli.StringFlag{Name: "csv", Usage: "write one row per point to `FILE` (CSV; - for standard output instead of the table)"},
+			&cli.StringFlag{Name: "json", Usage: "write the points to `FILE` (JSON; - for standard output instead of the table)"},
 			&cli.IntFlag{Name: "workers", Usage: "parallel simulations (default: all cores)"},
 			&cli.StringFlag{Name: "plot", Usage: "plot a figure versus the first key, one line per value of the second, to `FILE`"},
 			&cli.StringFlag{Name: "figure", Value: "pull-in", Usage: "figure to plot: " + strings.Join(sweepFigureNames, ", ")},
@@ -88,7 +86,10 @@ func cmdSweep(c *cli.Context, w io.Writer) error {
 		}
 	}
 	pts := sw.Sweep(vs, c.Int("workers"), progress)
-	writeSweepTable(w, vs, pts)
+	text := !toStdout(c, "json", "csv")
+	if text {
+		writeSweepTable(w, vs, pts)
+	}
 
 	var ran, invalid, failedSim, failing int
 	for _, p := range pts {
@@ -104,22 +105,26 @@ func cmdSweep(c *cli.Context, w io.Writer) error {
 			failedSim++
 		}
 	}
-	if invalid > 0 {
+	if invalid > 0 && text {
 		fmt.Fprintf(w, "\n%d of %d points invalid: their values break a rule of the scenario (reason in the row).\n", invalid, len(pts))
 	}
+	sc, err := sweepScenario(path)
+	if err != nil {
+		return err
+	}
+	cols := sweepColumns(vs)
 	outs := newOutputs(w)
 	if f := c.String("csv"); f != "" {
-		outs.add(f, func(out io.Writer) error { return writeSweepCSV(out, vs, pts) })
+		keys := sweepRecords(cols, []coilkick.SweepPoint{{}})[0].keys()
+		outs.add(f, func(out io.Writer) error { return writeRecordsCSV(out, keys, sweepRecords(cols, pts)) })
 	}
 	if f := c.String("json"); f != "" {
-		outs.add(f, func(out io.Writer) error {
-			enc := json.NewEncoder(out)
-			enc.SetIndent("", "  ")
-			return enc.Encode(pts)
-		})
+		doc := sweepDoc{jsonHeader: jsonHeader{Version: version(), Command: "sweep", Scenario: sc.Name, Source: path},
+			Keys: cols, Points: sweepRecords(cols, pts), Run: ran, Invalid: invalid, NotSimulated: failedSim, Failing: failing}
+		outs.add(f, func(out io.Writer) error { return writeJSONDoc(out, doc) })
 	}
 	if f := c.String("plot"); f != "" && ran > 0 {
-		if err := outs.addFigure(f, sweepPlot(c.String("figure"), xs, vs, pts)); err != nil {
+		if err := outs.addFigure(f, sweepPlot(c.String("figure"), xs, vs, pts, sc.Limits)); err != nil {
 			return err
 		}
 	}
@@ -221,9 +226,30 @@ func sweepFigure(name string, f coilkick.SweepFigures) (float64, string, bool) {
 	return 0, "", false
 }
 
+// sweepLimits maps a --figure to the scenario's limit on it: its key and
+// its value (SI; 0: none given).
+func sweepLimit(figure string, lim coilkick.LimitsSpec) (key string, value float64) {
+	switch figure {
+	case "pull-in":
+		return "ratings.pull-in time", lim.MaxPullIn
+	case "release":
+		return "ratings.release time", lim.MaxRelease
+	case "drop":
+		return "ratings.drop time", lim.MaxDrop
+	case "switch voltage":
+		return "ratings.switch voltage", lim.SwitchVoltage
+	case "clamp energy":
+		return "ratings.clamp energy", lim.ClampEnergy
+	}
+	return "", 0
+}
+
 // sweepPlot draws a figure versus the first key (xs), one line per value
-// of the other keys; points without figures are gaps in their line.
-func sweepPlot(figure string, xs []float64, vs []coilkick.Vary, pts []coilkick.SweepPoint) *plot.Figure {
+// of the other keys (named in the legend), the scenario's limit on the
+// figure as a dashed line, failed points crossed, and points without the
+// figure (it did not happen, the point was invalid or not simulated) as
+// markers at the top.
+func sweepPlot(figure string, xs []float64, vs []coilkick.Vary, pts []coilkick.SweepPoint, lim coilkick.LimitsSpec) *plot.Figure {
 	nx := len(xs)
 	xLabel := vs[0].Key
 	if f := strings.Fields(vs[0].Values[0]); len(f) > 1 {
@@ -231,55 +257,237 @@ func sweepPlot(figure string, xs []float64, vs []coilkick.Vary, pts []coilkick.S
 	}
 	inner := len(pts) / nx
 	_, yLabel, _ := sweepFigure(figure, coilkick.SweepFigures{})
-	var series []plot.Series
+	ch := plot.SweepChart{Title: yLabel + " versus " + vs[0].Key, XLabel: xLabel, YLabel: yLabel, Xs: xs,
+		FailedLabel:  "point fails a rating or requirement",
+		MissingLabel: "no value (did not happen, invalid or not simulated)"}
+	if len(vs) > 1 {
+		var keys []string
+		for _, v := range vs[1:] {
+			keys = append(keys, v.Key)
+		}
+		ch.KeyName = strings.Join(keys, ", ")
+	}
 	for j := 0; j < inner; j++ {
-		ys := make([]float64, nx)
-		label := "all"
+		s := plot.StudySeries{Ys: make([]float64, nx), Failed: make([]bool, nx)}
 		for k := 0; k < nx; k++ {
 			p := pts[k*inner+j]
-			ys[k] = math.NaN() // a gap: no figures at this point
+			s.Ys[k] = math.NaN() // no figures at this point
 			if p.Figures != nil {
-				ys[k], _, _ = sweepFigure(figure, *p.Figures)
+				s.Ys[k], _, _ = sweepFigure(figure, *p.Figures)
 			}
+			s.Failed[k] = p.Failed
 			if len(p.Values) > 1 {
-				label = strings.Join(p.Values[1:], ", ")
+				s.Label = strings.Join(p.Values[1:], ", ")
 			}
 		}
-		series = append(series, plot.Series{Label: label, Ys: ys})
+		ch.Series = append(ch.Series, s)
 	}
-	return plot.Lines(yLabel+" versus "+vs[0].Key, xLabel, yLabel, xs, series)
+	if key, value := sweepLimit(figure, lim); key != "" {
+		swept := false
+		for _, v := range vs {
+			swept = swept || v.Key == key
+		}
+		switch {
+		case swept:
+			ch.Notes = append(ch.Notes, "limit not drawn: "+key+" is swept")
+		case value > 0:
+			y := sweepFigureScale(figure) * value
+			unit := strings.TrimSuffix(yLabel[strings.LastIndex(yLabel, "(")+1:], ")")
+			ch.Limits = append(ch.Limits, plot.Reference{Value: y,
+				Label: fmt.Sprintf("limit: %s %s %s", key, strconv.FormatFloat(y, 'g', 4, 64), unit)})
+		}
+	}
+	return plot.SweepLines(ch)
 }
 
-// writeSweepCSV writes one row per point; a point without figures has
-// empty figure cells, "failed" true and its reason under "invalid" or
-// "error".
-func writeSweepCSV(w io.Writer, vs []coilkick.Vary, pts []coilkick.SweepPoint) error {
-	cw := csv.NewWriter(w)
-	var h []string
+// sweepFigureScale is the factor from SI to the unit sweepFigure plots the
+// figure in (ms, mJ).
+func sweepFigureScale(figure string) float64 {
+	switch figure {
+	case "pull-in", "release", "drop", "clamp energy":
+		return 1e3
+	}
+	return 1
+}
+
+// sweepScenario reads the scenario's name and limits (for the JSON header
+// and the plot's limit line).
+func sweepScenario(path string) (*coilkick.Scenario, error) {
+	data, err := coilkick.ReadInput(path, "scenario file", coilkick.MaxScenarioBytes)
+	if err != nil {
+		return nil, err
+	}
+	return coilkick.Parse(data, path)
+}
+
+// sweepDoc is the sweep's --json document.
+type sweepDoc struct {
+	jsonHeader
+	Keys         []sweepColumn `json:"keys"`
+	Points       []record      `json:"points"`
+	Run          int           `json:"points_run"`
+	Invalid      int           `json:"points_invalid"`
+	NotSimulated int           `json:"points_not_simulated"`
+	Failing      int           `json:"points_failing"`
+}
+
+// sweepColumn is a swept key in the machine-readable output.
+type sweepColumn struct {
+	Key string `json:"key"` // as given to --vary: "supply.voltage"
+	// Column is its key in each point and its CSV column: the key's words
+	// joined by underscores, with the unit: "supply_voltage_V".
+	Column string `json:"column"`
+	// Unit is the SI unit of its numbers (degC when every value was
+	// written in degC), "" for plain numbers and for text.
+	Unit string `json:"unit"`
+	// Text: the values are not quantities of one kind (file names, say)
+	// and are given as written.
+	Text bool               `json:"text"`
+	nums map[string]float64 // each value as written → in Unit, when !Text
+}
+
+// sweepUnits are the dimensions a swept value may have, with the SI unit
+// its column's key ends in.
+var sweepUnits = []struct {
+	dim  coilkick.Dim
+	unit string
+}{
+	{coilkick.Dimensionless, ""}, {coilkick.Voltage, "V"}, {coilkick.Current, "A"}, {coilkick.Resistance, "ohm"},
+	{coilkick.Inductance, "H"}, {coilkick.Capacitance, "F"}, {coilkick.FluxLinkage, "Wb"}, {coilkick.FluxDensity, "T"},
+	{coilkick.Frequency, "Hz"}, {coilkick.Length, "m"}, {coilkick.Area, "m2"}, {coilkick.Mass, "kg"}, {coilkick.Time, "s"},
+	{coilkick.Velocity, "m_per_s"}, {coilkick.Force, "N"}, {coilkick.ForcePerLength, "N_per_m"},
+	{coilkick.Damping, "N_s_per_m"}, {coilkick.Pressure, "Pa"}, {coilkick.Energy, "J"}, {coilkick.Power, "W"},
+	{coilkick.Temperature, "K"}, {coilkick.PerKelvin, "per_K"}, {coilkick.FieldStrength, "A_per_m"},
+	{coilkick.HeatCapacity, "J_per_K"}, {coilkick.ThermalResistance, "K_per_W"}, {coilkick.HeatTransfer, "W_per_m2_K"},
+}
+
+// sweepColumns names the swept keys' columns and reads their values as
+// numbers in SI (°C for temperatures written in degC): a key whose values
+// are all quantities of one kind is a numeric column with the unit in its
+// name; any other is text, as written. Two keys that would share a name
+// are told apart by a number before the unit.
+func sweepColumns(vs []coilkick.Vary) []sweepColumn {
+	var cols []sweepColumn
+	used := map[string]bool{}
 	for _, v := range vs {
-		h = append(h, v.Key)
-	}
-	h = append(h, "pull_in_time_s", "release_time_s", "drop_time_s", "peak_current_A", "hold_current_A",
-		"peak_switch_voltage_V", "clamp_energy_J", "avalanche_energy_J", "failed", "dropped_out", "invalid", "error")
-	cw.Write(h)
-	num := func(v float64) string { return strconv.FormatFloat(v, 'g', 10, 64) }
-	iv := func(x coilkick.Interval) string {
-		if !x.Happened {
-			return ""
+		c := sweepColumn{Key: v.Key, Text: true}
+		if unit, nums, ok := quantityValues(v.Values); ok {
+			c.Unit, c.Text, c.nums = unit, false, map[string]float64{}
+			for k, x := range nums {
+				c.nums[v.Values[k]] = x
+			}
 		}
-		return num(x.Seconds)
+		base := keyWords(v.Key)
+		name := withUnit(base, c.Unit)
+		for n := 2; used[name]; n++ {
+			name = withUnit(fmt.Sprintf("%s_%d", base, n), c.Unit)
+		}
+		used[name] = true
+		c.Column = name
+		cols = append(cols, c)
 	}
+	return cols
+}
+
+func withUnit(base, unit string) string {
+	if unit == "" {
+		return base
+	}
+	return base + "_" + unit
+}
+
+// keyWords turns a scenario key path into lower-case words joined by
+// underscores: "plunger.spring preload" → "plunger_spring_preload",
+// "ratings.pull-in time" → "ratings_pull_in_time".
+func keyWords(key string) string {
+	var b strings.Builder
+	gap := false
+	for _, r := range strings.ToLower(key) {
+		if (r >= 'a' && r <= 'z') || (r >= '0' && r <= '9') {
+			if gap && b.Len() > 0 {
+				b.WriteByte('_')
+			}
+			b.WriteRune(r)
+			gap = false
+			continue
+		}
+		gap = true
+	}
+	s := b.String()
+	if s == "" || s[0] < 'a' || s[0] > 'z' {
+		s = "key_" + s
+	}
+	return strings.TrimSuffix(s, "_")
+}
+
+// quantityValues reads values as quantities of one dimension, in SI (in
+// °C when every value is written in degC or °C); ok is false when they are
+// not all quantities of one dimension.
+func quantityValues(values []string) (unit string, nums []float64, ok bool) {
+	for _, u := range sweepUnits {
+		nums = make([]float64, len(values))
+		celsius := true
+		for k, s := range values {
+			x, err := coilkick.ParseQuantity(s, u.dim)
+			if err != nil {
+				nums = nil
+				break
+			}
+			nums[k] = x
+			t := strings.TrimSpace(s)
+			celsius = celsius && (strings.HasSuffix(t, "degC") || strings.HasSuffix(t, "°C"))
+		}
+		if nums == nil {
+			continue
+		}
+		if u.dim == coilkick.Temperature && celsius {
+			for k := range nums {
+				nums[k] = toDegC(nums[k])
+			}
+			return "degC", nums, true
+		}
+		return u.unit, nums, true
+	}
+	return "", nil, false
+}
+
+// sweepRecords are the points in the machine-readable form: the swept
+// values, then the figures (null without figures, or for a time that did
+// not happen), failed, and the reason of an invalid or failed point.
+func sweepRecords(cols []sweepColumn, pts []coilkick.SweepPoint) []record {
+	out := make([]record, 0, len(pts))
 	for _, p := range pts {
-		row := append([]string{}, p.Values...)
-		if f := p.Figures; f != nil {
-			row = append(row, iv(f.PullIn), iv(f.Release), iv(f.Drop), num(f.PeakCurrent), num(f.HoldCurrent),
-				num(f.PeakSwitchVoltage), num(f.ClampEnergy), num(f.AvalancheEnergy), strconv.FormatBool(f.Failed),
-				strconv.FormatBool(f.DroppedOut))
-		} else {
-			row = append(row, "", "", "", "", "", "", "", "", "true", "") // no figures (never zeros), failed
+		var r record
+		for k, c := range cols {
+			var v any
+			if k < len(p.Values) {
+				v = p.Values[k]
+				if !c.Text {
+					v = c.number(p.Values[k])
+				}
+			}
+			r = append(r, field{c.Column, v})
 		}
-		cw.Write(append(row, p.Invalid, p.Err))
+		var pullIn, release, drop, peak, hold, vsw, clamp, avalanche, droppedOut any
+		if f := p.Figures; f != nil {
+			pullIn, release, drop = seconds(f.PullIn), seconds(f.Release), seconds(f.Drop)
+			peak, hold, vsw = f.PeakCurrent, f.HoldCurrent, f.PeakSwitchVoltage
+			clamp, avalanche, droppedOut = f.ClampEnergy, f.AvalancheEnergy, f.DroppedOut
+		}
+		r = append(r, field{"pull_in_time_s", pullIn}, field{"release_time_s", release}, field{"drop_time_s", drop},
+			field{"peak_current_A", peak}, field{"hold_current_A", hold}, field{"peak_switch_voltage_V", vsw},
+			field{"clamp_energy_J", clamp}, field{"avalanche_energy_J", avalanche}, field{"dropped_out", droppedOut},
+			field{"failed", p.Failed}, field{"invalid", text(p.Invalid)}, field{"error", text(p.Err)})
+		out = append(out, r)
 	}
-	cw.Flush()
-	return cw.Error()
+	return out
+}
+
+// number returns the value written as s in the column's unit (nil when s
+// is not one of the key's values, which does not happen).
+func (c sweepColumn) number(s string) any {
+	if x, ok := c.nums[s]; ok {
+		return x
+	}
+	return nil
 }

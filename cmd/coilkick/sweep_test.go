@@ -154,21 +154,29 @@ func TestSweepInvalidRow(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	var pts []struct {
-		Values  []string
-		Figures *struct{ PeakCurrent float64 }
-		Invalid string
-		Err     string
+	var doc struct {
+		Points []struct {
+			Supply      *float64 `json:"supply_voltage_V"`
+			PeakCurrent *float64 `json:"peak_current_A"`
+			Failed      bool     `json:"failed"`
+			Invalid     *string  `json:"invalid"`
+			Error       *string  `json:"error"`
+		} `json:"points"`
+		Invalid int `json:"points_invalid"`
 	}
-	if err := json.Unmarshal(data, &pts); err != nil {
+	if err := json.Unmarshal(data, &doc); err != nil {
 		t.Fatal(err)
 	}
-	if len(pts) != 5 || pts[0].Figures != nil || pts[0].Invalid == "" {
+	pts := doc.Points
+	if len(pts) != 5 || pts[0].PeakCurrent != nil || pts[0].Invalid == nil || !pts[0].Failed || doc.Invalid != 1 {
 		t.Fatalf("JSON: %s", data)
 	}
-	for _, p := range pts[1:] {
-		if p.Figures == nil || !(p.Figures.PeakCurrent > 0) || p.Invalid != "" {
-			t.Errorf("JSON valid point %+v", p)
+	for k, p := range pts {
+		if p.Supply == nil || *p.Supply != float64(21+k) {
+			t.Errorf("JSON point %d: supply_voltage_V %v, want %d", k, p.Supply, 21+k)
+		}
+		if k > 0 && (p.PeakCurrent == nil || !(*p.PeakCurrent > 0) || p.Invalid != nil || p.Error != nil || p.Failed) {
+			t.Errorf("JSON valid point %d: %+v", k, p)
 		}
 	}
 	if st, err := os.Stat(plotPath); err != nil || st.Size() == 0 {
