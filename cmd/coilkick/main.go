@@ -418,13 +418,19 @@ func cmdRun(c *cli.Context, w io.Writer) error {
 	if err := outs.commit(); err != nil {
 		return err
 	}
-	if c.String("json") != "-" {
+	if !machineOnStdout(c) {
 		printSummary(w, path, md, res, &as)
 	}
 	if as.Failed() {
 		return errFailing
 	}
 	return nil
+}
+
+// machineOnStdout reports whether --json or --csv is "-": standard output
+// then carries that document alone, and the table is not printed.
+func machineOnStdout(c *cli.Context) bool {
+	return c.String("json") == "-" || c.String("csv") == "-"
 }
 
 // writeFile writes to the named file atomically (outfile.Write), or to w
