@@ -1,0 +1,148 @@
+package main
+
+import (
+	"bytes"
+	"encoding/csv"
+	"encoding/json"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+)
+
+// machineCommands is one invocation of every command that writes
+// machine-readable output, with the exit status it must give (the
+// door-strike corners fail a rating on purpose: exit 2 still writes).
+func machineCommands(dir string) []struct {
+	name string
+	args []string
+	code int
+} {
+	return []struct {
+		name string
+		args []string
+		code int
+	}{
+		{"run", []string{"run", "../../scenarios/irrigation-valve.yaml"}, exitOK},
+		{"magnet", []string{"magnet", "../../scenarios/dosing-valve-geometry.yaml"}, exitOK},
+		{"heat", []string{"heat", "../../scenarios/door-strike-duty.yaml"}, exitOK},
+		{"check", []string{"check", "../../scenarios/process-air-valve.yaml"}, exitOK},
+		{"fit", []string{"fit", "../../scenarios/irrigation-valve.yaml", "--trace", "../../testdata/fit/irrigation-scope.csv", "-o", filepath.Join(dir, "fitted.yaml")}, exitOK},
+		{"sweep", []string{"sweep", "../../scenarios/irrigation-valve.yaml", "--vary", "supply.voltage=22 V:26 V:3"}, exitOK},
+		{"corners", []string{"corners", "../../scenarios/door-strike-duty.yaml", "--samples", "4"}, exitFailing},
+		{"clamps", []string{"clamps", "../../scenarios/irrigation-valve.yaml"}, exitOK},
+		{"solve", []string{"solve", "../../scenarios/process-air-valve.yaml"}, exitOK},
+	}
+}
+
+// TestMachineJSON: every command's --json - is one JSON document on
+// standard output (nothing else there), with the common header and every
+// key, at every depth, of the form keyPattern names (README, "Machine-
+// readable output"; JSON per RFC 8259, which has no NaN or Inf).
+func TestMachineJSON(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
+	for _, tc := range machineCommands(dir) {
+		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
+			var stdout, stderr bytes.Buffer
+			args := append([]string{"coilkick"}, tc.args...)
+			if tc.name == "fit" {
+				args[len(args)-1] = filepath.Join(dir, "fitted-json.yaml")
+			}
+			code := runApp(&stdout, &stderr, append(args, "--json", "-"))
+			if code != tc.code {
+				t.Fatalf("exit %d, want %d: %s", code, tc.code, stderr.String())
+			}
+			var doc map[string]any
+			dec := json.NewDecoder(bytes.NewReader(stdout.Bytes()))
+			dec.UseNumber()
+			if err := dec.Decode(&doc); err != nil {
+				t.Fatalf("stdout is not one JSON document: %v\n%s", err, stdout.String())
+			}
+			if dec.More() {
+				t.Fatalf("stdout carries more than the JSON document")
+			}
+			if v, _ := doc["coilkick_version"].(string); v == "" {
+				t.Errorf("no coilkick_version in the header")
+			}
+			if doc["command"] != tc.name {
+				t.Errorf("command %v, want %q", doc["command"], tc.name)
+			}
+			if s, _ := doc["source"].(string); !strings.HasSuffix(s, ".yaml") {
+				t.Errorf("source %v, want the scenario file", doc["source"])
+			}
+			if s, _ := doc["scenario"].(string); s == "" {
+				t.Errorf("no scenario name in the header")
+			}
+			checkKeys(t, "", doc)
+		})
+	}
+}
+
+// checkKeys walks a decoded document: every object key matches
+// keyPattern and every number is a finite decimal.
+func checkKeys(t *testing.T, at string, v any) {
+	t.Helper()
+	switch x := v.(type) {
+	case map[string]any:
+		for k, e := range x {
+			if !keyPattern.MatchString(k) {
+				t.Errorf("key %q at %s does not match %s", k, at, keyPattern)
+			}
+			checkKeys(t, at+"."+k, e)
+		}
+	case []any:
+		for i, e := range x {
+			checkKeys(t, at+"["+strconv.Itoa(i)+"]", e)
+		}
+	case json.Number:
+		if _, err := strconv.ParseFloat(string(x), 64); err != nil {
+			t.Errorf("%s: %q is not a number", at, x)
+		}
+	}
+}
+
+// TestMachineCSV: every command's --csv - is a rectangular CSV on
+// standard output: a header of keyPattern keys, then cells that are a
+// number, empty, true/false, or (a name column) text without "NaN"/"Inf".
+func TestMachineCSV(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
+	for _, tc := range machineCommands(dir) {
+		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
+			var stdout, stderr bytes.Buffer
+			args := append([]string{"coilkick"}, tc.args...)
+			if tc.name == "fit" {
+				args[len(args)-1] = filepath.Join(dir, "fitted-csv.yaml")
+			}
+			code := runApp(&stdout, &stderr, append(args, "--csv", "-"))
+			if code != tc.code {
+				t.Fatalf("exit %d, want %d: %s", code, tc.code, stderr.String())
+			}
+			rows, err := csv.NewReader(bytes.NewReader(stdout.Bytes())).ReadAll()
+			if err != nil {
+				t.Fatalf("stdout is not CSV (or not rectangular): %v\n%s", err, stdout.String())
+			}
+			if len(rows) < 2 {
+				t.Fatalf("%d rows: want a header and at least one row", len(rows))
+			}
+			for _, k := range rows[0] {
+				if !keyPattern.MatchString(k) {
+					t.Errorf("column %q does not match %s", k, keyPattern)
+				}
+			}
+			for r, row := range rows[1:] {
+				for c, cell := range row {
+					low := strings.ToLower(cell)
+					if strings.Contains(low, "nan") || strings.Contains(low, "inf") {
+						if _, err := strconv.ParseFloat(cell, 64); err == nil {
+							t.Errorf("row %d column %s: %q is not finite", r+1, rows[0][c], cell)
+						}
+					}
+				}
+			}
+		})
+	}
+}
