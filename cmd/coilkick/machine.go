@@ -43,7 +43,7 @@ func newHeader(command string, md *coilkick.Model, path string) jsonHeader {
 // keyPattern is the form of every JSON and CSV key: lower-case words and
 // digits joined by underscores, the unit's own case kept at the end
 // (_A, _V, _Hz, _degC, _ohm).
-var keyPattern = regexp.MustCompile(`^[a-z][a-z0-9]*(_[a-z0-9]+)*(_(A|V|W|J|N|T|H|F|C|K|Hz|Wb|Pa|degC|ohm|s|m|m_per_s|N_per_m|A_per_s))?$`)
+var keyPattern = regexp.MustCompile(`^[a-z][a-z0-9]*(_[a-z0-9]+)*(_(A|V|W|J|N|T|H|F|C|K|Hz|Wb|Pa|degC|ohm|s|m|m_per_s|N_per_m|A_per_s|N_s_per_m|J_per_K|K_per_W|W_per_m2_K))?$`)
 
 // writeJSONDoc encodes doc indented, refusing a document with a number
 // that is not finite (encoding/json refuses them too, with a message that

@@ -357,7 +357,7 @@ var sweepUnits = []struct {
 	{coilkick.Frequency, "Hz"}, {coilkick.Length, "m"}, {coilkick.Area, "m2"}, {coilkick.Mass, "kg"}, {coilkick.Time, "s"},
 	{coilkick.Velocity, "m_per_s"}, {coilkick.Force, "N"}, {coilkick.ForcePerLength, "N_per_m"},
 	{coilkick.Damping, "N_s_per_m"}, {coilkick.Pressure, "Pa"}, {coilkick.Energy, "J"}, {coilkick.Power, "W"},
-	{coilkick.Temperature, "K"}, {coilkick.PerKelvin, "per_K"}, {coilkick.FieldStrength, "A_per_m"},
+	{coilkick.Temperature, "K"}, {coilkick.PerKelvin, "per_K"},
 	{coilkick.HeatCapacity, "J_per_K"}, {coilkick.ThermalResistance, "K_per_W"}, {coilkick.HeatTransfer, "W_per_m2_K"},
 }
 
