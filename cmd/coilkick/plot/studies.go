@@ -499,6 +499,13 @@ type referenceLine struct {
 
 func (l *referenceLine) Plot(c draw.Canvas, p *gplot.Plot) {
 	trX, trY := p.Transforms(&c)
+	axis := p.Y
+	if l.ref.Vertical {
+		axis = p.X
+	}
+	if l.ref.Value < axis.Min || l.ref.Value > axis.Max {
+		return // outside the plot (the callers widen the axes to include it)
+	}
 	if l.ref.Vertical {
 		x := trX(l.ref.Value)
 		c.StrokeLine2(l.sty, x, c.Min.Y, x, c.Max.Y)
