@@ -29,7 +29,7 @@ func studyCommands(stdout io.Writer) []*cli.Command {
 			Usage:     "worst case over the scenario's tolerances (and an optional Monte Carlo yield)",
 			ArgsUsage: "SCENARIO.yaml",
 			Flags: []cli.Flag{
-				&cli.IntFlag{Name: "samples", Usage: "Monte Carlo samples for a yield estimate (0: none)"},
+				&cli.IntFlag{Name: "samples", Usage: "Monte Carlo samples for a yield estimate, at most 100000", DefaultText: "0, none"},
 				&cli.Uint64Flag{Name: "seed", Value: 1, Usage: "Monte Carlo seed"},
 				&cli.StringFlag{Name: "json", Usage: "write the checks, the corners and the yield to `FILE` (JSON; - for standard output instead of the table)"},
 				&cli.StringFlag{Name: "csv", Usage: "write one row per check to `FILE` (CSV; - for standard output instead of the table)"},
@@ -52,7 +52,7 @@ func studyCommands(stdout io.Writer) []*cli.Command {
 			Usage:     "solve for the lowest supply that pulls in, the lowest hold, and the lowest clamp voltage that meets the release time",
 			ArgsUsage: "SCENARIO.yaml",
 			Flags: []cli.Flag{
-				&cli.Float64Flag{Name: "margin", Value: 1.2, Usage: "holding force margin the hold must keep"},
+				&cli.Float64Flag{Name: "margin", Value: 1.2, Usage: "holding force margin the hold must keep", DefaultText: "the scenario's ratings.hold force margin, else 1.2"},
 				&cli.StringFlag{Name: "json", Usage: "write the answers to `FILE` (JSON; - for standard output instead of the table)"},
 				&cli.StringFlag{Name: "csv", Usage: "write one row per answer to `FILE` (CSV; - for standard output instead of the table)"},
 			},

@@ -25,7 +25,7 @@ func sweepCommand(stdout io.Writer) *cli.Command {
 			&cli.StringSliceFlag{Name: "vary", Usage: "a scenario key and its values: KEY=FROM:TO:STEPS (\"supply.voltage=18 V:30 V:13\") or KEY=V1,V2,... (\"plunger.mass=5 g,8 g\"); repeat for a grid"},
 			&cli.StringFlag{Name: "csv", Usage: "write one row per point to `FILE` (CSV; - for standard output instead of the table)"},
 			&cli.StringFlag{Name: "json", Usage: "write the points to `FILE` (JSON; - for standard output instead of the table)"},
-			&cli.IntFlag{Name: "workers", Usage: "parallel simulations (default: all cores)"},
+			&cli.IntFlag{Name: "workers", Usage: "parallel simulations, 0 for all cores, at most 256", DefaultText: "all cores"},
 			&cli.StringFlag{Name: "plot", Usage: "plot a figure versus the first key, one line per value of the second, to `FILE`"},
 			&cli.StringFlag{Name: "figure", Value: "pull-in", Usage: "figure to plot: " + strings.Join(sweepFigureNames, ", ")},
 		},
