@@ -72,3 +72,23 @@ func TestCommandLineConventions(t *testing.T) {
 		})
 	}
 }
+
+// TestHelpDefaults: each option's help states its default once (a usage
+// text that says "default" and the flag package's own "(default: 0)" gave
+// two, the second wrong).
+func TestHelpDefaults(t *testing.T) {
+	t.Parallel()
+	var list bytes.Buffer
+	app := newApp(&list, &list)
+	for _, name := range commandNames(app) {
+		var stdout, stderr bytes.Buffer
+		if code := runApp(&stdout, &stderr, []string{"coilkick", "help", name}); code != exitOK {
+			t.Fatalf("help %s: exit %d: %s", name, code, stderr.String())
+		}
+		for _, line := range strings.Split(stdout.String(), "\n") {
+			if n := strings.Count(strings.ToLower(line), "default"); n > 1 {
+				t.Errorf("help %s: %d defaults on one line: %s", name, n, strings.TrimSpace(line))
+			}
+		}
+	}
+}

@@ -52,6 +52,7 @@ func writeJSONDoc(w io.Writer, doc any) error {
 	var buf bytes.Buffer
 	enc := json.NewEncoder(&buf)
 	enc.SetIndent("", "  ")
+	enc.SetEscapeHTML(false)
 	if err := enc.Encode(doc); err != nil {
 		return fmt.Errorf("JSON output: %v (a figure that is not a finite number)", err)
 	}

@@ -257,7 +257,7 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 				ArgsUsage: "SCENARIO.yaml",
 				Flags: []cli.Flag{
 					&cli.StringFlag{Name: "curves", Usage: "write force versus gap for a family of currents to `FILE` (CSV)"},
-					&cli.StringFlag{Name: "currents", Usage: "currents of the family, comma-separated, in A or with a unit (\"0.2, 500 mA\"; default: 0.25 to 1.5 × rated)"},
+					&cli.StringFlag{Name: "currents", Usage: "currents of the family, comma-separated, in A or with a unit (\"0.2, 500 mA\")", DefaultText: "0.25 to 1.5 × rated"},
 					&cli.StringFlag{Name: "plot", Usage: "plot force versus gap for the family, with spring + load, to `FILE` (.png or .svg)"},
 					&cli.StringFlag{Name: "json", Usage: "write the figures and the force curves to `FILE` (- for standard output)"},
 					&cli.StringFlag{Name: "csv", Usage: "write the figures to `FILE` as one CSV row (- for standard output)"},
