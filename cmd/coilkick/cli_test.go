@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"os"
 	"strings"
 	"testing"
 )
@@ -88,6 +89,34 @@ func TestHelpDefaults(t *testing.T) {
 		for _, line := range strings.Split(stdout.String(), "\n") {
 			if n := strings.Count(strings.ToLower(line), "default"); n > 1 {
 				t.Errorf("help %s: %d defaults on one line: %s", name, n, strings.TrimSpace(line))
+			}
+		}
+	}
+}
+
+// TestFlagsInReadme: every option of every command is named in the
+// README (as `--name` or `-o`), so the two cannot drift apart silently.
+func TestFlagsInReadme(t *testing.T) {
+	t.Parallel()
+	readme, err := os.ReadFile("../../README.md")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var sink bytes.Buffer
+	app := newApp(&sink, &sink)
+	for _, cmd := range app.Commands {
+		for _, f := range cmd.Flags {
+			for _, name := range f.Names() {
+				if name == "help" || name == "h" {
+					continue
+				}
+				form := "--" + name
+				if len(name) == 1 {
+					form = "-" + name
+				}
+				if !bytes.Contains(readme, []byte(form)) {
+					t.Errorf("%s %s is not in the README", cmd.Name, form)
+				}
 			}
 		}
 	}
