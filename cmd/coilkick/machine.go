@@ -119,10 +119,14 @@ func version() string {
 	if !ok {
 		return "unknown"
 	}
+	// Since Go 1.24 a build from a git clone stamps a pseudo-version with
+	// the commit (and +dirty); the revision is added only where it did not
+	// (a build with -buildvcs=false keeps "(devel)").
 	v := bi.Main.Version
-	if v == "" {
-		v = "(devel)"
+	if v != "" && v != "(devel)" {
+		return v
 	}
+	v = "(devel)"
 	for _, s := range bi.Settings {
 		if s.Key == "vcs.revision" && len(s.Value) >= 12 {
 			v += " " + s.Value[:12]
