@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/csv"
 	"encoding/json"
+	"math"
 	"path/filepath"
 	"strconv"
 	"strings"
@@ -54,35 +55,45 @@ func TestMachineJSON(t *testing.T) {
 			if code != tc.code {
 				t.Fatalf("exit %d, want %d: %s", code, tc.code, stderr.String())
 			}
-			var doc map[string]any
-			dec := json.NewDecoder(bytes.NewReader(stdout.Bytes()))
-			dec.UseNumber()
-			if err := dec.Decode(&doc); err != nil {
-				t.Fatalf("stdout is not one JSON document: %v\n%s", err, stdout.String())
-			}
-			if dec.More() {
-				t.Fatalf("stdout carries more than the JSON document")
-			}
-			if v, _ := doc["coilkick_version"].(string); v == "" {
-				t.Errorf("no coilkick_version in the header")
-			}
-			if doc["command"] != tc.name {
-				t.Errorf("command %v, want %q", doc["command"], tc.name)
-			}
-			if s, _ := doc["source"].(string); !strings.HasSuffix(s, ".yaml") {
-				t.Errorf("source %v, want the scenario file", doc["source"])
-			}
-			if s, _ := doc["scenario"].(string); s == "" {
-				t.Errorf("no scenario name in the header")
-			}
-			checkKeys(t, "", doc)
+			machineDoc(t, stdout.Bytes(), tc.name)
 		})
 	}
 }
 
-// checkKeys walks a decoded document: every object key matches
-// keyPattern and every number is a finite decimal.
-func checkKeys(t *testing.T, at string, v any) {
+// machineDoc checks that out is exactly one JSON document with the common
+// header of command, every key of keyPattern's form and every number
+// finite, at every depth; it returns the document and the set of its keys.
+func machineDoc(t *testing.T, out []byte, command string) (map[string]any, map[string]bool) {
+	t.Helper()
+	dec := json.NewDecoder(bytes.NewReader(out))
+	dec.UseNumber()
+	var doc map[string]any
+	if err := dec.Decode(&doc); err != nil {
+		t.Fatalf("standard output is not one JSON document: %v\n%.2000s", err, out)
+	}
+	if dec.More() {
+		t.Fatalf("standard output carries more than the JSON document (the text?)")
+	}
+	if v, _ := doc["coilkick_version"].(string); v == "" {
+		t.Errorf("no coilkick_version in the header")
+	}
+	if doc["command"] != command {
+		t.Errorf("command %v, want %q", doc["command"], command)
+	}
+	if s, _ := doc["source"].(string); !strings.HasSuffix(s, ".yaml") {
+		t.Errorf("source %v, want the scenario file", doc["source"])
+	}
+	if s, _ := doc["scenario"].(string); s == "" {
+		t.Errorf("no scenario name in the header")
+	}
+	keys := map[string]bool{}
+	walkKeys(t, "", doc, keys)
+	return doc, keys
+}
+
+// walkKeys adds every object key below v to keys, failing the test on a
+// key not of keyPattern's form and on a number that is not finite.
+func walkKeys(t *testing.T, at string, v any, keys map[string]bool) {
 	t.Helper()
 	switch x := v.(type) {
 	case map[string]any:
@@ -90,15 +101,16 @@ func checkKeys(t *testing.T, at string, v any) {
 			if !keyPattern.MatchString(k) {
 				t.Errorf("key %q at %s does not match %s", k, at, keyPattern)
 			}
-			checkKeys(t, at+"."+k, e)
+			keys[k] = true
+			walkKeys(t, at+"."+k, e, keys)
 		}
 	case []any:
 		for i, e := range x {
-			checkKeys(t, at+"["+strconv.Itoa(i)+"]", e)
+			walkKeys(t, at+"["+strconv.Itoa(i)+"]", e, keys)
 		}
 	case json.Number:
-		if _, err := strconv.ParseFloat(string(x), 64); err != nil {
-			t.Errorf("%s: %q is not a number", at, x)
+		if f, err := strconv.ParseFloat(string(x), 64); err != nil || math.IsNaN(f) || math.IsInf(f, 0) {
+			t.Errorf("%s: %q is not a finite number", at, x)
 		}
 	}
 }

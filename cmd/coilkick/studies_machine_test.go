@@ -25,48 +25,6 @@ const (
 	scopeTrace   = "../../testdata/fit/irrigation-scope.csv"
 )
 
-// decodeOne decodes stdout as exactly one JSON document (numbers kept as
-// text), failing the test otherwise.
-func decodeOne(t *testing.T, stdout []byte) map[string]any {
-	t.Helper()
-	dec := json.NewDecoder(bytes.NewReader(stdout))
-	dec.UseNumber()
-	var doc map[string]any
-	if err := dec.Decode(&doc); err != nil {
-		t.Fatalf("standard output is not a JSON document: %v\n%.2000s", err, stdout)
-	}
-	if dec.More() {
-		t.Fatalf("standard output carries more than the JSON document (the text?)")
-	}
-	return doc
-}
-
-// walkDoc checks every key against keyPattern and every number for being
-// finite, at every depth; it returns the number of keys seen.
-func walkDoc(t *testing.T, at string, v any) int {
-	t.Helper()
-	n := 0
-	switch x := v.(type) {
-	case map[string]any:
-		for k, e := range x {
-			n++
-			if !keyPattern.MatchString(k) {
-				t.Errorf("key %q at %s does not match the key pattern", k, at)
-			}
-			n += walkDoc(t, at+"."+k, e)
-		}
-	case []any:
-		for i, e := range x {
-			n += walkDoc(t, at+"["+strconv.Itoa(i)+"]", e)
-		}
-	case json.Number:
-		if f, err := strconv.ParseFloat(string(x), 64); err != nil || math.IsNaN(f) || math.IsInf(f, 0) {
-			t.Errorf("%s: %q is not a finite number", at, x)
-		}
-	}
-	return n
-}
-
 // lookup follows a dotted path of object keys ("coil.turns").
 func lookup(t *testing.T, doc map[string]any, path string) any {
 	t.Helper()
@@ -231,18 +189,9 @@ func TestStudiesJSON(t *testing.T) {
 			if code != c.code {
 				t.Fatalf("exit %d, want %d\n%s", code, c.code, stderr.String())
 			}
-			doc := decodeOne(t, stdout.Bytes())
-			if n := walkDoc(t, "", doc); n < 5 {
-				t.Errorf("%d keys", n)
-			}
-			if cmd := strings.Fields(c.name)[0]; doc["command"] != cmd {
-				t.Errorf("command %v, want %s", doc["command"], cmd)
-			}
-			if v, _ := doc["coilkick_version"].(string); v == "" {
-				t.Errorf("no coilkick_version")
-			}
-			if s, _ := doc["scenario"].(string); s == "" || !strings.HasSuffix(doc["source"].(string), ".yaml") {
-				t.Errorf("header: scenario %v, source %v", doc["scenario"], doc["source"])
+			doc, keys := machineDoc(t, stdout.Bytes(), strings.Fields(c.name)[0])
+			if len(keys) < 5 {
+				t.Errorf("%d keys", len(keys))
 			}
 			c.check(t, doc)
 		})
@@ -386,8 +335,7 @@ func TestStudiesMachineFailures(t *testing.T) {
 	if code := run(&stdout, &stderr, []string{"coilkick", "fit", gapLawDemo, "--trace", badTrace, "--json", "-", "--keep-failed"}); code != exitError {
 		t.Fatalf("failed fit with --keep-failed: exit %d, want 1", code)
 	}
-	doc := decodeOne(t, stdout.Bytes())
-	walkDoc(t, "", doc)
+	doc, _ := machineDoc(t, stdout.Bytes(), "fit")
 	if doc["failed"] != true || len(doc["failure"].([]any)) == 0 {
 		t.Errorf("failed %v, failure %v; want true and the reasons", doc["failed"], doc["failure"])
 	}
@@ -415,8 +363,7 @@ func TestStudiesMachineFailures(t *testing.T) {
 	if code := run(&stdout, &stderr, []string{"coilkick", "heat", hot, "--json", "-"}); code != exitFailing {
 		t.Fatalf("hot heat study: exit %d, want 2\n%s", code, stderr.String())
 	}
-	doc = decodeOne(t, stdout.Bytes())
-	walkDoc(t, "", doc)
+	doc, _ = machineDoc(t, stdout.Bytes(), "heat")
 	if doc["failed"] != true || lookup(t, doc, "insulation.pass") != false {
 		t.Errorf("failed %v, insulation.pass %v; want true, false", doc["failed"], lookup(t, doc, "insulation.pass"))
 	}

@@ -65,31 +65,6 @@ func runStudy(t *testing.T, args ...string) (int, []byte, string) {
 	return code, out.Bytes(), errb.String()
 }
 
-// studyKeys walks a decoded document and returns every object key; it
-// fails the test on a key not of keyPattern's form and on a number that
-// is not finite.
-func studyKeys(t *testing.T, at string, v any, keys map[string]bool) {
-	t.Helper()
-	switch x := v.(type) {
-	case map[string]any:
-		for k, e := range x {
-			if !keyPattern.MatchString(k) {
-				t.Errorf("key %q at %s is not of the form %s", k, at, keyPattern)
-			}
-			keys[k] = true
-			studyKeys(t, at+"."+k, e, keys)
-		}
-	case []any:
-		for i, e := range x {
-			studyKeys(t, at+"["+strconv.Itoa(i)+"]", e, keys)
-		}
-	case json.Number:
-		if f, err := strconv.ParseFloat(string(x), 64); err != nil || math.IsInf(f, 0) || math.IsNaN(f) {
-			t.Errorf("%s: %q is not a finite number", at, x)
-		}
-	}
-}
-
 // readmeSection returns the backquoted names of the README's section
 // "### command" under "## Machine-readable output" and of that part's
 // introduction.
@@ -172,26 +147,10 @@ func TestStudyOutputJSON(t *testing.T) {
 			if code != tc.code {
 				t.Fatalf("exit %d, want %d: %s", code, tc.code, errs)
 			}
-			dec := json.NewDecoder(bytes.NewReader(out))
-			dec.UseNumber()
-			var doc map[string]any
-			if err := dec.Decode(&doc); err != nil {
-				t.Fatalf("standard output is not a JSON document: %v\n%.1000s", err, out)
+			doc, keys := machineDoc(t, out, tc.command)
+			if doc["source"] != tc.args[1] {
+				t.Errorf("source %v, want %q", doc["source"], tc.args[1])
 			}
-			if dec.More() {
-				t.Fatalf("standard output carries more than the JSON document:\n%.2000s", out)
-			}
-			if v, _ := doc["coilkick_version"].(string); v == "" {
-				t.Error("no coilkick_version")
-			}
-			if doc["command"] != tc.command || doc["source"] != tc.args[1] {
-				t.Errorf("command %v, source %v; want %q, %q", doc["command"], doc["source"], tc.command, tc.args[1])
-			}
-			if s, _ := doc["scenario"].(string); s == "" {
-				t.Error("no scenario name")
-			}
-			keys := map[string]bool{}
-			studyKeys(t, "", doc, keys)
 			documented := readmeSection(t, tc.command)
 			for k := range keys {
 				if !documented[k] {
