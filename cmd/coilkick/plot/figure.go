@@ -407,6 +407,16 @@ func extent(vs ...[]float64) (lo, hi float64) {
 
 // single returns a figure of one plot with a title and an optional key row.
 func single(title string, w, h vg.Length, p *gplot.Plot, keys []key) *Figure {
+	var row func(c draw.Canvas, at vg.Point, width vg.Length) vg.Length
+	if len(keys) > 0 {
+		row = func(c draw.Canvas, at vg.Point, width vg.Length) vg.Length { return drawKeys(c, at, width, keys) }
+	}
+	return titled(title, w, h, p, row)
+}
+
+// titled returns a figure of one plot below its title and, when row is
+// not nil, a row the function draws (keys, a legend) returning its height.
+func titled(title string, w, h vg.Length, p *gplot.Plot, row func(c draw.Canvas, at vg.Point, width vg.Length) vg.Length) *Figure {
 	return &Figure{Width: w, Height: h, Title: title, draw: func(c draw.Canvas) {
 		pad := vg.Points(8)
 		c = draw.Crop(c, pad, -pad, pad, -pad)
@@ -415,8 +425,8 @@ func single(title string, w, h vg.Length, p *gplot.Plot, keys []key) *Figure {
 		ts.YAlign = draw.YTop
 		c.FillText(ts, vg.Point{X: c.Min.X, Y: top}, title)
 		top -= ts.Height(title) + vg.Points(4)
-		if len(keys) > 0 {
-			top -= drawKeys(c, vg.Point{X: c.Min.X + vg.Points(4), Y: top}, c.Max.X-c.Min.X, keys) + vg.Points(2)
+		if row != nil {
+			top -= row(c, vg.Point{X: c.Min.X + vg.Points(4), Y: top}, c.Max.X-c.Min.X) + vg.Points(2)
 		}
 		c.Max.Y = top
 		p.Draw(c)

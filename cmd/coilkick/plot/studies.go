@@ -740,18 +740,9 @@ func drawLegend(c draw.Canvas, pt vg.Point, width vg.Length, entries []legendEnt
 // studyFigure is a figure of one plot with a title and a legend of
 // entries above it (single's layout, with markers and text in the legend).
 func studyFigure(title string, p *gplot.Plot, entries []legendEntry) *Figure {
-	return &Figure{Width: StudyWidth, Height: StudyHeight, Title: title, draw: func(c draw.Canvas) {
-		pad := vg.Points(8)
-		c = draw.Crop(c, pad, -pad, pad, -pad)
-		top := c.Max.Y
-		ts := textStyle(sizeTitle, ink)
-		ts.YAlign = draw.YTop
-		c.FillText(ts, vg.Point{X: c.Min.X, Y: top}, title)
-		top -= ts.Height(title) + vg.Points(4)
-		if len(entries) > 0 {
-			top -= drawLegend(c, vg.Point{X: c.Min.X + vg.Points(4), Y: top}, c.Max.X-c.Min.X, entries) + vg.Points(2)
-		}
-		c.Max.Y = top
-		p.Draw(c)
-	}}
+	var row func(c draw.Canvas, at vg.Point, width vg.Length) vg.Length
+	if len(entries) > 0 {
+		row = func(c draw.Canvas, at vg.Point, width vg.Length) vg.Length { return drawLegend(c, at, width, entries) }
+	}
+	return titled(title, StudyWidth, StudyHeight, p, row)
 }
