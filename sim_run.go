@@ -38,10 +38,10 @@ type Options struct {
 	SampleTimes []float64
 	// FollowRing keeps the switch node's ring after turn-off cycle by
 	// cycle instead of retiring it to its energy once it can no longer
-	// reach a threshold (ring.go): slower, the same figures.
+	// reach a threshold (sim_ring.go): slower, the same figures.
 	FollowRing bool
 	// FollowPeriods integrates every period of a chopped hold instead of
-	// repeating its periodic steady state (periodic.go): slower, the same
+	// repeating its periodic steady state (sim_periodic.go): slower, the same
 	// figures.
 	FollowPeriods bool
 }
@@ -158,7 +158,7 @@ type SolverStats struct {
 	// StiffSteps: accepted steps taken by the implicit (Rosenbrock) method.
 	StiffSteps int
 	// PeriodsRepeated: periods of a chopped hold's periodic steady state
-	// repeated instead of integrated (periodic.go).
+	// repeated instead of integrated (sim_periodic.go).
 	PeriodsRepeated int
 	Method          string
 }
@@ -193,9 +193,9 @@ type run struct {
 	noRetire            bool            // follow the ring cycle by cycle
 	ringBandAt          float64         // V, the coil-voltage band the retired ring must stay within
 	ringUnsafe          bool            // the retired ring's envelope came near a threshold
-	scale               []float64       // the integrator's state scales (ring.go activates sRing)
+	scale               []float64       // the integrator's state scales (sim_ring.go activates sRing)
 	cols                []int           // scratch for dynamic
-	per                 periodic        // turn-ons of a chopped hold (periodic.go)
+	per                 periodic        // turn-ons of a chopped hold (sim_periodic.go)
 	noFastForward       bool            // integrate every period
 	tol                 float64         // the integrator's relative tolerance
 	off                 [nState]float64 // state at the de-energize command

@@ -92,7 +92,7 @@ type Metrics struct {
 	// de-energize command. Release and drop are measured only then.
 	SeatedAtTurnOff bool
 	// RingRetired: de-energize → the switch node's ring was retired to its
-	// averaged energy (ring.go); not Happened when it was followed to the
+	// averaged energy (sim_ring.go); not Happened when it was followed to the
 	// end. RingEnergy (J): its energy then; FinalRingEnergy (J): at the end.
 	RingRetired                 Interval
 	RingEnergy, FinalRingEnergy float64

@@ -20,7 +20,7 @@ const (
 	sBus             // V: supply bulk capacitor voltage (when fitted)
 	sWinding         // K: winding temperature (when a thermal model is given)
 	sHousing         // K: housing temperature (two-node thermal model)
-	sRing            // J: energy of the retired switch-node ring (ring.go)
+	sRing            // J: energy of the retired switch-node ring (sim_ring.go)
 	qSupply          // J delivered by the ideal source
 	qCoilR           // J in the coil resistance
 	qSource          // J in the source resistance
@@ -84,7 +84,7 @@ type system struct {
 	// lastCurrent is the coil current of the last guardsAt (A).
 	lastCurrent float64
 	// ringRetired: the switch node's ring is followed by its energy
-	// (ring.go); the node capacitance has left the drive, retiredC (F) and
+	// (sim_ring.go); the node capacitance has left the drive, retiredC (F) and
 	// retiredCoss (F) are what it was.
 	ringRetired           bool
 	retiredC, retiredCoss float64

@@ -91,7 +91,7 @@ func (m *Model) scales() []float64 {
 	if m.CoreLossResistance == 0 {
 		sc[qCore] = -1 // unused: out of the error norm
 	}
-	// The retired ring's energy (ring.go) enters the error norm only once
+	// The retired ring's energy (sim_ring.go) enters the error norm only once
 	// the ring is retired, with its energy then as the scale, so that runs
 	// before retirement stay exactly as they were.
 	sc[sRing] = -1
