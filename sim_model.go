@@ -61,20 +61,20 @@ type Model struct {
 
 // CoilResistance returns the coil resistance at the run's winding
 // temperature (ohm).
-func (m *Model) CoilResistance() float64 { return m.Coil.ResistanceAt(m.Temperature) }
+func (md *Model) CoilResistance() float64 { return md.Coil.ResistanceAt(md.Temperature) }
 
 // scales returns the typical magnitude of each state, for the absolute
 // tolerances.
-func (m *Model) scales() []float64 {
+func (md *Model) scales() []float64 {
 	sc := make([]float64, nState)
-	v0 := m.Drive.Supply.Voltage
+	v0 := md.Drive.Supply.Voltage
 	// Current scale: the steady current, or the ramp reached in the on
 	// time when the coil's time constant is long.
-	rt := m.CoilResistance() + m.Drive.Supply.SourceResistance + m.Drive.Switch.OnResistance
-	lOpen := m.Magnet.FluxLinkage(1, m.Plunger.GapMax)
-	iScale := math.Min(v0/rt, v0*(m.Timing.DeenergizeAt-m.Timing.EnergizeAt)/lOpen)
-	stroke := m.Plunger.GapMax - m.Plunger.GapMin
-	lam := m.Magnet.FluxLinkage(iScale, m.Plunger.GapMin)
+	rt := md.CoilResistance() + md.Drive.Supply.SourceResistance + md.Drive.Switch.OnResistance
+	lOpen := md.Magnet.FluxLinkage(1, md.Plunger.GapMax)
+	iScale := math.Min(v0/rt, v0*(md.Timing.DeenergizeAt-md.Timing.EnergizeAt)/lOpen)
+	stroke := md.Plunger.GapMax - md.Plunger.GapMin
+	lam := md.Magnet.FluxLinkage(iScale, md.Plunger.GapMin)
 	tau := lOpen / rt
 	sc[sFlux] = lam
 	sc[sGap] = stroke
@@ -88,7 +88,7 @@ func (m *Model) scales() []float64 {
 	for k := qSupply; k < nState; k++ {
 		sc[k] = e
 	}
-	if m.CoreLossResistance == 0 {
+	if md.CoreLossResistance == 0 {
 		sc[qCore] = -1 // unused: out of the error norm
 	}
 	// The retired ring's energy (sim_ring.go) enters the error norm only once

@@ -207,7 +207,6 @@ type run struct {
 	swEstWin            float64 // J, the same at the window start
 	winMin              float64 // A, coil current extremes in the window
 	winMax              float64
-	quiet               bool // chopping: mode changes are not logged
 
 	riseTime, fallTime float64
 
@@ -220,7 +219,6 @@ type run struct {
 
 	g     [maxGuardCount]float64
 	ys    [nState]float64 // scratch
-	yInit [nState]float64
 	capE0 float64
 	wf0   float64
 }
@@ -878,12 +876,13 @@ func sourceName(md *Model) string {
 	return "scenario"
 }
 
-// ZenoBounces: this many bounces in a row at one stop end in the plunger
-// resting there.
+// ZenoBounces is the number of bounces in a row at one stop after which
+// the plunger rests there.
 const ZenoBounces = 100
 
-// ResidualLimit: a run whose energy balance leaves more than this fraction
-// of the largest energy that flowed unexplained has failed (a sign or
+// ResidualLimit is the bound of a run's energy residual: a run whose
+// energy balance leaves more than this fraction of the largest energy
+// that flowed unexplained has failed (a sign or
 // coupling error, or an integration gone wrong); its figures are not
 // trustworthy. The demos leave 1e-8 to 1e-6.
 const ResidualLimit = 1e-4

@@ -37,8 +37,6 @@ const (
 	nState
 
 	stateJac = qSupply
-
-	nQuad = nState - qSupply
 )
 
 // Mechanical modes.
@@ -217,15 +215,6 @@ func (s *system) turnOffMode(i float64) circuit.Mode {
 		return circuit.Off
 	}
 	return s.drive.TurnOffMode(i)
-}
-
-// coreCurrent returns the current in the core-loss resistance at the
-// operating point in s.pt (A).
-func (s *system) coreCurrent() float64 {
-	if s.rp == 0 {
-		return 0
-	}
-	return s.pt.CoilVoltage / s.rp
 }
 
 func (s *system) deriv(_ float64, y, dy []float64) {

@@ -168,9 +168,6 @@ func cornerLabel(c Corner, tol Tolerances) string {
 // corners lists the full factorial of the toleranced parameters' extremes
 // and the cold and hot winding.
 func corners(md *Model, tol Tolerances) []Corner {
-	type axis struct {
-		vals []float64
-	}
 	ext := func(t float64) []float64 {
 		if t > 0 {
 			return []float64{-t, t}
