@@ -1,0 +1,208 @@
+package coilkick
+
+import (
+	"go/ast"
+	"go/parser"
+	"go/token"
+	"io/fs"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// Limits of a function outside the tests: lines from "func" to the closing
+// brace, and cyclomatic complexity (McCabe 1976, "A Complexity Measure",
+// IEEE Trans. Software Eng. SE-2(4): 1 + one per if, for, range, non-
+// default case and && or ||, as the gocyclo tool counts). The thresholds
+// are common practice, no source.
+const (
+	maxFuncLines      = 80
+	maxFuncComplexity = 20
+)
+
+// longMarker in a function's doc comment, followed by the reason, lets it
+// exceed the limits (a table of data, a state machine read best whole).
+const longMarker = "Long: "
+
+// overLimit lists the functions still over the limits, with their size
+// when the limit was introduced: they may shrink, never grow; an entry
+// within the limits must be removed.
+var overLimit = map[string][2]int{
+	"circuit.Control.Validate":          {38, 29},
+	"circuit.Drive.SolveRail":           {158, 28},
+	"circuit.Drive.Validate":            {47, 23},
+	"cmd/coilkick.buildReport":          {184, 47},
+	"cmd/coilkick.checkFlagValues":      {46, 22},
+	"cmd/coilkick.checkOutputs":         {65, 27},
+	"cmd/coilkick.cmdFit":               {129, 37},
+	"cmd/coilkick.cmdMagnet":            {70, 25},
+	"cmd/coilkick.cmdSolve":             {78, 22},
+	"cmd/coilkick.cmdSweep":             {90, 27},
+	"cmd/coilkick/plot.MarkedScatter":   {83, 21},
+	"cmd/coilkick/plot.SweepLines":      {83, 23},
+	"cmd/coilkick/plot.drawStacked":     {161, 24},
+	"coilkick.Build":                    {173, 42},
+	"coilkick.DetectEvents":             {136, 35},
+	"coilkick.Fit":                      {321, 71},
+	"coilkick.Model.Assess":             {94, 33},
+	"coilkick.ParseVary":                {82, 28},
+	"coilkick.ReadTraceCSV":             {190, 53},
+	"coilkick.Simulate":                 {111, 24},
+	"coilkick.heatModel.run":            {115, 41},
+	"coilkick.odeIntegrator.run":        {197, 43},
+	"coilkick.run.mechEvent":            {89, 31},
+	"coilkick.scenarioLoader.load":      {128, 24},
+	"coilkick.scenarioLoader.loadDrive": {80, 25},
+	"coilkick.splitNumber":              {41, 23},
+	"magnet.ReadTableCSV":               {100, 27},
+	"magnet.checkGrid":                  {90, 39},
+	"magnet.newBHTable":                 {56, 22},
+}
+
+// TestFunctionSize: no function of the module (outside tests) is longer
+// than maxFuncLines or more complex than maxFuncComplexity unless its doc
+// comment says why (longMarker).
+func TestFunctionSize(t *testing.T) {
+	t.Parallel()
+	fset := token.NewFileSet()
+	seen := map[string]bool{}
+	err := filepath.WalkDir(".", func(path string, d fs.DirEntry, err error) error {
+		if err != nil {
+			return err
+		}
+		if d.IsDir() {
+			if path != "." && (d.Name() == "testdata" || strings.HasPrefix(d.Name(), ".")) {
+				return filepath.SkipDir
+			}
+			return nil
+		}
+		if !strings.HasSuffix(path, ".go") || strings.HasSuffix(path, "_test.go") {
+			return nil
+		}
+		f, err := parser.ParseFile(fset, path, nil, parser.ParseComments)
+		if err != nil {
+			return err
+		}
+		for _, decl := range f.Decls {
+			fd, ok := decl.(*ast.FuncDecl)
+			if !ok || fd.Body == nil {
+				continue
+			}
+			pkg := filepath.ToSlash(filepath.Dir(path))
+			if pkg == "." {
+				pkg = "coilkick"
+			}
+			name := pkg + "." + funcName(fd)
+			lines := fset.Position(fd.End()).Line - fset.Position(fd.Pos()).Line + 1
+			cyc := complexity(fd)
+			if lines <= maxFuncLines && cyc <= maxFuncComplexity {
+				if _, ok := overLimit[name]; ok {
+					t.Errorf("%s: %d lines, complexity %d, now within the limits: remove it from overLimit", name, lines, cyc)
+				}
+				continue
+			}
+			if reason := longReason(fd.Doc); reason != "" {
+				continue
+			}
+			if was, ok := overLimit[name]; ok {
+				seen[name] = true
+				if lines > was[0] || cyc > was[1] {
+					t.Errorf("%s grew: %d lines, complexity %d (was %d, %d)", name, lines, cyc, was[0], was[1])
+				}
+				continue
+			}
+			t.Errorf("%s (%s): %d lines, complexity %d, over %d lines or %d: split it, or say why in its doc comment (%q)",
+				name, fset.Position(fd.Pos()), lines, cyc, maxFuncLines, maxFuncComplexity, longMarker)
+		}
+		return nil
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for name := range overLimit {
+		if !seen[name] {
+			t.Logf("overLimit lists %s, which is gone or within the limits", name)
+		}
+	}
+}
+
+// funcName is Recv.Name or Name.
+func funcName(fd *ast.FuncDecl) string {
+	if fd.Recv == nil || len(fd.Recv.List) == 0 {
+		return fd.Name.Name
+	}
+	typ := fd.Recv.List[0].Type
+	if s, ok := typ.(*ast.StarExpr); ok {
+		typ = s.X
+	}
+	if ix, ok := typ.(*ast.IndexExpr); ok {
+		typ = ix.X
+	}
+	if id, ok := typ.(*ast.Ident); ok {
+		return id.Name + "." + fd.Name.Name
+	}
+	return fd.Name.Name
+}
+
+// complexity is the cyclomatic complexity of a function (see the limits).
+func complexity(fd *ast.FuncDecl) int {
+	c := 1
+	ast.Inspect(fd.Body, func(n ast.Node) bool {
+		switch x := n.(type) {
+		case *ast.IfStmt, *ast.ForStmt, *ast.RangeStmt:
+			c++
+		case *ast.CaseClause:
+			if x.List != nil {
+				c++
+			}
+		case *ast.CommClause:
+			if x.Comm != nil {
+				c++
+			}
+		case *ast.BinaryExpr:
+			if x.Op == token.LAND || x.Op == token.LOR {
+				c++
+			}
+		}
+		return true
+	})
+	return c
+}
+
+// longReason returns the reason after longMarker in a doc comment, or "".
+func longReason(doc *ast.CommentGroup) string {
+	if doc == nil {
+		return ""
+	}
+	text := doc.Text()
+	k := strings.Index(text, longMarker)
+	if k < 0 {
+		return ""
+	}
+	reason := strings.TrimSpace(text[k+len(longMarker):])
+	if len(reason) < 20 {
+		return "" // a marker needs a reason
+	}
+	return reason
+}
+
+// TestComplexityCount: the counting rule on known shapes (McCabe: a
+// straight function is 1, each decision adds 1).
+func TestComplexityCount(t *testing.T) {
+	t.Parallel()
+	src := `package p
+func a() {}
+func b(x int) int { if x > 0 && x < 3 { return 1 }; for i := 0; i < x; i++ {}; switch x { case 1: case 2, 3: default: }; return 0 }
+`
+	f, err := parser.ParseFile(token.NewFileSet(), "p.go", src, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := map[string]int{"a": 1, "b": 6}
+	for _, d := range f.Decls {
+		fd := d.(*ast.FuncDecl)
+		if got := complexity(fd); got != want[fd.Name.Name] {
+			t.Errorf("complexity(%s) = %d, want %d", fd.Name.Name, got, want[fd.Name.Name])
+		}
+	}
+}
