@@ -5,7 +5,9 @@ import (
 	"go/parser"
 	"go/token"
 	"io/fs"
+	"os"
 	"path/filepath"
+	"regexp"
 	"strings"
 	"testing"
 )
@@ -203,6 +205,80 @@ func b(x int) int { if x > 0 && x < 3 { return 1 }; for i := 0; i < x; i++ {}; s
 		fd := d.(*ast.FuncDecl)
 		if got := complexity(fd); got != want[fd.Name.Name] {
 			t.Errorf("complexity(%s) = %d, want %d", fd.Name.Name, got, want[fd.Name.Name])
+		}
+	}
+}
+
+// TestPackageMap: doc.go maps every file of the package and names only
+// files and identifiers that exist, so the map cannot go stale silently.
+func TestPackageMap(t *testing.T) {
+	t.Parallel()
+	fset := token.NewFileSet()
+	pkgs, err := parser.ParseDir(fset, ".", func(fi fs.FileInfo) bool { return !strings.HasSuffix(fi.Name(), "_test.go") }, parser.ParseComments)
+	if err != nil {
+		t.Fatal(err)
+	}
+	pkg := pkgs["coilkick"]
+	var doc string
+	members := map[string]bool{} // "Type.Member" and top-level names
+	for path, f := range pkg.Files {
+		if filepath.Base(path) == "doc.go" {
+			doc = f.Doc.Text()
+		}
+		for _, decl := range f.Decls {
+			switch d := decl.(type) {
+			case *ast.FuncDecl:
+				members[funcName(d)] = true
+			case *ast.GenDecl:
+				for _, spec := range d.Specs {
+					ts, ok := spec.(*ast.TypeSpec)
+					if !ok {
+						continue
+					}
+					members[ts.Name.Name] = true
+					if st, ok := ts.Type.(*ast.StructType); ok {
+						for _, fl := range st.Fields.List {
+							for _, n := range fl.Names {
+								members[ts.Name.Name+"."+n.Name] = true
+							}
+						}
+					}
+				}
+			}
+		}
+	}
+	if doc == "" {
+		t.Fatal("doc.go has no package comment")
+	}
+	// Every file named exists; every file is named, or is a section file
+	// of the scenario_<section>.go pattern the map describes.
+	named := map[string]bool{}
+	for _, m := range regexp.MustCompile(`\b[a-z_]+\.go\b`).FindAllString(doc, -1) {
+		named[m] = true
+		if m == "scenario_<section>.go" {
+			continue
+		}
+		if _, err := os.Stat(m); err != nil {
+			t.Errorf("doc.go names %s, which does not exist", m)
+		}
+	}
+	for path := range pkg.Files {
+		base := filepath.Base(path)
+		if base != "doc.go" && !named[base] && !(strings.HasPrefix(base, "scenario_") && strings.Contains(doc, "scenario_<section>.go")) {
+			t.Errorf("doc.go does not map %s", base)
+		}
+	}
+	// Every Type.member it names exists (package-qualified names aside).
+	for _, m := range regexp.MustCompile(`\b([A-Za-z]\w*)\.([A-Za-z]\w*)\b`).FindAllStringSubmatch(doc, -1) {
+		switch m[1] {
+		case "circuit", "magnet", "mech", "cmd", "coilkick":
+			continue
+		}
+		if m[2] == "go" {
+			continue
+		}
+		if !members[m[0]] {
+			t.Errorf("doc.go names %s, which is not a method or field of the package", m[0])
 		}
 	}
 }
