@@ -214,14 +214,22 @@ func b(x int) int { if x > 0 && x < 3 { return 1 }; for i := 0; i < x; i++ {}; s
 func TestPackageMap(t *testing.T) {
 	t.Parallel()
 	fset := token.NewFileSet()
-	pkgs, err := parser.ParseDir(fset, ".", func(fi fs.FileInfo) bool { return !strings.HasSuffix(fi.Name(), "_test.go") }, parser.ParseComments)
+	paths, err := filepath.Glob("*.go")
 	if err != nil {
 		t.Fatal(err)
 	}
-	pkg := pkgs["coilkick"]
+	files := map[string]*ast.File{}
+	for _, path := range paths {
+		if strings.HasSuffix(path, "_test.go") {
+			continue
+		}
+		if files[path], err = parser.ParseFile(fset, path, nil, parser.ParseComments); err != nil {
+			t.Fatal(err)
+		}
+	}
 	var doc string
 	members := map[string]bool{} // "Type.Member" and top-level names
-	for path, f := range pkg.Files {
+	for path, f := range files {
 		if filepath.Base(path) == "doc.go" {
 			doc = f.Doc.Text()
 		}
@@ -262,7 +270,7 @@ func TestPackageMap(t *testing.T) {
 			t.Errorf("doc.go names %s, which does not exist", m)
 		}
 	}
-	for path := range pkg.Files {
+	for path := range files {
 		base := filepath.Base(path)
 		if base != "doc.go" && !named[base] && !(strings.HasPrefix(base, "scenario_") && strings.Contains(doc, "scenario_<section>.go")) {
 			t.Errorf("doc.go does not map %s", base)
