@@ -86,6 +86,16 @@ type Drive struct {
 
 // Validate reports a drive that cannot be simulated.
 func (d *Drive) Validate() error {
+	if err := d.validateRatings(); err != nil {
+		return err
+	}
+	return d.Suppressor.validate(d.Supply.Voltage, d.Switch.BreakdownVoltage)
+}
+
+// validateRatings checks the supply, the switch and the suppressor's
+// resistance and capacitance (NaN-safe: every test is written so that NaN
+// fails it).
+func (d *Drive) validateRatings() error {
 	s, sw, p := d.Supply, d.Switch, d.Suppressor
 	switch {
 	case !(s.Voltage > 0):
@@ -105,30 +115,36 @@ func (d *Drive) Validate() error {
 	case !(p.Capacitance >= 0):
 		return errors.New("circuit: suppressor capacitance must not be negative")
 	}
-	switch p.Kind {
+	return nil
+}
+
+// validate checks the part's kind and the values that kind needs, against
+// the supply voltage and the switch's breakdown voltage (V).
+func (s Suppressor) validate(supply, breakdown float64) error {
+	switch s.Kind {
 	case None:
 	case Freewheel, DiodeZener:
-		if !(p.Voltage > 0) {
-			return fmt.Errorf("circuit: %v voltage must be positive", p.Kind)
+		if !(s.Voltage > 0) {
+			return fmt.Errorf("circuit: %v voltage must be positive", s.Kind)
 		}
 	case TVS:
-		if !(p.Voltage > s.Voltage) {
-			return fmt.Errorf("circuit: TVS clamp %g V must exceed the supply %g V, or it conducts while the coil is on", p.Voltage, s.Voltage)
+		if !(s.Voltage > supply) {
+			return fmt.Errorf("circuit: TVS clamp %g V must exceed the supply %g V, or it conducts while the coil is on", s.Voltage, supply)
 		}
 	case SwitchClamp:
-		if !(p.Voltage > s.Voltage) || !(p.Voltage < sw.BreakdownVoltage) {
-			return fmt.Errorf("circuit: switch clamp %g V must lie between the supply %g V and the switch breakdown %g V", p.Voltage, s.Voltage, sw.BreakdownVoltage)
+		if !(s.Voltage > supply) || !(s.Voltage < breakdown) {
+			return fmt.Errorf("circuit: switch clamp %g V must lie between the supply %g V and the switch breakdown %g V", s.Voltage, supply, breakdown)
 		}
 	case Snubber:
-		if !(p.Resistance > 0) || !(p.Capacitance > 0) {
+		if !(s.Resistance > 0) || !(s.Capacitance > 0) {
 			return errors.New("circuit: snubber needs a positive resistance and capacitance")
 		}
 	case Bridge:
-		if !(p.Voltage > 0) {
+		if !(s.Voltage > 0) {
 			return errors.New("circuit: reverse drive needs the bridge diodes' forward drop")
 		}
 	default:
-		return fmt.Errorf("circuit: unknown suppressor kind %d", int(p.Kind))
+		return fmt.Errorf("circuit: unknown suppressor kind %d", int(s.Kind))
 	}
 	return nil
 }
@@ -206,164 +222,224 @@ func (d *Drive) Solve(m Mode, iL, vC, vS float64, pt *Point) {
 
 // SolveRail is Solve with the supply's source voltage v0 (V) and source
 // resistance rs (ohm) given: a boosted supply, or the bulk capacitor's
-// voltage behind no resistance.
+// voltage behind no resistance. Each mode's branch laws are in its own
+// solve function below, which returns the snubber current; the snubber's
+// and the source's terms are added here.
 func (d *Drive) SolveRail(m Mode, v0, rs, iL, vC, vS float64, pt *Point) {
 	*pt = Point{}
-	sup := &d.Suppressor
-	snub := sup.Kind == Snubber
 	var ip float64 // snubber current, rail to switch node
 	switch m {
 	case On:
-		ron := d.Switch.OnResistance
-		if sup.Kind == Bridge {
-			ron *= 2 // two switches of the bridge in series with the coil
-		}
-		rt := rs + ron
-		var vcoil float64
-		if snub {
-			// v_coil = V0 − Rt·(iL + ip), ip = (v_coil − vS)/Rsn.
-			k := rt / sup.Resistance
-			vcoil = (v0 - rt*iL + k*vS) / (1 + k)
-			ip = (vcoil - vS) / sup.Resistance
-		} else {
-			vcoil = v0 - rt*iL
-		}
-		isw := iL + ip
-		pt.CoilVoltage = vcoil
-		pt.SwitchVoltage = d.Switch.OnResistance * isw // the low-side switch's node (one switch of a bridge)
-		pt.SupplyCurrent = isw
-		pt.SwitchCurrent = isw
-		pt.PSwitch = ron * isw * isw
+		ip = d.solveOn(v0, rs, iL, vS, pt)
 	case Off:
-		switch {
-		case d.HasSwitchCap():
-			if snub {
-				ip = (v0 - rs*iL - vC - vS) / (sup.Resistance + rs)
-			}
-			// The coil's terminal current (and the snubber's) reaches the
-			// node and charges both capacitances there; the winding
-			// capacitance's own current returns to the rail, so the supply
-			// carries only the switch capacitance's share.
-			in := iL + ip
-			cn := d.NodeCapacitance()
-			is := in * d.Switch.OutputCapacitance / cn
-			pt.SupplyCurrent = is
-			pt.SwitchVoltage = vC
-			pt.CoilVoltage = v0 - rs*is - vC
-			pt.DSwitchCap = in / cn
-		case snub:
-			// All coil current goes round through the snubber.
-			ip = -iL
-			pt.CoilVoltage = vS + sup.Resistance*ip
-			pt.SwitchVoltage = v0 - pt.CoilVoltage
-		default:
-			pt.CurrentPinned = true
-			pt.SwitchVoltage = v0
-		}
+		ip = d.solveOff(v0, rs, iL, vC, vS, pt)
 	case CoilClamp, CoilClampRev:
-		// Suppressor across the coil carries the whole coil current. The
-		// laws are written for the conducting direction and continued
-		// analytically past zero current (no |i|), so that the integrator
-		// sees a smooth right-hand side up to the located end of conduction.
-		a := iL
-		if m == CoilClampRev {
-			a = -iL
-		}
-		vcl := sup.Voltage + sup.Resistance*a
-		pt.CoilVoltage = -vcl
-		if m == CoilClampRev {
-			pt.CoilVoltage = vcl
-		}
-		pt.SwitchVoltage = v0 - pt.CoilVoltage
-		pt.ClampCurrent = a
-		pt.PClamp = vcl * a
+		d.solveCoilClamp(m, v0, iL, pt)
 	case Recirc:
-		// The slow-decay path across the coil, written for the conducting
-		// direction (continued analytically past zero). A snubber across the
-		// coil shares the loop: the diode carries iL + ip, and
-		// ip = (−Vd − Rd·iL − vS)/(Rsn + Rd) from KVL round coil and snubber.
-		rd := d.Recirc.Resistance
-		if snub {
-			ip = (-d.Recirc.Drop - rd*iL - vS) / (sup.Resistance + rd)
-		}
-		id := iL + ip
-		vd := d.Recirc.Drop + rd*id
-		pt.CoilVoltage = -vd
-		pt.SwitchVoltage = v0 + vd
-		pt.PDiode = vd * id
+		ip = d.solveRecirc(v0, iL, vS, pt)
 	case BridgeReturn, BridgeReturnRev:
-		// Two bridge diodes in series return the coil current to the rail:
-		// v_coil = −(v_rail + 2·(Vd + Rd·i)) with v_rail = v0 + rs·i.
-		a := iL
-		if m == BridgeReturnRev {
-			a = -iL
-		}
-		vd := sup.Voltage + sup.Resistance*a
-		// The diodes return the coil current to the source in either
-		// direction: the source current is −|iL|.
-		is := -a
-		vrail := v0 - rs*is
-		pt.SupplyCurrent = is
-		if m == BridgeReturn {
-			pt.CoilVoltage = -(vrail + 2*vd)
-			pt.SwitchVoltage = vrail + vd
-		} else {
-			pt.CoilVoltage = vrail + 2*vd
-			pt.SwitchVoltage = -vd
-		}
-		pt.ClampCurrent = a
-		pt.PDiode = 2 * vd * a
+		d.solveBridgeReturn(m, v0, rs, iL, pt)
 	case BridgeReverse:
-		// The opposite pair of bridge switches drives the coil in reverse.
-		ron := d.Switch.OnResistance
-		is := -iL
-		vrail := v0 - rs*is
-		pt.SupplyCurrent = is
-		pt.CoilVoltage = -vrail - 2*ron*iL
-		pt.SwitchVoltage = vrail + ron*iL
-		pt.SwitchCurrent = iL
-		pt.PSwitch = 2 * ron * iL * iL
+		d.solveBridgeReverse(v0, rs, iL, pt)
 	case SwClamp, Avalanche, BodyDiode:
-		var vpin, rpin float64
-		switch m {
-		case SwClamp:
-			vpin, rpin = sup.Voltage, sup.Resistance
-		case Avalanche:
-			vpin = d.Switch.BreakdownVoltage
-		case BodyDiode:
-			vpin = -d.Switch.BodyDiodeDrop
-		}
-		if snub {
-			ip = (v0 - rs*iL - vpin - vS - rpin*iL) / (sup.Resistance + rs + rpin)
-		}
-		is := iL + ip
-		vsw := vpin + rpin*is
-		pt.SupplyCurrent = is
-		pt.SwitchVoltage = vsw
-		pt.CoilVoltage = v0 - rs*is - vsw
-		p := vsw * is
-		switch m {
-		case SwClamp:
-			pt.ClampCurrent = is
-			pt.PClamp = p
-		case Avalanche:
-			pt.SwitchCurrent = is
-			pt.PSwitch, pt.PAvalanche = p, p
-		case BodyDiode:
-			pt.SwitchCurrent = is
-			pt.PSwitch = p
-		}
+		ip = d.solvePinnedNode(m, v0, rs, iL, vS, pt)
 	}
-	if snub {
-		pt.DSnubberCap = ip / sup.Capacitance
-		pt.ClampCurrent = ip
-		pt.PClamp = sup.Resistance * ip * ip
-		if m == Off && !d.HasSwitchCap() {
-			pt.SupplyCurrent = 0
-		}
+	if d.Suppressor.Kind == Snubber {
+		d.addSnubber(m, ip, pt)
 	}
 	pt.PSupply = v0 * pt.SupplyCurrent
 	pt.PSource = rs * pt.SupplyCurrent * pt.SupplyCurrent
+}
+
+// solveOn fills pt for mode On (the switch, or a bridge's two switches,
+// conducting) and returns the snubber current (A, rail to switch node).
+func (d *Drive) solveOn(v0, rs, iL, vS float64, pt *Point) (ip float64) {
+	sup := &d.Suppressor
+	ron := d.Switch.OnResistance
+	if sup.Kind == Bridge {
+		ron *= 2 // two switches of the bridge in series with the coil
+	}
+	rt := rs + ron
+	var vcoil float64
+	if sup.Kind == Snubber {
+		// v_coil = V0 − Rt·(iL + ip), ip = (v_coil − vS)/Rsn.
+		k := rt / sup.Resistance
+		vcoil = (v0 - rt*iL + k*vS) / (1 + k)
+		ip = (vcoil - vS) / sup.Resistance
+	} else {
+		vcoil = v0 - rt*iL
+	}
+	isw := iL + ip
+	pt.CoilVoltage = vcoil
+	pt.SwitchVoltage = d.Switch.OnResistance * isw // the low-side switch's node (one switch of a bridge)
+	pt.SupplyCurrent = isw
+	pt.SwitchCurrent = isw
+	pt.PSwitch = ron * isw * isw
+	return ip
+}
+
+// solveOff fills pt for mode Off (nothing pinned: the node capacitance or
+// the snubber carries the coil current; with neither the coil is open) and
+// returns the snubber current (A).
+func (d *Drive) solveOff(v0, rs, iL, vC, vS float64, pt *Point) (ip float64) {
+	sup := &d.Suppressor
+	switch {
+	case d.HasSwitchCap():
+		if sup.Kind == Snubber {
+			ip = (v0 - rs*iL - vC - vS) / (sup.Resistance + rs)
+		}
+		// The coil's terminal current (and the snubber's) reaches the
+		// node and charges both capacitances there; the winding
+		// capacitance's own current returns to the rail, so the supply
+		// carries only the switch capacitance's share.
+		in := iL + ip
+		cn := d.NodeCapacitance()
+		is := in * d.Switch.OutputCapacitance / cn
+		pt.SupplyCurrent = is
+		pt.SwitchVoltage = vC
+		pt.CoilVoltage = v0 - rs*is - vC
+		pt.DSwitchCap = in / cn
+	case sup.Kind == Snubber:
+		// All coil current goes round through the snubber.
+		ip = -iL
+		pt.CoilVoltage = vS + sup.Resistance*ip
+		pt.SwitchVoltage = v0 - pt.CoilVoltage
+	default:
+		pt.CurrentPinned = true
+		pt.SwitchVoltage = v0
+	}
+	return ip
+}
+
+// solveCoilClamp fills pt for CoilClamp and CoilClampRev: the suppressor
+// across the coil carries the whole coil current. The laws are written for
+// the conducting direction and continued analytically past zero current
+// (no |i|), so that the integrator sees a smooth right-hand side up to the
+// located end of conduction.
+func (d *Drive) solveCoilClamp(m Mode, v0, iL float64, pt *Point) {
+	sup := &d.Suppressor
+	a := iL
+	if m == CoilClampRev {
+		a = -iL
+	}
+	vcl := sup.Voltage + sup.Resistance*a
+	pt.CoilVoltage = -vcl
+	if m == CoilClampRev {
+		pt.CoilVoltage = vcl
+	}
+	pt.SwitchVoltage = v0 - pt.CoilVoltage
+	pt.ClampCurrent = a
+	pt.PClamp = vcl * a
+}
+
+// solveRecirc fills pt for Recirc, the slow-decay path across the coil,
+// written for the conducting direction (continued analytically past zero),
+// and returns the snubber current (A). A snubber across the coil shares the
+// loop: the diode carries iL + ip, and ip = (−Vd − Rd·iL − vS)/(Rsn + Rd)
+// from KVL round coil and snubber.
+func (d *Drive) solveRecirc(v0, iL, vS float64, pt *Point) (ip float64) {
+	sup := &d.Suppressor
+	rd := d.Recirc.Resistance
+	if sup.Kind == Snubber {
+		ip = (-d.Recirc.Drop - rd*iL - vS) / (sup.Resistance + rd)
+	}
+	id := iL + ip
+	vd := d.Recirc.Drop + rd*id
+	pt.CoilVoltage = -vd
+	pt.SwitchVoltage = v0 + vd
+	pt.PDiode = vd * id
+	return ip
+}
+
+// solveBridgeReturn fills pt for BridgeReturn and BridgeReturnRev: two
+// bridge diodes in series return the coil current to the rail,
+// v_coil = −(v_rail + 2·(Vd + Rd·i)) with v_rail = v0 + rs·i (mirrored for
+// a reversed current).
+func (d *Drive) solveBridgeReturn(m Mode, v0, rs, iL float64, pt *Point) {
+	sup := &d.Suppressor
+	a := iL
+	if m == BridgeReturnRev {
+		a = -iL
+	}
+	vd := sup.Voltage + sup.Resistance*a
+	// The diodes return the coil current to the source in either
+	// direction: the source current is −|iL|.
+	is := -a
+	vrail := v0 - rs*is
+	pt.SupplyCurrent = is
+	if m == BridgeReturn {
+		pt.CoilVoltage = -(vrail + 2*vd)
+		pt.SwitchVoltage = vrail + vd
+	} else {
+		pt.CoilVoltage = vrail + 2*vd
+		pt.SwitchVoltage = -vd
+	}
+	pt.ClampCurrent = a
+	pt.PDiode = 2 * vd * a
+}
+
+// solveBridgeReverse fills pt for BridgeReverse: the opposite pair of
+// bridge switches drives the coil in reverse.
+func (d *Drive) solveBridgeReverse(v0, rs, iL float64, pt *Point) {
+	ron := d.Switch.OnResistance
+	is := -iL
+	vrail := v0 - rs*is
+	pt.SupplyCurrent = is
+	pt.CoilVoltage = -vrail - 2*ron*iL
+	pt.SwitchVoltage = vrail + ron*iL
+	pt.SwitchCurrent = iL
+	pt.PSwitch = 2 * ron * iL * iL
+}
+
+// solvePinnedNode fills pt for the modes that pin the switch node (SwClamp
+// at the clamp's voltage and dynamic resistance, Avalanche at breakdown,
+// BodyDiode one drop below ground) and returns the snubber current (A).
+func (d *Drive) solvePinnedNode(m Mode, v0, rs, iL, vS float64, pt *Point) (ip float64) {
+	sup := &d.Suppressor
+	var vpin, rpin float64
+	switch m {
+	case SwClamp:
+		vpin, rpin = sup.Voltage, sup.Resistance
+	case Avalanche:
+		vpin = d.Switch.BreakdownVoltage
+	case BodyDiode:
+		vpin = -d.Switch.BodyDiodeDrop
+	}
+	if sup.Kind == Snubber {
+		ip = (v0 - rs*iL - vpin - vS - rpin*iL) / (sup.Resistance + rs + rpin)
+	}
+	is := iL + ip
+	vsw := vpin + rpin*is
+	pt.SupplyCurrent = is
+	pt.SwitchVoltage = vsw
+	pt.CoilVoltage = v0 - rs*is - vsw
+	p := vsw * is
+	switch m {
+	case SwClamp:
+		pt.ClampCurrent = is
+		pt.PClamp = p
+	case Avalanche:
+		pt.SwitchCurrent = is
+		pt.PSwitch, pt.PAvalanche = p, p
+	case BodyDiode:
+		pt.SwitchCurrent = is
+		pt.PSwitch = p
+	}
+	return ip
+}
+
+// addSnubber books the snubber's current ip (A) in mode m: its capacitor's
+// derivative, its current and its resistor's loss. In Off without a node
+// capacitance the snubber carries the coil current round the coil and the
+// supply gives nothing.
+func (d *Drive) addSnubber(m Mode, ip float64, pt *Point) {
+	sup := &d.Suppressor
+	pt.DSnubberCap = ip / sup.Capacitance
+	pt.ClampCurrent = ip
+	pt.PClamp = sup.Resistance * ip * ip
+	if m == Off && !d.HasSwitchCap() {
+		pt.SupplyCurrent = 0
+	}
 }
 
 // MaxGuards is the largest number of guards any mode has.

@@ -64,8 +64,17 @@ type Control struct {
 	ReversePulse float64
 }
 
-// Validate reports a control law that cannot run.
+// Validate reports a control law that cannot run with the drive d.
 func (c *Control) Validate(d *Drive) error {
+	if err := c.validateMode(d.Supply.Voltage); err != nil {
+		return err
+	}
+	return c.validateWith(d)
+}
+
+// validateMode checks the settings of the control mode; supply (V) is the
+// normal supply, which a boost must exceed.
+func (c *Control) validateMode(supply float64) error {
 	switch c.Mode {
 	case Constant:
 	case PWM:
@@ -73,25 +82,38 @@ func (c *Control) Validate(d *Drive) error {
 			return errors.New("circuit: pwm needs a frequency > 0 and a duty in (0, 1]")
 		}
 	case PeakHold:
-		switch {
-		case !(c.PeakCurrent > 0) || !(c.HoldCurrent > 0) || !(c.PeakTime > 0):
-			return errors.New("circuit: peak and hold needs a peak current, a peak time and a hold current")
-		case c.HoldCurrent > c.PeakCurrent:
-			return errors.New("circuit: the hold current must not exceed the peak current")
-		case c.Regulation != Hysteresis && c.Regulation != FixedFrequency:
-			return fmt.Errorf("circuit: unknown regulation %d", int(c.Regulation))
-		case c.Regulation == Hysteresis && !(c.Band > 0 && c.Band < 2*c.HoldCurrent):
-			return errors.New("circuit: hysteresis needs a band > 0 and below twice the hold current")
-		case c.Regulation == FixedFrequency && !(c.Frequency > 0):
-			return errors.New("circuit: fixed-frequency chopping needs a frequency > 0")
-		}
+		return c.validatePeakHold()
 	case BoostHold:
-		if !(c.BoostVoltage > d.Supply.Voltage) || !(c.BoostTime > 0) {
+		if !(c.BoostVoltage > supply) || !(c.BoostTime > 0) {
 			return errors.New("circuit: boost then hold needs a boost voltage above the supply and a boost time > 0")
 		}
 	default:
 		return fmt.Errorf("circuit: unknown control mode %d", int(c.Mode))
 	}
+	return nil
+}
+
+// validatePeakHold checks the currents, the peak time and the regulation
+// of a peak-and-hold control.
+func (c *Control) validatePeakHold() error {
+	switch {
+	case !(c.PeakCurrent > 0) || !(c.HoldCurrent > 0) || !(c.PeakTime > 0):
+		return errors.New("circuit: peak and hold needs a peak current, a peak time and a hold current")
+	case c.HoldCurrent > c.PeakCurrent:
+		return errors.New("circuit: the hold current must not exceed the peak current")
+	case c.Regulation != Hysteresis && c.Regulation != FixedFrequency:
+		return fmt.Errorf("circuit: unknown regulation %d", int(c.Regulation))
+	case c.Regulation == Hysteresis && !(c.Band > 0 && c.Band < 2*c.HoldCurrent):
+		return errors.New("circuit: hysteresis needs a band > 0 and below twice the hold current")
+	case c.Regulation == FixedFrequency && !(c.Frequency > 0):
+		return errors.New("circuit: fixed-frequency chopping needs a frequency > 0")
+	}
+	return nil
+}
+
+// validateWith checks what the control needs of the drive: a reverse pulse
+// needs the H-bridge, and slow-decay chopping the recirculation path.
+func (c *Control) validateWith(d *Drive) error {
 	if !(c.ReversePulse >= 0) {
 		return errors.New("circuit: reverse pulse must not be negative")
 	}
