@@ -41,46 +41,46 @@ func closeRel(got, want float64) bool {
 
 // Reference parts.
 const (
-	refV0   = 24.0  // V supply
-	refBV   = 60.0  // V switch breakdown
-	refVbd  = 0.7   // V body diode drop
-	refCoss = 1e-9  // F switch output capacitance
-	refCsn  = 1e-7  // F snubber capacitor
-	refRsn  = 10.0  // ohm snubber resistor
-	refVcl  = 45.0  // V switch clamp
-	refRcl  = 0.4   // ohm switch clamp dynamic resistance
-	refVtvs = 30.0  // V TVS clamp
-	refRtvs = 0.3   // ohm TVS dynamic resistance
-	refVf   = 0.8   // V freewheel diode drop
-	refRd   = 0.02  // ohm freewheel diode resistance
-	refVdz  = 33.8  // V diode + Zener total drop
-	refRdz  = 0.5   // ohm diode + Zener resistance
-	refRs   = 0.5   // ohm source resistance
-	refRon  = 0.05  // ohm switch on-resistance
-	refILHi = 7.0   // A large coil current
-	refILLo = -3.0  // A large reverse coil current
-	refVS   = -5.0  // V a snubber capacitor voltage
-	refVC   = 12.0  // V a switch capacitor voltage
-	refIL   = 2.0   // A a typical coil current
-	refVC2  = 40.0  // V another switch capacitor voltage
-	refVS2  = 20.0  // V another snubber capacitor voltage
-	refIL2  = 0.1   // A small coil current
-	refIL3  = -0.2  // A small reverse coil current
-	refVC3  = -0.3  // V slightly negative switch capacitor voltage
-	refVS3  = 7.0   // V a snubber capacitor voltage (ignored without snubber)
-	refIL4  = 1.5   // A another coil current
-	refVdz2 = 50.0  // V a diode + Zener drop with V0 + Vdz2 > BV
-	refVtv2 = 24.5  // V a TVS clamp within one body-diode drop of the supply
-	refIL5  = 3.0   // A another coil current
-	refVS4  = 5.0   // V another snubber capacitor voltage
-	refVC4  = 0.0   // V discharged switch capacitor
-	refVS5  = 0.0   // V discharged snubber capacitor
-	refIL0  = 0.0   // A no coil current
-	refRs0  = 0.0   // ohm ideal source
-	refRon0 = 0.0   // ohm ideal switch
-	refC0   = 0.0   // F no switch capacitance
-	refRd0  = 0.0   // ohm ideal clamp
-	refBig  = 1e300 // guard value magnitude sanity bound
+	refV0         = 24.0  // V supply
+	refBV         = 60.0  // V switch breakdown
+	refVbd        = 0.7   // V body diode drop
+	refCoss       = 1e-9  // F switch output capacitance
+	refCsn        = 1e-7  // F snubber capacitor
+	refRsn        = 10.0  // ohm snubber resistor
+	refVcl        = 45.0  // V switch clamp
+	refRcl        = 0.4   // ohm switch clamp dynamic resistance
+	refVtvs       = 30.0  // V TVS clamp
+	refRtvs       = 0.3   // ohm TVS dynamic resistance
+	refVf         = 0.8   // V freewheel diode drop
+	refRd         = 0.02  // ohm freewheel diode resistance
+	refVdz        = 33.8  // V diode + Zener total drop
+	refRdz        = 0.5   // ohm diode + Zener resistance
+	refRs         = 0.5   // ohm source resistance
+	refRon        = 0.05  // ohm switch on-resistance
+	refILLarge    = 7.0   // A large coil current
+	refILLargeRev = -3.0  // A large reverse coil current
+	refVS         = -5.0  // V a snubber capacitor voltage
+	refVC         = 12.0  // V a switch capacitor voltage
+	refILTypical  = 2.0   // A a typical coil current
+	refVC2        = 40.0  // V another switch capacitor voltage
+	refVS2        = 20.0  // V another snubber capacitor voltage
+	refILSmall    = 0.1   // A small coil current
+	refILSmallRev = -0.2  // A small reverse coil current
+	refVC3        = -0.3  // V slightly negative switch capacitor voltage
+	refVS3        = 7.0   // V a snubber capacitor voltage (ignored without snubber)
+	refILModerate = 1.5   // A a moderate coil current, below the typical one
+	refVdz2       = 50.0  // V a diode + Zener drop with V0 + Vdz2 > BV
+	refVtv2       = 24.5  // V a TVS clamp within one body-diode drop of the supply
+	refILHigh     = 3.0   // A a high coil current, the size of refILLargeRev
+	refVS4        = 5.0   // V another snubber capacitor voltage
+	refVC4        = 0.0   // V discharged switch capacitor
+	refVS5        = 0.0   // V discharged snubber capacitor
+	refILZero     = 0.0   // A no coil current
+	refRs0        = 0.0   // ohm ideal source
+	refRon0       = 0.0   // ohm ideal switch
+	refC0         = 0.0   // F no switch capacitance
+	refRd0        = 0.0   // ohm ideal clamp
+	refBig        = 1e300 // guard value magnitude sanity bound
 )
 
 func refSuppressors() []Suppressor {
@@ -126,8 +126,8 @@ func driveGrid() []driveCase {
 }
 
 var (
-	posCurrents = []float64{refIL0, refIL2, refIL4, refILHi}
-	negCurrents = []float64{refIL3, refILLo}
+	posCurrents = []float64{refILZero, refILSmall, refILModerate, refILLarge}
+	negCurrents = []float64{refILSmallRev, refILLargeRev}
 	allCurrents = append(append([]float64{}, posCurrents...), negCurrents...)
 	capVoltages = []float64{refVC3, refVC4, refVC, refVC2}
 	snbVoltages = []float64{refVS, refVS5, refVS2, refVS3}
@@ -143,7 +143,7 @@ type modeCurrents struct {
 func modesFor(d *Drive) []modeCurrents {
 	out := []modeCurrents{{On, allCurrents}}
 	if d.Open() {
-		out = append(out, modeCurrents{Off, []float64{refIL0}}) // current pinned at zero
+		out = append(out, modeCurrents{Off, []float64{refILZero}}) // current pinned at zero
 	} else {
 		out = append(out, modeCurrents{Off, allCurrents})
 	}
@@ -151,14 +151,14 @@ func modesFor(d *Drive) []modeCurrents {
 		out = append(out, modeCurrents{CoilClamp, posCurrents})
 	}
 	if d.Suppressor.Kind == TVS {
-		out = append(out, modeCurrents{CoilClampRev, append([]float64{refIL0}, negCurrents...)})
+		out = append(out, modeCurrents{CoilClampRev, append([]float64{refILZero}, negCurrents...)})
 	}
 	if d.Suppressor.Kind == SwitchClamp {
 		out = append(out, modeCurrents{SwClamp, posCurrents})
 	}
 	out = append(out,
 		modeCurrents{Avalanche, posCurrents},
-		modeCurrents{BodyDiode, append([]float64{refIL0}, negCurrents...)},
+		modeCurrents{BodyDiode, append([]float64{refILZero}, negCurrents...)},
 	)
 	return out
 }
@@ -360,29 +360,29 @@ func TestSolveClosedForm(t *testing.T) {
 		wantClamp float64 // NaN: not checked
 	}{
 		// source: Ohm's law and KVL: the coil sees V0 less the drops in Rs and Ron.
-		{"on/ideal", makeDrive(refRs0, refRon0, refC0, none), On, refIL, 0, refV0, 0, nan},
-		{"on/Rs+Ron", makeDrive(refRs, refRon, refC0, none), On, refIL, 0, refV0 - (refRs+refRon)*refIL, refRon * refIL, nan},
-		{"on/Rs+Ron/negative", makeDrive(refRs, refRon, refCoss, fw), On, refILLo, 0, refV0 - (refRs+refRon)*refILLo, refRon * refILLo, nan},
-		{"on/Rs+Ron/big", makeDrive(refRs, refRon, refCoss, scl), On, refILHi, 0, refV0 - (refRs+refRon)*refILHi, refRon * refILHi, nan},
+		{"on/ideal", makeDrive(refRs0, refRon0, refC0, none), On, refILTypical, 0, refV0, 0, nan},
+		{"on/Rs+Ron", makeDrive(refRs, refRon, refC0, none), On, refILTypical, 0, refV0 - (refRs+refRon)*refILTypical, refRon * refILTypical, nan},
+		{"on/Rs+Ron/negative", makeDrive(refRs, refRon, refCoss, fw), On, refILLargeRev, 0, refV0 - (refRs+refRon)*refILLargeRev, refRon * refILLargeRev, nan},
+		{"on/Rs+Ron/big", makeDrive(refRs, refRon, refCoss, scl), On, refILLarge, 0, refV0 - (refRs+refRon)*refILLarge, refRon * refILLarge, nan},
 		// source: piecewise-linear diode model V = Vf + Rd·i across the coil, and KVL.
-		{"coilclamp/freewheel", makeDrive(refRs, refRon, refC0, fw), CoilClamp, refIL5, 0, -(refVf + refRd*refIL5), refV0 + refVf + refRd*refIL5, refIL5},
-		{"coilclamp/freewheel/Coss", makeDrive(refRs0, refRon, refCoss, fw), CoilClamp, refILHi, 0, -(refVf + refRd*refILHi), refV0 + refVf + refRd*refILHi, refILHi},
-		{"coilclamp/freewheel/ideal", makeDrive(refRs, refRon, refC0, Suppressor{Kind: Freewheel, Voltage: refVf}), CoilClamp, refIL, 0, -refVf, refV0 + refVf, refIL},
-		{"coilclamp/diodezener", makeDrive(refRs, refRon, refC0, dz), CoilClamp, refIL, 0, -(refVdz + refRdz*refIL), refV0 + refVdz + refRdz*refIL, refIL},
-		{"coilclamp/tvs", makeDrive(refRs, refRon, refC0, tvs), CoilClamp, refIL, 0, -(refVtvs + refRtvs*refIL), refV0 + refVtvs + refRtvs*refIL, refIL},
+		{"coilclamp/freewheel", makeDrive(refRs, refRon, refC0, fw), CoilClamp, refILHigh, 0, -(refVf + refRd*refILHigh), refV0 + refVf + refRd*refILHigh, refILHigh},
+		{"coilclamp/freewheel/Coss", makeDrive(refRs0, refRon, refCoss, fw), CoilClamp, refILLarge, 0, -(refVf + refRd*refILLarge), refV0 + refVf + refRd*refILLarge, refILLarge},
+		{"coilclamp/freewheel/ideal", makeDrive(refRs, refRon, refC0, Suppressor{Kind: Freewheel, Voltage: refVf}), CoilClamp, refILTypical, 0, -refVf, refV0 + refVf, refILTypical},
+		{"coilclamp/diodezener", makeDrive(refRs, refRon, refC0, dz), CoilClamp, refILTypical, 0, -(refVdz + refRdz*refILTypical), refV0 + refVdz + refRdz*refILTypical, refILTypical},
+		{"coilclamp/tvs", makeDrive(refRs, refRon, refC0, tvs), CoilClamp, refILTypical, 0, -(refVtvs + refRtvs*refILTypical), refV0 + refVtvs + refRtvs*refILTypical, refILTypical},
 		// source: bidirectional TVS model V = Vc + R·|i|, conducting the other way.
-		{"coilclamprev/tvs", makeDrive(refRs, refRon, refC0, tvs), CoilClampRev, refILLo, 0, refVtvs - refRtvs*refILLo, refV0 - refVtvs + refRtvs*refILLo, -refILLo},
+		{"coilclamprev/tvs", makeDrive(refRs, refRon, refC0, tvs), CoilClampRev, refILLargeRev, 0, refVtvs - refRtvs*refILLargeRev, refV0 - refVtvs + refRtvs*refILLargeRev, -refILLargeRev},
 		// source: clamp model V = Vcl + Rd·i at the switch node, and KVL.
-		{"swclamp", makeDrive(refRs, refRon, refC0, scl), SwClamp, refIL, 0, refV0 - refRs*refIL - (refVcl + refRcl*refIL), refVcl + refRcl*refIL, refIL},
-		{"swclamp/Coss", makeDrive(refRs0, refRon, refCoss, scl), SwClamp, refILHi, refVC, refV0 - (refVcl + refRcl*refILHi), refVcl + refRcl*refILHi, refILHi},
+		{"swclamp", makeDrive(refRs, refRon, refC0, scl), SwClamp, refILTypical, 0, refV0 - refRs*refILTypical - (refVcl + refRcl*refILTypical), refVcl + refRcl*refILTypical, refILTypical},
+		{"swclamp/Coss", makeDrive(refRs0, refRon, refCoss, scl), SwClamp, refILLarge, refVC, refV0 - (refVcl + refRcl*refILLarge), refVcl + refRcl*refILLarge, refILLarge},
 		// source: constant-voltage avalanche model (Switch doc): node at breakdown.
-		{"avalanche", makeDrive(refRs, refRon, refC0, none), Avalanche, refIL, 0, refV0 - refRs*refIL - refBV, refBV, nan},
-		{"avalanche/Coss/freewheel", makeDrive(refRs0, refRon, refCoss, fw), Avalanche, refIL4, refVC2, refV0 - refBV, refBV, nan},
+		{"avalanche", makeDrive(refRs, refRon, refC0, none), Avalanche, refILTypical, 0, refV0 - refRs*refILTypical - refBV, refBV, nan},
+		{"avalanche/Coss/freewheel", makeDrive(refRs0, refRon, refCoss, fw), Avalanche, refILModerate, refVC2, refV0 - refBV, refBV, nan},
 		// source: constant-drop body diode model (Switch doc): node at −Vbd.
-		{"bodydiode", makeDrive(refRs, refRon, refC0, none), BodyDiode, refILLo, 0, refV0 - refRs*refILLo + refVbd, -refVbd, nan},
-		{"bodydiode/Coss/tvs", makeDrive(refRs0, refRon, refCoss, tvs), BodyDiode, refIL3, refVC3, refV0 + refVbd, -refVbd, nan},
+		{"bodydiode", makeDrive(refRs, refRon, refC0, none), BodyDiode, refILLargeRev, 0, refV0 - refRs*refILLargeRev + refVbd, -refVbd, nan},
+		{"bodydiode/Coss/tvs", makeDrive(refRs0, refRon, refCoss, tvs), BodyDiode, refILSmallRev, refVC3, refV0 + refVbd, -refVbd, nan},
 		// source: Solve/Point doc: in Off with C_oss the switch node is vC; KVL.
-		{"off/Coss", makeDrive(refRs, refRon, refCoss, none), Off, refIL, refVC, refV0 - refRs*refIL - refVC, refVC, nan},
+		{"off/Coss", makeDrive(refRs, refRon, refCoss, none), Off, refILTypical, refVC, refV0 - refRs*refILTypical - refVC, refVC, nan},
 		// source: Mode doc: open coil in Off: node at the rail, no coil voltage.
 		{"off/open", makeDrive(refRs, refRon, refC0, none), Off, 0, refVC, 0, refV0, nan},
 	}
@@ -429,10 +429,10 @@ func TestSolveSnubberOn(t *testing.T) {
 		rs, ron, iL float64
 		vS          float64
 	}{
-		{"ideal", refRs0, refRon0, refIL, refVS4},
-		{"Rs+Ron", refRs, refRon, refIL, refVS4},
-		{"Rs+Ron/negative vS", refRs, refRon, refILHi, refVS},
-		{"Rs+Ron/reverse", refRs, refRon, refILLo, refVS2},
+		{"ideal", refRs0, refRon0, refILTypical, refVS4},
+		{"Rs+Ron", refRs, refRon, refILTypical, refVS4},
+		{"Rs+Ron/negative vS", refRs, refRon, refILLarge, refVS},
+		{"Rs+Ron/reverse", refRs, refRon, refILLargeRev, refVS2},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
@@ -488,22 +488,22 @@ func TestGuardsOffThresholds(t *testing.T) {
 	}{
 		// source: piecewise-linear diode model: the diode starts to conduct
 		// when the coil voltage reaches −Vf (KVL: vC = V0 − Rs·iL + Vf).
-		{"freewheel", fw, refRs, refIL, 0, refV0 - refRs*refIL + refVf, coilAt(-refVf), 1, CoilClamp},
-		{"freewheel/Rs=0", fw, 0, refILHi, 0, refV0 + refVf, coilAt(-refVf), 1, CoilClamp},
-		{"diodezener", dz, refRs, refIL, 0, refV0 - refRs*refIL + refVdz, coilAt(-refVdz), 1, CoilClamp},
-		{"tvs/forward", tvs, refRs, refIL, 0, refV0 - refRs*refIL + refVtvs, coilAt(-refVtvs), 1, CoilClamp},
+		{"freewheel", fw, refRs, refILTypical, 0, refV0 - refRs*refILTypical + refVf, coilAt(-refVf), 1, CoilClamp},
+		{"freewheel/Rs=0", fw, 0, refILLarge, 0, refV0 + refVf, coilAt(-refVf), 1, CoilClamp},
+		{"diodezener", dz, refRs, refILTypical, 0, refV0 - refRs*refILTypical + refVdz, coilAt(-refVdz), 1, CoilClamp},
+		{"tvs/forward", tvs, refRs, refILTypical, 0, refV0 - refRs*refILTypical + refVtvs, coilAt(-refVtvs), 1, CoilClamp},
 		// source: bidirectional TVS conducts when the coil voltage reaches +Vc.
-		{"tvs/reverse", tvs, refRs, refILLo, 1, refV0 - refRs*refILLo - refVtvs, coilAt(refVtvs), -1, CoilClampRev},
+		{"tvs/reverse", tvs, refRs, refILLargeRev, 1, refV0 - refRs*refILLargeRev - refVtvs, coilAt(refVtvs), -1, CoilClampRev},
 		// source: clamp conducts when the switch node reaches Vcl.
-		{"switchclamp", scl, refRs, refIL, 2, refVcl, switchAt(refVcl), 1, SwClamp},
+		{"switchclamp", scl, refRs, refILTypical, 2, refVcl, switchAt(refVcl), 1, SwClamp},
 		// source: avalanche at the breakdown voltage (Switch doc).
-		{"avalanche/none", none, refRs, refIL, 3, refBV, switchAt(refBV), 1, Avalanche},
-		{"avalanche/freewheel", fw, refRs, refIL, 3, refBV, switchAt(refBV), 1, Avalanche},
-		{"avalanche/snubber", snub, refRs, refIL, 3, refBV, switchAt(refBV), 1, Avalanche},
+		{"avalanche/none", none, refRs, refILTypical, 3, refBV, switchAt(refBV), 1, Avalanche},
+		{"avalanche/freewheel", fw, refRs, refILTypical, 3, refBV, switchAt(refBV), 1, Avalanche},
+		{"avalanche/snubber", snub, refRs, refILTypical, 3, refBV, switchAt(refBV), 1, Avalanche},
 		// source: body diode conducts when the node falls to −Vbd.
-		{"bodydiode/none", none, refRs, refILLo, 4, -refVbd, switchAt(-refVbd), -1, BodyDiode},
-		{"bodydiode/snubber", snub, refRs, refILLo, 4, -refVbd, switchAt(-refVbd), -1, BodyDiode},
-		{"bodydiode/switchclamp", scl, refRs0, refIL3, 4, -refVbd, switchAt(-refVbd), -1, BodyDiode},
+		{"bodydiode/none", none, refRs, refILLargeRev, 4, -refVbd, switchAt(-refVbd), -1, BodyDiode},
+		{"bodydiode/snubber", snub, refRs, refILLargeRev, 4, -refVbd, switchAt(-refVbd), -1, BodyDiode},
+		{"bodydiode/switchclamp", scl, refRs0, refILSmallRev, 4, -refVbd, switchAt(-refVbd), -1, BodyDiode},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
@@ -583,20 +583,20 @@ func TestGuardsInactive(t *testing.T) {
 			d := makeDrive(refRs, refRon, refCoss, tt.sup)
 			var pt Point
 			g := make([]float64, MaxGuards)
-			d.Solve(Off, refIL, refVC, refVS4, &pt)
-			n := d.Guards(Off, refIL, &pt, g)
+			d.Solve(Off, refILTypical, refVC, refVS4, &pt)
+			n := d.Guards(Off, refILTypical, &pt, g)
 			if n != MaxGuards {
-				t.Fatalf("Guards(%v, i=%g) = %d guards, want %d", Off, refIL, n, MaxGuards)
+				t.Fatalf("Guards(%v, i=%g) = %d guards, want %d", Off, refILTypical, n, MaxGuards)
 			}
 			for k := range n {
 				// source: Guards doc: a guard is negative while the mode holds;
 				// refVC = 12 V is inside every threshold here.
 				if tt.active[k] {
 					if !(g[k] < 0) || math.Abs(g[k]) > refBig {
-						t.Errorf("Guards(%v, i=%g) guard %d = %g, want finite < 0", Off, refIL, k, g[k])
+						t.Errorf("Guards(%v, i=%g) guard %d = %g, want finite < 0", Off, refILTypical, k, g[k])
 					}
 				} else if g[k] != inf {
-					t.Errorf("Guards(%v, i=%g) guard %d = %g, want -Inf (part absent)", Off, refIL, k, g[k])
+					t.Errorf("Guards(%v, i=%g) guard %d = %g, want -Inf (part absent)", Off, refILTypical, k, g[k])
 				}
 			}
 		})
@@ -617,11 +617,11 @@ func TestGuardsConducting(t *testing.T) {
 		m       Mode
 		holding float64 // a coil current for which the mode holds
 	}{
-		{"coilclamp", tvs, CoilClamp, refIL},
-		{"coilclamprev", tvs, CoilClampRev, refILLo},
-		{"swclamp", scl, SwClamp, refIL},
-		{"avalanche", none, Avalanche, refIL},
-		{"bodydiode", none, BodyDiode, refILLo},
+		{"coilclamp", tvs, CoilClamp, refILTypical},
+		{"coilclamprev", tvs, CoilClampRev, refILLargeRev},
+		{"swclamp", scl, SwClamp, refILTypical},
+		{"avalanche", none, Avalanche, refILTypical},
+		{"bodydiode", none, BodyDiode, refILLargeRev},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
@@ -655,9 +655,9 @@ func TestGuardsConducting(t *testing.T) {
 		d := makeDrive(refRs, refRon, refCoss, none)
 		var pt Point
 		g := make([]float64, MaxGuards)
-		d.Solve(On, refIL, 0, 0, &pt)
-		if n := d.Guards(On, refIL, &pt, g); n != 0 {
-			t.Errorf("Guards(%v, i=%g) = %d guards, want 0", On, refIL, n)
+		d.Solve(On, refILTypical, 0, 0, &pt)
+		if n := d.Guards(On, refILTypical, &pt, g); n != 0 {
+			t.Errorf("Guards(%v, i=%g) = %d guards, want 0", On, refILTypical, n)
 		}
 	})
 	t.Run("off/open", func(t *testing.T) {
@@ -725,26 +725,26 @@ func TestTurnOffMode(t *testing.T) {
 	}{
 		// source: TurnOffMode doc: with no capacitance or snubber the path
 		// that pins the switch node lowest takes the current at once.
-		{"open/freewheel", fw, 0, refIL, CoilClamp},
-		{"open/diodezener", dz, 0, refIL, CoilClamp},
-		{"open/tvs", tvs, 0, refIL, CoilClamp},
-		{"open/switchclamp", scl, 0, refIL, SwClamp},
-		{"open/none", none, 0, refIL, Avalanche},
-		{"open/none/negative", none, 0, refILLo, BodyDiode},
-		{"open/freewheel/negative", fw, 0, refILLo, BodyDiode},
-		{"open/switchclamp/negative", scl, 0, refILLo, BodyDiode},
-		{"open/tvs/negative", tvs, 0, refILLo, BodyDiode}, // V0 − Vtvs = −6 V < −Vbd
+		{"open/freewheel", fw, 0, refILTypical, CoilClamp},
+		{"open/diodezener", dz, 0, refILTypical, CoilClamp},
+		{"open/tvs", tvs, 0, refILTypical, CoilClamp},
+		{"open/switchclamp", scl, 0, refILTypical, SwClamp},
+		{"open/none", none, 0, refILTypical, Avalanche},
+		{"open/none/negative", none, 0, refILLargeRev, BodyDiode},
+		{"open/freewheel/negative", fw, 0, refILLargeRev, BodyDiode},
+		{"open/switchclamp/negative", scl, 0, refILLargeRev, BodyDiode},
+		{"open/tvs/negative", tvs, 0, refILLargeRev, BodyDiode}, // V0 − Vtvs = −6 V < −Vbd
 		{"open/none/zero", none, 0, 0, Off},
 		{"open/freewheel/zero", fw, 0, 0, Off},
 		// source: TurnOffMode doc: with a switch capacitance or a snubber the
 		// current has somewhere to go and the mode is Off.
-		{"coss/freewheel", fw, refCoss, refIL, Off},
-		{"coss/switchclamp", scl, refCoss, refIL, Off},
-		{"coss/none", none, refCoss, refIL, Off},
-		{"coss/none/negative", none, refCoss, refILLo, Off},
-		{"snubber", snub, 0, refIL, Off},
-		{"snubber/negative", snub, 0, refILLo, Off},
-		{"snubber/coss", snub, refCoss, refIL, Off},
+		{"coss/freewheel", fw, refCoss, refILTypical, Off},
+		{"coss/switchclamp", scl, refCoss, refILTypical, Off},
+		{"coss/none", none, refCoss, refILTypical, Off},
+		{"coss/none/negative", none, refCoss, refILLargeRev, Off},
+		{"snubber", snub, 0, refILTypical, Off},
+		{"snubber/negative", snub, 0, refILLargeRev, Off},
+		{"snubber/coss", snub, refCoss, refILTypical, Off},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
@@ -774,16 +774,15 @@ func TestTurnOffMode(t *testing.T) {
 }
 
 // TestTurnOffModeLowestPin checks TurnOffMode on an open coil when the
-// suppressor's pin voltage lies beyond another device's threshold.
-//
-// Regression (fixed): TurnOffMode ignored the thresholds of the other devices. With
-// V0 = 24 V, breakdown 60 V and a diode + Zener of 50 V (Validate accepts
-// it), an open coil at i = 2 A goes to CoilClamp, where the switch node sits
-// at 74 V, 14 V above breakdown: the switch avalanches first (as the Off
-// guards say with any C_oss > 0: guard 3 at 60 V before guard 0 at 74 V).
-// Likewise with a TVS of 24.5 V and i = −3 A it picks BodyDiode (node at
-// −0.7 V, coil at 24.7 V, 0.2 V beyond the TVS clamp) although the TVS's
-// reverse conduction (node at −0.5 V) is reached first as the node falls.
+// suppressor's pin voltage lies beyond another device's threshold: the
+// path the switch node reaches first takes the current. With V0 = 24 V,
+// breakdown 60 V and a diode + Zener of 50 V (Validate accepts it), the
+// coil clamp would put the node at 74 V, 14 V above breakdown: at i = 2 A
+// the switch avalanches first (as the Off guards say with any C_oss > 0:
+// guard 3 at 60 V before guard 0 at 74 V). With a TVS of 24.5 V and
+// i = −3 A the TVS's reverse conduction (node at −0.5 V) is reached before
+// the body diode (node at −0.7 V, which would put 24.7 V across the coil,
+// 0.2 V beyond the TVS clamp) as the node falls.
 func TestTurnOffModeLowestPin(t *testing.T) {
 	t.Parallel()
 	tests := []struct {
@@ -792,8 +791,8 @@ func TestTurnOffModeLowestPin(t *testing.T) {
 		iL   float64
 		want Mode
 	}{
-		{"diodezener beyond breakdown", Suppressor{Kind: DiodeZener, Voltage: refVdz2}, refIL, Avalanche},
-		{"tvs reverse before body diode", Suppressor{Kind: TVS, Voltage: refVtv2}, refILLo, CoilClampRev},
+		{"diodezener beyond breakdown", Suppressor{Kind: DiodeZener, Voltage: refVdz2}, refILTypical, Avalanche},
+		{"tvs reverse before body diode", Suppressor{Kind: TVS, Voltage: refVtv2}, refILLargeRev, CoilClampRev},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
@@ -883,10 +882,9 @@ func TestValidate(t *testing.T) {
 	}
 }
 
-// TestValidateNaN: regression (fixed). Validate tested the supply voltage NaN-safely
-// (!(v > 0)) but the resistances and capacitance with x < 0, which is false
-// for NaN, so a drive with SourceResistance = NaN passes and Solve then
-// returns NaN everywhere.
+// TestValidateNaN: Validate refuses a NaN resistance or capacitance (a test
+// written x < 0 would be false for NaN and let it through; Solve would then
+// return NaN everywhere).
 func TestValidateNaN(t *testing.T) {
 	t.Parallel()
 	nan := math.NaN()
@@ -958,11 +956,11 @@ func TestSolveNoAllocs(t *testing.T) {
 			g := make([]float64, MaxGuards)
 			for m := On; m <= CoilClampRev; m++ {
 				// source: Solve doc: "It does not allocate."
-				if a := testing.AllocsPerRun(100, func() { d.Solve(m, refIL, refVC, refVS4, &pt) }); a != 0 {
-					t.Errorf("Solve(%v, i=%g) allocates %g times per run, want 0", m, refIL, a)
+				if a := testing.AllocsPerRun(100, func() { d.Solve(m, refILTypical, refVC, refVS4, &pt) }); a != 0 {
+					t.Errorf("Solve(%v, i=%g) allocates %g times per run, want 0", m, refILTypical, a)
 				}
-				if a := testing.AllocsPerRun(100, func() { d.Guards(m, refIL, &pt, g) }); a != 0 {
-					t.Errorf("Guards(%v, i=%g) allocates %g times per run, want 0", m, refIL, a)
+				if a := testing.AllocsPerRun(100, func() { d.Guards(m, refILTypical, &pt, g) }); a != 0 {
+					t.Errorf("Guards(%v, i=%g) allocates %g times per run, want 0", m, refILTypical, a)
 				}
 			}
 		})

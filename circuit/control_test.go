@@ -24,30 +24,30 @@ const (
 
 // Reference parts and operating values of these tests.
 const (
-	refVbr     = 0.9    // V bridge diode forward drop
-	refRbr     = 0.05   // ohm bridge diode dynamic resistance
-	refVrc     = 0.7    // V recirculation path drop
-	refRrc     = 0.03   // ohm recirculation path resistance
-	refVboost  = 48.0   // V a boosted source voltage for SolveRail
-	refVsag    = 19.5   // V a sagging bulk-capacitor voltage for SolveRail
-	refRsBoost = 0.2    // ohm source resistance of the boost supply
-	refIPeak   = 4.0    // A peak current
-	refIHold   = 1.0    // A hold current
-	refBand    = 0.2    // A hysteresis band
-	refTPeak   = 5e-3   // s peak time
-	refTBoost  = 2e-3   // s boost time
-	refFChop   = 20e3   // Hz chopping frequency
-	refT0      = 0.0123 // s an energize time
-	refT1      = 0.75   // s a later energize time (restart)
-	refPulse   = 1e-3   // s a reverse pulse
-	refFPWM    = 2e3    // Hz a PWM frequency
-	refDuty    = 0.4    // a PWM duty
-	refTLate   = 1.0    // s a time far past every phase end above
-	refVrcBad  = -0.5   // V a negative (invalid) recirculation drop
-	refIL6     = -6.0   // A a large reversed coil current
-	refBandHi  = 1.999  // A a band just under twice the hold current
-	refDutyHi  = 1.1    // a duty above 1
-	refVBoost2 = 36.0   // V another boost voltage
+	refVbr            = 0.9    // V bridge diode forward drop
+	refRbr            = 0.05   // ohm bridge diode dynamic resistance
+	refVrc            = 0.7    // V recirculation path drop
+	refRrc            = 0.03   // ohm recirculation path resistance
+	refVboost         = 48.0   // V a boosted source voltage for SolveRail
+	refVsag           = 19.5   // V a sagging bulk-capacitor voltage for SolveRail
+	refRsBoost        = 0.2    // ohm source resistance of the boost supply
+	refIPeak          = 4.0    // A peak current
+	refIHold          = 1.0    // A hold current
+	refBand           = 0.2    // A hysteresis band
+	refTPeak          = 5e-3   // s peak time
+	refTBoost         = 2e-3   // s boost time
+	refFChop          = 20e3   // Hz chopping frequency
+	refT0             = 0.0123 // s an energize time
+	refT1             = 0.75   // s a later energize time (restart)
+	refPulse          = 1e-3   // s a reverse pulse
+	refFPWM           = 2e3    // Hz a PWM frequency
+	refDuty           = 0.4    // a PWM duty
+	refTLate          = 1.0    // s a time far past every phase end above
+	refVrcBad         = -0.5   // V a negative (invalid) recirculation drop
+	refILVeryLargeRev = -6.0   // A a reversed coil current twice refILLargeRev
+	refBandHi         = 1.999  // A a band just under twice the hold current
+	refDutyHi         = 1.1    // a duty above 1
+	refVBoost2        = 36.0   // V another boost voltage
 )
 
 func bridgeSup() Suppressor { return Suppressor{Kind: Bridge, Voltage: refVbr, Resistance: refRbr} }
@@ -88,14 +88,15 @@ func (r rail) solveInto(d *Drive, m Mode, iL, vC, vS float64, pt *Point) {
 }
 
 var (
-	ctlPos     = []float64{refIL0, refIL2, refIL4, refILHi}
-	ctlNeg     = []float64{refIL0, refIL3, refILLo, refIL6}
-	ctlBothSig = []float64{refIL6, refILLo, refIL3, refIL0, refIL2, refIL4, refILHi}
+	ctlPos     = []float64{refILZero, refILSmall, refILModerate, refILLarge}
+	ctlNeg     = []float64{refILZero, refILSmallRev, refILLargeRev, refILVeryLargeRev}
+	ctlBothSig = []float64{refILVeryLargeRev, refILLargeRev, refILSmallRev, refILZero, refILSmall, refILModerate, refILLarge}
 )
 
-// newModes lists the new modes that apply to d with the coil currents each
-// allows (the sign for which its guard is negative, and zero).
-func newModes(d *Drive) []modeCurrents {
+// recircBridgeModes lists the recirculation and H-bridge modes (On too with
+// a bridge) that apply to d with the coil currents each allows (the sign
+// for which its guard is negative, and zero).
+func recircBridgeModes(d *Drive) []modeCurrents {
 	out := []modeCurrents{{Recirc, ctlPos}}
 	if d.Suppressor.Kind == Bridge {
 		out = append(out,
@@ -108,10 +109,10 @@ func newModes(d *Drive) []modeCurrents {
 	return out
 }
 
-// newModeDrives: the bridge with and without source resistance, on-
+// recircBridgeDrives: the bridge with and without source resistance, on-
 // resistance and switch capacitance, and the recirculation path with other
 // suppressors.
-func newModeDrives() []driveCase {
+func recircBridgeDrives() []driveCase {
 	var out []driveCase
 	for _, rs := range []float64{refRs0, refRs} {
 		for _, ron := range []float64{refRon0, refRon} {
@@ -133,17 +134,15 @@ func newModeDrives() []driveCase {
 	return out
 }
 
-// TestSolveNewModesPowerBalance checks the power balance in Recirc,
+// TestSolveRecircBridgePowerBalance checks the power balance in Recirc,
 // BridgeReturn, BridgeReturnRev, BridgeReverse (and On with a bridge), with
 // Solve and with SolveRail at source voltages other than Supply.Voltage.
-func TestSolveNewModesPowerBalance(t *testing.T) {
+func TestSolveRecircBridgePowerBalance(t *testing.T) {
 	t.Parallel()
-	for _, dc := range newModeDrives() {
-		for _, mc := range newModes(&dc.d) {
+	for _, dc := range recircBridgeDrives() {
+		for _, mc := range recircBridgeModes(&dc.d) {
 			t.Run(dc.name+"/"+mc.m.String(), func(t *testing.T) {
 				t.Parallel()
-				if mc.m == BridgeReturnRev {
-				}
 				d := dc.d
 				if err := d.Validate(); err != nil {
 					t.Fatalf("Validate() = %v", err)
@@ -207,36 +206,28 @@ func TestSolveNewModesPowerBalance(t *testing.T) {
 	}
 }
 
-// TestSolveBridgeReturnRevSupply is the failing case of the BridgeReturnRev
-// bug, kept as a regression test.
+// TestSolveBridgeReturnRevSupply checks the supply current and the coil
+// voltage in BridgeReturnRev with and without source resistance.
 //
-// Bug: after a reverse pulse the coil current is negative (it flows from
-// the switch node B through the coil to node A). When the bridge opens,
-// the diodes of leg A (A → rail) and leg B (ground → B) carry it back to
-// the supply, exactly as BridgeReturn does for a positive current. The
-// current into the source is then |iL|, i.e. SupplyCurrent (out of the
-// source) = iL < 0, and the rail sits at v0 + rs·|iL|. SolveRail sets
-// is := −iL > 0. With the reference bridge (Vd = 0.9 V, Rd = 0.05 ohm),
-// v0 = 24 V, rs = 0.5 ohm, iL = −3 A:
-//
-//	SupplyCurrent = +3 A (want −3 A),
-//	PSupply = +72 W (want −72 W),
-//	CoilVoltage = 24 − 1.5 + 2·1.05 = 24.6 V (want 24 + 1.5 + 2.1 = 27.6 V),
-//
-// and PSupply ≠ PSource + PDiode + CoilVoltage·iL (72 ≠ 4.5 + 6.3 − 73.8 =
-// −63) even with rs = 0 (72 ≠ −72). In the simulator this makes the
-// supply energy and EnergyReturned wrong in sign after a reverse pulse, and
-// with a bulk capacitor (dy[sBus] = (iin − SupplyCurrent)/C) the returned
-// current discharges the capacitor instead of charging it.
+// After a reverse pulse the coil current is negative (it flows from the
+// switch node B through the coil to node A). When the bridge opens, the
+// diodes of leg A (A → rail) and leg B (ground → B) carry it back to the
+// supply, exactly as BridgeReturn does for a positive current: the current
+// into the source is |iL|, i.e. SupplyCurrent (out of the source) = iL < 0,
+// and the rail sits at v0 + rs·|iL|. With the reference bridge (Vd = 0.9 V,
+// Rd = 0.05 ohm), v0 = 24 V, rs = 0.5 ohm and iL = −3 A: SupplyCurrent =
+// −3 A, PSupply = −72 W and CoilVoltage = 24 + 1.5 + 2·1.05 = 27.6 V. In
+// the simulator this sign makes the supply energy and EnergyReturned right
+// after a reverse pulse, and the returned current charges a bulk capacitor.
 func TestSolveBridgeReturnRevSupply(t *testing.T) {
 	t.Parallel()
 	tests := []struct {
 		name   string
 		rs, iL float64
 	}{
-		{"Rs=0", refRs0, refILLo},
-		{"Rs", refRs, refILLo},
-		{"Rs/small", refRs, refIL3},
+		{"Rs=0", refRs0, refILLargeRev},
+		{"Rs", refRs, refILLargeRev},
+		{"Rs/small", refRs, refILSmallRev},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
@@ -260,10 +251,10 @@ func TestSolveBridgeReturnRevSupply(t *testing.T) {
 	}
 }
 
-// TestPDiodeOldModes checks that PDiode, which the older power balance
-// does not count, is zero in the modes without the recirculation path or
-// bridge diodes.
-func TestPDiodeOldModes(t *testing.T) {
+// TestPDiodeZeroWithoutDiodePath checks that PDiode is zero in the modes of
+// modesFor, in which neither the recirculation path nor the bridge diodes
+// conduct (TestSolvePowerBalance leaves PDiode out of its balance).
+func TestPDiodeZeroWithoutDiodePath(t *testing.T) {
 	t.Parallel()
 	for _, dc := range driveGrid() {
 		t.Run(dc.name, func(t *testing.T) {
@@ -284,30 +275,26 @@ func TestPDiodeOldModes(t *testing.T) {
 	}
 }
 
-// TestSolveNewModesKirchhoff checks KVL and KCL in the new modes.
+// TestSolveRecircBridgeKirchhoff checks KVL and KCL in the recirculation
+// and H-bridge modes (and On with a bridge).
 //
 // Which node is the "switch node" of a bridge: the coil sits between node
 // A (leg A, at the rail when driving forward) and node B (leg B, the low
-// side when driving forward). The BridgeReturn and BridgeReverse comments
-// and formulas give SwitchVoltage = v_rail + Vd or v_rail + Ron·i, i.e.
-// node B to ground, and then KVL round source, coil and "switch"
-// (v0 − rs·Is − CoilVoltage = SwitchVoltage) does NOT hold, because node A
-// is not at the rail (it is one diode drop below ground, or one switch drop
-// above ground). The check used here for the bridge modes is KVL with node
-// A from its device law: SwitchVoltage = v_A − CoilVoltage.
-//
-// In On with a bridge, however, SwitchVoltage = 2·Ron·i: the drop of both
-// bridge switches, i.e. rail minus coil voltage, not node B (Ron·i). The
-// lumped KVL holds there; the inconsistency is tested (skipped) in
-// TestSolveBridgeOnSwitchNode.
-func TestSolveNewModesKirchhoff(t *testing.T) {
+// side when driving forward). In every bridge mode SwitchVoltage is node B
+// to ground (Ron·i in On, v_rail + Vd in BridgeReturn, v_rail + Ron·i in
+// BridgeReverse, −Vd in BridgeReturnRev), and KVL round source, coil and
+// "switch" (v0 − rs·Is − CoilVoltage = SwitchVoltage) does not hold there,
+// because node A is not at the rail (in On it is one switch drop below the
+// rail; otherwise one diode drop below ground, or one switch drop above
+// ground). The check used for the bridge modes is KVL with node A from its
+// device law: SwitchVoltage = v_A − CoilVoltage. Recirc keeps the lumped
+// KVL.
+func TestSolveRecircBridgeKirchhoff(t *testing.T) {
 	t.Parallel()
-	for _, dc := range newModeDrives() {
-		for _, mc := range newModes(&dc.d) {
+	for _, dc := range recircBridgeDrives() {
+		for _, mc := range recircBridgeModes(&dc.d) {
 			t.Run(dc.name+"/"+mc.m.String(), func(t *testing.T) {
 				t.Parallel()
-				if mc.m == BridgeReturnRev {
-				}
 				d := dc.d
 				ron := d.Switch.OnResistance
 				n := 0
@@ -390,61 +377,56 @@ func TestSolveNewModesKirchhoff(t *testing.T) {
 	}
 }
 
-// TestSolveBridgeOnSwitchNode: inconsistency of SwitchVoltage in On with a
-// bridge.
-//
-// The Point doc defines SwitchVoltage as "switch node to ground", and the
-// bridge modes BridgeReturn (v_rail + Vd), BridgeReverse (v_rail + Ron·i)
-// and BridgeReturnRev (−Vd) all report node B. In On with a bridge the
-// code doubles ron and sets SwitchVoltage = 2·Ron·i: the drop of both
-// switches (rail minus coil voltage), whereas node B, behind the one
-// low-side switch of leg B, is at Ron·i. With Ron = 0.05 ohm and i = 2 A:
-// SwitchVoltage = 0.2 V, node B is at 0.1 V. The effect is small (the
-// peak/min switch voltage metrics and the switch capacitor's initial
-// voltage after an On → Off change), but the meaning changes with the mode.
+// TestSolveBridgeOnSwitchNode: in On with a bridge SwitchVoltage is node B
+// to ground, as in the other bridge modes (the Point doc: "switch node to
+// ground"): the node behind the one low-side switch of leg B, at Ron·i,
+// not the drop of both switches (2·Ron·i, rail minus coil voltage). With
+// Ron = 0.05 ohm and i = 2 A node B is at 0.1 V. The peak and minimum
+// switch voltage figures and the switch capacitor's voltage after an
+// On → Off change use it.
 func TestSolveBridgeOnSwitchNode(t *testing.T) {
 	t.Parallel()
 	d := makeDriveRC(refRs, refRon, refC0, bridgeSup())
 	var pt Point
-	d.Solve(On, refIL, 0, 0, &pt)
+	d.Solve(On, refILTypical, 0, 0, &pt)
 	// source: Ohm's law across the low-side switch of leg B.
-	if want := refRon * refIL; !closeRel(pt.SwitchVoltage, want) {
-		t.Errorf("Solve(%v, i=%g) SwitchVoltage = %g, want %g", On, refIL, pt.SwitchVoltage, want)
+	if want := refRon * refILTypical; !closeRel(pt.SwitchVoltage, want) {
+		t.Errorf("Solve(%v, i=%g) SwitchVoltage = %g, want %g", On, refILTypical, pt.SwitchVoltage, want)
 	}
 }
 
-// TestSolveRecircSnubber: the snubber capacitor freezes in Recirc.
+// TestSolveRecircSnubber: the snubber capacitor follows the coil voltage
+// in Recirc.
 //
 // A snubber (series R–C across the coil) sees the coil voltage in every
 // mode, and its capacitor is a state in every mode (TestSolvePowerBalance's
-// convention; Solve computes the snubber current in On, Off, SwClamp,
-// Avalanche and BodyDiode). In Recirc the coil voltage is pinned at
-// −(Vd + Rd·i), so the snubber current must be (−(Vd + Rd·i) − vS)/Rsn, but
-// SolveRail leaves ip = 0 (ClampCurrent = 0, DSnubberCap = 0). With the
-// reference snubber (10 ohm, 100 nF), Vd = 0.7 V, Rd = 0.03 ohm, i = 2 A and
-// vS = −5 V: ClampCurrent = 0, want (−0.76 + 5)/10 = 0.424 A. Chopping with
-// slow decay and a snubber (which Control.Validate accepts) thus keeps the
-// snubber capacitor's voltage across every recirculation interval.
+// convention). In Recirc the snubber shares the loop with the slow-decay
+// path, so its current is (v_coil − vS)/Rsn with the coil voltage the path
+// pins. With the reference snubber (10 ohm, 100 nF), the reference path
+// (0.7 V, 0.03 ohm), i = 2 A and vS = −5 V that is about 0.42 A: chopping
+// with slow decay and a snubber (which Control.Validate accepts) charges
+// and discharges the snubber capacitor in every recirculation interval.
 func TestSolveRecircSnubber(t *testing.T) {
 	t.Parallel()
 	sup := Suppressor{Kind: Snubber, Resistance: refRsn, Capacitance: refCsn}
 	d := makeDriveRC(refRs, refRon, refCoss, sup)
 	var pt Point
-	d.Solve(Recirc, refIL, refVC, refVS, &pt)
+	d.Solve(Recirc, refILTypical, refVC, refVS, &pt)
 	// source: Kirchhoff's voltage law round coil and snubber, Ohm's law
 	// for the snubber resistor.
 	want := (pt.CoilVoltage - refVS) / refRsn
 	if !closeRel(pt.ClampCurrent, want) {
-		t.Errorf("Solve(%v, i=%g, vS=%g) ClampCurrent = %g, want %g", Recirc, refIL, refVS, pt.ClampCurrent, want)
+		t.Errorf("Solve(%v, i=%g, vS=%g) ClampCurrent = %g, want %g", Recirc, refILTypical, refVS, pt.ClampCurrent, want)
 	}
 	// source: capacitor law i = C·dv/dt.
 	if wantD := want / refCsn; !closeRel(pt.DSnubberCap, wantD) {
-		t.Errorf("Solve(%v, i=%g, vS=%g) DSnubberCap = %g, want %g", Recirc, refIL, refVS, pt.DSnubberCap, wantD)
+		t.Errorf("Solve(%v, i=%g, vS=%g) DSnubberCap = %g, want %g", Recirc, refILTypical, refVS, pt.DSnubberCap, wantD)
 	}
 }
 
-// TestSolveNewModesClosedForm checks the new modes against closed forms.
-func TestSolveNewModesClosedForm(t *testing.T) {
+// TestSolveRecircBridgeClosedForm checks the recirculation and H-bridge
+// modes (and On with and without a bridge) against closed forms.
+func TestSolveRecircBridgeClosedForm(t *testing.T) {
 	t.Parallel()
 	nan := math.NaN()
 	vrc := func(i float64) float64 { return refVrc + refRrc*i }
@@ -462,43 +444,43 @@ func TestSolveNewModesClosedForm(t *testing.T) {
 	}{
 		// source: piecewise-linear diode model V = Vd + Rd·i of the slow-decay
 		// path across the coil; KVL for the switch node; KCL: no supply current.
-		{"recirc/none", makeDriveRC(refRs, refRon, refC0, none), Recirc, refV0, refRs, refIL,
-			-vrc(refIL), refV0 + vrc(refIL), 0, nan, vrc(refIL) * refIL, 0},
-		{"recirc/bridge/big", makeDriveRC(refRs0, refRon, refCoss, br), Recirc, refV0, refRs0, refILHi,
-			-vrc(refILHi), refV0 + vrc(refILHi), 0, nan, vrc(refILHi) * refILHi, 0},
-		{"recirc/rail", makeDriveRC(refRs, refRon, refC0, none), Recirc, refVboost, refRsBoost, refIL4,
-			-vrc(refIL4), refVboost + vrc(refIL4), 0, nan, vrc(refIL4) * refIL4, 0},
+		{"recirc/none", makeDriveRC(refRs, refRon, refC0, none), Recirc, refV0, refRs, refILTypical,
+			-vrc(refILTypical), refV0 + vrc(refILTypical), 0, nan, vrc(refILTypical) * refILTypical, 0},
+		{"recirc/bridge/big", makeDriveRC(refRs0, refRon, refCoss, br), Recirc, refV0, refRs0, refILLarge,
+			-vrc(refILLarge), refV0 + vrc(refILLarge), 0, nan, vrc(refILLarge) * refILLarge, 0},
+		{"recirc/rail", makeDriveRC(refRs, refRon, refC0, none), Recirc, refVboost, refRsBoost, refILModerate,
+			-vrc(refILModerate), refVboost + vrc(refILModerate), 0, nan, vrc(refILModerate) * refILModerate, 0},
 		// source: KVL round node A (lower diode of leg A from ground), the
 		// coil, node B (upper diode of leg B into the rail) and the source:
 		// v_coil = −(v0 + rs·i + 2(Vd + Rd·i)); the diode law for each diode.
-		{"bridgereturn/Rs=0", makeDriveRC(refRs0, refRon, refC0, br), BridgeReturn, refV0, refRs0, refIL,
-			-(refV0 + 2*vbr(refIL)), refV0 + vbr(refIL), -refIL, refIL, 2 * vbr(refIL) * refIL, 0},
-		{"bridgereturn/Rs", makeDriveRC(refRs, refRon, refCoss, br), BridgeReturn, refV0, refRs, refILHi,
-			-(refV0 + refRs*refILHi + 2*vbr(refILHi)), refV0 + refRs*refILHi + vbr(refILHi), -refILHi, refILHi, 2 * vbr(refILHi) * refILHi, 0},
-		{"bridgereturn/rail", makeDriveRC(refRs, refRon, refC0, br), BridgeReturn, refVboost, refRsBoost, refIL5,
-			-(refVboost + refRsBoost*refIL5 + 2*vbr(refIL5)), refVboost + refRsBoost*refIL5 + vbr(refIL5), -refIL5, refIL5, 2 * vbr(refIL5) * refIL5, 0},
+		{"bridgereturn/Rs=0", makeDriveRC(refRs0, refRon, refC0, br), BridgeReturn, refV0, refRs0, refILTypical,
+			-(refV0 + 2*vbr(refILTypical)), refV0 + vbr(refILTypical), -refILTypical, refILTypical, 2 * vbr(refILTypical) * refILTypical, 0},
+		{"bridgereturn/Rs", makeDriveRC(refRs, refRon, refCoss, br), BridgeReturn, refV0, refRs, refILLarge,
+			-(refV0 + refRs*refILLarge + 2*vbr(refILLarge)), refV0 + refRs*refILLarge + vbr(refILLarge), -refILLarge, refILLarge, 2 * vbr(refILLarge) * refILLarge, 0},
+		{"bridgereturn/rail", makeDriveRC(refRs, refRon, refC0, br), BridgeReturn, refVboost, refRsBoost, refILHigh,
+			-(refVboost + refRsBoost*refILHigh + 2*vbr(refILHigh)), refVboost + refRsBoost*refILHigh + vbr(refILHigh), -refILHigh, refILHigh, 2 * vbr(refILHigh) * refILHigh, 0},
 		// source: as BridgeReturn, mirrored (diodes of leg A to the rail, leg
 		// B from ground); with rs = 0 the supply current's sign does not enter
 		// the voltages (the rs > 0 case is in TestSolveBridgeReturnRevSupply).
-		{"bridgereturnrev/Rs=0", makeDriveRC(refRs0, refRon, refC0, br), BridgeReturnRev, refV0, refRs0, refILLo,
-			refV0 + 2*vbr(-refILLo), -vbr(-refILLo), nan, -refILLo, 2 * vbr(-refILLo) * -refILLo, 0},
+		{"bridgereturnrev/Rs=0", makeDriveRC(refRs0, refRon, refC0, br), BridgeReturnRev, refV0, refRs0, refILLargeRev,
+			refV0 + 2*vbr(-refILLargeRev), -vbr(-refILLargeRev), nan, -refILLargeRev, 2 * vbr(-refILLargeRev) * -refILLargeRev, 0},
 		// source: KVL with the opposite pair of switches on (Ohm's law, Ron
 		// each): v_coil = −(v0 + rs·i) − 2·Ron·i; Joule's law for the switches.
-		{"bridgereverse/positive", makeDriveRC(refRs, refRon, refC0, br), BridgeReverse, refV0, refRs, refIL,
-			-(refV0 + refRs*refIL) - 2*refRon*refIL, refV0 + refRs*refIL + refRon*refIL, -refIL, nan, 0, 2 * refRon * refIL * refIL},
-		{"bridgereverse/negative", makeDriveRC(refRs, refRon, refCoss, br), BridgeReverse, refV0, refRs, refILLo,
-			-(refV0 + refRs*refILLo) - 2*refRon*refILLo, refV0 + refRs*refILLo + refRon*refILLo, -refILLo, nan, 0, 2 * refRon * refILLo * refILLo},
-		{"bridgereverse/rail/ideal", makeDriveRC(refRs, refRon0, refC0, br), BridgeReverse, refVsag, refRs0, refILHi,
-			-refVsag, refVsag, -refILHi, nan, 0, 0},
+		{"bridgereverse/positive", makeDriveRC(refRs, refRon, refC0, br), BridgeReverse, refV0, refRs, refILTypical,
+			-(refV0 + refRs*refILTypical) - 2*refRon*refILTypical, refV0 + refRs*refILTypical + refRon*refILTypical, -refILTypical, nan, 0, 2 * refRon * refILTypical * refILTypical},
+		{"bridgereverse/negative", makeDriveRC(refRs, refRon, refCoss, br), BridgeReverse, refV0, refRs, refILLargeRev,
+			-(refV0 + refRs*refILLargeRev) - 2*refRon*refILLargeRev, refV0 + refRs*refILLargeRev + refRon*refILLargeRev, -refILLargeRev, nan, 0, 2 * refRon * refILLargeRev * refILLargeRev},
+		{"bridgereverse/rail/ideal", makeDriveRC(refRs, refRon0, refC0, br), BridgeReverse, refVsag, refRs0, refILLarge,
+			-refVsag, refVsag, -refILLarge, nan, 0, 0},
 		// source: Ohm's law and KVL: two bridge switches (2·Ron) in series
 		// with the coil; Joule's law for their loss.
-		{"on/bridge", makeDriveRC(refRs, refRon, refC0, br), On, refV0, refRs, refIL,
-			refV0 - (refRs+2*refRon)*refIL, nan, refIL, nan, 0, 2 * refRon * refIL * refIL},
-		{"on/bridge/negative/rail", makeDriveRC(refRs, refRon, refCoss, br), On, refVboost, refRsBoost, refILLo,
-			refVboost - (refRsBoost+2*refRon)*refILLo, nan, refILLo, nan, 0, 2 * refRon * refILLo * refILLo},
+		{"on/bridge", makeDriveRC(refRs, refRon, refC0, br), On, refV0, refRs, refILTypical,
+			refV0 - (refRs+2*refRon)*refILTypical, nan, refILTypical, nan, 0, 2 * refRon * refILTypical * refILTypical},
+		{"on/bridge/negative/rail", makeDriveRC(refRs, refRon, refCoss, br), On, refVboost, refRsBoost, refILLargeRev,
+			refVboost - (refRsBoost+2*refRon)*refILLargeRev, nan, refILLargeRev, nan, 0, 2 * refRon * refILLargeRev * refILLargeRev},
 		// source: Ohm's law and KVL without a bridge: one switch, Ron.
-		{"on/single switch", makeDriveRC(refRs, refRon, refC0, none), On, refV0, refRs, refIL,
-			refV0 - (refRs+refRon)*refIL, refRon * refIL, refIL, nan, 0, refRon * refIL * refIL},
+		{"on/single switch", makeDriveRC(refRs, refRon, refC0, none), On, refV0, refRs, refILTypical,
+			refV0 - (refRs+refRon)*refILTypical, refRon * refILTypical, refILTypical, nan, 0, refRon * refILTypical * refILTypical},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
@@ -552,12 +534,12 @@ func TestBridgeTurnOffMode(t *testing.T) {
 		// source: TurnOffMode doc and the Bridge kind doc: the bridge diodes
 		// take the current at once, in the direction it flows; no current,
 		// nothing conducts.
-		{"positive", refRs0, refC0, refIL, BridgeReturn, "bridge diodes"},
-		{"positive/small/Coss", refRs, refCoss, refIL2, BridgeReturn, "bridge diodes"},
-		{"negative", refRs0, refC0, refILLo, BridgeReturnRev, "bridge diodes"},
-		{"negative/small/Coss", refRs, refCoss, refIL3, BridgeReturnRev, "bridge diodes"},
-		{"zero", refRs0, refC0, refIL0, Off, "off"},
-		{"zero/Coss", refRs, refCoss, refIL0, Off, "off"},
+		{"positive", refRs0, refC0, refILTypical, BridgeReturn, "bridge diodes"},
+		{"positive/small/Coss", refRs, refCoss, refILSmall, BridgeReturn, "bridge diodes"},
+		{"negative", refRs0, refC0, refILLargeRev, BridgeReturnRev, "bridge diodes"},
+		{"negative/small/Coss", refRs, refCoss, refILSmallRev, BridgeReturnRev, "bridge diodes"},
+		{"zero", refRs0, refC0, refILZero, Off, "off"},
+		{"zero/Coss", refRs, refCoss, refILZero, Off, "off"},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
@@ -574,9 +556,9 @@ func TestBridgeTurnOffMode(t *testing.T) {
 	}
 }
 
-// TestNewModesGuards checks the guards of Recirc, BridgeReturn,
+// TestRecircBridgeGuards checks the guards of Recirc, BridgeReturn,
 // BridgeReturnRev and BridgeReverse.
-func TestNewModesGuards(t *testing.T) {
+func TestRecircBridgeGuards(t *testing.T) {
 	t.Parallel()
 	tests := []struct {
 		name string
@@ -628,7 +610,8 @@ func TestNewModesGuards(t *testing.T) {
 }
 
 // TestBridgeValidateStrings checks Drive.Validate for the bridge and the
-// names of the new kinds, modes and control modes.
+// names of the bridge kind, the recirculation and bridge modes and the
+// control modes.
 func TestBridgeValidateStrings(t *testing.T) {
 	t.Parallel()
 	t.Run("validate", func(t *testing.T) {
@@ -739,8 +722,8 @@ func TestControllerPWMEdges(t *testing.T) {
 				t.Fatalf("after Start(%g) On() = %v, Active() = %v, want true, true", tt.t0, c.On(), c.Active())
 			}
 			g := make([]float64, MaxControlGuards)
-			if n := c.Guards(tt.t0, refIL, g); n != 0 {
-				t.Errorf("PWM Guards(t=%g, i=%g) = %d guards, want 0", tt.t0, refIL, n)
+			if n := c.Guards(tt.t0, refILTypical, g); n != 0 {
+				t.Errorf("PWM Guards(t=%g, i=%g) = %d guards, want 0", tt.t0, refILTypical, n)
 			}
 			if pe := c.PhaseEnd(); !math.IsInf(pe, 1) {
 				t.Errorf("PWM PhaseEnd() = %g, want +Inf", pe)
@@ -833,8 +816,8 @@ func TestControllerHysteresis(t *testing.T) {
 		currentsOn  []float64
 		currentsOff []float64
 	}{
-		{"t0=0/on at phase end", 0, true, []float64{refIL0, refIL, refIPeak, refIPeak + refBand/2}, []float64{refIL0, refIHold, refIPeak}},
-		{"t0=0.0123/off at phase end", refT0, false, []float64{refIL2, refIPeak + refBand}, []float64{refIPeak - refBand/2, refILHi}},
+		{"t0=0/on at phase end", 0, true, []float64{refILZero, refILTypical, refIPeak, refIPeak + refBand/2}, []float64{refILZero, refIHold, refIPeak}},
+		{"t0=0.0123/off at phase end", refT0, false, []float64{refILSmall, refIPeak + refBand}, []float64{refIPeak - refBand/2, refILLarge}},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
@@ -954,7 +937,7 @@ func TestControllerFixedFrequency(t *testing.T) {
 				if c.On() != wantOn {
 					t.Fatalf("%s: On() = %v, want %v", stage, c.On(), wantOn)
 				}
-				for _, i := range []float64{refIL0, refIHold, refIPeak, refILHi} {
+				for _, i := range []float64{refILZero, refIHold, refIPeak, refILLarge} {
 					n := c.Guards(tm, i, g)
 					switch {
 					case !wantOn && n != 0:
@@ -1053,8 +1036,8 @@ func TestControllerBoostHold(t *testing.T) {
 				if !c.On() {
 					t.Errorf("after Start(%g) On() = false, want true", start)
 				}
-				if n := c.Guards(start, refIL, g); n != 0 {
-					t.Errorf("boost Guards(t=%g, i=%g) = %d guards, want 0", start, refIL, n)
+				if n := c.Guards(start, refILTypical, g); n != 0 {
+					t.Errorf("boost Guards(t=%g, i=%g) = %d guards, want 0", start, refILTypical, n)
 				}
 				pe := c.PhaseEnd()
 				if want := start + refTBoost; pe != want {
@@ -1126,7 +1109,7 @@ func TestControllerStop(t *testing.T) {
 					if got := c.NextTime(tm); !math.IsInf(got, 1) {
 						t.Errorf("after Stop NextTime(%g) = %g, want +Inf", tm, got)
 					}
-					for _, i := range []float64{refIL0, refIHold, refIPeak, refILHi} {
+					for _, i := range []float64{refILZero, refIHold, refIPeak, refILLarge} {
 						if n := c.Guards(tm, i, g); n != 0 {
 							t.Errorf("after Stop Guards(t=%g, i=%g) = %d guards, want 0", tm, i, n)
 						}
@@ -1175,61 +1158,57 @@ func TestControlValidate(t *testing.T) {
 		c       Control
 		d       Drive
 		wantErr bool
-		bug     string
 	}{
 		// source: the Control and Validate docs (each documented range).
-		{"good/constant", Control{Mode: Constant}, rc, false, ""},
-		{"good/pwm", pwm(refFPWM, refDuty), rc, false, ""},
-		{"good/pwm duty 1", pwm(refFPWM, 1), rc, false, ""},
-		{"bad/pwm zero frequency", pwm(0, refDuty), rc, true, ""},
-		{"bad/pwm negative frequency", pwm(-refFPWM, refDuty), rc, true, ""},
-		{"bad/pwm NaN frequency", pwm(nan, refDuty), rc, true, ""},
-		{"bad/pwm zero duty", pwm(refFPWM, 0), rc, true, ""},
-		{"bad/pwm duty > 1", pwm(refFPWM, refDutyHi), rc, true, ""},
-		{"bad/pwm NaN duty", pwm(refFPWM, nan), rc, true, ""},
-		{"good/peakhold hysteresis", ph(func(*Control) {}), rc, false, ""},
-		{"good/peakhold hold = peak", ph(func(c *Control) { c.HoldCurrent = refIPeak }), rc, false, ""},
-		{"good/peakhold band just under 2·hold", ph(func(c *Control) { c.Band = refBandHi }), rc, false, ""},
-		{"good/peakhold fixed frequency", phFF(func(*Control) {}), rc, false, ""},
-		{"bad/peakhold zero peak", ph(func(c *Control) { c.PeakCurrent = 0 }), rc, true, ""},
-		{"bad/peakhold zero hold", ph(func(c *Control) { c.HoldCurrent = 0 }), rc, true, ""},
-		{"bad/peakhold zero peak time", ph(func(c *Control) { c.PeakTime = 0 }), rc, true, ""},
-		{"bad/peakhold NaN peak time", ph(func(c *Control) { c.PeakTime = nan }), rc, true, ""},
-		{"bad/peakhold hold > peak", ph(func(c *Control) { c.HoldCurrent = refIPeak + 1 }), rc, true, ""},
-		{"bad/peakhold zero band", ph(func(c *Control) { c.Band = 0 }), rc, true, ""},
-		{"bad/peakhold band = 2·hold", ph(func(c *Control) { c.Band = 2 * refIHold }), rc, true, ""},
-		{"bad/peakhold NaN band", ph(func(c *Control) { c.Band = nan }), rc, true, ""},
-		{"bad/peakhold fixed zero frequency", phFF(func(c *Control) { c.Frequency = 0 }), rc, true, ""},
-		{"bad/peakhold fixed NaN frequency", phFF(func(c *Control) { c.Frequency = nan }), rc, true, ""},
-		{"good/boost", boost(refVboost, refTBoost), rc, false, ""},
-		{"bad/boost = supply", boost(refV0, refTBoost), rc, true, ""},
-		{"bad/boost < supply", boost(refVsag, refTBoost), rc, true, ""},
-		{"bad/boost zero time", boost(refVboost, 0), rc, true, ""},
-		{"bad/boost NaN voltage", boost(nan, refTBoost), rc, true, ""},
-		{"bad/unknown mode", Control{Mode: ControlMode(4)}, rc, true, ""},
-		{"bad/negative mode", Control{Mode: ControlMode(-1)}, rc, true, ""},
-		{"good/reverse pulse with bridge", Control{Mode: Constant, ReversePulse: refPulse}, bridge, false, ""},
-		{"bad/reverse pulse without bridge", Control{Mode: Constant, ReversePulse: refPulse}, rc, true, ""},
-		{"bad/negative reverse pulse", Control{Mode: Constant, ReversePulse: -refPulse}, bridge, true, ""},
-		{"bad/NaN reverse pulse", Control{Mode: Constant, ReversePulse: nan}, bridge, true, ""},
-		{"bad/pwm slow decay, negative recirc drop", pwm(refFPWM, refDuty), badRC, true, ""},
-		{"bad/peakhold slow decay, NaN recirc R", ph(func(*Control) {}), nanRC, true, ""},
-		{"good/pwm fast decay, negative recirc drop", func() Control { c := pwm(refFPWM, refDuty); c.FastDecay = true; return c }(), badRC, false, ""},
-		{"good/constant, negative recirc drop", Control{Mode: Constant}, badRC, false, ""},
-		{"good/boost, negative recirc drop", boost(refVboost, refTBoost), badRC, false, ""},
-		// Bug: an undefined Regulation passes Validate. With Regulation(2),
-		// Start schedules no chopping period (only FixedFrequency does), and
-		// Guards treats it as peak cut-off while on but gives no guard while
-		// off: the switch turns off at the first peak and never turns on
-		// again (the coil drops out silently).
-		{"bad/peakhold unknown regulation", ph(func(c *Control) { c.Regulation = Regulation(2) }), rc, true, ""},
+		{"good/constant", Control{Mode: Constant}, rc, false},
+		{"good/pwm", pwm(refFPWM, refDuty), rc, false},
+		{"good/pwm duty 1", pwm(refFPWM, 1), rc, false},
+		{"bad/pwm zero frequency", pwm(0, refDuty), rc, true},
+		{"bad/pwm negative frequency", pwm(-refFPWM, refDuty), rc, true},
+		{"bad/pwm NaN frequency", pwm(nan, refDuty), rc, true},
+		{"bad/pwm zero duty", pwm(refFPWM, 0), rc, true},
+		{"bad/pwm duty > 1", pwm(refFPWM, refDutyHi), rc, true},
+		{"bad/pwm NaN duty", pwm(refFPWM, nan), rc, true},
+		{"good/peakhold hysteresis", ph(func(*Control) {}), rc, false},
+		{"good/peakhold hold = peak", ph(func(c *Control) { c.HoldCurrent = refIPeak }), rc, false},
+		{"good/peakhold band just under 2·hold", ph(func(c *Control) { c.Band = refBandHi }), rc, false},
+		{"good/peakhold fixed frequency", phFF(func(*Control) {}), rc, false},
+		{"bad/peakhold zero peak", ph(func(c *Control) { c.PeakCurrent = 0 }), rc, true},
+		{"bad/peakhold zero hold", ph(func(c *Control) { c.HoldCurrent = 0 }), rc, true},
+		{"bad/peakhold zero peak time", ph(func(c *Control) { c.PeakTime = 0 }), rc, true},
+		{"bad/peakhold NaN peak time", ph(func(c *Control) { c.PeakTime = nan }), rc, true},
+		{"bad/peakhold hold > peak", ph(func(c *Control) { c.HoldCurrent = refIPeak + 1 }), rc, true},
+		{"bad/peakhold zero band", ph(func(c *Control) { c.Band = 0 }), rc, true},
+		{"bad/peakhold band = 2·hold", ph(func(c *Control) { c.Band = 2 * refIHold }), rc, true},
+		{"bad/peakhold NaN band", ph(func(c *Control) { c.Band = nan }), rc, true},
+		{"bad/peakhold fixed zero frequency", phFF(func(c *Control) { c.Frequency = 0 }), rc, true},
+		{"bad/peakhold fixed NaN frequency", phFF(func(c *Control) { c.Frequency = nan }), rc, true},
+		{"good/boost", boost(refVboost, refTBoost), rc, false},
+		{"bad/boost = supply", boost(refV0, refTBoost), rc, true},
+		{"bad/boost < supply", boost(refVsag, refTBoost), rc, true},
+		{"bad/boost zero time", boost(refVboost, 0), rc, true},
+		{"bad/boost NaN voltage", boost(nan, refTBoost), rc, true},
+		{"bad/unknown mode", Control{Mode: ControlMode(4)}, rc, true},
+		{"bad/negative mode", Control{Mode: ControlMode(-1)}, rc, true},
+		{"good/reverse pulse with bridge", Control{Mode: Constant, ReversePulse: refPulse}, bridge, false},
+		{"bad/reverse pulse without bridge", Control{Mode: Constant, ReversePulse: refPulse}, rc, true},
+		{"bad/negative reverse pulse", Control{Mode: Constant, ReversePulse: -refPulse}, bridge, true},
+		{"bad/NaN reverse pulse", Control{Mode: Constant, ReversePulse: nan}, bridge, true},
+		{"bad/pwm slow decay, negative recirc drop", pwm(refFPWM, refDuty), badRC, true},
+		{"bad/peakhold slow decay, NaN recirc R", ph(func(*Control) {}), nanRC, true},
+		{"good/pwm fast decay, negative recirc drop", func() Control { c := pwm(refFPWM, refDuty); c.FastDecay = true; return c }(), badRC, false},
+		{"good/constant, negative recirc drop", Control{Mode: Constant}, badRC, false},
+		{"good/boost, negative recirc drop", boost(refVboost, refTBoost), badRC, false},
+		// An undefined Regulation could not run: Start would schedule no
+		// chopping period (only FixedFrequency does), and Guards would treat
+		// it as peak cut-off while on but give no guard while off, so the
+		// switch would turn off at the first peak and never turn on again
+		// (the coil would drop out silently).
+		{"bad/peakhold unknown regulation", ph(func(c *Control) { c.Regulation = Regulation(2) }), rc, true},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			t.Parallel()
-			if tt.bug != "" {
-				t.Skip(tt.bug)
-			}
 			err := tt.c.Validate(&tt.d)
 			if (err != nil) != tt.wantErr {
 				t.Errorf("Validate(%+v) = %v, want error %v", tt.c, err, tt.wantErr)
@@ -1278,15 +1257,15 @@ func TestControlNoAllocs(t *testing.T) {
 		for m := On; m <= BridgeReturnRev; m++ {
 			// source: Solve doc ("It does not allocate"); SolveRail is the
 			// same computation.
-			if a := testing.AllocsPerRun(100, func() { d.SolveRail(m, refVboost, refRsBoost, refIL, refVC, refVS4, &pt) }); a != 0 {
-				t.Errorf("%s: SolveRail(%v, i=%g) allocates %g times per run, want 0", dc.name, m, refIL, a)
+			if a := testing.AllocsPerRun(100, func() { d.SolveRail(m, refVboost, refRsBoost, refILTypical, refVC, refVS4, &pt) }); a != 0 {
+				t.Errorf("%s: SolveRail(%v, i=%g) allocates %g times per run, want 0", dc.name, m, refILTypical, a)
 			}
-			if a := testing.AllocsPerRun(100, func() { d.Guards(m, refIL, &pt, g) }); a != 0 {
-				t.Errorf("%s: Guards(%v, i=%g) allocates %g times per run, want 0", dc.name, m, refIL, a)
+			if a := testing.AllocsPerRun(100, func() { d.Guards(m, refILTypical, &pt, g) }); a != 0 {
+				t.Errorf("%s: Guards(%v, i=%g) allocates %g times per run, want 0", dc.name, m, refILTypical, a)
 			}
 		}
-		if a := testing.AllocsPerRun(100, func() { d.TurnOffMode(refILLo) }); a != 0 {
-			t.Errorf("%s: TurnOffMode(i=%g) allocates %g times per run, want 0", dc.name, refILLo, a)
+		if a := testing.AllocsPerRun(100, func() { d.TurnOffMode(refILLargeRev) }); a != 0 {
+			t.Errorf("%s: TurnOffMode(i=%g) allocates %g times per run, want 0", dc.name, refILLargeRev, a)
 		}
 	}
 	d := makeDriveRC(refRs, refRon, refCoss, bridgeSup())
@@ -1313,7 +1292,7 @@ func TestControlNoAllocs(t *testing.T) {
 			c.AtTime(tn)
 			c.AtTime(c.PhaseEnd())
 			sink += c.Target(tn) + c.SupplyVoltage(tn, refV0)
-			if c.Guards(tn, refIL, cg) > 0 {
+			if c.Guards(tn, refILTypical, cg) > 0 {
 				c.AtGuard(0)
 			}
 			if c.On() && c.Active() {
