@@ -155,7 +155,7 @@ type Mode int
 // Modes.
 const (
 	On              Mode = iota // switch conducting
-	Off                         // switch off, nothing pinned: switch capacitance (or the snubber) carries the coil current; with neither, the coil is open and its current is zero
+	Off                         // switch off, nothing pinned: the node capacitance (switch and winding) or the snubber carries the coil current; with neither, the coil is open and its current is zero
 	CoilClamp                   // switch off, suppressor across the coil conducting
 	SwClamp                     // switch off, clamp across the switch conducting
 	Avalanche                   // switch off, switch in avalanche at its breakdown voltage
