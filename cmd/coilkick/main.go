@@ -342,12 +342,51 @@ func oneFile(c *cli.Context) (string, error) {
 
 // loadArg loads the model named by the command's single argument.
 func loadArg(c *cli.Context) (string, *coilkick.Model, error) {
-	path, err := oneFile(c)
+	sim, err := loadScenario(c)
 	if err != nil {
 		return "", nil, err
 	}
-	md, err := coilkick.LoadModel(path)
-	return path, md, err
+	return sim.path, sim.md, nil
+}
+
+// simulation is the scenario of the command's single argument, parsed
+// once, its model, and (after simulate) its run and assessment: the one
+// path of run and report.
+type simulation struct {
+	path string
+	sc   *coilkick.Scenario
+	md   *coilkick.Model
+	res  *coilkick.Result
+	as   coilkick.Assessment
+}
+
+// loadScenario reads the command's scenario file and builds its model
+// (coilkick.LoadModel, keeping the parsed scenario).
+func loadScenario(c *cli.Context) (*simulation, error) {
+	path, err := oneFile(c)
+	if err != nil {
+		return nil, err
+	}
+	sc, err := coilkick.Load(path)
+	if err != nil {
+		return nil, err
+	}
+	md, err := coilkick.Build(sc)
+	if err != nil {
+		return nil, err
+	}
+	return &simulation{path: path, sc: sc, md: md}, nil
+}
+
+// simulate runs the model at the command's --tolerance and assesses the
+// run.
+func (s *simulation) simulate(c *cli.Context) error {
+	res, err := coilkick.Simulate(s.md, &coilkick.Options{Tolerance: c.Float64("tolerance")})
+	if err != nil {
+		return err
+	}
+	s.res, s.as = res, s.md.Assess(res)
+	return nil
 }
 
 // cmdCheck validates the scenario. --json and --csv write the verdict
@@ -381,10 +420,11 @@ func cmdCheck(c *cli.Context, w io.Writer) error {
 }
 
 func cmdRun(c *cli.Context, w io.Writer) error {
-	path, md, err := loadArg(c)
+	sim, err := loadScenario(c)
 	if err != nil {
 		return err
 	}
+	path, md := sim.path, sim.md
 	from, to, windowed, err := plotWindow(c)
 	if err != nil {
 		return err
@@ -392,17 +432,16 @@ func cmdRun(c *cli.Context, w io.Writer) error {
 	if windowed && (to <= 0 || from >= md.Timing.End) {
 		return fmt.Errorf("--plot-window %q lies outside the run, which ends at %g ms (timing.end)", c.String("plot-window"), md.Timing.End*1e3)
 	}
-	res, err := coilkick.Simulate(md, &coilkick.Options{Tolerance: c.Float64("tolerance")})
-	if err != nil {
+	if err := sim.simulate(c); err != nil {
 		return err
 	}
-	as := md.Assess(res)
+	res, as := sim.res, &sim.as
 	outs := newOutputs(w)
 	if f := c.String("csv"); f != "" {
 		outs.add(f, func(out io.Writer) error { return writeCSV(out, &res.Trace) })
 	}
 	if f := c.String("json"); f != "" {
-		outs.add(f, func(out io.Writer) error { return writeJSON(out, md, res, &as) })
+		outs.add(f, func(out io.Writer) error { return writeJSON(out, md, res, as) })
 	}
 	if f := c.String("plot"); f != "" {
 		pr := res
@@ -419,7 +458,7 @@ func cmdRun(c *cli.Context, w io.Writer) error {
 		return err
 	}
 	if !machineOnStdout(c) {
-		printSummary(w, path, md, res, &as)
+		printSummary(w, path, md, res, as)
 	}
 	if as.Failed() {
 		return errFailing

@@ -58,20 +58,14 @@ func runLine(md *coilkick.Model, res *coilkick.Result) string {
 }
 
 func cmdReport(c *cli.Context, w io.Writer) error {
-	path, md, err := loadArg(c)
+	sim, err := loadScenario(c)
 	if err != nil {
 		return err
 	}
-	sc, err := coilkick.Load(path)
-	if err != nil {
+	if err := sim.simulate(c); err != nil {
 		return err
 	}
-	res, err := coilkick.Simulate(md, &coilkick.Options{Tolerance: c.Float64("tolerance")})
-	if err != nil {
-		return err
-	}
-	as := md.Assess(res)
-	rep, failed, err := buildReport(path, md, sc, res, &as)
+	rep, failed, err := buildReport(sim)
 	if err != nil {
 		return err
 	}
@@ -242,168 +236,30 @@ func requirementText(c jsonCheck, min bool) string {
 }
 
 // buildReport assembles the report from the same JSON document that
-// "run --json" writes, so that both show the same figures.
-func buildReport(path string, md *coilkick.Model, sc *coilkick.Scenario, res *coilkick.Result, as *coilkick.Assessment) (*plot.Report, bool, error) {
-	var buf bytes.Buffer
-	if err := writeJSON(&buf, md, res, as); err != nil {
+// "run --json" writes, so that both show the same figures; failed when a
+// check of the run or the duty-cycle heating study fails.
+func buildReport(sim *simulation) (*plot.Report, bool, error) {
+	path, md := sim.path, sim.md
+	doc, err := readSummary(sim)
+	if err != nil {
 		return nil, false, err
 	}
-	// The summary's own types, but the metrics as a generic object (an
-	// Interval reads back as a number or null): every metric is shown.
-	var doc struct {
-		Metrics map[string]any `json:"metrics"`
-		Checks  []jsonCheck    `json:"checks"`
-		Notes   []coilkickNote `json:"notes"`
-		Events  []jsonEvent    `json:"events"`
-		Solver  jsonSolver     `json:"solver"`
-		Failed  bool           `json:"failed"`
-	}
-	if err := json.Unmarshal(buf.Bytes(), &doc); err != nil {
-		return nil, false, err
-	}
-	metrics := flattenMetrics(doc.Metrics)
-
-	minChecks := map[string]bool{}
-	for _, c := range as.Checks {
-		minChecks[c.Name] = c.Min
-	}
-	checkOf := map[string]jsonCheck{}
-	var unmatched []jsonCheck
-	for _, c := range doc.Checks {
-		if k, ok := checkFigure[c.Name]; ok {
-			if _, shown := metrics[k]; shown {
-				checkOf[k] = c
-				continue
-			}
-		}
-		unmatched = append(unmatched, c)
-	}
-	nameOf := map[string]string{}
-	for _, g := range reportGroups {
-		for _, r := range g.rows {
-			nameOf[r.name] = r.key
-		}
-	}
-	caution := map[string]bool{}
-	for _, n := range doc.Notes {
-		if n.Level != "caution" {
-			continue
-		}
-		if k, ok := noteFigure[n.Figure]; ok {
-			caution[k] = true
-		} else if k, ok := nameOf[n.Figure]; ok {
-			caution[k] = true
-		}
-	}
-
-	rep := &plot.Report{Title: displayName(path, md), Source: path, Summary: scenarioSummary(md, sc)}
-	used := map[string]bool{"release_not_applicable": true} // shown as the release and drop values
-	row := func(key, name string) plot.Row {
-		used[key] = true
-		r := plot.Row{Key: key, Name: name, Value: figureText(key, metrics[key]), Caution: caution[key]}
-		na, _ := metrics["release_not_applicable"].(string)
-		if na != "" && (key == "release_time_s" || key == "drop_time_s") {
-			r.Value = na
-		}
-		if c, ok := checkOf[key]; ok {
-			r.Checked, r.Pass, r.Requirement = true, c.Pass, requirementText(c, minChecks[c.Name])
-			if c.NotApplicable != nil {
-				r.Checked, r.Requirement = false, requirementText(c, minChecks[c.Name])+" (not applicable)"
-			}
-		}
-		return r
-	}
-	for _, g := range reportGroups {
-		grp := plot.Group{Name: g.name}
-		for _, r := range g.rows {
-			v, ok := metrics[r.key]
-			if ok && (v != nil || !absentWhenNull(r.key)) {
-				grp.Rows = append(grp.Rows, row(r.key, r.name))
-			} else if ok {
-				used[r.key] = true
-			}
-		}
-		if len(grp.Rows) > 0 {
-			rep.Groups = append(rep.Groups, grp)
-		}
-	}
-	var rest []string
-	for k := range metrics {
-		if !used[k] {
-			rest = append(rest, k)
-		}
-	}
-	sort.Strings(rest)
-	if len(rest) > 0 || len(unmatched) > 0 {
-		grp := plot.Group{Name: "Other figures and checks"}
-		for _, k := range rest {
-			grp.Rows = append(grp.Rows, row(k, strings.ReplaceAll(k, "_", " ")))
-		}
-		for _, c := range unmatched {
-			v := "did not happen"
-			if c.Value != nil {
-				v = si(*c.Value, c.Unit)
-			}
-			grp.Rows = append(grp.Rows, plot.Row{Key: "check:" + c.Name, Name: c.Name, Value: v,
-				Requirement: requirementText(c, minChecks[c.Name]), Checked: true, Pass: c.Pass})
-		}
-		rep.Groups = append(rep.Groups, grp)
-	}
-
-	// Verdict.
-	var failedNames []string
-	for _, c := range doc.Checks {
-		if !c.Pass && c.NotApplicable == nil {
-			failedNames = append(failedNames, c.Name)
-		}
-	}
-	switch {
-	case len(doc.Checks) == 0:
-		rep.Verdict = "no ratings or requirements given"
-	case len(failedNames) == 0:
-		rep.Verdict = fmt.Sprintf("all %d checks pass", len(doc.Checks))
-	default:
-		rep.Verdict = fmt.Sprintf("%d of %d checks FAIL: %s", len(failedNames), len(doc.Checks), strings.Join(failedNames, ", "))
-	}
-	rep.Failed = doc.Failed
-
+	rep := &plot.Report{Title: displayName(path, md), Source: path, Summary: scenarioSummary(md, sim.sc)}
+	rep.Groups = newReportRows(doc, sim.as.Checks).groups()
+	rep.Verdict, rep.Failed = verdict(doc.Checks), doc.Failed
 	// Safety notes: every note of the run (plot.WriteHTML orders them,
 	// cautions first, with the heating study's).
 	for _, n := range doc.Notes {
 		rep.Notes = append(rep.Notes, plot.ReportNote{Figure: n.Figure, Level: n.Level, Text: n.Text})
 	}
-	for _, e := range coilkick.CompactEvents(res.Events) { // the full list is in --json
+	for _, e := range coilkick.CompactEvents(sim.res.Events) { // the full list is in --json
 		rep.Events = append(rep.Events, plot.ReportEvent{Time: fmt.Sprintf("%.4f ms", e.Time*1e3), What: e.What})
 	}
-
-	// Figures.
-	rep.Figures = append(rep.Figures, plot.ReportFigure{ID: "waveforms", Heading: "Waveforms",
-		Caption: "Coil current, coil and switch voltage, air gap, and the forces on the plunger over the run; " +
-			"dashed lines mark energize, the plunger leaving the rest stop (moves), the first seat impact (seated), " +
-			"de-energize and the plunger leaving the seat (released). Fast chopping is drawn as its envelope.",
-		Figure: waveformFigure(path, md, res)})
-	ms := md.MagnetSummary()
-	var currents []float64
-	for _, k := range []float64{0.25, 0.5, 0.75, 1, 1.25, 1.5} {
-		currents = append(currents, k*ms.RatedCurrent)
-	}
-	curves, err := md.ForceCurves(currents, 41)
+	magnet, err := magnetReportFigure(md)
 	if err != nil {
 		return nil, false, err
 	}
-	var passive []float64
-	if len(curves) > 0 {
-		for _, x := range curves[0].Gap {
-			passive = append(passive, md.Plunger.PassiveForce(x, 0))
-		}
-	}
-	rep.Figures = append(rep.Figures, plot.ReportFigure{ID: "magnet", Heading: "Magnet: pull versus air gap",
-		Caption: fmt.Sprintf("Magnetic pull over the stroke at 0.25 to 1.5 × the rated current (%s = supply ÷ coil resistance at %.0f °C), "+
-			"against the spring and load (dashed). The plunger pulls in where the pull at the rest gap exceeds the dashed line.",
-			si(ms.RatedCurrent, "A"), md.Temperature-273.15),
-		Figure: plot.ForceVsGap("Pull versus air gap, one line per coil current", curves, passive)})
-
-	failed := doc.Failed
+	rep.Figures = []plot.ReportFigure{waveformReportFigure(path, md, sim.res), magnet}
 	if md.Thermal != nil && md.Duty != nil {
 		hr, err := coilkick.Heat(md, *md.Duty)
 		if err != nil {
@@ -412,20 +268,221 @@ func buildReport(path string, md *coilkick.Model, sc *coilkick.Scenario, res *co
 		hs, hotFail := heatSection(hr)
 		rep.Heat = hs
 		if hotFail {
-			failed = true
 			rep.Failed = true
 			rep.Verdict += "; the duty-cycle heating study FAILS"
 		}
 	}
+	rep.Footer = reportFooter(doc.Solver)
+	return rep, rep.Failed, nil
+}
 
-	rep.Footer = []string{
+// runSummary is the run's --json summary read back: the summary's own
+// types, but the metrics as a generic object (an Interval reads back as a
+// number or null), so that every metric is shown.
+type runSummary struct {
+	Metrics map[string]any `json:"metrics"`
+	Checks  []jsonCheck    `json:"checks"`
+	Notes   []coilkickNote `json:"notes"`
+	Events  []jsonEvent    `json:"events"`
+	Solver  jsonSolver     `json:"solver"`
+	Failed  bool           `json:"failed"`
+}
+
+// readSummary writes the run's --json summary (writeJSON) and reads it
+// back.
+func readSummary(sim *simulation) (*runSummary, error) {
+	var buf bytes.Buffer
+	if err := writeJSON(&buf, sim.md, sim.res, &sim.as); err != nil {
+		return nil, err
+	}
+	var doc runSummary
+	if err := json.Unmarshal(buf.Bytes(), &doc); err != nil {
+		return nil, err
+	}
+	return &doc, nil
+}
+
+// reportRows lays out the summary's metrics as the report's rows: each
+// with its value, its caution mark (a caution note names it) and its
+// check; used records the metrics shown.
+type reportRows struct {
+	metrics   map[string]any
+	checkOf   map[string]jsonCheck // metric key → the check of that figure
+	unmatched []jsonCheck          // checks without a metric shown
+	minCheck  map[string]bool      // check name → its limit is a minimum
+	caution   map[string]bool
+	used      map[string]bool
+}
+
+func newReportRows(doc *runSummary, checks []coilkick.Check) *reportRows {
+	r := &reportRows{metrics: flattenMetrics(doc.Metrics), checkOf: map[string]jsonCheck{}, minCheck: map[string]bool{},
+		caution: cautionKeys(doc.Notes), used: map[string]bool{"release_not_applicable": true}} // shown as the release and drop values
+	for _, c := range checks {
+		r.minCheck[c.Name] = c.Min
+	}
+	for _, c := range doc.Checks {
+		if k, ok := checkFigure[c.Name]; ok {
+			if _, shown := r.metrics[k]; shown {
+				r.checkOf[k] = c
+				continue
+			}
+		}
+		r.unmatched = append(r.unmatched, c)
+	}
+	return r
+}
+
+// cautionKeys are the metrics that a note of level caution names.
+func cautionKeys(notes []coilkickNote) map[string]bool {
+	keyOf := map[string]string{}
+	for _, g := range reportGroups {
+		for _, r := range g.rows {
+			keyOf[r.name] = r.key
+		}
+	}
+	caution := map[string]bool{}
+	for _, n := range notes {
+		if n.Level != "caution" {
+			continue
+		}
+		if k, ok := noteFigure[n.Figure]; ok {
+			caution[k] = true
+		} else if k, ok := keyOf[n.Figure]; ok {
+			caution[k] = true
+		}
+	}
+	return caution
+}
+
+// row is the report's row of a metric.
+func (r *reportRows) row(key, name string) plot.Row {
+	r.used[key] = true
+	row := plot.Row{Key: key, Name: name, Value: figureText(key, r.metrics[key]), Caution: r.caution[key]}
+	na, _ := r.metrics["release_not_applicable"].(string)
+	if na != "" && (key == "release_time_s" || key == "drop_time_s") {
+		row.Value = na
+	}
+	if c, ok := r.checkOf[key]; ok {
+		row.Checked, row.Pass, row.Requirement = true, c.Pass, requirementText(c, r.minCheck[c.Name])
+		if c.NotApplicable != nil {
+			row.Checked, row.Requirement = false, requirementText(c, r.minCheck[c.Name])+" (not applicable)"
+		}
+	}
+	return row
+}
+
+// groups are the rows under reportGroups' headings, then the metrics and
+// checks no heading names.
+func (r *reportRows) groups() []plot.Group {
+	var out []plot.Group
+	for _, g := range reportGroups {
+		grp := plot.Group{Name: g.name}
+		for _, fr := range g.rows {
+			v, ok := r.metrics[fr.key]
+			if ok && (v != nil || !absentWhenNull(fr.key)) {
+				grp.Rows = append(grp.Rows, r.row(fr.key, fr.name))
+			} else if ok {
+				r.used[fr.key] = true
+			}
+		}
+		if len(grp.Rows) > 0 {
+			out = append(out, grp)
+		}
+	}
+	if other := r.other(); len(other.Rows) > 0 {
+		out = append(out, other)
+	}
+	return out
+}
+
+// other is the group of the metrics not shown under a heading, by key,
+// and the checks without a metric shown.
+func (r *reportRows) other() plot.Group {
+	var rest []string
+	for k := range r.metrics {
+		if !r.used[k] {
+			rest = append(rest, k)
+		}
+	}
+	sort.Strings(rest)
+	grp := plot.Group{Name: "Other figures and checks"}
+	for _, k := range rest {
+		grp.Rows = append(grp.Rows, r.row(k, strings.ReplaceAll(k, "_", " ")))
+	}
+	for _, c := range r.unmatched {
+		v := "did not happen"
+		if c.Value != nil {
+			v = si(*c.Value, c.Unit)
+		}
+		grp.Rows = append(grp.Rows, plot.Row{Key: "check:" + c.Name, Name: c.Name, Value: v,
+			Requirement: requirementText(c, r.minCheck[c.Name]), Checked: true, Pass: c.Pass})
+	}
+	return grp
+}
+
+// verdict sums up the checks: none, all pass, or the names of those that
+// fail (a check that does not apply neither passes nor fails).
+func verdict(checks []jsonCheck) string {
+	var failedNames []string
+	for _, c := range checks {
+		if !c.Pass && c.NotApplicable == nil {
+			failedNames = append(failedNames, c.Name)
+		}
+	}
+	switch {
+	case len(checks) == 0:
+		return "no ratings or requirements given"
+	case len(failedNames) == 0:
+		return fmt.Sprintf("all %d checks pass", len(checks))
+	default:
+		return fmt.Sprintf("%d of %d checks FAIL: %s", len(failedNames), len(checks), strings.Join(failedNames, ", "))
+	}
+}
+
+// waveformReportFigure is the report's waveform figure with its caption.
+func waveformReportFigure(path string, md *coilkick.Model, res *coilkick.Result) plot.ReportFigure {
+	return plot.ReportFigure{ID: "waveforms", Heading: "Waveforms",
+		Caption: "Coil current, coil and switch voltage, air gap, and the forces on the plunger over the run; " +
+			"dashed lines mark energize, the plunger leaving the rest stop (moves), the first seat impact (seated), " +
+			"de-energize and the plunger leaving the seat (released). Fast chopping is drawn as its envelope.",
+		Figure: waveformFigure(path, md, res)}
+}
+
+// magnetReportFigure is the report's figure of the pull versus the air gap
+// at 0.25 to 1.5 × the rated current, with the spring and load.
+func magnetReportFigure(md *coilkick.Model) (plot.ReportFigure, error) {
+	ms := md.MagnetSummary()
+	var currents []float64
+	for _, k := range []float64{0.25, 0.5, 0.75, 1, 1.25, 1.5} {
+		currents = append(currents, k*ms.RatedCurrent)
+	}
+	curves, err := md.ForceCurves(currents, 41)
+	if err != nil {
+		return plot.ReportFigure{}, err
+	}
+	var passive []float64
+	if len(curves) > 0 {
+		for _, x := range curves[0].Gap {
+			passive = append(passive, md.Plunger.PassiveForce(x, 0))
+		}
+	}
+	return plot.ReportFigure{ID: "magnet", Heading: "Magnet: pull versus air gap",
+		Caption: fmt.Sprintf("Magnetic pull over the stroke at 0.25 to 1.5 × the rated current (%s = supply ÷ coil resistance at %.0f °C), "+
+			"against the spring and load (dashed). The plunger pulls in where the pull at the rest gap exceeds the dashed line.",
+			si(ms.RatedCurrent, "A"), md.Temperature-273.15),
+		Figure: plot.ForceVsGap("Pull versus air gap, one line per coil current", curves, passive)}, nil
+}
+
+// reportFooter is the report's last lines: the solver's effort, the
+// rounding, and the reminder that these are model estimates.
+func reportFooter(s jsonSolver) []string {
+	return []string{
 		fmt.Sprintf("Solver: %s, %d steps (%d rejected), %d events, %d evaluations.",
-			doc.Solver.Method, doc.Solver.Steps, doc.Solver.Rejected, doc.Solver.Events, doc.Solver.Evaluations),
+			s.Method, s.Steps, s.Rejected, s.Events, s.Evaluations),
 		"Figures are rounded to 3 significant digits as in the text summary; coilkick run --json gives them in full.",
 		"coilkick's results are model estimates from the data in the scenario. The cautions are reminders, not a safety assessment: " +
 			"confirm on the bench, and follow local electrical codes and licensed practice for wiring, insulation and protection.",
 	}
-	return rep, failed, nil
 }
 
 func celsius(k float64) string { return strconv.FormatFloat(k-273.15, 'f', 1, 64) + " °C" }
