@@ -100,29 +100,53 @@ func (md *Model) scales() []float64 {
 
 // Build turns a loaded scenario into models, checking what the loader
 // cannot check alone (model consistency). Errors point at the scenario
-// field concerned.
+// field concerned. The parts are built in order (coil, plunger, magnet,
+// drive, control, thermal, timing: the magnet from geometry needs the coil,
+// the control the drive) and the first error is returned.
 func Build(s *Scenario) (*Model, error) {
 	md := &Model{Name: s.Name, Source: s.Source, Timing: s.Timing, Limits: s.Limits, Solver: s.Solver,
-		EddyResistance: s.Magnet.EddyResistance, CoreLossResistance: s.Coil.CoreLossResistance}
+		EddyResistance: s.Magnet.EddyResistance, CoreLossResistance: s.Coil.CoreLossResistance,
+		LowSupply: s.Supply.LowVoltage, Tolerances: s.Tolerances}
+	if d := s.Duty; d != nil {
+		md.Duty = &DutyPattern{OnTime: d.OnTime, Period: d.Period, Segments: d.Segments, Duration: d.Duration}
+	}
+	steps := []func(*Scenario, *Model) error{buildCoilModel, buildPlunger, buildMagnet, buildDrive, buildControl,
+		buildThermal, checkTiming}
+	for _, step := range steps {
+		if err := step(s, md); err != nil {
+			return nil, err
+		}
+	}
+	return md, nil
+}
+
+// buildCoilModel sets the coil (from the measured resistance, or from the
+// bobbin and wire) and the winding temperature of the run.
+func buildCoilModel(s *Scenario, md *Model) error {
 	md.Coil = magnet.Coil{Resistance: s.Coil.Resistance, RefTemperature: s.Coil.RefTemperature,
 		TempCoeff: s.Coil.TempCoeff, Turns: s.Coil.Turns}
 	if cb := s.Coil.Build; cb != nil {
 		fig, err := buildCoil(cb)
 		if err != nil {
-			return nil, s.Errorf("coil.build", "%v", err)
+			return s.Errorf("coil.build", "%v", err)
 		}
 		md.CoilBuild = &fig
 		// The build gives the resistance at 20 °C (IEC 60028 resistivity).
 		md.Coil = magnet.Coil{Resistance: fig.Resistance20, RefTemperature: 293.15, TempCoeff: s.Coil.TempCoeff, Turns: fig.Turns}
 	}
 	if err := md.Coil.Validate(); err != nil {
-		return nil, s.Errorf("coil", "%v", err)
+		return s.Errorf("coil", "%v", err)
 	}
 	md.Temperature = s.Coil.Temperature
 	if r := md.CoilResistance(); !(r > 0) {
-		return nil, s.Errorf("coil.temperature", "coil resistance at %.1f degC is %g ohm, not positive", md.Temperature-273.15, r)
+		return s.Errorf("coil.temperature", "coil resistance at %.1f degC is %g ohm, not positive", md.Temperature-273.15, r)
 	}
+	return nil
+}
 
+// buildPlunger sets the plunger: mass, stops, spring, damping, impacts and
+// its loads (a constant load, the orifice pressure).
+func buildPlunger(s *Scenario, md *Model) error {
 	p := s.Plunger
 	md.Plunger = mech.Plunger{Mass: p.Mass, GapMin: p.SeatedGap, GapMax: p.RestGap,
 		Spring: mech.Spring{Preload: p.SpringPreload, Rate: p.SpringRate}, Damping: p.Damping,
@@ -138,9 +162,16 @@ func Build(s *Scenario) (*Model, error) {
 		md.Plunger.Load = loads
 	}
 	if err := md.Plunger.Validate(); err != nil {
-		return nil, s.Errorf("plunger", "%v", err)
+		return s.Errorf("plunger", "%v", err)
 	}
+	return nil
+}
 
+// buildMagnet sets the magnetic model: the gap law, a flux-linkage table
+// that must cover the stroke, or the magnet from geometry (which needs the
+// coil's build, so the coil comes first).
+func buildMagnet(s *Scenario, md *Model) error {
+	p := s.Plunger
 	switch s.Magnet.Kind {
 	case MagnetGapLaw:
 		g := s.Magnet
@@ -152,36 +183,43 @@ func Build(s *Scenario) (*Model, error) {
 			gl, err = magnet.NewGapLaw(g.ClosedInductance, g.OpenInductance, p.SeatedGap, p.RestGap)
 		}
 		if err != nil {
-			return nil, s.Errorf("magnet.gap law", "%v", err)
+			return s.Errorf("magnet.gap law", "%v", err)
 		}
 		md.Magnet = gl
 	case MagnetTable:
 		tb, err := readFluxTable(s)
 		if err != nil {
-			return nil, err
+			return err
 		}
 		lo, hi := tb.GapRange()
 		if lo > p.SeatedGap*(1+1e-9) || hi < p.RestGap*(1-1e-9) {
-			return nil, s.Errorf("magnet.table.file", "table covers gaps %.4g–%.4g mm but the plunger moves over %.4g–%.4g mm",
+			return s.Errorf("magnet.table.file", "table covers gaps %.4g–%.4g mm but the plunger moves over %.4g–%.4g mm",
 				lo*1e3, hi*1e3, p.SeatedGap*1e3, p.RestGap*1e3)
 		}
 		md.Magnet = tb
 	case MagnetGeom:
 		pm, tb, err := buildGeometry(s, md)
 		if err != nil {
-			return nil, err
+			return err
 		}
 		md.Geometry, md.Magnet = pm, tb
 	default:
-		return nil, s.Errorf("magnet", "unknown magnetic model %q", s.Magnet.Kind)
+		return s.Errorf("magnet", "unknown magnetic model %q", s.Magnet.Kind)
 	}
+	return nil
+}
 
-	kinds := map[string]circuit.Kind{SuppressNone: circuit.None, SuppressFreewheel: circuit.Freewheel,
-		SuppressDiodeZener: circuit.DiodeZener, SuppressTVS: circuit.TVS, SuppressSnubber: circuit.Snubber,
-		SuppressSwitchClamp: circuit.SwitchClamp, SuppressBridge: circuit.Bridge}
-	k, ok := kinds[s.Suppression.Kind]
+// suppressorKinds maps the scenario's suppression types to circuit kinds.
+var suppressorKinds = map[string]circuit.Kind{SuppressNone: circuit.None, SuppressFreewheel: circuit.Freewheel,
+	SuppressDiodeZener: circuit.DiodeZener, SuppressTVS: circuit.TVS, SuppressSnubber: circuit.Snubber,
+	SuppressSwitchClamp: circuit.SwitchClamp, SuppressBridge: circuit.Bridge}
+
+// buildSuppressor returns the suppression part; for a diode + Zener it also
+// sets md.DiodeDrop.
+func buildSuppressor(s *Scenario, md *Model) (circuit.Suppressor, error) {
+	k, ok := suppressorKinds[s.Suppression.Kind]
 	if !ok {
-		return nil, s.Errorf("suppression.type", "unknown suppression type %q", s.Suppression.Kind)
+		return circuit.Suppressor{}, s.Errorf("suppression.type", "unknown suppression type %q", s.Suppression.Kind)
 	}
 	sup := circuit.Suppressor{Kind: k, Resistance: s.Suppression.Resistance, Capacitance: s.Suppression.Capacitance}
 	switch k {
@@ -195,6 +233,17 @@ func Build(s *Scenario) (*Model, error) {
 	case circuit.Bridge:
 		sup.Voltage = s.Suppression.ForwardDrop
 	}
+	return sup, nil
+}
+
+// buildDrive sets the drive circuit (supply, switch, suppression part,
+// winding capacitance, recirculation path), the bulk capacitor and the
+// switch's edge times.
+func buildDrive(s *Scenario, md *Model) error {
+	sup, err := buildSuppressor(s, md)
+	if err != nil {
+		return err
+	}
 	md.Drive = circuit.Drive{
 		Supply: circuit.Supply{Voltage: s.Supply.Voltage, SourceResistance: s.Supply.SourceResistance},
 		Switch: circuit.Switch{OnResistance: s.Switch.OnResistance, OutputCapacitance: s.Switch.OutputCapacitance,
@@ -203,17 +252,27 @@ func Build(s *Scenario) (*Model, error) {
 		CoilCapacitance: s.Coil.WindingCapacitance,
 	}
 	if err := md.Drive.Validate(); err != nil {
-		return nil, s.Errorf("suppression", "%v", err)
+		return s.Errorf("suppression", "%v", err)
 	}
 	md.BulkCapacitance = s.Supply.BulkCapacitance
 	md.RiseTime, md.FallTime = s.Switch.RiseTime, s.Switch.FallTime
 	dr := s.Drive
 	md.Drive.Recirc = circuit.Recirculation{Drop: dr.RecirculationDrop, Resistance: dr.RecirculationResistance}
-	modes := map[string]circuit.ControlMode{"": circuit.Constant, DriveConstant: circuit.Constant, DrivePWM: circuit.PWM,
-		DrivePeakHold: circuit.PeakHold, DriveBoostHold: circuit.BoostHold}
-	cm, ok := modes[dr.Mode]
+	return nil
+}
+
+// controlModes maps the scenario's drive modes to circuit control modes
+// (no mode: constant).
+var controlModes = map[string]circuit.ControlMode{"": circuit.Constant, DriveConstant: circuit.Constant, DrivePWM: circuit.PWM,
+	DrivePeakHold: circuit.PeakHold, DriveBoostHold: circuit.BoostHold}
+
+// buildControl sets the driver's control law and checks it against the
+// drive (so the drive comes first).
+func buildControl(s *Scenario, md *Model) error {
+	dr := s.Drive
+	cm, ok := controlModes[dr.Mode]
 	if !ok {
-		return nil, s.Errorf("drive.mode", "unknown drive mode %q", dr.Mode)
+		return s.Errorf("drive.mode", "unknown drive mode %q", dr.Mode)
 	}
 	md.Control = circuit.Control{Mode: cm, Frequency: dr.Frequency, Duty: dr.Duty, PeakCurrent: dr.PeakCurrent,
 		PeakTime: dr.PeakTime, HoldCurrent: dr.HoldCurrent, Band: dr.Band, FastDecay: dr.Decay == "fast",
@@ -222,57 +281,74 @@ func Build(s *Scenario) (*Model, error) {
 		md.Control.Regulation = circuit.FixedFrequency
 	}
 	if err := md.Control.Validate(&md.Drive); err != nil {
-		return nil, s.Errorf("drive", "%v", err)
+		return s.Errorf("drive", "%v", err)
 	}
-	md.LowSupply = s.Supply.LowVoltage
-	if d := s.Duty; d != nil {
-		md.Duty = &DutyPattern{OnTime: d.OnTime, Period: d.Period, Segments: d.Segments, Duration: d.Duration}
+	return nil
+}
+
+// buildThermal sets the coil's thermal network, the ambient and the
+// insulation class when the scenario has a thermal section; the run then
+// starts at the ambient unless a coil temperature is written.
+func buildThermal(s *Scenario, md *Model) error {
+	th := s.Thermal
+	if th == nil {
+		return nil
 	}
-	md.Tolerances = s.Tolerances
-	if th := s.Thermal; th != nil {
-		md.Ambient = th.Ambient
-		var net magnet.Thermal
-		var err error
-		switch th.Kind {
-		case "rating":
-			net, err = magnet.FromRating(th.Rise, th.AtPower, th.TimeConstant)
-		case "surface":
-			c := th.HeatCapacity
-			if c == 0 && md.CoilBuild != nil {
-				// copper only: a conservative (fast-heating) estimate
-				c = md.CoilBuild.CopperMass * magnet.CopperSpecificHeat
-			}
-			net, err = magnet.FromSurface(th.SurfaceArea, th.Convection, c)
-		case "network":
-			net = magnet.Thermal{WindingCapacity: th.HeatCapacity, WindingToHousing: th.WindingToHousing,
-				HousingCapacity: th.HousingCapacity, HousingToAmbient: th.HousingToAmbient}
-			err = net.Validate()
-		}
+	md.Ambient = th.Ambient
+	net, err := thermalNetwork(th, md.CoilBuild)
+	if err != nil {
+		return s.Errorf("thermal", "%v", err)
+	}
+	md.Thermal = &net
+	if th.Class != "" {
+		lim, err := magnet.InsulationClassLimit(th.Class)
 		if err != nil {
-			return nil, s.Errorf("thermal", "%v", err)
+			return s.Errorf("thermal.insulation class", "%v", err)
 		}
-		md.Thermal = &net
-		if th.Class != "" {
-			lim, err := magnet.InsulationClassLimit(th.Class)
-			if err != nil {
-				return nil, s.Errorf("thermal.insulation class", "%v", err)
-			}
-			md.InsulationClass, md.InsulationLimit = th.Class, lim
-		}
-		// With a thermal model the run starts at the coil temperature when
-		// one is written, else at the ambient.
-		if _, written := s.pos["coil.temperature"]; !written {
-			md.Temperature = th.Ambient
-		}
+		md.InsulationClass, md.InsulationLimit = th.Class, lim
 	}
+	// With a thermal model the run starts at the coil temperature when
+	// one is written, else at the ambient.
+	if _, written := s.pos["coil.temperature"]; !written {
+		md.Temperature = th.Ambient
+	}
+	return nil
+}
+
+// thermalNetwork makes the thermal network of a thermal section: from a
+// rating, from the surface (the copper's heat capacity from the coil's
+// build when none is given), or as a two-body network.
+func thermalNetwork(th *ThermalSpec, coil *magnet.CoilFigures) (magnet.Thermal, error) {
+	var net magnet.Thermal
+	var err error
+	switch th.Kind {
+	case "rating":
+		net, err = magnet.FromRating(th.Rise, th.AtPower, th.TimeConstant)
+	case "surface":
+		c := th.HeatCapacity
+		if c == 0 && coil != nil {
+			// copper only: a conservative (fast-heating) estimate
+			c = coil.CopperMass * magnet.CopperSpecificHeat
+		}
+		net, err = magnet.FromSurface(th.SurfaceArea, th.Convection, c)
+	case "network":
+		net = magnet.Thermal{WindingCapacity: th.HeatCapacity, WindingToHousing: th.WindingToHousing,
+			HousingCapacity: th.HousingCapacity, HousingToAmbient: th.HousingToAmbient}
+		err = net.Validate()
+	}
+	return net, err
+}
+
+// checkTiming checks the energize, de-energize and end times.
+func checkTiming(s *Scenario, _ *Model) error {
 	t := s.Timing
 	if !(t.EnergizeAt >= 0 && t.DeenergizeAt > t.EnergizeAt && t.End > t.DeenergizeAt) {
-		return nil, s.Errorf("timing", "need 0 <= energize at < de-energize at < end")
+		return s.Errorf("timing", "need 0 <= energize at < de-energize at < end")
 	}
 	if math.IsInf(t.End, 0) {
-		return nil, s.Errorf("timing.end", "must be finite")
+		return s.Errorf("timing.end", "must be finite")
 	}
-	return md, nil
+	return nil
 }
 
 // LoadModel loads a scenario file and builds its model.
