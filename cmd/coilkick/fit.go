@@ -37,23 +37,18 @@ func fitCommand(stdout io.Writer) *cli.Command {
 	}
 }
 
+// cmdFit fits the scenario's parameters to the trace, prints the fit and
+// writes the outputs (all or none). A failed fit (coilkick.ErrFitFailed)
+// prints its reasons and writes nothing unless --keep-failed; its status
+// is 1 either way.
 func cmdFit(c *cli.Context, w io.Writer) error {
 	path, md, err := loadArg(c)
 	if err != nil {
 		return err
 	}
-	var params []coilkick.FitParam
-	for _, p := range strings.Split(c.String("params"), ",") {
-		p = strings.TrimSpace(p)
-		ok := false
-		for _, q := range coilkick.FitParams() {
-			if string(q) == p {
-				params, ok = append(params, q), true
-			}
-		}
-		if !ok {
-			return fmt.Errorf("--params: unknown parameter %q", p)
-		}
+	params, err := parseFitParams(c.String("params"))
+	if err != nil {
+		return err
 	}
 	tr, err := coilkick.LoadTrace(c.String("trace"))
 	if err != nil {
@@ -67,18 +62,79 @@ func cmdFit(c *cli.Context, w io.Writer) error {
 	// With --json - or --csv - standard output carries that document
 	// alone: the report is not printed (a failed fit's reasons are in the
 	// error message).
-	text, stdout := w, w
+	text := w
 	if toStdout(c, "json", "csv") {
 		text = io.Discard
 	}
 	b := bufio.NewWriter(text)
 	defer b.Flush()
+	printFit(b, path, md, tr, fr, failed)
+	if failed && !c.Bool("keep-failed") {
+		if c.String("output") != "" || c.String("csv") != "" || c.String("json") != "" || c.String("plot") != "" {
+			fmt.Fprintln(b, "No output file written (--keep-failed writes them, for a look at the overlay).")
+		}
+		b.Flush()
+		return fmt.Errorf("fit of %s: %v", path, err)
+	}
+	if err := writeFitOutputs(c, b, w, path, md, tr, fr); err != nil {
+		return err
+	}
+	if failed {
+		b.Flush()
+		return fmt.Errorf("fit of %s (outputs kept as asked, --keep-failed): %v", path, err)
+	}
+	return nil
+}
+
+// parseFitParams reads --params: comma-separated names of
+// coilkick.FitParams.
+func parseFitParams(list string) ([]coilkick.FitParam, error) {
+	var params []coilkick.FitParam
+	for _, p := range strings.Split(list, ",") {
+		p = strings.TrimSpace(p)
+		ok := false
+		for _, q := range coilkick.FitParams() {
+			if string(q) == p {
+				params, ok = append(params, q), true
+			}
+		}
+		if !ok {
+			return nil, fmt.Errorf("--params: unknown parameter %q", p)
+		}
+	}
+	return params, nil
+}
+
+// printFit prints the fit: the trace and its events, the fitted
+// parameters with their σ, the residual and, for a failed fit, why.
+func printFit(b io.Writer, path string, md *coilkick.Model, tr *coilkick.MeasuredTrace, fr *coilkick.FitResult, failed bool) {
 	ev := fr.Events
 	fmt.Fprintf(b, "coilkick fit: %s\nscenario: %s\ntrace: %s (%d samples, offset %s, noise %s rms)\n",
 		md.Name, path, tr.Source, len(tr.Time), si(ev.Offset, "A"), si(ev.Noise, "A"))
 	if tr.Repeated > 0 {
 		fmt.Fprintf(b, "  %d rows at a repeated time (one on each side of an event) dropped; the first of each kept\n", tr.Repeated)
 	}
+	printTraceEvents(b, ev)
+	if failed {
+		fmt.Fprintln(b, "\nFIT FAILED: the values below are not a calibration")
+	}
+	printFitParameters(b, fr)
+	fmt.Fprintf(b, "\nRMS current error: %s before, %s after (trace noise %s); %d simulations\n", si(fr.RMSStart, "A"), si(fr.RMS, "A"), si(fr.Noise, "A"), fr.Evaluations)
+	fmt.Fprintf(b, "Residual check: RMS error %.3g × the noise reference %s (a fit fails above %d ×; the reference is the largest of the noise before energizing, the sample-to-sample noise, the rounding noise of the trace's resolution and the σ floor)\n",
+		fr.RMS/fr.NoiseRef, si(fr.NoiseRef, "A"), coilkick.FitResidualLimit)
+	if fr.SeatModel.Happened && ev.HasDip {
+		fmt.Fprintf(b, "Pull-in: fitted model %s, trace dip %s after energize\n", si(fr.SeatModel.Seconds, "s"), si(ev.Seat-ev.Energize, "s"))
+	}
+	if failed {
+		fmt.Fprintln(b, "\nFIT FAILED:")
+		for _, f := range fr.Failure {
+			fmt.Fprintf(b, "  - %s\n", f)
+		}
+	}
+}
+
+// printTraceEvents prints the events found in the trace.
+func printTraceEvents(b io.Writer, ev *coilkick.TraceEvents) {
 	fmt.Fprintln(b, "\nEvents in the trace")
 	fmt.Fprintf(b, "  energize                 %s ± %s\n", si(ev.Energize, "s"), si(ev.EnergizeErr, "s"))
 	if ev.HasDip {
@@ -90,9 +146,11 @@ func cmdFit(c *cli.Context, w io.Writer) error {
 	if ev.DecayEnd > 0 {
 		fmt.Fprintf(b, "  decay ends               %s ± %s\n", si(ev.DecayEnd, "s"), si(ev.DecayEndErr, "s"))
 	}
-	if failed {
-		fmt.Fprintln(b, "\nFIT FAILED: the values below are not a calibration")
-	}
+}
+
+// printFitParameters prints the fitted parameters, the nuisance
+// parameters and how their σ was found.
+func printFitParameters(b io.Writer, fr *coilkick.FitResult) {
 	fmt.Fprintln(b, "\nFitted parameters (± 1σ; sensitivity: RMS error rise for +1 %)")
 	for _, v := range fr.Values {
 		fmt.Fprintf(b, "  %-18s %10s -> %10s %-6s ± %s   sensitivity %s\n", v.Param, finite(v.Start/v.DisplayScale, "%.5g"), finite(v.Value/v.DisplayScale, "%.5g"),
@@ -108,28 +166,13 @@ func cmdFit(c *cli.Context, w io.Writer) error {
 	for _, w := range fr.Warnings {
 		fmt.Fprintf(b, "  WARNING: %s\n", w)
 	}
-	fmt.Fprintf(b, "\nRMS current error: %s before, %s after (trace noise %s); %d simulations\n", si(fr.RMSStart, "A"), si(fr.RMS, "A"), si(fr.Noise, "A"), fr.Evaluations)
-	fmt.Fprintf(b, "Residual check: RMS error %.3g × the noise reference %s (a fit fails above %d ×; the reference is the largest of the noise before energizing, the sample-to-sample noise, the rounding noise of the trace's resolution and the σ floor)\n",
-		fr.RMS/fr.NoiseRef, si(fr.NoiseRef, "A"), coilkick.FitResidualLimit)
-	if fr.SeatModel.Happened && ev.HasDip {
-		fmt.Fprintf(b, "Pull-in: fitted model %s, trace dip %s after energize\n", si(fr.SeatModel.Seconds, "s"), si(ev.Seat-ev.Energize, "s"))
-	}
-	if failed {
-		fmt.Fprintln(b, "\nFIT FAILED:")
-		for _, f := range fr.Failure {
-			fmt.Fprintf(b, "  - %s\n", f)
-		}
-		if !c.Bool("keep-failed") {
-			if c.String("output") != "" || c.String("csv") != "" || c.String("json") != "" || c.String("plot") != "" {
-				fmt.Fprintln(b, "No output file written (--keep-failed writes them, for a look at the overlay).")
-			}
-			b.Flush()
-			return fmt.Errorf("fit of %s: %v", path, err)
-		}
-	}
-	// The outputs, written together (all or none) through temporary
-	// files; the command line was checked before the fit (checkArgs: not
-	// onto an input, links followed; plot extension; writable folder).
+}
+
+// writeFitOutputs writes the fit's outputs together (all or none, through
+// temporary files; the command line was checked before the fit by
+// checkArgs: not onto an input, links followed; plot extension; writable
+// folder). Standard output ("-") is stdout, the text b otherwise.
+func writeFitOutputs(c *cli.Context, b *bufio.Writer, stdout io.Writer, path string, md *coilkick.Model, tr *coilkick.MeasuredTrace, fr *coilkick.FitResult) error {
 	outs := newOutputs(b)
 	if toStdout(c, "json", "csv") {
 		b.Flush()
@@ -159,10 +202,6 @@ func cmdFit(c *cli.Context, w io.Writer) error {
 	}
 	if out := c.String("output"); out != "" && out != "-" {
 		fmt.Fprintf(b, "Fitted scenario written to %s\n", out)
-	}
-	if failed {
-		b.Flush()
-		return fmt.Errorf("fit of %s (outputs kept as asked, --keep-failed): %v", path, err)
 	}
 	return nil
 }
