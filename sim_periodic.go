@@ -87,7 +87,7 @@ func (r *run) fastForward(t float64, y []float64) float64 {
 	copy(cur.y[:], y)
 	cur.swEst = r.swEst
 	cur.traceLen = len(r.res.Trace.Time)
-	cur.edges = r.edges
+	cur.edges = r.window.edges
 	p.n++
 	if p.n <= periodCompareSpan+1 {
 		return t
@@ -118,8 +118,8 @@ func (r *run) fastForward(t float64, y []float64) float64 {
 	// The last command the periods may run up to: the de-energize
 	// command, the end, the hold window's start, the end of the peak phase.
 	stop := math.Min(r.tOff, r.tEnd)
-	if r.tWin > t {
-		stop = math.Min(stop, r.tWin)
+	if r.window.start > t {
+		stop = math.Min(stop, r.window.start)
 	}
 	if pe := r.ctl.PhaseEnd(); pe > t {
 		stop = math.Min(stop, pe)
@@ -136,11 +136,7 @@ func (r *run) fastForward(t float64, y []float64) float64 {
 		y[i] += float64(n) * (cur.y[i] - prev.y[i])
 	}
 	r.swEst += float64(n) * (cur.swEst - prev.swEst)
-	if r.inWindow {
-		dEdges := cur.edges - prev.edges
-		r.edges += n * dEdges
-		r.lastEdge += float64(n) * T
-	}
+	r.window.repeatPeriods(n, cur.edges-prev.edges, T)
 	if !r.noTrace {
 		r.res.Trace.repeat(prev.traceLen, cur.traceLen, n, T)
 	}
@@ -178,7 +174,7 @@ func (tr *Trace) repeat(from, to, n int, period float64) {
 	}
 }
 
-// periodicNote describes the repeated periods for the solver statistics.
+// String describes the repeated periods for the solver statistics.
 func (p *periodic) String() string {
 	if p.skipped == 0 {
 		return ""

@@ -182,31 +182,23 @@ type run struct {
 	res             *Result
 	noTrace         bool
 
-	ctl                 circuit.Controller
-	baseV0              float64         // V, the normal supply voltage
-	tRevEnd             float64         // end of a timed reverse pulse (+Inf: none)
-	tWin                float64         // start of the hold window (its end is tOff)
-	tHold               float64         // start of the hold phase (end of the peak or boost phase)
-	tRing               float64         // next ring-retirement check (+Inf: none)
-	bounceRun           int             // consecutive bounces at one stop (the Zeno guard)
-	bounceAtSeat        bool            // bounceRun counts at the seat
-	noRetire            bool            // follow the ring cycle by cycle
-	ringBandAt          float64         // V, the coil-voltage band the retired ring must stay within
-	ringUnsafe          bool            // the retired ring's envelope came near a threshold
-	scale               []float64       // the integrator's state scales (sim_ring.go activates sRing)
-	cols                []int           // scratch for dynamic
-	per                 periodic        // turn-ons of a chopped hold (sim_periodic.go)
-	noFastForward       bool            // integrate every period
-	tol                 float64         // the integrator's relative tolerance
-	off                 [nState]float64 // state at the de-energize command
-	inWindow            bool
-	win                 [nState]float64 // state at the window start
-	edges               int             // switch turn-on edges inside the window
-	firstEdge, lastEdge float64
-	swEst               float64 // J, estimated switching loss (edge times), not in the balance
-	swEstWin            float64 // J, the same at the window start
-	winMin              float64 // A, coil current extremes in the window
-	winMax              float64
+	ctl           circuit.Controller
+	baseV0        float64         // V, the normal supply voltage
+	tRevEnd       float64         // end of a timed reverse pulse (+Inf: none)
+	tRing         float64         // next ring-retirement check (+Inf: none)
+	bounceRun     int             // consecutive bounces at one stop (the Zeno guard)
+	bounceAtSeat  bool            // bounceRun counts at the seat
+	noRetire      bool            // follow the ring cycle by cycle
+	ringBandAt    float64         // V, the coil-voltage band the retired ring must stay within
+	ringUnsafe    bool            // the retired ring's envelope came near a threshold
+	scale         []float64       // the integrator's state scales (sim_ring.go activates sRing)
+	cols          []int           // scratch for dynamic
+	per           periodic        // turn-ons of a chopped hold (sim_periodic.go)
+	noFastForward bool            // integrate every period
+	tol           float64         // the integrator's relative tolerance
+	off           [nState]float64 // state at the de-energize command
+	window        holdWindow      // the hold figures' window
+	swEst         float64         // J, estimated switching loss (edge times), not in the balance
 
 	riseTime, fallTime float64
 
@@ -244,7 +236,7 @@ func (r *run) noteConduction(t float64, part string, start bool) {
 
 func (r *run) nextTimeEvent(t float64) float64 {
 	next := math.Inf(1)
-	for _, te := range [...]float64{r.tOn, r.tWin, r.tOff, r.tRevEnd, r.tEnd, r.tRing, r.ctl.NextTime(t)} {
+	for _, te := range [...]float64{r.tOn, r.window.start, r.tOff, r.tRevEnd, r.tEnd, r.tRing, r.ctl.NextTime(t)} {
 		if te > t && te < next {
 			next = te
 		}
@@ -318,8 +310,8 @@ func (r *run) event(t float64, y []float64, k int) (bool, error) {
 			r.ctl.AtTime(t)
 			r.applyCommand(t, y)
 		}
-		if t == r.tWin {
-			r.openWindow(t, y)
+		if t == r.window.start {
+			r.window.begin(y, r.swEst, r.current(y))
 		}
 		if t == r.tOff {
 			r.deenergize(t, y)
@@ -370,13 +362,7 @@ func (r *run) applyCommand(t float64, y []float64) {
 	case want && r.cmode != circuit.On:
 		r.switchOn(t, y)
 		r.per.pending = true
-		if r.inWindow {
-			if r.edges == 0 {
-				r.firstEdge = t
-			}
-			r.lastEdge = t
-			r.edges++
-		}
+		r.window.turnOn(t)
 	case !want && r.cmode == circuit.On:
 		i := r.current(y)
 		r.swEst += 0.5 * r.edgeVoltageOff(i, y) * math.Abs(i) * r.fallTime
@@ -480,16 +466,6 @@ func (r *run) switchOn(t float64, y []float64) {
 	// (idealised switching waveforms, e.g. Mohan, Undeland & Robbins,
 	// Power Electronics, ch. 2; from memory).
 	r.swEst += 0.5 * vBefore * math.Abs(i) * r.riseTime
-}
-
-// openWindow starts the hold window: the second half of the hold phase.
-func (r *run) openWindow(t float64, y []float64) {
-	r.inWindow = true
-	copy(r.win[:], y)
-	r.swEstWin = r.swEst
-	i := r.current(y)
-	r.winMin, r.winMax = i, i
-	r.edges = 0
 }
 
 func (r *run) energize(t float64, y []float64) {
@@ -644,7 +620,7 @@ func (r *run) mechEvent(t float64, y []float64) {
 		if r.energized && !m.DropOut.Happened {
 			_, im := r.solve(y)
 			p := &r.plunger
-			m.DropOut = DropOut{Happened: true, Time: t - r.tOn, InHold: t >= r.tHold, Current: r.current(y),
+			m.DropOut = DropOut{Happened: true, Time: t - r.tOn, InHold: t >= r.window.holdStart, Current: r.current(y),
 				Pull: r.mag.Force(im, p.GapMin), Passive: p.PassiveForce(p.GapMin, 0)}
 			r.note(t, "leaves the seat while energized (drop-out at %.4g A)", m.DropOut.Current)
 		} else {
@@ -702,10 +678,7 @@ func (r *run) peaks(o outputs) {
 	m.PeakSupplyCurrent = math.Max(m.PeakSupplyCurrent, o.SupplyCurrent)
 	m.MinRailVoltage = math.Min(m.MinRailVoltage, o.RailVoltage)
 	m.MaxRailVoltage = math.Max(m.MaxRailVoltage, o.RailVoltage)
-	if r.inWindow {
-		r.winMin = math.Min(r.winMin, o.Current)
-		r.winMax = math.Max(r.winMax, o.Current)
-	}
+	r.window.track(o.Current)
 	m.PeakSwitchVoltage = math.Max(m.PeakSwitchVoltage, o.SwitchVoltage)
 	m.MinSwitchVoltage = math.Min(m.MinSwitchVoltage, o.SwitchVoltage)
 	if r.cmode != circuit.On {
@@ -775,17 +748,7 @@ func Simulate(md *Model, opt *Options) (*Result, error) {
 		res: res, noTrace: opt.NoTrace, baseV0: drive.Supply.Voltage, tRevEnd: math.Inf(1),
 		riseTime: md.RiseTime, fallTime: md.FallTime, sampleTimes: opt.SampleTimes}
 	r.ctl.Control = md.Control
-	// The hold window: the second half of the hold phase (after the peak
-	// or boost phase, if any).
-	holdStart := r.tOn
-	if pe := md.Control.PhaseTime(); pe > 0 {
-		holdStart += pe
-	}
-	r.tWin = math.Inf(1)
-	r.tHold = holdStart
-	if holdStart < r.tOff {
-		r.tWin = holdStart + 0.5*(r.tOff-holdStart)
-	}
+	r.window = newHoldWindow(r.tOn, r.tOff, md.Control.PhaseTime())
 	res.Metrics.init()
 
 	y := make([]float64, nState)
@@ -972,28 +935,102 @@ func firstPositive(v ...float64) float64 {
 // step budget.
 var ErrStepBudget = errStepBudget
 
-// closeWindow computes the hold figures at the end of the hold window.
-func (r *run) closeWindow(t float64, y []float64) {
-	if !r.inWindow {
+// holdWindow is where the hold figures are measured: the second half of
+// the hold phase (after the peak or boost phase, if any), up to the
+// de-energize command. It keeps the state at its start, for the
+// quadratures' increments over it (∫i, ∫R·i², ∫P), the coil current's
+// extremes in it, and the switch's turn-on edges in it, for the chopping
+// frequency.
+type holdWindow struct {
+	start     float64 // s, the window's start (its end is the de-energize command); +Inf: none
+	holdStart float64 // s, start of the hold phase (end of the peak or boost phase)
+	open      bool    // the window has started and not yet closed
+	// at is the state at the window's start.
+	at                     [nState]float64
+	swEst                  float64 // J, the switching-loss estimate at the window's start
+	minCurrent, maxCurrent float64 // A, coil current extremes in the window
+	edges                  int     // switch turn-on edges inside the window
+	firstEdge, lastEdge    float64 // s, the first and the last of them
+}
+
+// newHoldWindow places the window for energize and de-energize times tOn,
+// tOff and a peak or boost phase of phase (s, 0 for none): the second half
+// of the hold phase; none when the phase outlasts the energized time.
+func newHoldWindow(tOn, tOff, phase float64) holdWindow {
+	holdStart := tOn
+	if phase > 0 {
+		holdStart += phase
+	}
+	w := holdWindow{start: math.Inf(1), holdStart: holdStart}
+	if holdStart < tOff {
+		w.start = holdStart + 0.5*(tOff-holdStart)
+	}
+	return w
+}
+
+// begin opens the window with the state y, the switching-loss estimate
+// swEst (J) and the coil current i (A) at its start.
+func (w *holdWindow) begin(y []float64, swEst, i float64) {
+	w.open = true
+	copy(w.at[:], y)
+	w.swEst = swEst
+	w.minCurrent, w.maxCurrent = i, i
+	w.edges = 0
+}
+
+// turnOn counts a switch turn-on edge at t while the window is open.
+func (w *holdWindow) turnOn(t float64) {
+	if !w.open {
 		return
 	}
-	r.inWindow = false
+	if w.edges == 0 {
+		w.firstEdge = t
+	}
+	w.lastEdge = t
+	w.edges++
+}
+
+// track widens the current's extremes to i (A) while the window is open.
+func (w *holdWindow) track(i float64) {
+	if w.open {
+		w.minCurrent = math.Min(w.minCurrent, i)
+		w.maxCurrent = math.Max(w.maxCurrent, i)
+	}
+}
+
+// repeatPeriods books n periods of length period (s), with edges turn-on
+// edges each, that a periodic steady state repeated (sim_periodic.go)
+// while the window is open.
+func (w *holdWindow) repeatPeriods(n, edges int, period float64) {
+	if w.open {
+		w.edges += n * edges
+		w.lastEdge += float64(n) * period
+	}
+}
+
+// closeWindow computes the hold figures at the end of the hold window.
+func (r *run) closeWindow(t float64, y []float64) {
+	w := &r.window
+	if !w.open {
+		return
+	}
+	w.open = false
 	m := &r.res.Metrics
 	h := &m.Hold
-	T := t - r.tWin
+	T := t - w.start
 	if !(T > 0) {
 		return
 	}
 	h.Measured = true
-	h.Start, h.End = r.tWin, t
-	h.MeanCurrent = (y[qCharge] - r.win[qCharge]) / T
-	h.MinCurrent, h.MaxCurrent = r.winMin, r.winMax
-	h.Ripple = r.winMax - r.winMin
+	h.Start, h.End = w.start, t
+	h.MeanCurrent = (y[qCharge] - w.at[qCharge]) / T
+	h.MinCurrent, h.MaxCurrent = w.minCurrent, w.maxCurrent
+	h.Ripple = w.maxCurrent - w.minCurrent
 	h.Chopped = r.ctl.Chops()
 	h.EndCurrent = r.current(y)
-	if h.Chopped && r.edges >= 2 {
+	if h.Chopped && w.edges >= 2 {
 		// whole periods between the first and last turn-on in the window
-		h.ChoppingFrequency = roundSignificant(float64(r.edges-1)/(r.lastEdge-r.firstEdge), 9)
+		h.ChoppingFrequency = roundSignificant(float64(w.edges-1)/(w.lastEdge-w.firstEdge), 9)
 	}
 	if !h.Chopped {
 		ron := r.drive.Switch.OnResistance
@@ -1003,21 +1040,21 @@ func (r *run) closeWindow(t float64, y []float64) {
 		h.SteadyCurrent = r.baseV0 / (r.resistance(y) + ron + r.rs)
 		h.Settled = math.Abs(h.EndCurrent-h.SteadyCurrent) <= SettleFraction*math.Abs(h.SteadyCurrent)
 	}
-	h.CoilPower = (y[qCoilR] - r.win[qCoilR]) / T
+	h.CoilPower = (y[qCoilR] - w.at[qCoilR]) / T
 	h.FullVoltageCoilPower = r.baseV0 * r.baseV0 / r.r
-	h.SwitchConductionPower = (y[qSwitch] - r.win[qSwitch] - (y[qAval] - r.win[qAval])) / T
-	h.DiodePower = (y[qDiode] - r.win[qDiode]) / T
+	h.SwitchConductionPower = (y[qSwitch] - w.at[qSwitch] - (y[qAval] - w.at[qAval])) / T
+	h.DiodePower = (y[qDiode] - w.at[qDiode]) / T
 	if h.Chopped {
-		h.ClampPower = (y[qClamp] - r.win[qClamp]) / T
-		h.AvalanchePower = (y[qAval] - r.win[qAval]) / T
+		h.ClampPower = (y[qClamp] - w.at[qClamp]) / T
+		h.AvalanchePower = (y[qAval] - w.at[qAval]) / T
 	}
-	h.SwitchingPower = (r.swEst - r.swEstWin) / T
-	h.SupplyMeanCurrent = (y[qSupplyQ] - r.win[qSupplyQ]) / T
-	h.SupplyPower = (y[qSupply] - r.win[qSupply]) / T
+	h.SwitchingPower = (r.swEst - w.swEst) / T
+	h.SupplyMeanCurrent = (y[qSupplyQ] - w.at[qSupplyQ]) / T
+	h.SupplyPower = (y[qSupply] - w.at[qSupply]) / T
 	p := &r.plunger
 	if need := p.PassiveForce(p.GapMin, 0); need > 0 {
 		// The weakest point of the ripple must hold the plunger at the seat.
-		h.ForceMargin = r.mag.Force(r.winMin, p.GapMin) / need
+		h.ForceMargin = r.mag.Force(w.minCurrent, p.GapMin) / need
 	}
 }
 
