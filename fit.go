@@ -241,37 +241,99 @@ func Fit(md *Model, tr *MeasuredTrace, params []FitParam) (*FitResult, error) {
 	if err != nil {
 		return nil, err
 	}
-	shift0 := md.Timing.EnergizeAt - ev.Energize
+	fp, err := newFitProblem(md, tr, params, ev)
+	if err != nil {
+		return nil, err
+	}
+	res := &FitResult{Events: ev, Noise: ev.Noise, Shift: fp.shift0, Offset: ev.Offset, Points: len(fp.grid)}
+	x0, err := fp.startPoint()
+	if err != nil {
+		return nil, err
+	}
+	fp.evaluations++
+	sim, err := fp.simulate(x0)
+	if err != nil {
+		return nil, err
+	}
+	res.RMSStart = math.Sqrt(fp.sseOf(sim, ev.Offset) / float64(len(fp.grid)))
+	x, err := fp.minimize(x0)
+	if err != nil {
+		return nil, err
+	}
+	f, err := fp.record(res, x)
+	if err != nil {
+		return nil, err
+	}
+	fp.uncertainties(res, x, f)
+	res.Evaluations = fp.evaluations
+	// The fitted model's seat instant.
+	v := *md
+	for k, p := range params {
+		setFit(&v, p, math.Exp(x[k]))
+	}
+	if r, err := Simulate(&v, &Options{NoTrace: true}); err == nil {
+		res.SeatModel = r.Metrics.PullIn
+	}
+	judgeResidual(res, md, tr, ev)
+	if res.Failed() {
+		where := tr.Source
+		if tr.HeaderLine > 0 {
+			where = fmt.Sprintf("%s:%d", tr.Source, tr.HeaderLine)
+		}
+		return res, fmt.Errorf("%s: %w: %s", where, ErrFitFailed, strings.Join(res.Failure, "; "))
+	}
+	return res, nil
+}
+
+// fitProblem is one fit's measured samples on the fit grid and its trial
+// simulations. A trial is x = (ln p₁ … ln pₘ, u): the parameters on their
+// logarithms and the alignment correction δ = u·tau.
+type fitProblem struct {
+	md     *Model
+	params []FitParam
+	start  []float64 // the parameters' starting values (SI)
+	// shift0 (s) is the detected alignment (measured time + shift0 =
+	// model time), window (s) the half-width of the alignment's search
+	// about it, dt (s) the trace's sample step, tau (s) the alignment per
+	// unit of u.
+	shift0, window, dt, tau float64
+	grid, raw               []float64 // model time at shift0 (s), measured current (A)
+	peak                    float64   // A, the largest |measured − detected offset| on the grid
+	hs                      []float64 // the central-difference steps of x for the Jacobian
+	times                   []float64 // a trial's sample times (reused)
+	evaluations             int       // simulations counted in FitResult.Evaluations
+	jacErr                  error     // why the last Jacobian could not be made
+}
+
+// newFitProblem sets up the fit grid (the measured samples inside the
+// model's run, kept away from its end by the search window, thinned to
+// FitMaxPoints), the alignment's search window and the starting values.
+func newFitProblem(md *Model, tr *MeasuredTrace, params []FitParam, ev *TraceEvents) (*fitProblem, error) {
 	dt := ev.Step
-	// s, the alignment search range about the detected energize instant:
+	fp := &fitProblem{md: md, params: params, shift0: md.Timing.EnergizeAt - ev.Energize, dt: dt}
+	// The alignment search range about the detected energize instant:
 	// wide, because a threshold detector can be fooled by slow noise
-	// (TestFitCoverageCorrelatedNoise had a 0.4 ms miss).
-	// Capped at 1000 samples so that the alignment scan stays bounded
-	// whatever the detector returned.
-	window := math.Min(math.Max(4*ev.EnergizeErr, 40*dt), 1000*dt)
-	res := &FitResult{Events: ev, Noise: ev.Noise, Shift: shift0, Offset: ev.Offset}
-	// The fit grid: the measured samples inside the model's run (kept
-	// away from its end by the search window), thinned.
+	// (TestFitCoverageCorrelatedNoise had a 0.4 ms miss). Capped at 1000
+	// samples so that the alignment scan stays bounded whatever the
+	// detector returned.
+	fp.window = math.Min(math.Max(4*ev.EnergizeErr, 40*dt), 1000*dt)
 	stride := max(1, len(tr.Time)/FitMaxPoints)
-	var grid, raw []float64 // model time at shift0 (s), measured current (A)
-	peak := 0.0
 	for k := 0; k < len(tr.Time); k += stride {
-		tm := tr.Time[k] + shift0
-		if tm > md.Timing.End-window {
+		tm := tr.Time[k] + fp.shift0
+		if tm > md.Timing.End-fp.window {
 			break
 		}
-		grid, raw = append(grid, tm), append(raw, tr.Current[k])
-		peak = math.Max(peak, math.Abs(tr.Current[k]-ev.Offset))
+		fp.grid, fp.raw = append(fp.grid, tm), append(fp.raw, tr.Current[k])
+		fp.peak = math.Max(fp.peak, math.Abs(tr.Current[k]-ev.Offset))
 	}
-	if len(grid) < 20 || grid[len(grid)-1] < md.Timing.EnergizeAt {
+	n, m := len(fp.grid), len(params)
+	if n < 20 || fp.grid[n-1] < md.Timing.EnergizeAt {
 		return nil, errors.New("coilkick: the trace and the scenario's timing overlap in fewer than 20 samples after energizing")
 	}
-	n, m := len(grid), len(params)
-	res.Points = n
 	if n < m+3 {
 		return nil, fmt.Errorf("coilkick: %d trace samples cannot determine %d parameters with offset and alignment", n, m)
 	}
-	start := make([]float64, m)
+	fp.start = make([]float64, m)
 	for k, p := range params {
 		v, err := getFit(md, p)
 		if err != nil {
@@ -280,137 +342,138 @@ func Fit(md *Model, tr *MeasuredTrace, params []FitParam) (*FitResult, error) {
 		if !(v > 0) {
 			return nil, fmt.Errorf("coilkick: %s must start from a positive value to be fitted", p)
 		}
-		start[k] = v
+		fp.start[k] = v
 	}
-	// x = (ln p₁ … ln pₘ, u) with the alignment correction δ = u·tau; tau
-	// makes Nelder–Mead's first simplex step (0.05) one sample step.
-	tau := 20 * dt
-	times := make([]float64, 0, n)
-	// simulate returns the model current on the grid for x.
-	simulate := func(x []float64) ([]float64, error) {
-		v := *md
-		for k, p := range params {
-			if err := setFit(&v, p, math.Exp(x[k])); err != nil {
-				return nil, err
-			}
-		}
-		delta := x[m] * tau
-		if !(math.Abs(delta) <= window) {
-			return nil, errShiftRange
-		}
-		first := 0 // grid points before model time 0 see the coil at rest
-		for first < n && grid[first]+delta < 0 {
-			first++
-		}
-		times = times[:0]
-		for _, t := range grid[first:] {
-			times = append(times, t+delta)
-		}
-		r, err := Simulate(&v, &Options{NoTrace: true, SampleTimes: times})
-		if err != nil {
+	// tau makes Nelder–Mead's first simplex step (0.05) one sample step.
+	fp.tau = 20 * dt
+	fp.hs = make([]float64, m+1)
+	for k := range fp.hs {
+		fp.hs[k] = 1e-3
+	}
+	fp.hs[m] = 0.1 * dt / fp.tau // a tenth of a sample step
+	fp.times = make([]float64, 0, n)
+	return fp, nil
+}
+
+// model returns a copy of the model with the parameters of x.
+func (fp *fitProblem) model(x []float64) (*Model, error) {
+	v := *fp.md
+	for k, p := range fp.params {
+		if err := setFit(&v, p, math.Exp(x[k])); err != nil {
 			return nil, err
 		}
-		if len(r.Samples) != len(times) {
-			return nil, fmt.Errorf("coilkick: fit: %d samples simulated, %d asked", len(r.Samples), len(times))
-		}
-		sim := make([]float64, n)
-		copy(sim[first:], r.Samples)
-		return sim, nil
 	}
-	// offset returns the least-squares baseline offset for a simulation.
-	offset := func(sim []float64) float64 {
-		s := 0.0
-		for k := range sim {
-			s += raw[k] - sim[k]
-		}
-		return s / float64(n)
+	return &v, nil
+}
+
+// simulate returns the model current on the grid for x.
+func (fp *fitProblem) simulate(x []float64) ([]float64, error) {
+	v, err := fp.model(x)
+	if err != nil {
+		return nil, err
 	}
-	sseOf := func(sim []float64, b float64) float64 {
-		s := 0.0
-		for k := range sim {
-			d := raw[k] - b - sim[k]
-			s += d * d
-		}
-		return s
+	delta := x[len(fp.params)] * fp.tau
+	if !(math.Abs(delta) <= fp.window) {
+		return nil, errShiftRange
 	}
-	sse := func(x []float64) float64 {
-		res.Evaluations++
-		sim, err := simulate(x)
-		if err != nil {
-			return math.Inf(1)
-		}
-		return sseOf(sim, offset(sim))
+	n := len(fp.grid)
+	first := 0 // grid points before model time 0 see the coil at rest
+	for first < n && fp.grid[first]+delta < 0 {
+		first++
 	}
+	fp.times = fp.times[:0]
+	for _, t := range fp.grid[first:] {
+		fp.times = append(fp.times, t+delta)
+	}
+	r, err := Simulate(v, &Options{NoTrace: true, SampleTimes: fp.times})
+	if err != nil {
+		return nil, err
+	}
+	if len(r.Samples) != len(fp.times) {
+		return nil, fmt.Errorf("coilkick: fit: %d samples simulated, %d asked", len(r.Samples), len(fp.times))
+	}
+	sim := make([]float64, n)
+	copy(sim[first:], r.Samples)
+	return sim, nil
+}
+
+// offset returns the least-squares baseline offset (A) for a simulation.
+func (fp *fitProblem) offset(sim []float64) float64 {
+	s := 0.0
+	for k := range sim {
+		s += fp.raw[k] - sim[k]
+	}
+	return s / float64(len(fp.grid))
+}
+
+// sseOf returns the squared error (A²) of a simulation with offset b.
+func (fp *fitProblem) sseOf(sim []float64, b float64) float64 {
+	s := 0.0
+	for k := range sim {
+		d := fp.raw[k] - b - sim[k]
+		s += d * d
+	}
+	return s
+}
+
+// sse is the objective: the squared error at x with its best offset,
+// +Inf when the trial fails.
+func (fp *fitProblem) sse(x []float64) float64 {
+	fp.evaluations++
+	sim, err := fp.simulate(x)
+	if err != nil {
+		return math.Inf(1)
+	}
+	return fp.sseOf(sim, fp.offset(sim))
+}
+
+// startPoint returns x at the starting parameters with the coarse
+// alignment: the least-squares alignment over the whole window in steps
+// of half a sample, from one simulation on a fine grid.
+func (fp *fitProblem) startPoint() ([]float64, error) {
+	m := len(fp.params)
 	x0 := make([]float64, m+1)
-	for k, v := range start {
+	for k, v := range fp.start {
 		x0[k] = math.Log(v)
 	}
-	// Coarse alignment: the least-squares alignment over the whole window
-	// in steps of half a sample, with the starting parameters, from one
-	// simulation on a fine grid (linear interpolation between its points).
-	if delta, err := coarseAlignment(md, grid, raw, window, dt/2); err == nil {
-		x0[m] = delta / tau
-	} else {
+	delta, err := coarseAlignment(fp.md, fp.grid, fp.raw, fp.window, fp.dt/2)
+	if err != nil {
 		return nil, err
 	}
-	res.Evaluations++
-	if sim, err := simulate(x0); err == nil {
-		res.RMSStart = math.Sqrt(sseOf(sim, ev.Offset) / float64(n))
-	} else {
-		return nil, err
-	}
-	prob := optimize.Problem{Func: sse}
+	x0[m] = delta / fp.tau
+	return x0, nil
+}
+
+// minimize finds the least-squares x from x0: Nelder–Mead, then the
+// Gauss–Newton polish.
+func (fp *fitProblem) minimize(x0 []float64) ([]float64, error) {
+	prob := optimize.Problem{Func: fp.sse}
 	settings := &optimize.Settings{FuncEvaluations: 3000, Converger: &optimize.FunctionConverge{Absolute: 1e-12, Relative: 1e-6, Iterations: 30}}
 	out, err := optimize.Minimize(prob, x0, settings, &optimize.NelderMead{})
 	if out == nil || math.IsInf(out.F, 0) {
 		return nil, fmt.Errorf("coilkick: fit: no trial simulation matched the trace (%v)", err)
 	}
-	x, f := out.X, out.F
-	// Columns of J: ∂(simulated current)/∂x for the parameters (ln p) and
-	// u, by central differences, then the offset (a column of ones).
-	hs := make([]float64, m+1)
-	for k := range hs {
-		hs[k] = 1e-3
-	}
-	hs[m] = 0.1 * dt / tau // a tenth of a sample step
-	var jacErr error       // why the last Jacobian could not be made
-	jacobian := func(x []float64) (*mat.Dense, bool) {
-		J := mat.NewDense(n, m+2, nil)
-		for k := 0; k <= m; k++ {
-			xp := append([]float64(nil), x...)
-			xm := append([]float64(nil), x...)
-			xp[k] += hs[k]
-			xm[k] -= hs[k]
-			res.Evaluations += 2
-			sp, err1 := simulate(xp)
-			sm, err2 := simulate(xm)
-			if jacErr = errors.Join(err1, err2); jacErr != nil {
-				return nil, false
-			}
-			for j := range sp {
-				J.Set(j, k, (sp[j]-sm[j])/(2*hs[k]))
-			}
-		}
-		for j := 0; j < n; j++ {
-			J.Set(j, m+1, 1)
-		}
-		return J, true
-	}
-	// Gauss–Newton polish: the least-squares step of the linearised
-	// problem, halved until it lowers the squared error.
+	return fp.polish(out.X, out.F), nil
+}
+
+// polish takes Gauss–Newton steps from x (squared error f): the
+// least-squares step of the linearised problem, halved until it lowers
+// the squared error.
+func (fp *fitProblem) polish(x []float64, f float64) []float64 {
+	n, m := len(fp.grid), len(fp.params)
 	for it := 0; it < 8; it++ {
-		sim, err := simulate(x)
+		sim, err := fp.simulate(x)
 		if err != nil {
 			break
 		}
-		b := offset(sim)
-		J, ok := jacobian(x)
+		b := fp.offset(sim)
+		J, ok := fp.jacobian(x)
 		if !ok {
 			break
 		}
 		r := mat.NewVecDense(n, nil)
 		for j := range sim {
-			r.SetVec(j, raw[j]-b-sim[j])
+			r.SetVec(j, fp.raw[j]-b-sim[j])
 		}
 		var step mat.VecDense
 		if err := step.SolveVec(J, r); err != nil {
@@ -422,7 +485,7 @@ func Fit(md *Model, tr *MeasuredTrace, params []FitParam) (*FitResult, error) {
 			for k := 0; k <= m; k++ {
 				xt[k] += lambda * step.AtVec(k)
 			}
-			if ft := sse(xt); ft < f {
+			if ft := fp.sse(xt); ft < f {
 				better = f-ft > 1e-9*f
 				x, f = xt, ft
 				break
@@ -432,33 +495,68 @@ func Fit(md *Model, tr *MeasuredTrace, params []FitParam) (*FitResult, error) {
 			break
 		}
 	}
-	sim, err := simulate(x)
-	if err != nil {
-		return nil, err
+	return x
+}
+
+// jacobian returns J at x: ∂(simulated current)/∂x for the parameters
+// (ln p) and u by central differences, then the offset (a column of
+// ones); false (and fp.jacErr) when a trial failed.
+func (fp *fitProblem) jacobian(x []float64) (*mat.Dense, bool) {
+	n, m := len(fp.grid), len(fp.params)
+	J := mat.NewDense(n, m+2, nil)
+	for k := 0; k <= m; k++ {
+		xp := append([]float64(nil), x...)
+		xm := append([]float64(nil), x...)
+		xp[k] += fp.hs[k]
+		xm[k] -= fp.hs[k]
+		fp.evaluations += 2
+		sp, err1 := fp.simulate(xp)
+		sm, err2 := fp.simulate(xm)
+		if fp.jacErr = errors.Join(err1, err2); fp.jacErr != nil {
+			return nil, false
+		}
+		for j := range sp {
+			J.Set(j, k, (sp[j]-sm[j])/(2*fp.hs[k]))
+		}
 	}
-	b := offset(sim)
-	f = sseOf(sim, b)
+	for j := 0; j < n; j++ {
+		J.Set(j, m+1, 1)
+	}
+	return J, true
+}
+
+// record fills res with the fit at x (the RMS residual, the overlay, the
+// offset and alignment, the residual scale with its floor and the
+// autocorrelation inflation) and returns the squared error (A²).
+func (fp *fitProblem) record(res *FitResult, x []float64) (float64, error) {
+	n, m := len(fp.grid), len(fp.params)
+	sim, err := fp.simulate(x)
+	if err != nil {
+		return 0, err
+	}
+	b := fp.offset(sim)
+	f := fp.sseOf(sim, b)
 	res.RMS = math.Sqrt(f / float64(n))
 	res.Simulated = sim
 	res.Offset = b
-	res.Shift = shift0 + x[m]*tau
-	for k := range grid {
-		res.Time = append(res.Time, grid[k]+x[m]*tau)
-		res.Measured = append(res.Measured, raw[k]-b)
+	res.Shift = fp.shift0 + x[m]*fp.tau
+	for k := range fp.grid {
+		res.Time = append(res.Time, fp.grid[k]+x[m]*fp.tau)
+		res.Measured = append(res.Measured, fp.raw[k]-b)
 	}
 	// Residual scale, its floor and the autocorrelation inflation.
 	dof := float64(n - (m + 2))
-	res.NoiseFloor = FitNoiseFloor * peak
+	res.NoiseFloor = FitNoiseFloor * fp.peak
 	res.ResidualSD = math.Sqrt(f / dof)
 	if !(res.ResidualSD > res.NoiseFloor) {
 		res.ResidualSD, res.FloorUsed = res.NoiseFloor, true
 	}
 	var r0, r1 float64
 	for k := range sim {
-		d := raw[k] - b - sim[k]
+		d := fp.raw[k] - b - sim[k]
 		r0 += d * d
 		if k > 0 {
-			r1 += d * (raw[k-1] - b - sim[k-1])
+			r1 += d * (fp.raw[k-1] - b - sim[k-1])
 		}
 	}
 	res.Inflation = 1
@@ -468,16 +566,33 @@ func Fit(md *Model, tr *MeasuredTrace, params []FitParam) (*FitResult, error) {
 			res.Inflation = (1 + rho) / (1 - rho)
 		}
 	}
-	quantities := make([]string, 0, m+2) // the columns of J, for messages
-	for _, p := range params {
-		quantities = append(quantities, string(p))
-	}
-	quantities = append(quantities, "time alignment", "baseline offset")
+	return f, nil
+}
+
+// uncertainties computes the covariance at x (squared error f) and fills
+// in the alignment's and offset's errors and the fitted values with their
+// errors and sensitivities, recording the failures: the alignment at the
+// edge of its search, a failed trial next to the optimum, a singular
+// covariance, a 1σ above the value, a value run off.
+func (fp *fitProblem) uncertainties(res *FitResult, x []float64, f float64) {
+	m := len(fp.params)
+	atEdge := fp.checkAlignment(res, x[m]*fp.tau)
 	var cov *mat.Dense
 	var null []float64
-	J, jacOK := jacobian(x)
+	J, jacOK := fp.jacobian(x)
 	if jacOK {
 		cov, null = covariance(J, res.ResidualSD*res.ResidualSD*res.Inflation)
+	}
+	switch {
+	case !jacOK && !(atEdge && errors.Is(fp.jacErr, errShiftRange)):
+		why, _, _ := strings.Cut(strings.TrimPrefix(fp.jacErr.Error(), "coilkick: "), "\n")
+		res.Failure = append(res.Failure, fmt.Sprintf("the uncertainties cannot be computed: a trial next to the optimum failed (%s)", why))
+	case jacOK && cov == nil:
+		what := "every fitted quantity"
+		if names := nullNames(null, fp.quantities()); names != "" {
+			what = names
+		}
+		res.Failure = append(res.Failure, fmt.Sprintf("the trace does not determine %s (singular covariance): fit fewer parameters", what))
 	}
 	stdErr := func(k int) float64 {
 		if cov == nil {
@@ -485,36 +600,17 @@ func Fit(md *Model, tr *MeasuredTrace, params []FitParam) (*FitResult, error) {
 		}
 		return math.Sqrt(cov.At(k, k))
 	}
-	atEdge := false
-	switch d := x[m] * tau; {
-	case math.Abs(d) > 0.98*window:
-		atEdge = true
-		res.Failure = append(res.Failure, fmt.Sprintf("the time alignment ran to the edge of its search, %s from the detected energize instant (±%s): check the trace's energize edge and the scenario's timing", siText(d, "s"), siText(window, "s")))
-	case math.Abs(d) > 0.9*window:
-		res.Warnings = append(res.Warnings, fmt.Sprintf("the time alignment moved %s from the detected energize instant, near the edge of its ±%s search: check the trace's energize edge and the scenario's timing", siText(d, "s"), siText(window, "s")))
-	}
-	switch {
-	case !jacOK && !(atEdge && errors.Is(jacErr, errShiftRange)):
-		why, _, _ := strings.Cut(strings.TrimPrefix(jacErr.Error(), "coilkick: "), "\n")
-		res.Failure = append(res.Failure, fmt.Sprintf("the uncertainties cannot be computed: a trial next to the optimum failed (%s)", why))
-	case jacOK && cov == nil:
-		what := "every fitted quantity"
-		if names := nullNames(null, quantities); names != "" {
-			what = names
-		}
-		res.Failure = append(res.Failure, fmt.Sprintf("the trace does not determine %s (singular covariance): fit fewer parameters", what))
-	}
-	res.ShiftErr = tau * stdErr(m)
+	res.ShiftErr = fp.tau * stdErr(m)
 	res.OffsetErr = stdErr(m + 1)
-	base := math.Max(f, float64(n)*res.NoiseFloor*res.NoiseFloor) // no division by a vanishing residual
-	for k, p := range params {
+	base := math.Max(f, float64(len(fp.grid))*res.NoiseFloor*res.NoiseFloor) // no division by a vanishing residual
+	for k, p := range fp.params {
 		v := math.Exp(x[k])
 		fk := fitKeys[p]
-		fv := FitValue{Param: p, Start: start[k], Value: v, Unit: fk.unit, DisplayScale: fk.scale}
+		fv := FitValue{Param: p, Start: fp.start[k], Value: v, Unit: fk.unit, DisplayScale: fk.scale}
 		fv.StdErr = v * stdErr(k) // d p = p · d ln p
 		xp := append([]float64(nil), x...)
 		xp[k] += math.Log(1.01)
-		if f := sse(xp); base > 0 && !math.IsInf(f, 0) {
+		if f := fp.sse(xp); base > 0 && !math.IsInf(f, 0) {
 			fv.Sensitivity = math.Sqrt(f/base) - 1
 		}
 		res.Values = append(res.Values, fv)
@@ -525,34 +621,45 @@ func Fit(md *Model, tr *MeasuredTrace, params []FitParam) (*FitResult, error) {
 			res.Failure = append(res.Failure, fmt.Sprintf("%s ran off to %g", p, v))
 		}
 	}
-	// The fitted model's seat instant.
-	v := *md
-	for k, p := range params {
-		setFit(&v, p, math.Exp(x[k]))
+}
+
+// checkAlignment records a failure when the fitted alignment correction
+// d (s) ran to the edge of its search, and a warning near it; it reports
+// the edge.
+func (fp *fitProblem) checkAlignment(res *FitResult, d float64) (atEdge bool) {
+	switch {
+	case math.Abs(d) > 0.98*fp.window:
+		res.Failure = append(res.Failure, fmt.Sprintf("the time alignment ran to the edge of its search, %s from the detected energize instant (±%s): check the trace's energize edge and the scenario's timing", siText(d, "s"), siText(fp.window, "s")))
+		return true
+	case math.Abs(d) > 0.9*fp.window:
+		res.Warnings = append(res.Warnings, fmt.Sprintf("the time alignment moved %s from the detected energize instant, near the edge of its ±%s search: check the trace's energize edge and the scenario's timing", siText(d, "s"), siText(fp.window, "s")))
 	}
-	if r, err := Simulate(&v, &Options{NoTrace: true}); err == nil {
-		res.SeatModel = r.Metrics.PullIn
+	return false
+}
+
+// quantities names the columns of the Jacobian, for messages.
+func (fp *fitProblem) quantities() []string {
+	q := make([]string, 0, len(fp.params)+2)
+	for _, p := range fp.params {
+		q = append(q, string(p))
 	}
-	// The residual against the trace's noise.
+	return append(q, "time alignment", "baseline offset")
+}
+
+// judgeResidual sets the noise the residual is judged against and, when
+// the RMS residual exceeds FitResidualLimit times it, records the failure
+// (first: the most telling reason) with hints at a wrong unit.
+func judgeResidual(res *FitResult, md *Model, tr *MeasuredTrace, ev *TraceEvents) {
 	res.Quantum = currentQuantum(tr.Current)
 	if tr.Uniform() {
 		res.DiffNoise = differenceNoise(tr.Current)
 	}
 	res.NoiseRef = max(ev.Noise, res.DiffNoise, res.Quantum/math.Sqrt(12), res.NoiseFloor)
 	if !(res.RMS <= FitResidualLimit*res.NoiseRef) {
-		// first: the most telling reason
 		res.Failure = append([]string{fmt.Sprintf("the RMS residual %s is %.3g times the trace's noise %s (a fit fails above %d times): the model does not follow the trace",
 			siText(res.RMS, "A"), res.RMS/res.NoiseRef, siText(res.NoiseRef, "A"), FitResidualLimit)}, res.Failure...)
 		res.Failure = append(res.Failure, unitHints(md, tr, ev)...)
 	}
-	if res.Failed() {
-		where := tr.Source
-		if tr.HeaderLine > 0 {
-			where = fmt.Sprintf("%s:%d", tr.Source, tr.HeaderLine)
-		}
-		return res, fmt.Errorf("%s: %w: %s", where, ErrFitFailed, strings.Join(res.Failure, "; "))
-	}
-	return res, nil
 }
 
 func isFinite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
