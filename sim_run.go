@@ -546,94 +546,132 @@ func (r *run) circuitChange(t float64, y []float64, to circuit.Mode) {
 	r.scheduleRingCheck(t, y)
 }
 
+// mechEvent applies the plunger's mode change: an impact at a stop while
+// it moves, or leaving the seat or the rest stop.
 func (r *run) mechEvent(t float64, y []float64) {
-	m := &r.res.Metrics
-	p := &r.plunger
 	switch r.mmode {
 	case mechFree:
-		v := y[sVel]
-		atSeat := y[sGap] <= 0.5*(p.GapMin+p.GapMax)
-		if atSeat {
-			y[sGap] = p.GapMin
-		} else {
-			y[sGap] = p.GapMax
-		}
-		after, stick := p.Impact(v)
-		if (atSeat && v >= 0) || (!atSeat && v <= 0) {
-			after, stick = 0, true
-		}
-		// Bounces at one stop whose speeds fall geometrically accumulate at
-		// a finite time after infinitely many impacts (a Zeno point) when
-		// the stick speed is tiny: take the plunger as resting after
-		// ZenoBounces of them (the speed left is restitution^ZenoBounces of
-		// the first impact's).
-		if atSeat != r.bounceAtSeat {
-			r.bounceRun, r.bounceAtSeat = 0, atSeat
-		}
-		zeno := false
-		if !stick {
-			if r.bounceRun++; r.bounceRun >= ZenoBounces {
-				after, stick, zeno = 0, true, true
-			}
-		}
-		defer func() {
-			if zeno {
-				r.note(t, "%d bounces in a row at the %s: the plunger is taken as resting there (the bounces accumulate; raise plunger.stick speed to end them sooner)", ZenoBounces, map[bool]string{true: "seat", false: "rest stop"}[atSeat])
-			}
-		}()
-		if stick {
-			r.bounceRun = 0
-		}
-		i := r.current(y)
-		if atSeat {
-			if r.energized && !m.PullIn.Happened {
-				m.PullIn = Interval{true, t - r.tOn}
-				m.SeatImpactSpeed = math.Abs(v)
-				m.CurrentAtSeating = i
-			}
-			if r.energized && !stick {
-				m.Bounces++
-			}
-			r.noteImpact(t, "seat", math.Abs(v))
-		} else {
-			if r.offDone && !m.Drop.Happened && m.ReleaseNotApplicable() == "" {
-				m.Drop = Interval{true, t - r.tOff}
-			}
-			r.noteImpact(t, "rest-stop", math.Abs(v))
-		}
-		if stick {
-			y[sVel] = 0
-			if atSeat {
-				r.mmode = mechSeated
-			} else {
-				r.mmode = mechRest
-			}
-		} else {
-			y[sVel] = after
-		}
+		r.impact(t, y)
 	case mechSeated:
-		r.mmode = mechFree
-		y[sVel] = 0
-		if r.offDone && !m.Release.Happened && m.ReleaseNotApplicable() == "" {
-			m.Release = Interval{true, t - r.tOff}
-		}
-		if r.energized && !m.DropOut.Happened {
-			_, im := r.solve(y)
-			p := &r.plunger
-			m.DropOut = DropOut{Happened: true, Time: t - r.tOn, InHold: t >= r.window.holdStart, Current: r.current(y),
-				Pull: r.mag.Force(im, p.GapMin), Passive: p.PassiveForce(p.GapMin, 0)}
-			r.note(t, "leaves the seat while energized (drop-out at %.4g A)", m.DropOut.Current)
-		} else {
-			r.note(t, "leaves the seat")
-		}
+		r.leaveSeat(t, y)
 	case mechRest:
-		r.mmode = mechFree
-		y[sVel] = 0
-		if r.energized && !m.MotionDelay.Happened {
-			m.MotionDelay = Interval{true, t - r.tOn}
-		}
-		r.note(t, "leaves the rest stop")
+		r.leaveRest(t, y)
 	}
+}
+
+// impact puts the moving plunger at the stop it reached (the seat or the
+// rest stop, whichever is nearer) and applies the impact law: it bounces
+// back, or it sticks (too slow, moving away from the stop already, or the
+// Zeno guard of countBounce).
+func (r *run) impact(t float64, y []float64) {
+	p := &r.plunger
+	v := y[sVel]
+	atSeat := y[sGap] <= 0.5*(p.GapMin+p.GapMax)
+	if atSeat {
+		y[sGap] = p.GapMin
+	} else {
+		y[sGap] = p.GapMax
+	}
+	after, stick := p.Impact(v)
+	if (atSeat && v >= 0) || (!atSeat && v <= 0) {
+		after, stick = 0, true
+	}
+	zeno := r.countBounce(atSeat, stick)
+	if zeno {
+		after, stick = 0, true
+	}
+	r.recordImpact(t, y, atSeat, stick, v)
+	if stick {
+		y[sVel] = 0
+		if atSeat {
+			r.mmode = mechSeated
+		} else {
+			r.mmode = mechRest
+		}
+	} else {
+		y[sVel] = after
+	}
+	if zeno {
+		r.note(t, "%d bounces in a row at the %s: the plunger is taken as resting there (the bounces accumulate; raise plunger.stick speed to end them sooner)", ZenoBounces, map[bool]string{true: "seat", false: "rest stop"}[atSeat])
+	}
+}
+
+// countBounce counts a bounce at one stop (the seat when atSeat) and
+// reports whether the plunger is to be taken as resting there (zeno).
+// Bounces at one stop whose speeds fall geometrically accumulate at a
+// finite time after infinitely many impacts (a Zeno point) when the stick
+// speed is tiny: the plunger rests after ZenoBounces of them in a row (the
+// speed left is restitution^ZenoBounces of the first impact's). The count
+// starts again at the other stop and after the plunger sticks.
+func (r *run) countBounce(atSeat, stick bool) (zeno bool) {
+	if atSeat != r.bounceAtSeat {
+		r.bounceRun, r.bounceAtSeat = 0, atSeat
+	}
+	if !stick {
+		r.bounceRun++
+		zeno = r.bounceRun >= ZenoBounces
+	}
+	if stick || zeno {
+		r.bounceRun = 0
+	}
+	return zeno
+}
+
+// recordImpact records an impact at speed v (m/s): at the seat the pull-in
+// (the first seating while energized) and the bounces while energized, at
+// the rest stop the drop after de-energizing; and the impact event.
+func (r *run) recordImpact(t float64, y []float64, atSeat, stick bool, v float64) {
+	m := &r.res.Metrics
+	i := r.current(y)
+	if atSeat {
+		if r.energized && !m.PullIn.Happened {
+			m.PullIn = Interval{true, t - r.tOn}
+			m.SeatImpactSpeed = math.Abs(v)
+			m.CurrentAtSeating = i
+		}
+		if r.energized && !stick {
+			m.Bounces++
+		}
+		r.noteImpact(t, "seat", math.Abs(v))
+		return
+	}
+	if r.offDone && !m.Drop.Happened && m.ReleaseNotApplicable() == "" {
+		m.Drop = Interval{true, t - r.tOff}
+	}
+	r.noteImpact(t, "rest-stop", math.Abs(v))
+}
+
+// leaveSeat frees the seated plunger: the release after de-energizing, or
+// a drop-out while energized (recorded with the pull and the passive force
+// at the seat).
+func (r *run) leaveSeat(t float64, y []float64) {
+	m := &r.res.Metrics
+	r.mmode = mechFree
+	y[sVel] = 0
+	if r.offDone && !m.Release.Happened && m.ReleaseNotApplicable() == "" {
+		m.Release = Interval{true, t - r.tOff}
+	}
+	if r.energized && !m.DropOut.Happened {
+		_, im := r.solve(y)
+		p := &r.plunger
+		m.DropOut = DropOut{Happened: true, Time: t - r.tOn, InHold: t >= r.window.holdStart, Current: r.current(y),
+			Pull: r.mag.Force(im, p.GapMin), Passive: p.PassiveForce(p.GapMin, 0)}
+		r.note(t, "leaves the seat while energized (drop-out at %.4g A)", m.DropOut.Current)
+	} else {
+		r.note(t, "leaves the seat")
+	}
+}
+
+// leaveRest frees the plunger resting at the rest stop; the first time
+// while energized is the motion delay.
+func (r *run) leaveRest(t float64, y []float64) {
+	m := &r.res.Metrics
+	r.mmode = mechFree
+	y[sVel] = 0
+	if r.energized && !m.MotionDelay.Happened {
+		m.MotionDelay = Interval{true, t - r.tOn}
+	}
+	r.note(t, "leaves the rest stop")
 }
 
 // settle re-checks the modes until none of their guards is violated.
@@ -713,28 +751,74 @@ func Simulate(md *Model, opt *Options) (*Result, error) {
 	if opt == nil {
 		opt = &Options{}
 	}
-	tol := firstPositive(opt.Tolerance, md.Solver.Tolerance, DefaultTolerance)
-	maxSteps := opt.MaxSteps
+	tol, maxSteps := solverLimits(md, opt)
+	r, y := newRun(md, opt, tol)
+	if err := r.start(y); err != nil {
+		return nil, err
+	}
+	res := r.res
+	r.scale = md.scales()
+	set := odeSettings{RelTol: tol, Scale: r.scale, MaxSteps: maxSteps, MaxStep: r.tEnd / 50,
+		NJac: stateJac}
+	in := newODE(r, nState, set)
+	err := in.run(0, y)
+	res.Stats = solverStats(in.stats, r.per.skipped)
+	if err != nil {
+		return res, fmt.Errorf("%s: simulation failed: %w", sourceName(md), err)
+	}
+	if r.ringUnsafe {
+		// The retired ring's envelope came near a threshold: the averaging
+		// was not safe; follow the ring cycle by cycle.
+		o := *opt
+		o.FollowRing = true
+		return Simulate(md, &o)
+	}
+	r.finish(y)
+	if err := res.Metrics.check(); err != nil {
+		return res, fmt.Errorf("%s: %w", sourceName(md), err)
+	}
+	return res, nil
+}
+
+// solverLimits returns the relative tolerance and the step budget of a
+// run: the options', else the scenario's, else the defaults.
+func solverLimits(md *Model, opt *Options) (tol float64, maxSteps int) {
+	tol = firstPositive(opt.Tolerance, md.Solver.Tolerance, DefaultTolerance)
+	maxSteps = opt.MaxSteps
 	if maxSteps <= 0 {
 		maxSteps = md.Solver.MaxSteps
 	}
 	if maxSteps <= 0 {
 		maxSteps = DefaultMaxSteps
 	}
-	drive := md.Drive
+	return tol, maxSteps
+}
+
+// runConditions returns the drive, the timing and the starting winding
+// temperature (K) of a run: the model's, with the options' overrides.
+func runConditions(md *Model, opt *Options) (drive circuit.Drive, timing TimingSpec, tWinding float64) {
+	drive = md.Drive
 	if opt.SupplyVoltage > 0 {
 		drive.Supply.Voltage = opt.SupplyVoltage
 	}
-	timing := md.Timing
+	timing = md.Timing
 	if opt.End > 0 {
 		timing = TimingSpec{EnergizeAt: opt.Energize, DeenergizeAt: opt.Deenergize, End: opt.End}
 	}
-	tWinding := md.Temperature
+	tWinding = md.Temperature
 	if opt.FixedTemperature > 0 {
 		tWinding = opt.FixedTemperature
 	} else if opt.WindingTemperature > 0 {
 		tWinding = opt.WindingTemperature
 	}
+	return drive, timing, tWinding
+}
+
+// newRun sets up the coupled system and the run of the model with the
+// options and the integrator's relative tolerance tol, and returns it with
+// the state at rest at t = 0.
+func newRun(md *Model, opt *Options, tol float64) (*run, []float64) {
+	drive, timing, tWinding := runConditions(md, opt)
 	sys := &system{mag: md.Magnet, plunger: md.Plunger, drive: drive, r: md.Coil.ResistanceAt(tWinding), eddy: md.EddyResistance,
 		rp: md.CoreLossResistance,
 		v0: drive.Supply.Voltage, rs: drive.Supply.SourceResistance, bulkC: md.BulkCapacitance,
@@ -763,52 +847,45 @@ func Simulate(md *Model, opt *Options) (*Result, error) {
 	if opt.HousingTemperature > 0 {
 		y[sHousing] = opt.HousingTemperature
 	}
-	sys.cmode = circuit.Off
-	sys.mmode = mechRest
+	return r, y
+}
+
+// start puts the run at rest at t = 0 (switch off, plunger at the rest
+// stop, modes settled), takes the stored energies the balance starts from
+// and the first trace row, and energizes when the energize time is 0.
+func (r *run) start(y []float64) error {
+	r.cmode = circuit.Off
+	r.mmode = mechRest
 	if err := r.settle(0, y); err != nil {
-		return nil, err
+		return err
 	}
-	r.capE0 = sys.storedCapEnergy(y)
-	r.wf0 = sys.fieldEnergy(y)
+	r.capE0 = r.storedCapEnergy(y)
+	r.wf0 = r.fieldEnergy(y)
 	if !r.noTrace {
-		res.Trace.add(0, sys.out(y))
+		r.res.Trace.add(0, r.out(y))
 	}
 	if r.tOn <= 0 {
 		r.energize(0, y)
 		if err := r.settle(0, y); err != nil {
-			return nil, err
+			return err
 		}
 	}
+	return nil
+}
 
-	r.scale = md.scales()
-	set := odeSettings{RelTol: tol, Scale: r.scale, MaxSteps: maxSteps, MaxStep: r.tEnd / 50,
-		NJac: stateJac}
-	in := newODE(r, nState, set)
-	err := in.run(0, y)
-	res.Stats = SolverStats{Steps: in.stats.Steps, Rejected: in.stats.Rejected, Events: in.stats.Events,
-		Evaluations: in.stats.Evals, StiffSteps: in.stats.StiffSteps, Method: "Dormand–Prince 5(4)",
-		PeriodsRepeated: r.per.skipped}
+// solverStats reports the integrator's work st and the periods a periodic
+// steady state repeated, naming the methods used.
+func solverStats(st odeStats, periodsRepeated int) SolverStats {
+	stats := SolverStats{Steps: st.Steps, Rejected: st.Rejected, Events: st.Events,
+		Evaluations: st.Evals, StiffSteps: st.StiffSteps, Method: "Dormand–Prince 5(4)",
+		PeriodsRepeated: periodsRepeated}
 	switch {
-	case in.stats.StiffSteps == in.stats.Steps && in.stats.Steps > 0:
-		res.Stats.Method = "RODAS4 (Hairer–Wanner)"
-	case in.stats.StiffSteps > 0:
-		res.Stats.Method = fmt.Sprintf("Dormand–Prince 5(4), RODAS4 (Hairer–Wanner) where stiff (%d steps)", in.stats.StiffSteps)
+	case st.StiffSteps == st.Steps && st.Steps > 0:
+		stats.Method = "RODAS4 (Hairer–Wanner)"
+	case st.StiffSteps > 0:
+		stats.Method = fmt.Sprintf("Dormand–Prince 5(4), RODAS4 (Hairer–Wanner) where stiff (%d steps)", st.StiffSteps)
 	}
-	if err != nil {
-		return res, fmt.Errorf("%s: simulation failed: %w", sourceName(md), err)
-	}
-	if r.ringUnsafe {
-		// The retired ring's envelope came near a threshold: the averaging
-		// was not safe; follow the ring cycle by cycle.
-		o := *opt
-		o.FollowRing = true
-		return Simulate(md, &o)
-	}
-	r.finish(y)
-	if err := res.Metrics.check(); err != nil {
-		return res, fmt.Errorf("%s: %w", sourceName(md), err)
-	}
-	return res, nil
+	return stats
 }
 
 // words writes a Go field name as lower-case words for a message
