@@ -13,12 +13,33 @@ import (
 	"coilkick/cmd/coilkick/plot"
 )
 
+// cmdMagnet prints the coil and magnet figures and writes the force
+// curves (--curves, --json, --plot) and the figures (--json, --csv).
 func cmdMagnet(c *cli.Context, w io.Writer) error {
 	path, md, err := loadArg(c)
 	if err != nil {
 		return err
 	}
 	s := md.MagnetSummary()
+	if err := checkMagnetFigures(path, md, &s); err != nil {
+		return err
+	}
+	currents, err := magnetCurrents(c.String("currents"), s.RatedCurrent)
+	if err != nil {
+		return err
+	}
+	if err := writeMagnetOutputs(c, w, path, md, &s, currents); err != nil {
+		return err
+	}
+	if !toStdout(c, "json", "csv", "curves") {
+		printMagnet(w, path, md, &s)
+	}
+	return nil
+}
+
+// checkMagnetFigures refuses a magnet whose figures are not finite (a
+// dimension far outside its range).
+func checkMagnetFigures(path string, md *coilkick.Model, s *coilkick.MagnetSummary) error {
 	if err := s.Check(); err != nil {
 		return fmt.Errorf("%s: %v", path, err)
 	}
@@ -29,21 +50,41 @@ func cmdMagnet(c *cli.Context, w io.Writer) error {
 			}
 		}
 	}
-	var currents []float64
-	if txt := c.String("currents"); txt != "" {
-		if currents, err = parseCurrents(txt); err != nil {
-			return err
-		}
-		for _, i := range currents {
-			if i > maxCurrentRatio*s.RatedCurrent {
-				return fmt.Errorf("--currents: %s is more than %d × the rated current %s", si(i, "A"), maxCurrentRatio, si(s.RatedCurrent, "A"))
-			}
-		}
-	} else {
-		for _, k := range []float64{0.25, 0.5, 0.75, 1, 1.25, 1.5} {
-			currents = append(currents, k*s.RatedCurrent)
+	return nil
+}
+
+// magnetCurrents are the currents of the force family: --currents (txt)
+// up to maxCurrentRatio × the rated current, else 0.25 to 1.5 × rated.
+func magnetCurrents(txt string, rated float64) ([]float64, error) {
+	if txt == "" {
+		return ratedFamily(rated), nil
+	}
+	currents, err := parseCurrents(txt)
+	if err != nil {
+		return nil, err
+	}
+	for _, i := range currents {
+		if i > maxCurrentRatio*rated {
+			return nil, fmt.Errorf("--currents: %s is more than %d × the rated current %s", si(i, "A"), maxCurrentRatio, si(rated, "A"))
 		}
 	}
+	return currents, nil
+}
+
+// ratedFamily is the default family of currents: 0.25 to 1.5 × the rated
+// current.
+func ratedFamily(rated float64) []float64 {
+	var currents []float64
+	for _, k := range []float64{0.25, 0.5, 0.75, 1, 1.25, 1.5} {
+		currents = append(currents, k*rated)
+	}
+	return currents
+}
+
+// writeMagnetOutputs writes the magnet's outputs together: the plot (81
+// gaps), the curves of --curves and --json (curveGaps gaps), the figures
+// of --json and --csv.
+func writeMagnetOutputs(c *cli.Context, w io.Writer, path string, md *coilkick.Model, s *coilkick.MagnetSummary, currents []float64) error {
 	outs := newOutputs(w)
 	if f := c.String("plot"); f != "" {
 		curves, err := md.ForceCurves(currents, 81)
@@ -58,9 +99,9 @@ func cmdMagnet(c *cli.Context, w io.Writer) error {
 			return err
 		}
 	}
-	// The curves of the CSV and the JSON: 41 gaps over the stroke.
 	var curves []coilkick.ForceCurve
 	if c.String("curves") != "" || c.String("json") != "" {
+		var err error
 		if curves, err = md.ForceCurves(currents, curveGaps); err != nil {
 			return err
 		}
@@ -68,20 +109,14 @@ func cmdMagnet(c *cli.Context, w io.Writer) error {
 	if f := c.String("curves"); f != "" {
 		outs.add(f, func(out io.Writer) error { return writeCurves(out, md, curves) })
 	}
-	doc := newMagnetDoc(path, md, &s, curves)
+	doc := newMagnetDoc(path, md, s, curves)
 	if f := c.String("json"); f != "" {
 		outs.add(f, func(out io.Writer) error { return writeJSONDoc(out, doc) })
 	}
 	if f := c.String("csv"); f != "" {
 		outs.add(f, func(out io.Writer) error { return writeMagnetCSV(out, doc) })
 	}
-	if err := outs.commit(); err != nil {
-		return err
-	}
-	if !toStdout(c, "json", "csv", "curves") {
-		printMagnet(w, path, md, &s)
-	}
-	return nil
+	return outs.commit()
 }
 
 // curveGaps is the number of gaps of the force curves in --curves and

@@ -559,52 +559,69 @@ func checkArgs(c *cli.Context) error {
 }
 
 // checkFlagValues applies to the flags the rules of the scenario keys they
-// stand for (solver.tolerance, ratings.hold force margin) and the caps.
+// stand for (solver.tolerance, ratings.hold force margin) and the caps:
+// each flag given is checked by its flagChecks entry, in that order.
 func checkFlagValues(c *cli.Context) error {
-	if c.IsSet("tolerance") {
-		if tol := c.Float64("tolerance"); !(tol >= 1e-12 && tol <= 1e-3) {
-			return fmt.Errorf("--tolerance %g: must be between 1e-12 and 1e-3 (as solver.tolerance in a scenario)", tol)
-		}
-	}
-	if c.IsSet("margin") {
-		if m := c.Float64("margin"); !(m > 0) || math.IsInf(m, 0) {
-			return fmt.Errorf("--margin %g: must be a finite number above 0 (as ratings.hold force margin in a scenario), e.g. 1.2", m)
-		}
-	}
-	if c.IsSet("samples") {
-		if n := c.Int("samples"); n < 0 || n > maxSamples {
-			return fmt.Errorf("--samples %d: must be from 0 (no Monte Carlo) to %d", n, maxSamples)
-		}
-	}
-	if c.IsSet("workers") {
-		if n := c.Int("workers"); n < 0 || n > maxWorkers {
-			return fmt.Errorf("--workers %d: must be from 0 (all cores) to %d", n, maxWorkers)
-		}
-	}
-	if c.IsSet("currents") {
-		if _, err := parseCurrents(c.String("currents")); err != nil {
-			return err
-		}
-	}
-	if c.IsSet("plot-window") {
-		if c.String("plot") == "" {
-			return fmt.Errorf("--plot-window %q: needs --plot (the window is of the plot)", c.String("plot-window"))
-		}
-		if _, _, _, err := plotWindow(c); err != nil {
-			return err
-		}
-	}
-	if c.IsSet("figure") {
-		if _, _, ok := sweepFigure(c.String("figure"), coilkick.SweepFigures{}); !ok {
-			return fmt.Errorf("--figure %q: unknown figure; expected one of: %s", c.String("figure"), strings.Join(sweepFigureNames, ", "))
-		}
-	}
-	if c.IsSet("vary") {
-		if _, err := parseVaries(c); err != nil {
-			return err
+	for _, fc := range flagChecks {
+		if c.IsSet(fc.flag) {
+			if err := fc.check(c); err != nil {
+				return err
+			}
 		}
 	}
 	return nil
+}
+
+// flagChecks check the value of a flag that is set.
+var flagChecks = []struct {
+	flag  string
+	check func(c *cli.Context) error
+}{
+	{"tolerance", func(c *cli.Context) error {
+		if tol := c.Float64("tolerance"); !(tol >= 1e-12 && tol <= 1e-3) {
+			return fmt.Errorf("--tolerance %g: must be between 1e-12 and 1e-3 (as solver.tolerance in a scenario)", tol)
+		}
+		return nil
+	}},
+	{"margin", func(c *cli.Context) error {
+		if m := c.Float64("margin"); !(m > 0) || math.IsInf(m, 0) {
+			return fmt.Errorf("--margin %g: must be a finite number above 0 (as ratings.hold force margin in a scenario), e.g. 1.2", m)
+		}
+		return nil
+	}},
+	{"samples", func(c *cli.Context) error {
+		if n := c.Int("samples"); n < 0 || n > maxSamples {
+			return fmt.Errorf("--samples %d: must be from 0 (no Monte Carlo) to %d", n, maxSamples)
+		}
+		return nil
+	}},
+	{"workers", func(c *cli.Context) error {
+		if n := c.Int("workers"); n < 0 || n > maxWorkers {
+			return fmt.Errorf("--workers %d: must be from 0 (all cores) to %d", n, maxWorkers)
+		}
+		return nil
+	}},
+	{"currents", func(c *cli.Context) error {
+		_, err := parseCurrents(c.String("currents"))
+		return err
+	}},
+	{"plot-window", func(c *cli.Context) error {
+		if c.String("plot") == "" {
+			return fmt.Errorf("--plot-window %q: needs --plot (the window is of the plot)", c.String("plot-window"))
+		}
+		_, _, _, err := plotWindow(c)
+		return err
+	}},
+	{"figure", func(c *cli.Context) error {
+		if _, _, ok := sweepFigure(c.String("figure"), coilkick.SweepFigures{}); !ok {
+			return fmt.Errorf("--figure %q: unknown figure; expected one of: %s", c.String("figure"), strings.Join(sweepFigureNames, ", "))
+		}
+		return nil
+	}},
+	{"vary", func(c *cli.Context) error {
+		_, err := parseVaries(c)
+		return err
+	}},
 }
 
 // parseVaries reads the --vary flags and checks the grid's size.
@@ -688,33 +705,17 @@ func parseCurrents(txt string) ([]float64, error) {
 // input files: the scenario, the files it refers to (flux table, steel
 // curve), a trace. Paths are compared with symbolic links followed.
 func checkOutputs(c *cli.Context) error {
-	type named struct{ flag, path string }
-	var outs []named
+	var outs []namedOutput
 	for _, f := range outputFlags {
 		if v := c.String(f.name); v != "" {
-			outs = append(outs, named{f.shown, v})
+			outs = append(outs, namedOutput{f.shown, v})
 		}
 	}
 	if len(outs) == 0 {
 		return nil
 	}
-	kind := map[string]string{}
-	var ins []string
-	addIn := func(p, what string) {
-		if _, ok := kind[p]; !ok && p != "" {
-			ins, kind[p] = append(ins, p), what
-		}
-	}
-	for _, p := range c.Args().Slice() {
-		addIn(p, "scenario file "+p)
-		for _, ref := range scenarioFiles(p, c) {
-			addIn(ref.path, ref.what)
-		}
-	}
-	for _, name := range inputFlags {
-		addIn(c.String(name), name+" file "+c.String(name))
-	}
 	// First the worst mistake: an output onto an input.
+	ins, kind := commandInputs(c)
 	for _, o := range outs {
 		if in := outfile.SameAsAny(o.path, ins...); in != "" {
 			return fmt.Errorf("%s %s is the %s: choose another name (an output never overwrites an input)", o.flag, o.path, kind[in])
@@ -736,19 +737,56 @@ func checkOutputs(c *cli.Context) error {
 				return fmt.Errorf("%s %s and %s %s name the same file: give each output its own name", p.flag, p.path, o.flag, o.path)
 			}
 		}
-		if o.flag == "--plot" {
-			if err := plot.CheckFileName(o.path); err != nil {
-				return fmt.Errorf("--plot %s: %v", o.path, err)
-			}
+		if err := checkOutputFile(c, o); err != nil {
+			return err
 		}
-		if o.flag == "-o" && c.Command.Name == "report" {
-			if ext := strings.ToLower(filepath.Ext(o.path)); ext != ".html" && ext != ".htm" {
-				return fmt.Errorf("-o %s: the report is HTML; name it .html (or - for standard output)", o.path)
-			}
+	}
+	return nil
+}
+
+// namedOutput is an output file with the flag that names it (as written
+// in messages).
+type namedOutput struct{ flag, path string }
+
+// commandInputs lists the command's input files (the scenarios, the files
+// they refer to, the files of inputFlags) and describes each for
+// messages.
+func commandInputs(c *cli.Context) ([]string, map[string]string) {
+	kind := map[string]string{}
+	var ins []string
+	addIn := func(p, what string) {
+		if _, ok := kind[p]; !ok && p != "" {
+			ins, kind[p] = append(ins, p), what
 		}
-		if err := outfile.Check(o.path); err != nil {
-			return fmt.Errorf("%s: %v", o.flag, err)
+	}
+	for _, p := range c.Args().Slice() {
+		addIn(p, "scenario file "+p)
+		for _, ref := range scenarioFiles(p, c) {
+			addIn(ref.path, ref.what)
 		}
+	}
+	for _, name := range inputFlags {
+		addIn(c.String(name), name+" file "+c.String(name))
+	}
+	return ins, kind
+}
+
+// checkOutputFile refuses an output file that cannot be written: a plot
+// that is not .png or .svg, a report that is not .html, a target that
+// outfile.Check refuses.
+func checkOutputFile(c *cli.Context, o namedOutput) error {
+	if o.flag == "--plot" {
+		if err := plot.CheckFileName(o.path); err != nil {
+			return fmt.Errorf("--plot %s: %v", o.path, err)
+		}
+	}
+	if o.flag == "-o" && c.Command.Name == "report" {
+		if ext := strings.ToLower(filepath.Ext(o.path)); ext != ".html" && ext != ".htm" {
+			return fmt.Errorf("-o %s: the report is HTML; name it .html (or - for standard output)", o.path)
+		}
+	}
+	if err := outfile.Check(o.path); err != nil {
+		return fmt.Errorf("%s: %v", o.flag, err)
 	}
 	return nil
 }

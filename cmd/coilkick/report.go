@@ -452,11 +452,7 @@ func waveformReportFigure(path string, md *coilkick.Model, res *coilkick.Result)
 // at 0.25 to 1.5 × the rated current, with the spring and load.
 func magnetReportFigure(md *coilkick.Model) (plot.ReportFigure, error) {
 	ms := md.MagnetSummary()
-	var currents []float64
-	for _, k := range []float64{0.25, 0.5, 0.75, 1, 1.25, 1.5} {
-		currents = append(currents, k*ms.RatedCurrent)
-	}
-	curves, err := md.ForceCurves(currents, 41)
+	curves, err := md.ForceCurves(ratedFamily(ms.RatedCurrent), 41)
 	if err != nil {
 		return plot.ReportFigure{}, err
 	}

@@ -382,44 +382,17 @@ func (a solveAnswer) unmet() bool {
 	return a.err == nil && a.notAsked == "" && (a.sol.Blocked != "" || !a.sol.Found)
 }
 
+// cmdSolve answers the solve-for questions (the lowest supply that pulls
+// in, cold and hot; the lowest hold current; the lowest clamp voltage
+// meeting the release requirement). Exit status 1 when an answer failed
+// with an error, else 2 when one found no setting that meets it.
 func cmdSolve(c *cli.Context, w io.Writer) error {
 	path, md, err := loadArg(c)
 	if err != nil {
 		return err
 	}
-	margin, from := 1.2, "default"
-	switch {
-	case c.IsSet("margin"):
-		margin, from = c.Float64("margin"), "--margin"
-	case md.Limits.MinHoldMargin > 0:
-		margin, from = md.Limits.MinHoldMargin, "the scenario's ratings.hold force margin"
-	}
-	var answers []solveAnswer
-	add := func(a solveAnswer, s coilkick.Solution, err error) {
-		a.sol, a.err = s, err
-		answers = append(answers, a)
-	}
-	s, err := coilkick.LowestSupply(md, 0)
-	add(solveAnswer{id: "lowest_supply", winding: md.Temperature}, s, err)
-	if hot := md.Tolerances.HotWinding; hot > 0 {
-		s, err := coilkick.LowestSupply(md, hot)
-		add(solveAnswer{id: "lowest_supply_hot", winding: hot}, s, err)
-	}
-	s, err = coilkick.LowestHold(md, margin)
-	add(solveAnswer{id: "lowest_hold"}, s, err)
-	const clampWhat = "lowest clamp voltage meeting the release requirement"
-	switch k := md.Drive.Suppressor.Kind; {
-	case md.Limits.MaxRelease == 0:
-	case k != circuit.DiodeZener && k != circuit.TVS && k != circuit.SwitchClamp:
-		answers = append(answers, solveAnswer{id: "lowest_clamp_voltage", sol: coilkick.Solution{What: clampWhat, Unit: "V"},
-			notAsked: fmt.Sprintf("the scenario's %v has no clamp voltage (coilkick clamps compares parts)", k)})
-	default:
-		s, err := coilkick.LowestClamp(md)
-		if s.What == "" {
-			s.What = "lowest clamp voltage"
-		}
-		add(solveAnswer{id: "lowest_clamp_voltage"}, s, err)
-	}
+	margin, from := solveMargin(c, md)
+	answers := solveAll(md, margin)
 	var errs, unmet int
 	for _, a := range answers {
 		switch {
@@ -459,6 +432,52 @@ func cmdSolve(c *cli.Context, w io.Writer) error {
 		return errFailing
 	}
 	return nil
+}
+
+// solveMargin is the hold force margin of the lowest hold and where it
+// comes from: --margin, else the scenario's, else 1.2.
+func solveMargin(c *cli.Context, md *coilkick.Model) (float64, string) {
+	switch {
+	case c.IsSet("margin"):
+		return c.Float64("margin"), "--margin"
+	case md.Limits.MinHoldMargin > 0:
+		return md.Limits.MinHoldMargin, "the scenario's ratings.hold force margin"
+	}
+	return 1.2, "default"
+}
+
+// solveAll finds the answers: the lowest supply (and at the hot winding,
+// when the scenario has one), the lowest hold, and the lowest clamp
+// voltage when a release requirement is given (not asked when the
+// scenario's part has no clamp voltage).
+func solveAll(md *coilkick.Model, margin float64) []solveAnswer {
+	var answers []solveAnswer
+	add := func(a solveAnswer, s coilkick.Solution, err error) {
+		a.sol, a.err = s, err
+		answers = append(answers, a)
+	}
+	s, err := coilkick.LowestSupply(md, 0)
+	add(solveAnswer{id: "lowest_supply", winding: md.Temperature}, s, err)
+	if hot := md.Tolerances.HotWinding; hot > 0 {
+		s, err := coilkick.LowestSupply(md, hot)
+		add(solveAnswer{id: "lowest_supply_hot", winding: hot}, s, err)
+	}
+	s, err = coilkick.LowestHold(md, margin)
+	add(solveAnswer{id: "lowest_hold"}, s, err)
+	const clampWhat = "lowest clamp voltage meeting the release requirement"
+	switch k := md.Drive.Suppressor.Kind; {
+	case md.Limits.MaxRelease == 0:
+	case k != circuit.DiodeZener && k != circuit.TVS && k != circuit.SwitchClamp:
+		answers = append(answers, solveAnswer{id: "lowest_clamp_voltage", sol: coilkick.Solution{What: clampWhat, Unit: "V"},
+			notAsked: fmt.Sprintf("the scenario's %v has no clamp voltage (coilkick clamps compares parts)", k)})
+	default:
+		s, err := coilkick.LowestClamp(md)
+		if s.What == "" {
+			s.What = "lowest clamp voltage"
+		}
+		add(solveAnswer{id: "lowest_clamp_voltage"}, s, err)
+	}
+	return answers
 }
 
 // marginSource names where the hold force margin came from, for scripts.

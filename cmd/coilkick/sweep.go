@@ -74,40 +74,71 @@ func cmdSweep(c *cli.Context, w io.Writer) error {
 	if err := sw.Check(vs); err != nil {
 		return err
 	}
-	var progress func(done, total int)
-	if errw := c.App.ErrWriter; isTerminal(errw) {
-		progress = func(done, total int) {
-			const width = 40
-			n := width * done / total
-			fmt.Fprintf(errw, "\r[%s%s] %d/%d", strings.Repeat("#", n), strings.Repeat(".", width-n), done, total)
-			if done == total {
-				fmt.Fprintln(errw)
-			}
-		}
-	}
-	pts := sw.Sweep(vs, c.Int("workers"), progress)
+	pts := sw.Sweep(vs, c.Int("workers"), progressBar(c.App.ErrWriter))
 	text := !toStdout(c, "json", "csv")
 	if text {
 		writeSweepTable(w, vs, pts)
 	}
+	n := countPoints(pts)
+	if n.invalid > 0 && text {
+		fmt.Fprintf(w, "\n%d of %d points invalid: their values break a rule of the scenario (reason in the row).\n", n.invalid, len(pts))
+	}
+	if err := writeSweepOutputs(c, w, path, vs, xs, pts, n); err != nil {
+		return err
+	}
+	switch {
+	case n.ran == 0:
+		return fmt.Errorf("no point of the sweep ran: %d invalid, %d could not be simulated (reasons in the rows)", n.invalid, n.notSimulated)
+	case n.notSimulated > 0:
+		return fmt.Errorf("%d of %d points could not be simulated (reasons in the rows)", n.notSimulated, len(pts))
+	case n.failing > 0:
+		return errFailing
+	}
+	return nil
+}
 
-	var ran, invalid, failedSim, failing int
+// progressBar draws the sweep's progress on errw when it is a terminal;
+// nil otherwise.
+func progressBar(errw io.Writer) func(done, total int) {
+	if !isTerminal(errw) {
+		return nil
+	}
+	return func(done, total int) {
+		const width = 40
+		n := width * done / total
+		fmt.Fprintf(errw, "\r[%s%s] %d/%d", strings.Repeat("#", n), strings.Repeat(".", width-n), done, total)
+		if done == total {
+			fmt.Fprintln(errw)
+		}
+	}
+}
+
+// sweepCounts counts a sweep's points: those that ran (and of them, those
+// failing a rating or requirement), those invalid, and the valid ones that
+// could not be simulated.
+type sweepCounts struct{ ran, failing, invalid, notSimulated int }
+
+func countPoints(pts []coilkick.SweepPoint) sweepCounts {
+	var n sweepCounts
 	for _, p := range pts {
 		switch {
 		case p.Figures != nil:
-			ran++
+			n.ran++
 			if p.Figures.Failed {
-				failing++
+				n.failing++
 			}
 		case p.Invalid != "":
-			invalid++
+			n.invalid++
 		default:
-			failedSim++
+			n.notSimulated++
 		}
 	}
-	if invalid > 0 && text {
-		fmt.Fprintf(w, "\n%d of %d points invalid: their values break a rule of the scenario (reason in the row).\n", invalid, len(pts))
-	}
+	return n
+}
+
+// writeSweepOutputs writes --csv, --json and --plot (a plot only when a
+// point ran) together.
+func writeSweepOutputs(c *cli.Context, w io.Writer, path string, vs []coilkick.Vary, xs []float64, pts []coilkick.SweepPoint, n sweepCounts) error {
 	sc, err := sweepScenario(path)
 	if err != nil {
 		return err
@@ -120,26 +151,15 @@ func cmdSweep(c *cli.Context, w io.Writer) error {
 	}
 	if f := c.String("json"); f != "" {
 		doc := sweepDoc{jsonHeader: jsonHeader{Version: version(), Command: "sweep", Scenario: sc.Name, Source: path},
-			Keys: cols, Points: sweepRecords(cols, pts), Run: ran, Invalid: invalid, NotSimulated: failedSim, Failing: failing}
+			Keys: cols, Points: sweepRecords(cols, pts), Run: n.ran, Invalid: n.invalid, NotSimulated: n.notSimulated, Failing: n.failing}
 		outs.add(f, func(out io.Writer) error { return writeJSONDoc(out, doc) })
 	}
-	if f := c.String("plot"); f != "" && ran > 0 {
+	if f := c.String("plot"); f != "" && n.ran > 0 {
 		if err := outs.addFigure(f, sweepPlot(c.String("figure"), xs, vs, pts, sc.Limits)); err != nil {
 			return err
 		}
 	}
-	if err := outs.commit(); err != nil {
-		return err
-	}
-	switch {
-	case ran == 0:
-		return fmt.Errorf("no point of the sweep ran: %d invalid, %d could not be simulated (reasons in the rows)", invalid, failedSim)
-	case failedSim > 0:
-		return fmt.Errorf("%d of %d points could not be simulated (reasons in the rows)", failedSim, len(pts))
-	case failing > 0:
-		return errFailing
-	}
-	return nil
+	return outs.commit()
 }
 
 // writeSweepTable prints one row per point. A point without figures fills
