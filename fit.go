@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -303,6 +304,11 @@ type fitProblem struct {
 	times                   []float64 // a trial's sample times (reused)
 	evaluations             int       // simulations counted in FitResult.Evaluations
 	jacErr                  error     // why the last Jacobian could not be made
+	// The last trial of sse and the last Jacobian made, with their x, for
+	// reuse (a simulation is deterministic).
+	lastX, lastSim []float64
+	jacX           []float64
+	jac            *mat.Dense
 }
 
 // newFitProblem sets up the fit grid (the measured samples inside the
@@ -424,7 +430,17 @@ func (fp *fitProblem) sse(x []float64) float64 {
 	if err != nil {
 		return math.Inf(1)
 	}
+	fp.lastX, fp.lastSim = append(fp.lastX[:0], x...), sim
 	return fp.sseOf(sim, fp.offset(sim))
+}
+
+// simulated returns the model current on the grid for x, reusing the last
+// trial of sse when it was at x.
+func (fp *fitProblem) simulated(x []float64) ([]float64, error) {
+	if fp.lastSim != nil && slices.Equal(x, fp.lastX) {
+		return fp.lastSim, nil
+	}
+	return fp.simulate(x)
 }
 
 // startPoint returns x at the starting parameters with the coarse
@@ -462,7 +478,7 @@ func (fp *fitProblem) minimize(x0 []float64) ([]float64, error) {
 func (fp *fitProblem) polish(x []float64, f float64) []float64 {
 	n, m := len(fp.grid), len(fp.params)
 	for it := 0; it < 8; it++ {
-		sim, err := fp.simulate(x)
+		sim, err := fp.simulated(x)
 		if err != nil {
 			break
 		}
@@ -502,6 +518,9 @@ func (fp *fitProblem) polish(x []float64, f float64) []float64 {
 // (ln p) and u by central differences, then the offset (a column of
 // ones); false (and fp.jacErr) when a trial failed.
 func (fp *fitProblem) jacobian(x []float64) (*mat.Dense, bool) {
+	if fp.jac != nil && slices.Equal(x, fp.jacX) {
+		return fp.jac, true
+	}
 	n, m := len(fp.grid), len(fp.params)
 	J := mat.NewDense(n, m+2, nil)
 	for k := 0; k <= m; k++ {
@@ -522,6 +541,7 @@ func (fp *fitProblem) jacobian(x []float64) (*mat.Dense, bool) {
 	for j := 0; j < n; j++ {
 		J.Set(j, m+1, 1)
 	}
+	fp.jacX, fp.jac = append(fp.jacX[:0], x...), J
 	return J, true
 }
 
@@ -530,7 +550,7 @@ func (fp *fitProblem) jacobian(x []float64) (*mat.Dense, bool) {
 // autocorrelation inflation) and returns the squared error (A²).
 func (fp *fitProblem) record(res *FitResult, x []float64) (float64, error) {
 	n, m := len(fp.grid), len(fp.params)
-	sim, err := fp.simulate(x)
+	sim, err := fp.simulated(x)
 	if err != nil {
 		return 0, err
 	}
