@@ -176,203 +176,288 @@ func (in *odeIntegrator) choose() float64 {
 	return float64(in.m.order())
 }
 
-// run integrates from t0 until the system stops it.
-func (in *odeIntegrator) run(t0 float64, y []float64) error {
-	n := in.n
-	f0 := make([]float64, n)
-	y1 := make([]float64, n)
-	ytmp := make([]float64, n)
-	g0 := make([]float64, maxGuardCount)
-	g1 := make([]float64, maxGuardCount)
-	gt := make([]float64, maxGuardCount)
-	gmid := [2][]float64{make([]float64, maxGuardCount), make([]float64, maxGuardCount)}
-	view := &stepView{}
-	var q float64
-	t := t0
+// odeLoop is the state of the driver loop of one run: the time, the
+// state, its derivative and the guards at the start of the next step, the
+// step to try, the present method's step-size exponent order, and the
+// counters of the stiffness detector and of events that do not advance
+// time.
+type odeLoop struct {
+	in     *odeIntegrator
+	t      float64 // present time
+	h      float64 // the step to try next
+	q      float64 // order of the present method's step-size exponent (1/q)
+	y, f0  []float64
+	y1     []float64    // the attempted step's end
+	ytmp   []float64    // scratch: dense output, event location
+	g0, g1 []float64    // guards at the step's start and end
+	gmid   [2][]float64 // guards at the step's two interior points
+	gt     []float64    // scratch for locate
+	ng     int          // guards the present modes have
+	view   stepView     // the accepted step, as the system sees it
 	// Stiffness detection on the explicit method (Hairer & Wanner,
 	// Solving ODEs II, IV.2, DOPRI5's test): h·|λ| near the edge of the
 	// stability region (3.25) on 15 accepted steps without 6 in a row
 	// below it switches the segment to the implicit method until the next
 	// event.
-	stiffHits, calm := 0, 0
+	stiffHits, calm int
+	sameTime        int // state events in a row at one instant (mode chatter)
+}
 
-	restart := func() float64 {
-		q = in.choose()
-		stiffHits, calm = 0, 0
-		in.sys.deriv(t, y, f0)
-		in.stats.Evals++
-		return in.initialStep(t, y, f0, ytmp, q)
-	}
-	h := restart()
-	ng := in.sys.guards(t, y, g0)
-	sameTime := 0
-	attempts := 0
-	for {
-		attempts++
+// run integrates from t0 until the system stops it: one attempted step
+// per pass, up to the step budget.
+func (in *odeIntegrator) run(t0 float64, y []float64) error {
+	n := in.n
+	s := &odeLoop{in: in, t: t0, y: y, f0: make([]float64, n), y1: make([]float64, n), ytmp: make([]float64, n),
+		g0: make([]float64, maxGuardCount), g1: make([]float64, maxGuardCount), gt: make([]float64, maxGuardCount),
+		gmid: [2][]float64{make([]float64, maxGuardCount), make([]float64, maxGuardCount)}}
+	s.h = s.restart()
+	s.ng = in.sys.guards(s.t, y, s.g0)
+	for attempts := 1; ; attempts++ {
 		if attempts > in.set.MaxSteps {
-			return fmt.Errorf("%w: %d steps reached at t = %.9g s; loosen the tolerance or raise the solver's max steps", errStepBudget, in.set.MaxSteps, t)
+			return fmt.Errorf("%w: %d steps reached at t = %.9g s; loosen the tolerance or raise the solver's max steps", errStepBudget, in.set.MaxSteps, s.t)
 		}
-		tNext := in.sys.nextTimeEvent(t)
-		landing := false
-		if h > in.set.MaxStep {
-			h = in.set.MaxStep
-		}
-		hNatural := h
-		if t+h >= tNext || t+1.01*h >= tNext {
-			h = tNext - t
-			landing = true
-		}
-		if h <= 4*epsTime(t) {
-			if landing {
-				// Already at the time event.
-				t = tNext
-				stop, err := in.timeEvent(t, y)
-				if stop || err != nil {
-					return err
-				}
-				t = in.jump(t, y)
-				h = restart()
-				ng = in.sys.guards(t, y, g0)
-				continue
-			}
-			return fmt.Errorf("step size underflow at t = %.12g s", t)
-		}
-		errNorm := in.m.attempt(t, h, y, f0, y1)
-		if !(errNorm <= 1) {
-			in.stats.Rejected++
-			fac := 0.2
-			if !math.IsNaN(errNorm) && !math.IsInf(errNorm, 0) {
-				fac = math.Max(0.2, 0.9*math.Pow(errNorm, -1/q))
-			}
-			h *= fac
-			continue
-		}
-		// Guards at the end of the step and at two interior points of the
-		// dense output, so that a guard that crosses zero and comes back
-		// within one step (a grazing ring) is still caught.
-		in.sys.guards(t+h, y1, g1)
-		for j, th := range [...]float64{1.0 / 3, 2.0 / 3} {
-			in.m.dense(th, ytmp)
-			in.sys.guards(t+th*h, ytmp, gmid[j])
-		}
-		kEv, tEv := -1, t+h
-		for k := 0; k < ng; k++ {
-			a, ga := 0.0, g0[k]
-			for j, th := range [...]float64{1.0 / 3, 2.0 / 3, 1} {
-				gb := g1[k]
-				if j < 2 {
-					gb = gmid[j][k]
-				}
-				if gb > 0 && ga <= 0 {
-					te := in.locate(t, h, k, a, th, ga, gb, ytmp, gt)
-					if kEv < 0 || te < tEv {
-						kEv, tEv = k, te
-					}
-					break
-				}
-				a, ga = th, gb
-			}
-		}
-		view.t0, view.y0, view.h, view.m = t, y, h, in.m
-		if in.m == in.implicit {
-			in.stats.StiffSteps++
-		}
-		if kEv >= 0 {
-			in.m.dense((tEv-t)/h, ytmp)
-			view.t1, view.y1 = tEv, ytmp
-			in.sys.accepted(view)
-			in.stats.Steps++
-			in.stats.Events++
-			if tEv == t {
-				sameTime++
-				if sameTime > 100 {
-					return fmt.Errorf("events repeat without time advancing at t = %.12g s (mode chatter)", t)
-				}
-			} else {
-				sameTime = 0
-			}
-			t = tEv
-			copy(y, ytmp)
-			stop, err := in.sys.event(t, y, kEv)
-			if stop || err != nil {
-				return err
-			}
-			if landing && t >= tNext {
-				// The state event fell on the time event's instant: apply
-				// the time event too, or it would be skipped.
-				t = tNext
-				if stop, err := in.timeEvent(t, y); stop || err != nil {
-					return err
-				}
-			}
-			hOld := h
-			if t2 := in.jump(t, y); t2 != t {
-				t = t2
-				hOld = math.Inf(1)
-			}
-			h = math.Min(restart(), hOld)
-			ng = in.sys.guards(t, y, g0)
-			continue
-		}
-		view.t1, view.y1 = t+h, y1
-		in.sys.accepted(view)
-		in.stats.Steps++
-		sameTime = 0
-		switchNow := false
-		if dp, ok := in.m.(*dopri); ok {
-			if dp.hLambda > 3.25 {
-				calm = 0
-				stiffHits++
-				switchNow = stiffHits >= 15
-			} else if calm++; calm >= 6 {
-				stiffHits = 0
-			}
-		}
-		if landing {
-			t = tNext
-		} else {
-			t += h
-		}
-		copy(y, y1)
-		copy(f0, in.m.f1())
-		copy(g0, g1)
-		fac := 5.0
-		if errNorm > 0 {
-			fac = math.Min(5, math.Max(0.2, 0.9*math.Pow(errNorm, -1/q)))
-		}
-		h *= fac
-		if switchNow {
-			in.implicit.(*rodas).setColumns(in.sys.dynamic())
-			in.m = in.implicit
-			q = float64(in.m.order())
-			in.stats.Switches++
-		}
-		if landing {
-			stop, err := in.timeEvent(t, y)
-			if stop || err != nil {
-				return err
-			}
-			if t2 := in.jump(t, y); t2 != t {
-				t = t2
-				h = restart()
-				ng = in.sys.guards(t, y, g0)
-				continue
-			}
-			// Restart with the step the controller wanted before it was
-			// shortened to land here: time events (switch edges) recur, and
-			// the first step's error test catches a change of pace.
-			if q1 := in.choose(); q1 != q {
-				// The method changed at this command: start afresh.
-				q = q1
-				h = restart()
-			} else {
-				in.sys.deriv(t, y, f0)
-				in.stats.Evals++
-				h = hNatural
-			}
-			ng = in.sys.guards(t, y, g0)
+		done, err := s.step()
+		if done || err != nil {
+			return err
 		}
 	}
+}
+
+// restart chooses the method for the segment that starts at the present
+// time (after an event, or at the start) and returns a fresh starting step.
+func (s *odeLoop) restart() float64 {
+	in := s.in
+	s.q = in.choose()
+	s.stiffHits, s.calm = 0, 0
+	in.sys.deriv(s.t, s.y, s.f0)
+	in.stats.Evals++
+	return in.initialStep(s.t, s.y, s.f0, s.ytmp, s.q)
+}
+
+// step attempts one step, shortened to land on the next time event when
+// it would reach it, and handles its outcome: a rejection, a state event
+// inside it, or an accepted step. It returns done when the run is over
+// (the system stopped it, or err).
+func (s *odeLoop) step() (done bool, err error) {
+	in := s.in
+	tNext := in.sys.nextTimeEvent(s.t)
+	landing := false
+	if s.h > in.set.MaxStep {
+		s.h = in.set.MaxStep
+	}
+	hNatural := s.h
+	if s.t+s.h >= tNext || s.t+1.01*s.h >= tNext {
+		s.h = tNext - s.t
+		landing = true
+	}
+	if s.h <= 4*epsTime(s.t) {
+		if landing {
+			return s.atTimeEvent(tNext)
+		}
+		return true, fmt.Errorf("step size underflow at t = %.12g s", s.t)
+	}
+	errNorm := in.m.attempt(s.t, s.h, s.y, s.f0, s.y1)
+	if !(errNorm <= 1) {
+		s.reject(errNorm)
+		return false, nil
+	}
+	if kEv, tEv := s.firstCrossing(); kEv >= 0 {
+		return s.stateEvent(kEv, tEv, landing, tNext)
+	}
+	return s.accept(errNorm, landing, tNext, hNatural)
+}
+
+// atTimeEvent applies the time event at tNext when the present time is
+// already there (the step left to land is negligible) and restarts.
+func (s *odeLoop) atTimeEvent(tNext float64) (done bool, err error) {
+	in := s.in
+	s.t = tNext
+	if stop, err := in.timeEvent(s.t, s.y); stop || err != nil {
+		return true, err
+	}
+	s.t = in.jump(s.t, s.y)
+	s.h = s.restart()
+	s.ng = in.sys.guards(s.t, s.y, s.g0)
+	return false, nil
+}
+
+// reject shrinks the step after a failed error test (by 5 when the error
+// is not a number).
+func (s *odeLoop) reject(errNorm float64) {
+	s.in.stats.Rejected++
+	fac := 0.2
+	if !math.IsNaN(errNorm) && !math.IsInf(errNorm, 0) {
+		fac = math.Max(0.2, 0.9*math.Pow(errNorm, -1/s.q))
+	}
+	s.h *= fac
+}
+
+// firstCrossing returns the guard that crosses zero first within the step
+// just attempted, and the time it does (k < 0: none). The guards are
+// evaluated at the end of the step and at two interior points of the dense
+// output, so that a guard that crosses zero and comes back within one step
+// (a grazing ring) is still caught.
+func (s *odeLoop) firstCrossing() (kEv int, tEv float64) {
+	in := s.in
+	t, h := s.t, s.h
+	in.sys.guards(t+h, s.y1, s.g1)
+	for j, th := range [...]float64{1.0 / 3, 2.0 / 3} {
+		in.m.dense(th, s.ytmp)
+		in.sys.guards(t+th*h, s.ytmp, s.gmid[j])
+	}
+	kEv, tEv = -1, t+h
+	for k := 0; k < s.ng; k++ {
+		a, ga := 0.0, s.g0[k]
+		for j, th := range [...]float64{1.0 / 3, 2.0 / 3, 1} {
+			gb := s.g1[k]
+			if j < 2 {
+				gb = s.gmid[j][k]
+			}
+			if gb > 0 && ga <= 0 {
+				te := in.locate(t, h, k, a, th, ga, gb, s.ytmp, s.gt)
+				if kEv < 0 || te < tEv {
+					kEv, tEv = k, te
+				}
+				break
+			}
+			a, ga = th, gb
+		}
+	}
+	return kEv, tEv
+}
+
+// record hands the system the accepted step from the present time to t1,
+// where the state is y1.
+func (s *odeLoop) record(t1 float64, y1 []float64) {
+	in := s.in
+	s.view.t0, s.view.y0, s.view.h, s.view.m = s.t, s.y, s.h, in.m
+	if in.m == in.implicit {
+		in.stats.StiffSteps++
+	}
+	s.view.t1, s.view.y1 = t1, y1
+	in.sys.accepted(&s.view)
+	in.stats.Steps++
+}
+
+// stateEvent accepts the step up to guard k's crossing at tEv, applies
+// the event (and the time event at tNext when the crossing fell on it
+// while landing), lets the system jump ahead, and restarts.
+func (s *odeLoop) stateEvent(k int, tEv float64, landing bool, tNext float64) (done bool, err error) {
+	in := s.in
+	h := s.h
+	in.m.dense((tEv-s.t)/h, s.ytmp)
+	s.record(tEv, s.ytmp)
+	in.stats.Events++
+	if tEv == s.t {
+		s.sameTime++
+		if s.sameTime > 100 {
+			return true, fmt.Errorf("events repeat without time advancing at t = %.12g s (mode chatter)", s.t)
+		}
+	} else {
+		s.sameTime = 0
+	}
+	s.t = tEv
+	copy(s.y, s.ytmp)
+	if stop, err := in.sys.event(s.t, s.y, k); stop || err != nil {
+		return true, err
+	}
+	if landing && s.t >= tNext {
+		// The state event fell on the time event's instant: apply
+		// the time event too, or it would be skipped.
+		s.t = tNext
+		if stop, err := in.timeEvent(s.t, s.y); stop || err != nil {
+			return true, err
+		}
+	}
+	hOld := h
+	if t2 := in.jump(s.t, s.y); t2 != s.t {
+		s.t = t2
+		hOld = math.Inf(1)
+	}
+	s.h = math.Min(s.restart(), hOld)
+	s.ng = in.sys.guards(s.t, s.y, s.g0)
+	return false, nil
+}
+
+// accept takes the step (to the time event tNext when landing), picks the
+// next step from the error estimate (0.9·err^(−1/q), within a factor 0.2
+// to 5), moves to the implicit method when the stiffness test fires, and
+// after a landing applies the time event.
+func (s *odeLoop) accept(errNorm float64, landing bool, tNext, hNatural float64) (done bool, err error) {
+	in := s.in
+	s.record(s.t+s.h, s.y1)
+	s.sameTime = 0
+	switchNow := s.stiffnessDetected()
+	if landing {
+		s.t = tNext
+	} else {
+		s.t += s.h
+	}
+	copy(s.y, s.y1)
+	copy(s.f0, in.m.f1())
+	copy(s.g0, s.g1)
+	fac := 5.0
+	if errNorm > 0 {
+		fac = math.Min(5, math.Max(0.2, 0.9*math.Pow(errNorm, -1/s.q)))
+	}
+	s.h *= fac
+	if switchNow {
+		in.implicit.(*rodas).setColumns(in.sys.dynamic())
+		in.m = in.implicit
+		s.q = float64(in.m.order())
+		in.stats.Switches++
+	}
+	if landing {
+		return s.afterLanding(hNatural)
+	}
+	return false, nil
+}
+
+// stiffnessDetected updates the stiffness detector with the step the
+// explicit method just took and reports whether the segment should move to
+// the implicit method now (see odeLoop).
+func (s *odeLoop) stiffnessDetected() bool {
+	dp, ok := s.in.m.(*dopri)
+	if !ok {
+		return false
+	}
+	if dp.hLambda > 3.25 {
+		s.calm = 0
+		s.stiffHits++
+		return s.stiffHits >= 15
+	}
+	if s.calm++; s.calm >= 6 {
+		s.stiffHits = 0
+	}
+	return false
+}
+
+// afterLanding applies the time event the accepted step landed on. After
+// a jump ahead the run restarts; otherwise it goes on with hNatural, the
+// step the controller wanted before it was shortened to land here: time
+// events (switch edges) recur, and the first step's error test catches a
+// change of pace. A change of method at the command starts afresh.
+func (s *odeLoop) afterLanding(hNatural float64) (done bool, err error) {
+	in := s.in
+	if stop, err := in.timeEvent(s.t, s.y); stop || err != nil {
+		return true, err
+	}
+	if t2 := in.jump(s.t, s.y); t2 != s.t {
+		s.t = t2
+		s.h = s.restart()
+		s.ng = in.sys.guards(s.t, s.y, s.g0)
+		return false, nil
+	}
+	if q1 := in.choose(); q1 != s.q {
+		s.q = q1
+		s.h = s.restart()
+	} else {
+		in.sys.deriv(s.t, s.y, s.f0)
+		in.stats.Evals++
+		s.h = hNatural
+	}
+	s.ng = in.sys.guards(s.t, s.y, s.g0)
+	return false, nil
 }
 
 // jump lets a fastForwarder system repeat periods after an event at t and
