@@ -21,8 +21,9 @@ import (
 //     output and a finite-difference Jacobian, while the system declares
 //     its present modes stiff (an RC snubber, or the switch capacitance
 //     discharging through the eddy-current turn, against millisecond
-//     motion). The choice is made again after every event, so a run uses
-//     the implicit method only in the segments that need it.
+//     motion), or once DOPRI5's stiffness test fires (odeLoop). The choice
+//     is made again after every event, so a run uses the implicit method
+//     only in the segments that need it.
 //
 // Time events (commands) are landed on exactly by shortening the step.
 // State events are guard functions: a guard is negative while the mode
