@@ -121,14 +121,15 @@ var ErrFitFailed = errors.New("the fit failed")
 // FitResidualLimit is the failure criterion on the residual: a fit whose
 // RMS residual exceeds this multiple of the trace's noise (NoiseRef) has
 // not found a model that follows the trace, and fails. With a model that
-// explains the trace the RMS residual is about the noise: over the 50
+// explains the trace the RMS residual is about the noise: over the 30
 // seeds of TestFitCoverage (white noise) RMS/NoiseRef lies between 0.57
-// and 1.03, over those of TestFitCoverageCorrelatedNoise (a band-limited
+// and 1.02, over those of TestFitCoverageCorrelatedNoise (a band-limited
 // probe, whose short baseline underestimates the noise) between 0.71 and
-// 2.9. 5 keeps a margin of 1.7 over the worst of those and allows a
-// systematic model error of up to √(5²−1) ≈ 4.9 noise σ RMS, while a
-// wrong unit in the trace's header leaves some 50 times the noise (time
-// in µs on millisecond data, current in A on milliampere data:
+// 2.9 (0.57–1.03 and 0.71–2.9 over the 50 seeds they used before). 5
+// keeps a margin of 1.7 over the worst of those and allows a systematic
+// model error of up to √(5²−1) ≈ 4.9 noise σ RMS, while a wrong unit in
+// the trace's header leaves some 50 times the noise (time in µs on
+// millisecond data, current in A on milliampere data:
 // TestFitFailsOnWrongUnits). The value is common practice, no source.
 const FitResidualLimit = 5
 
