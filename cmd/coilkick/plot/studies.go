@@ -377,10 +377,36 @@ func SweepLines(ch SweepChart) *Figure {
 	if ch.KeyName != "" && len(ch.Series) > 0 {
 		entries = append(entries, legendEntry{label: ch.KeyName + ":"})
 	}
-	lo, hi := math.Inf(1), math.Inf(-1)
-	var failX, failY []float64
-	var missing []missingPoint
-	anyFailed := false
+	m := addSweepSeries(p, ch)
+	entries = append(entries, m.entries...)
+	xlo, xhi := extent(ch.Xs)
+	xlo, xhi, lo, hi := widenToLimits(ch.Limits, xlo, xhi, m.lo, m.hi)
+	setRange(&p.X, xlo, xhi, 0.03)
+	setRange(&p.Y, lo, hi, 0.08)
+	band := missingBand(p, m.bandRows())
+	entries = append(entries, addLimits(p, ch.Limits)...)
+	entries = append(entries, m.draw(p, band, ch.MissingLabel, ch.FailedLabel)...)
+	for _, n := range ch.Notes {
+		entries = append(entries, legendEntry{label: n})
+	}
+	return studyFigure(ch.Title, p, entries)
+}
+
+// sweepMarks are what a sweep's series leave to draw after the axes are
+// set: the failed points with a value, the points without one, and the
+// range of the values; entries are the series' legend entries.
+type sweepMarks struct {
+	lo, hi       float64
+	failX, failY []float64
+	missing      []missingPoint
+	anyFailed    bool
+	entries      []legendEntry
+}
+
+// addSweepSeries draws each series of ch as a line, with dots when it
+// has at most maxDots points, and collects its marks.
+func addSweepSeries(p *gplot.Plot, ch SweepChart) *sweepMarks {
+	m := &sweepMarks{lo: math.Inf(1), hi: math.Inf(-1)}
 	for k, s := range ch.Series {
 		n := min(len(ch.Xs), len(s.Ys))
 		col := studyColor(k)
@@ -390,68 +416,79 @@ func SweepLines(ch SweepChart) *Figure {
 			p.Add(&dots{xs: xs, ys: ys, color: col})
 		}
 		l, h := extent(ys)
-		lo, hi = math.Min(lo, l), math.Max(hi, h)
+		m.lo, m.hi = math.Min(m.lo, l), math.Max(m.hi, h)
 		for j := 0; j < n; j++ {
 			failed := j < len(s.Failed) && s.Failed[j]
-			anyFailed = anyFailed || failed
+			m.anyFailed = m.anyFailed || failed
 			if !finite(ys[j]) {
-				missing = append(missing, missingPoint{x: xs[j], color: col, failed: failed})
+				m.missing = append(m.missing, missingPoint{x: xs[j], color: col, failed: failed})
 				continue
 			}
 			if failed {
-				failX, failY = append(failX, xs[j]), append(failY, ys[j])
+				m.failX, m.failY = append(m.failX, xs[j]), append(m.failY, ys[j])
 			}
 		}
 		if s.Label != "" {
-			entries = append(entries, legendEntry{label: s.Label, color: col, line: true})
+			m.entries = append(m.entries, legendEntry{label: s.Label, color: col, line: true})
 		}
 	}
-	xlo, xhi := extent(ch.Xs)
-	for _, r := range ch.Limits {
+	return m
+}
+
+// bandRows places the points without a value in the band at the top, one
+// row per series missing at the same x (so that each shows its colour),
+// and returns the number of rows.
+func (m *sweepMarks) bandRows() int {
+	row := map[float64]int{}
+	rows := 0
+	for k := range m.missing {
+		m.missing[k].row = row[m.missing[k].x]
+		row[m.missing[k].x]++
+		rows = max(rows, row[m.missing[k].x])
+	}
+	return rows
+}
+
+// draw draws the points without a value in the band (crossed when they
+// failed) and crosses the failed points; it returns the legend entries of
+// the markers drawn.
+func (m *sweepMarks) draw(p *gplot.Plot, band func(row int) float64, missingLabel, failedLabel string) []legendEntry {
+	var entries []legendEntry
+	if len(m.missing) > 0 {
+		for _, mp := range m.missing {
+			y := band(mp.row)
+			p.Add(&glyphs{xs: []float64{mp.x}, ys: []float64{y}, shape: openTriangle{down: true}, color: mp.color, radius: missingRadius})
+			if mp.failed {
+				p.Add(&glyphs{xs: []float64{mp.x}, ys: []float64{y}, shape: boldCross{}, color: colFailed, radius: failedInsideRadius})
+			}
+		}
+		if missingLabel != "" {
+			entries = append(entries, legendEntry{label: missingLabel, glyph: openTriangle{down: true}, color: ink, radius: missingRadius})
+		}
+	}
+	if len(m.failX) > 0 {
+		p.Add(&glyphs{xs: m.failX, ys: m.failY, shape: boldCross{}, color: colFailed, radius: failedRadius})
+	}
+	if m.anyFailed && failedLabel != "" {
+		entries = append(entries, legendEntry{label: failedLabel, glyph: boldCross{}, color: colFailed, radius: failedRadius})
+	}
+	return entries
+}
+
+// widenToLimits widens the x range [xlo, xhi] to take in the finite
+// vertical limits and the y range [ylo, yhi] the horizontal ones.
+func widenToLimits(refs []Reference, xlo, xhi, ylo, yhi float64) (float64, float64, float64, float64) {
+	for _, r := range refs {
 		if !finite(r.Value) {
 			continue
 		}
 		if r.Vertical {
 			xlo, xhi = math.Min(xlo, r.Value), math.Max(xhi, r.Value)
 		} else {
-			lo, hi = math.Min(lo, r.Value), math.Max(hi, r.Value)
+			ylo, yhi = math.Min(ylo, r.Value), math.Max(yhi, r.Value)
 		}
 	}
-	setRange(&p.X, xlo, xhi, 0.03)
-	setRange(&p.Y, lo, hi, 0.08)
-	// Points without a value sit in a band at the top, one row per series
-	// missing at the same x (so that each shows its colour).
-	row := map[float64]int{}
-	rows := 0
-	for k := range missing {
-		missing[k].row = row[missing[k].x]
-		row[missing[k].x]++
-		rows = max(rows, row[missing[k].x])
-	}
-	band := missingBand(p, rows)
-	entries = append(entries, addLimits(p, ch.Limits)...)
-	if len(missing) > 0 {
-		for _, m := range missing {
-			y := band(m.row)
-			p.Add(&glyphs{xs: []float64{m.x}, ys: []float64{y}, shape: openTriangle{down: true}, color: m.color, radius: missingRadius})
-			if m.failed {
-				p.Add(&glyphs{xs: []float64{m.x}, ys: []float64{y}, shape: boldCross{}, color: colFailed, radius: failedInsideRadius})
-			}
-		}
-		if ch.MissingLabel != "" {
-			entries = append(entries, legendEntry{label: ch.MissingLabel, glyph: openTriangle{down: true}, color: ink, radius: missingRadius})
-		}
-	}
-	if len(failX) > 0 {
-		p.Add(&glyphs{xs: failX, ys: failY, shape: boldCross{}, color: colFailed, radius: failedRadius})
-	}
-	if anyFailed && ch.FailedLabel != "" {
-		entries = append(entries, legendEntry{label: ch.FailedLabel, glyph: boldCross{}, color: colFailed, radius: failedRadius})
-	}
-	for _, n := range ch.Notes {
-		entries = append(entries, legendEntry{label: n})
-	}
-	return studyFigure(ch.Title, p, entries)
+	return xlo, xhi, ylo, yhi
 }
 
 // missingPoint is a sweep point without a value; row is its place in
@@ -543,8 +580,28 @@ type Scatter struct {
 func MarkedScatter(s Scatter) *Figure {
 	p := newPlot(s.XLabel, s.YLabel)
 	addGrid(p)
+	rows := 0
+	if setScatterRanges(p, s) {
+		rows = 1
+	}
+	m := sortScatter(s.Points, missingBand(p, rows)(0))
+	entries := addLimits(p, s.Limits)
+	entries = append(entries, m.draw(p, s)...)
+	p.Add(&pointLabels{pts: m.placed, radius: scatterRadius})
+	for _, n := range s.Notes {
+		entries = append(entries, legendEntry{label: n})
+	}
+	return studyFigure(s.Title, p, entries)
+}
+
+// scatterRadius is the radius of a scatter's dots (pt).
+const scatterRadius = 3.5
+
+// setScatterRanges sets the axes to the finite points and the limits and
+// reports whether a point has no value (a band at the top is then
+// needed).
+func setScatterRanges(p *gplot.Plot, s Scatter) (anyMissing bool) {
 	var xs, ys []float64
-	anyMissing := false
 	for _, pt := range s.Points {
 		if !finite(pt.X) {
 			continue
@@ -558,70 +615,69 @@ func MarkedScatter(s Scatter) *Figure {
 	}
 	xlo, xhi := extent(xs)
 	ylo, yhi := extent(ys)
-	for _, r := range s.Limits {
-		if !finite(r.Value) {
-			continue
-		}
-		if r.Vertical {
-			xlo, xhi = math.Min(xlo, r.Value), math.Max(xhi, r.Value)
-		} else {
-			ylo, yhi = math.Min(ylo, r.Value), math.Max(yhi, r.Value)
-		}
-	}
+	xlo, xhi, ylo, yhi = widenToLimits(s.Limits, xlo, xhi, ylo, yhi)
 	setRange(&p.X, xlo, xhi, 0.12)
 	setRange(&p.Y, ylo, yhi, 0.12)
-	rows := 0
-	if anyMissing {
-		rows = 1
-	}
-	yMissing := missingBand(p, rows)(0)
-	var entries []legendEntry
-	const radius = 3.5
-	var placed []LabelledPoint
-	var okX, okY, failX, failY, failInX, failInY, missX, missY []float64
-	for _, pt := range s.Points {
+	return anyMissing
+}
+
+// scatterMarks are a scatter's points sorted by how they are drawn:
+// with a value, without one (at yMissing in the band), failed with a
+// value and failed without one; placed are the labelled points.
+type scatterMarks struct {
+	okX, okY, missX, missY, failX, failY, failInX, failInY []float64
+	placed                                                 []LabelledPoint
+}
+
+// sortScatter sorts the points with a finite x; a point without a value
+// sits at yMissing.
+func sortScatter(points []ScatterPoint, yMissing float64) *scatterMarks {
+	m := &scatterMarks{}
+	for _, pt := range points {
 		if !finite(pt.X) {
 			continue
 		}
 		y := pt.Y
 		if !finite(y) {
 			y = yMissing
-			missX, missY = append(missX, pt.X), append(missY, y)
+			m.missX, m.missY = append(m.missX, pt.X), append(m.missY, y)
 		} else {
-			okX, okY = append(okX, pt.X), append(okY, y)
+			m.okX, m.okY = append(m.okX, pt.X), append(m.okY, y)
 		}
 		if pt.Failed && finite(pt.Y) {
-			failX, failY = append(failX, pt.X), append(failY, y)
+			m.failX, m.failY = append(m.failX, pt.X), append(m.failY, y)
 		} else if pt.Failed {
-			failInX, failInY = append(failInX, pt.X), append(failInY, y)
+			m.failInX, m.failInY = append(m.failInX, pt.X), append(m.failInY, y)
 		}
-		placed = append(placed, LabelledPoint{X: pt.X, Y: y, Label: pt.Label})
+		m.placed = append(m.placed, LabelledPoint{X: pt.X, Y: y, Label: pt.Label})
 	}
-	entries = append(entries, addLimits(p, s.Limits)...)
-	if len(okX) > 0 {
-		p.Add(&dots{xs: okX, ys: okY, color: colCurrent, radius: radius})
+	return m
+}
+
+// draw draws the dots, the no-value triangles and the crosses, and returns
+// the legend entries of s's labels for the kinds drawn.
+func (m *scatterMarks) draw(p *gplot.Plot, s Scatter) []legendEntry {
+	var entries []legendEntry
+	if len(m.okX) > 0 {
+		p.Add(&dots{xs: m.okX, ys: m.okY, color: colCurrent, radius: scatterRadius})
 		if s.PointLabel != "" {
-			entries = append(entries, legendEntry{label: s.PointLabel, glyph: draw.CircleGlyph{}, color: colCurrent, radius: radius})
+			entries = append(entries, legendEntry{label: s.PointLabel, glyph: draw.CircleGlyph{}, color: colCurrent, radius: scatterRadius})
 		}
 	}
-	if len(missX) > 0 {
-		p.Add(&glyphs{xs: missX, ys: missY, shape: openTriangle{down: true}, color: colCurrent, radius: missingRadius})
+	if len(m.missX) > 0 {
+		p.Add(&glyphs{xs: m.missX, ys: m.missY, shape: openTriangle{down: true}, color: colCurrent, radius: missingRadius})
 		if s.MissingLabel != "" {
 			entries = append(entries, legendEntry{label: s.MissingLabel, glyph: openTriangle{down: true}, color: colCurrent, radius: missingRadius})
 		}
 	}
-	if len(failX)+len(failInX) > 0 {
-		p.Add(&glyphs{xs: failX, ys: failY, shape: boldCross{}, color: colFailed, radius: failedRadius})
-		p.Add(&glyphs{xs: failInX, ys: failInY, shape: boldCross{}, color: colFailed, radius: failedInsideRadius})
+	if len(m.failX)+len(m.failInX) > 0 {
+		p.Add(&glyphs{xs: m.failX, ys: m.failY, shape: boldCross{}, color: colFailed, radius: failedRadius})
+		p.Add(&glyphs{xs: m.failInX, ys: m.failInY, shape: boldCross{}, color: colFailed, radius: failedInsideRadius})
 		if s.FailedLabel != "" {
 			entries = append(entries, legendEntry{label: s.FailedLabel, glyph: boldCross{}, color: colFailed, radius: failedRadius})
 		}
 	}
-	p.Add(&pointLabels{pts: placed, radius: radius})
-	for _, n := range s.Notes {
-		entries = append(entries, legendEntry{label: n})
-	}
-	return studyFigure(s.Title, p, entries)
+	return entries
 }
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }

@@ -124,7 +124,31 @@ func stacked(opt WaveformOptions, t []float64, panels []panel, markers []Marker,
 	}}
 }
 
+// drawStacked draws the title block, the event label strip and the
+// panels, whose data areas line up on the time axis.
 func drawStacked(c draw.Canvas, opt WaveformOptions, t []float64, panels []panel, markers []Marker) {
+	ax := newTimeAxis(t)
+	cols := int(math.Ceil(c.Size().X.Dots(DPI)))
+
+	pad := vg.Points(8)
+	c = draw.Crop(c, pad, -pad, pad, -pad)
+	top := drawTitleBlock(c, opt)
+	plots, keys := panelPlots(panels, t, ax, markers, cols)
+	col := alignedColumn(c, top, plots)
+	top -= drawEventStrip(c, top, markers, ax, col)
+	drawPanels(c, top, plots, panels, keys, col)
+}
+
+// timeAxis is the shared time axis of a stacked figure: its range in the
+// display unit, the factor from seconds to it, and its name.
+type timeAxis struct {
+	x0, x1, f float64
+	unit      string
+}
+
+// newTimeAxis spans the times t (s); a unit range when t is empty or a
+// single instant.
+func newTimeAxis(t []float64) timeAxis {
 	t0, t1 := 0.0, 1.0
 	if len(t) > 0 {
 		t0, t1 = t[0], t[len(t)-1]
@@ -133,13 +157,12 @@ func drawStacked(c draw.Canvas, opt WaveformOptions, t []float64, panels []panel
 		t1 = t0 + 1
 	}
 	f, unit := timeScale(t1)
-	x0, x1 := t0*f, t1*f
-	cols := int(math.Ceil(c.Size().X.Dots(DPI)))
+	return timeAxis{x0: t0 * f, x1: t1 * f, f: f, unit: unit}
+}
 
-	pad := vg.Points(8)
-	c = draw.Crop(c, pad, -pad, pad, -pad)
-
-	// Title block.
+// drawTitleBlock draws the title and the subtitle at the top of c and
+// returns the y below them.
+func drawTitleBlock(c draw.Canvas, opt WaveformOptions) vg.Length {
 	top := c.Max.Y
 	ts := textStyle(sizeTitle, ink)
 	ts.YAlign = draw.YTop
@@ -151,24 +174,29 @@ func drawStacked(c draw.Canvas, opt WaveformOptions, t []float64, panels []panel
 		c.FillText(ss, vg.Point{X: c.Min.X, Y: top}, opt.Subtitle)
 		top -= ss.Height("M") + vg.Points(2)
 	}
+	return top
+}
 
-	// Build the plots.
+// panelPlots builds a plot per panel over the time axis (the time labels
+// on the last only), its series reduced to cols pixel columns (MinMax),
+// with the markers' lines; keys are each panel's legend entries.
+func panelPlots(panels []panel, t []float64, ax timeAxis, markers []Marker, cols int) ([]*gplot.Plot, [][]key) {
 	xs := make([]float64, len(t))
 	for k := range t {
-		xs[k] = t[k] * f
+		xs[k] = t[k] * ax.f
 	}
 	plots := make([]*gplot.Plot, len(panels))
 	keys := make([][]key, len(panels))
 	for i, pn := range panels {
 		xl := ""
 		if i == len(panels)-1 {
-			xl = "time (" + unit + ")"
+			xl = "time (" + ax.unit + ")"
 		}
 		p := newPlot(xl, pn.yLabel)
 		if i < len(panels)-1 {
 			p.X.Tick.Marker = hiddenLabels{readableTicks{}}
 		}
-		p.X.Min, p.X.Max = x0, x1
+		p.X.Min, p.X.Max = ax.x0, ax.x1
 		p.Y.Tick.Marker = readableTicks{max: 5}
 		p.Add(grid{xTicks: readableTicks{}, yTicks: p.Y.Tick.Marker})
 		lo, hi := math.Inf(1), math.Inf(-1)
@@ -178,19 +206,43 @@ func drawStacked(c draw.Canvas, opt WaveformOptions, t []float64, panels []panel
 			for k := range s.ys {
 				ys[k] = s.ys[k] * s.scale
 			}
-			dx, dy := MinMax(xs, ys, x0, x1, cols)
+			dx, dy := MinMax(xs, ys, ax.x0, ax.x1, cols)
 			l, h := extent(dy)
 			lo, hi = math.Min(lo, l), math.Max(hi, h)
 			lines = append(lines, linesOf(dx, dy, s.color, 1.1, nil)...)
 			keys[i] = append(keys[i], key{label: s.label, color: s.color})
 		}
 		setRange(&p.Y, lo, hi, 0.08)
-		p.Add(eventLines{markers: markers, f: f})
+		p.Add(eventLines{markers: markers, f: ax.f})
 		p.Add(lines...)
 		plots[i] = p
 	}
+	return plots, keys
+}
 
-	// Event label strip: rows of labels so that none overlap.
+// dataColumn is the horizontal extent shared by the panels' data areas:
+// the insets from the canvas's edges and the resulting x range.
+type dataColumn struct{ left, right, min, max vg.Length }
+
+// alignedColumn is the data column of the plots on c below top: the
+// widest y axis decides the left edge, the widest right margin the right.
+func alignedColumn(c draw.Canvas, top vg.Length, plots []*gplot.Plot) dataColumn {
+	probe := c
+	probe.Max.Y = top
+	var col dataColumn
+	for _, p := range plots {
+		dc := p.DataCanvas(probe)
+		col.left = max(col.left, dc.Min.X-probe.Min.X)
+		col.right = max(col.right, probe.Max.X-dc.Max.X)
+	}
+	col.min, col.max = c.Min.X+col.left, c.Max.X-col.right
+	return col
+}
+
+// drawEventStrip draws the markers' labels below top in rows so that none
+// overlap, each with a tick down to the panels, and returns the strip's
+// height.
+func drawEventStrip(c draw.Canvas, top vg.Length, markers []Marker, ax timeAxis, col dataColumn) vg.Length {
 	ls := textStyle(sizeSmall, ink)
 	type placed struct {
 		x     vg.Length
@@ -198,29 +250,19 @@ func drawStacked(c draw.Canvas, opt WaveformOptions, t []float64, panels []panel
 		label string
 		right bool
 	}
-	// Left edge of the data area: the widest y axis decides it.
-	probe := c
-	probe.Max.Y = top
-	left, right := vg.Length(0), vg.Length(0)
-	for _, p := range plots {
-		dc := p.DataCanvas(probe)
-		left = max(left, dc.Min.X-probe.Min.X)
-		right = max(right, probe.Max.X-dc.Max.X)
-	}
-	dataMin, dataMax := c.Min.X+left, c.Max.X-right
 	xOf := func(v float64) vg.Length {
-		return dataMin + vg.Length((v-x0)/(x1-x0))*(dataMax-dataMin)
+		return col.min + vg.Length((v-ax.x0)/(ax.x1-ax.x0))*(col.max-col.min)
 	}
 	var labels []placed
 	var rowEnds []vg.Length // right end of the last label in each row
 	for _, m := range markers {
-		x := xOf(m.Time * f)
-		if x < dataMin-1 || x > dataMax+1 {
+		x := xOf(m.Time * ax.f)
+		if x < col.min-1 || x > col.max+1 {
 			continue
 		}
 		wid := ls.Width(m.Label)
 		start, rightAlign := x+vg.Points(2), false
-		if start+wid > dataMax {
+		if start+wid > col.max {
 			start, rightAlign = x-vg.Points(2)-wid, true
 		}
 		row := 0
@@ -237,9 +279,8 @@ func drawStacked(c draw.Canvas, opt WaveformOptions, t []float64, panels []panel
 	}
 	lineH := ls.Height("M") + vg.Points(2)
 	strip := vg.Length(len(rowEnds))*lineH + vg.Points(2)
-	stripTop := top
 	for _, l := range labels {
-		base := stripTop - vg.Length(l.row+1)*lineH + vg.Points(2)
+		base := top - vg.Length(l.row+1)*lineH + vg.Points(2)
 		sty := ls
 		x := l.x + vg.Points(2)
 		if l.right {
@@ -247,22 +288,26 @@ func drawStacked(c draw.Canvas, opt WaveformOptions, t []float64, panels []panel
 			x = l.x - vg.Points(2)
 		}
 		c.FillText(sty, vg.Point{X: x, Y: base}, l.label)
-		c.StrokeLine2(draw.LineStyle{Color: eventInk, Width: vg.Points(0.6)}, l.x, base+ls.Height("M")-vg.Points(2), l.x, stripTop-strip)
+		c.StrokeLine2(draw.LineStyle{Color: eventInk, Width: vg.Points(0.6)}, l.x, base+ls.Height("M")-vg.Points(2), l.x, top-strip)
 	}
-	top -= strip
+	return strip
+}
 
-	// Vertical layout: each panel gets a key row above its plot; data
-	// heights follow the weights after the fixed overheads.
+// drawPanels stacks the plots below top: each panel gets a key row above
+// its plot, and the data heights follow the panels' weights after the
+// fixed overheads; the data areas span col.
+func drawPanels(c draw.Canvas, top vg.Length, plots []*gplot.Plot, panels []panel, keys [][]key, col dataColumn) {
+	probe := c
+	probe.Max.Y = top
 	keyH := keyLine() + vg.Points(2)
 	over := make([]vg.Length, len(plots))
 	var totalOver vg.Length
 	var totalW float64
-	probe.Max.Y = top
 	for i, p := range plots {
 		dc := p.DataCanvas(probe)
 		over[i] = (probe.Max.Y - probe.Min.Y) - (dc.Max.Y - dc.Min.Y)
 		if len(keys[i]) > 0 {
-			over[i] += vg.Length(len(keyRows(dataMax-dataMin, keys[i]))) * keyH
+			over[i] += vg.Length(len(keyRows(col.max-col.min, keys[i]))) * keyH
 		}
 		totalOver += over[i]
 		totalW += panels[i].weight
@@ -276,11 +321,11 @@ func drawStacked(c draw.Canvas, opt WaveformOptions, t []float64, panels []panel
 		tile.Max.Y = y
 		tile.Min.Y = y - over[i] - hData
 		if len(keys[i]) > 0 {
-			tile.Max.Y -= drawKeys(c, vg.Point{X: dataMin + vg.Points(4), Y: y}, dataMax-dataMin, keys[i]) + vg.Points(2)*vg.Length(len(keyRows(dataMax-dataMin, keys[i])))
+			tile.Max.Y -= drawKeys(c, vg.Point{X: col.min + vg.Points(4), Y: y}, col.max-col.min, keys[i]) + vg.Points(2)*vg.Length(len(keyRows(col.max-col.min, keys[i])))
 		}
 		dc := p.DataCanvas(tile)
-		tile.Min.X += left - (dc.Min.X - tile.Min.X)
-		tile.Max.X -= right - (tile.Max.X - dc.Max.X)
+		tile.Min.X += col.left - (dc.Min.X - tile.Min.X)
+		tile.Max.X -= col.right - (tile.Max.X - dc.Max.X)
 		p.Draw(tile)
 		y = tile.Min.Y - gap
 	}
