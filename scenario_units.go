@@ -328,41 +328,51 @@ func splitNumber(t string) (mant string, exp int, rest string, ok bool) {
 	if i < len(t) && (t[i] == '+' || t[i] == '-') {
 		i++
 	}
-	digits := 0
-	for i < len(t) && isASCIIDigit(t[i]) {
-		i++
-		digits++
-	}
+	i, digits := skipDigits(t, i)
 	if i < len(t) && t[i] == '.' {
-		i++
-		for i < len(t) && isASCIIDigit(t[i]) {
-			i++
-			digits++
-		}
+		var frac int
+		i, frac = skipDigits(t, i+1)
+		digits += frac
 	}
 	if digits == 0 {
 		return "", 0, "", false
 	}
 	mant = t[:i]
-	if i < len(t) && (t[i] == 'e' || t[i] == 'E') {
-		j := i + 1
-		if j < len(t) && (t[j] == '+' || t[j] == '-') {
-			j++
-		}
-		k := j
-		for k < len(t) && isASCIIDigit(t[k]) {
-			k++
-		}
-		if k > j { // an exponent: e, optional sign, at least one digit
-			n, err := strconv.Atoi(t[i+1 : k])
-			if err != nil || n > 100000 || n < -100000 {
-				n = 1000000 // out of range; reported by finish
-			}
-			exp = n
-			i = k
-		}
-	}
+	exp, i = splitExponent(t, i)
 	return mant, exp, t[i:], true
+}
+
+// skipDigits returns the index after the ASCII digits of t from i on, and
+// how many there are.
+func skipDigits(t string, i int) (end, n int) {
+	end = i
+	for end < len(t) && isASCIIDigit(t[end]) {
+		end++
+	}
+	return end, end - i
+}
+
+// splitExponent reads an exponent at t[i:]: "e" or "E", an optional sign
+// and at least one digit. It returns the exponent and the index after it,
+// or 0 and i when there is none. An exponent beyond ±100000 comes back as
+// 1000000, out of range, for finishQuantity to report.
+func splitExponent(t string, i int) (exp, end int) {
+	if i >= len(t) || (t[i] != 'e' && t[i] != 'E') {
+		return 0, i
+	}
+	j := i + 1
+	if j < len(t) && (t[j] == '+' || t[j] == '-') {
+		j++
+	}
+	k, n := skipDigits(t, j)
+	if n == 0 {
+		return 0, i
+	}
+	exp, err := strconv.Atoi(t[i+1 : k])
+	if err != nil || exp > 100000 || exp < -100000 {
+		exp = 1000000
+	}
+	return exp, k
 }
 
 func isASCIIDigit(c byte) bool { return '0' <= c && c <= '9' }
