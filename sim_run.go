@@ -837,7 +837,7 @@ func newRun(md *Model, opt *Options, tol float64) (*run, []float64) {
 
 	y := make([]float64, nState)
 	y[sGap] = md.Plunger.GapMax
-	y[sSwitchC] = md.Drive.Supply.Voltage // at rest the switch node sits at the rail
+	y[sSwitchC] = drive.Supply.Voltage // at rest the switch node sits at the rail
 	y[sBus] = drive.Supply.Voltage
 	y[sWinding] = tWinding
 	y[sHousing] = tWinding
