@@ -8,6 +8,7 @@ import (
 	"io"
 	"math"
 	"regexp"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -144,6 +145,48 @@ const utf8BOM = "\uFEFF"
 // samples, and more than MaxTableBytes bytes. The reader keeps only the
 // samples, never the whole file.
 func ReadTraceCSV(r io.Reader, name string) (*MeasuredTrace, error) {
+	rd := newTraceReader(r, name)
+	header, headerLine, err := rd.read(`a header naming the columns with their units, e.g. "time (ms), current (mA)"`)
+	if err == io.EOF {
+		return nil, fmt.Errorf("%s:1: the trace is empty; expected a header naming the columns with their units, e.g. \"time (ms), current (mA)\", then a row per sample", name)
+	}
+	if err != nil {
+		return nil, err
+	}
+	tr, err := traceHeader(name, header, headerLine)
+	if err != nil {
+		return nil, err
+	}
+	rows, err := rd.rows(tr, len(header))
+	if err != nil {
+		return nil, err
+	}
+	if len(tr.Time) < 10 {
+		return nil, fmt.Errorf("%s:%d: only %d samples after the header (line %d); a trace needs at least 10 rows of %s", name, max(rd.lastLine, headerLine), len(tr.Time), headerLine, rows.expect)
+	}
+	if !tr.Uniform() {
+		return tr, nil // a variable-step record (a simulation's): no gap check
+	}
+	med := tr.MedianStep()
+	cTime := rows.cols[0]
+	for k := 1; k < len(tr.Time); k++ {
+		if s := tr.Time[k] - tr.Time[k-1]; s > 10*med {
+			return nil, fmt.Errorf("%s:%d: %s: a gap of %.3g %s in the time base (median step %.3g %s); expected a uniformly sampled record", name, rows.line[k], cTime, s/cTime.Scale, cTime.Unit, med/cTime.Scale, cTime.Unit)
+		}
+	}
+	return tr, nil
+}
+
+// traceReader reads a trace's CSV records with their file lines.
+type traceReader struct {
+	cr       *csv.Reader
+	name     string
+	lastLine int // the file line of the last record read
+}
+
+// newTraceReader reads at most MaxTableBytes from r, skipping a UTF-8
+// byte-order mark and '#' comments.
+func newTraceReader(r io.Reader, name string) *traceReader {
 	br := bufio.NewReader(&limitedReader{r: r, n: MaxTableBytes})
 	if b, err := br.Peek(len(utf8BOM)); err == nil && string(b) == utf8BOM {
 		br.Discard(len(utf8BOM))
@@ -154,184 +197,218 @@ func ReadTraceCSV(r io.Reader, name string) (*MeasuredTrace, error) {
 	cr.TrimLeadingSpace = true
 	cr.ReuseRecord = true
 	cr.LazyQuotes = true // a stray quote stays in its cell, which is then not a number (named by column)
-	lastLine := 0
-	// read returns the next record and its file line, or io.EOF.
-	read := func(expect string) ([]string, int, error) {
-		rec, err := cr.Read()
-		if err == io.EOF {
-			return nil, 0, err
-		}
-		if err != nil {
-			var pe *csv.ParseError
-			switch {
-			case errors.As(err, &pe):
-				return nil, 0, fmt.Errorf("%s:%d: character %d: %v; expected %s", name, pe.Line, pe.Column, pe.Err, expect)
-			case errors.Is(err, errTraceTooLarge):
-				return nil, 0, fmt.Errorf("%s:%d: %v", name, lastLine+1, err)
-			}
-			return nil, 0, fmt.Errorf("%s:%d: %v", name, lastLine+1, err)
-		}
-		lastLine, _ = cr.FieldPos(0)
-		return rec, lastLine, nil
-	}
-	header, headerLine, err := read(`a header naming the columns with their units, e.g. "time (ms), current (mA)"`)
+	return &traceReader{cr: cr, name: name}
+}
+
+// read returns the next record and its file line, or io.EOF; an error
+// says what was expected.
+func (rd *traceReader) read(expect string) ([]string, int, error) {
+	rec, err := rd.cr.Read()
 	if err == io.EOF {
-		return nil, fmt.Errorf("%s:1: the trace is empty; expected a header naming the columns with their units, e.g. \"time (ms), current (mA)\", then a row per sample", name)
+		return nil, 0, err
 	}
 	if err != nil {
-		return nil, err
+		var pe *csv.ParseError
+		if errors.As(err, &pe) {
+			return nil, 0, fmt.Errorf("%s:%d: character %d: %v; expected %s", rd.name, pe.Line, pe.Column, pe.Err, expect)
+		}
+		return nil, 0, fmt.Errorf("%s:%d: %v", rd.name, rd.lastLine+1, err)
 	}
-	nHeader := len(header) // the record is reused by the next read
-	if nHeader > maxTraceColumns {
-		return nil, fmt.Errorf("%s:%d: the header has %d columns; a trace has at most %d (time, current, voltage and the columns of coilkick's run CSV)", name, headerLine, nHeader, maxTraceColumns)
+	rd.lastLine, _ = rd.cr.FieldPos(0)
+	return rec, rd.lastLine, nil
+}
+
+// traceHeader reads the header's columns into a new trace: time and
+// current, and the voltage when present.
+func traceHeader(name string, header []string, headerLine int) (*MeasuredTrace, error) {
+	if len(header) > maxTraceColumns {
+		return nil, fmt.Errorf("%s:%d: the header has %d columns; a trace has at most %d (time, current, voltage and the columns of coilkick's run CSV)", name, headerLine, len(header), maxTraceColumns)
 	}
 	tr := &MeasuredTrace{Source: name, HeaderLine: headerLine}
 	at := map[string]int{} // quantity -> index in tr.Columns
-	dims := map[string]Dim{"time": Time, "current": Current, "voltage": Voltage}
 	for k, h := range header {
-		if len(h) > maxHeaderCell {
-			return nil, fmt.Errorf("%s:%d: column %d %s: a header cell of %d bytes; expected a name and a unit of at most %d, e.g. \"current (mA)\"", name, headerLine, k+1, quoteCell(h), len(h), maxHeaderCell)
-		}
-		m := columnRE.FindStringSubmatch(h)
-		if m == nil {
-			return nil, fmt.Errorf("%s:%d: column %d %s: expected a name and a unit, e.g. \"time (ms)\" or \"current (mA)\"", name, headerLine, k+1, quoteCell(h))
-		}
-		n := strings.ToLower(strings.Join(strings.Fields(strings.ReplaceAll(m[1], "_", " ")), " "))
-		if ignoredColumns[n] {
-			continue
-		}
-		switch n {
-		case "t":
-			n = "time"
-		case "i":
-			n = "current"
-		case "v", "coil voltage":
-			n = "voltage"
-		}
-		dim, ok := dims[n]
-		if !ok {
-			return nil, fmt.Errorf("%s:%d: column %d %s: unknown quantity; expected time, current or (coil) voltage with a unit, e.g. \"current (mA)\", or a column of coilkick's run CSV", name, headerLine, k+1, quoteCell(h))
-		}
-		example := n + " (" + strings.Fields(dim.Example())[1] + ")"
-		unit := strings.TrimSpace(m[2] + m[3])
-		if unit == "" {
-			return nil, fmt.Errorf("%s:%d: column %d %s has no unit; expected %s, e.g. %q", name, headerLine, k+1, quoteCell(h), dim.Name(), example)
-		}
-		scale, err := ParseQuantity("1 "+unit, dim)
-		if err == nil && !(scale > 0 && !math.IsInf(scale, 0)) {
-			err = fmt.Errorf("%s is out of range", quoteCell(unit))
-		}
+		where := fmt.Sprintf("%s:%d: column %d %s", name, headerLine, k+1, quoteCell(h))
+		c, err := traceColumn(where, h)
 		if err != nil {
-			// the unit parser speaks of the quantity "1 unit" it was given
-			msg := strings.ReplaceAll(err.Error(), strconv.Quote("1 "+unit), "unit "+quoteCell(unit))
-			if cut, _, ok := strings.Cut(msg, ", e.g. "); ok {
-				msg = cut
-			}
-			return nil, fmt.Errorf("%s:%d: column %d %s: %s, e.g. %q", name, headerLine, k+1, quoteCell(h), msg, example)
+			return nil, err
 		}
-		if j, dup := at[n]; dup {
-			return nil, fmt.Errorf("%s:%d: column %d %s: a second %s column (the first is column %d); expected one", name, headerLine, k+1, quoteCell(h), n, tr.Columns[j].Index)
+		if c == nil {
+			continue // a column of coilkick's run CSV that a trace ignores
 		}
-		at[n] = len(tr.Columns)
-		tr.Columns = append(tr.Columns, TraceColumn{Quantity: n, Index: k + 1, Header: strings.TrimSpace(h), Unit: unit, Scale: scale})
+		if j, dup := at[c.Quantity]; dup {
+			return nil, fmt.Errorf("%s: a second %s column (the first is column %d); expected one", where, c.Quantity, tr.Columns[j].Index)
+		}
+		c.Index = k + 1
+		at[c.Quantity] = len(tr.Columns)
+		tr.Columns = append(tr.Columns, *c)
 	}
 	for _, need := range []string{"time", "current"} {
 		if _, ok := at[need]; !ok {
 			return nil, fmt.Errorf("%s:%d: no %s column; the header needs time and current with their units, e.g. \"time (ms), current (mA)\"", name, headerLine, need)
 		}
 	}
-	cTime, cCurrent := tr.Columns[at["time"]], tr.Columns[at["current"]]
-	jv, hasV := at["voltage"]
-	var cVoltage TraceColumn
-	if hasV {
-		cVoltage = tr.Columns[jv]
+	return tr, nil
+}
+
+// traceColumns maps the names a trace's quantities go by to the quantity
+// and its dimension.
+var traceColumns = map[string]struct {
+	quantity string
+	dim      Dim
+}{"time": {"time", Time}, "t": {"time", Time}, "current": {"current", Current}, "i": {"current", Current},
+	"voltage": {"voltage", Voltage}, "v": {"voltage", Voltage}, "coil voltage": {"voltage", Voltage}}
+
+// traceColumn parses a header cell h (where names it for errors): its
+// quantity, unit and scale; nil for an ignored column.
+func traceColumn(where, h string) (*TraceColumn, error) {
+	if len(h) > maxHeaderCell {
+		return nil, fmt.Errorf("%s: a header cell of %d bytes; expected a name and a unit of at most %d, e.g. \"current (mA)\"", where, len(h), maxHeaderCell)
 	}
+	m := columnRE.FindStringSubmatch(h)
+	if m == nil {
+		return nil, fmt.Errorf("%s: expected a name and a unit, e.g. \"time (ms)\" or \"current (mA)\"", where)
+	}
+	n := strings.ToLower(strings.Join(strings.Fields(strings.ReplaceAll(m[1], "_", " ")), " "))
+	if ignoredColumns[n] {
+		return nil, nil
+	}
+	q, ok := traceColumns[n]
+	if !ok {
+		return nil, fmt.Errorf("%s: unknown quantity; expected time, current or (coil) voltage with a unit, e.g. \"current (mA)\", or a column of coilkick's run CSV", where)
+	}
+	example := q.quantity + " (" + strings.Fields(q.dim.Example())[1] + ")"
+	unit := strings.TrimSpace(m[2] + m[3])
+	if unit == "" {
+		return nil, fmt.Errorf("%s has no unit; expected %s, e.g. %q", where, q.dim.Name(), example)
+	}
+	scale, err := ParseQuantity("1 "+unit, q.dim)
+	if err == nil && !(scale > 0 && !math.IsInf(scale, 0)) {
+		err = fmt.Errorf("%s is out of range", quoteCell(unit))
+	}
+	if err != nil {
+		// the unit parser speaks of the quantity "1 unit" it was given
+		msg := strings.ReplaceAll(err.Error(), strconv.Quote("1 "+unit), "unit "+quoteCell(unit))
+		if cut, _, ok := strings.Cut(msg, ", e.g. "); ok {
+			msg = cut
+		}
+		return nil, fmt.Errorf("%s: %s, e.g. %q", where, msg, example)
+	}
+	return &TraceColumn{Quantity: q.quantity, Header: strings.TrimSpace(h), Unit: unit, Scale: scale}, nil
+}
+
+// traceLimits are the magnitudes (SI) a trace may hold, with their text
+// for messages.
+var traceLimits = map[string]struct {
+	max  float64
+	text string
+}{"time": {maxTraceTime, "1e10 s"}, "current": {maxTraceCurrent, "1e6 A"}, "voltage": {maxTraceVoltage, "1e6 V"}}
+
+// traceInput is what reading the rows found out besides the samples.
+type traceInput struct {
+	cols   []TraceColumn // time, current and, when recorded, voltage
+	expect string        // the columns with their units, for messages
+	line   []int         // the file line of each sample
+}
+
+// rows reads the samples into tr: each row has nHeader cells.
+func (rd *traceReader) rows(tr *MeasuredTrace, nHeader int) (*traceInput, error) {
+	rows := &traceInput{}
 	var expect []string
+	for _, q := range []string{"time", "current", "voltage"} {
+		for _, c := range tr.Columns {
+			if c.Quantity == q {
+				rows.cols = append(rows.cols, c)
+			}
+		}
+	}
 	for _, c := range tr.Columns {
 		expect = append(expect, c.Quantity+" in "+c.Unit)
 	}
-	rowExpect := "a row of numbers: " + strings.Join(expect, ", ")
-	limits := map[string]struct {
-		max  float64
-		text string
-	}{"time": {maxTraceTime, "1e10 s"}, "current": {maxTraceCurrent, "1e6 A"}, "voltage": {maxTraceVoltage, "1e6 V"}}
-	var rowLine []int // the file line of each sample
+	rows.expect = strings.Join(expect, ", ")
+	rowExpect := "a row of numbers: " + rows.expect
+	values := make([]float64, len(rows.cols)) // time, current, voltage of a row
 	for {
-		row, line, err := read(rowExpect)
+		row, line, err := rd.read(rowExpect)
 		if err == io.EOF {
-			break
+			return rows, nil
 		}
 		if err != nil {
 			return nil, err
 		}
 		if len(row) != nHeader {
-			cells := fmt.Sprintf("%d cells", len(row))
-			if len(row) == 1 {
-				cells = "1 cell"
-			}
-			if len(row) < nHeader {
-				return nil, fmt.Errorf("%s:%d: %s, the header (line %d) has %d: no cell for column %d; expected %s", name, line, cells, headerLine, nHeader, len(row)+1, rowExpect)
-			}
-			return nil, fmt.Errorf("%s:%d: %s, the header (line %d) has %d: column %d has no header; expected %s", name, line, cells, headerLine, nHeader, nHeader+1, rowExpect)
+			return nil, rd.rowLengthError(line, len(row), nHeader, tr.HeaderLine, rowExpect)
 		}
-		get := func(c TraceColumn) (float64, error) {
-			s := strings.TrimSpace(row[c.Index-1])
-			x, err := strconv.ParseFloat(s, 64)
-			if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
-				return 0, fmt.Errorf("%s:%d: %s: %s is not a finite number; expected a %s in %s", name, line, c, quoteCell(s), c.Quantity, c.Unit)
-			}
-			v, lim := x*c.Scale, limits[c.Quantity]
-			if !(math.Abs(v) <= lim.max) {
-				return 0, fmt.Errorf("%s:%d: %s: %s %s is beyond the ±%s a trace may hold; expected a %s in %s", name, line, c, quoteCell(s), c.Unit, lim.text, c.Quantity, c.Unit)
-			}
-			return v, nil
-		}
-		t, err := get(cTime)
-		if err != nil {
-			return nil, err
-		}
-		i, err := get(cCurrent)
-		if err != nil {
-			return nil, err
-		}
-		v := 0.0
-		if hasV {
-			if v, err = get(cVoltage); err != nil {
+		for j, c := range rows.cols {
+			if values[j], err = rd.cell(row, line, c); err != nil {
 				return nil, err
 			}
 		}
-		k := len(tr.Time)
-		if k > 0 && t == tr.Time[k-1] {
-			tr.Repeated++
-			continue
-		}
-		if k > 0 && !(t > tr.Time[k-1]) {
-			return nil, fmt.Errorf("%s:%d: %s: time %s %s does not increase (the previous sample, line %d, is at %.6g %s)", name, line, cTime,
-				strings.TrimSpace(row[cTime.Index-1]), cTime.Unit, rowLine[k-1], tr.Time[k-1]/cTime.Scale, cTime.Unit)
-		}
-		if k == MaxTraceSamples {
-			return nil, fmt.Errorf("%s:%d: more than %d samples: decimate the record (fit compares at most %d points)", name, line, MaxTraceSamples, FitMaxPoints)
-		}
-		tr.Time = append(tr.Time, t)
-		rowLine = append(rowLine, line)
-		tr.Current = append(tr.Current, i)
-		if hasV {
-			tr.Voltage = append(tr.Voltage, v)
+		if err := rows.add(tr, values, line, row); err != nil {
+			return nil, fmt.Errorf("%s:%d: %w", rd.name, line, err)
 		}
 	}
-	if len(tr.Time) < 10 {
-		return nil, fmt.Errorf("%s:%d: only %d samples after the header (line %d); a trace needs at least 10 rows of %s", name, max(lastLine, headerLine), len(tr.Time), headerLine, strings.Join(expect, ", "))
+}
+
+// rowLengthError says that a row (at line) has n cells, the header
+// nHeader.
+func (rd *traceReader) rowLengthError(line, n, nHeader, headerLine int, expect string) error {
+	cells := fmt.Sprintf("%d cells", n)
+	if n == 1 {
+		cells = "1 cell"
 	}
-	if !tr.Uniform() {
-		return tr, nil // a variable-step record (a simulation's): no gap check
+	if n < nHeader {
+		return fmt.Errorf("%s:%d: %s, the header (line %d) has %d: no cell for column %d; expected %s", rd.name, line, cells, headerLine, nHeader, n+1, expect)
 	}
-	med := tr.MedianStep()
-	for k := 1; k < len(tr.Time); k++ {
-		if s := tr.Time[k] - tr.Time[k-1]; s > 10*med {
-			return nil, fmt.Errorf("%s:%d: %s: a gap of %.3g %s in the time base (median step %.3g %s); expected a uniformly sampled record", name, rowLine[k], cTime, s/cTime.Scale, cTime.Unit, med/cTime.Scale, cTime.Unit)
+	return fmt.Errorf("%s:%d: %s, the header (line %d) has %d: column %d has no header; expected %s", rd.name, line, cells, headerLine, nHeader, nHeader+1, expect)
+}
+
+// cell returns column c of a row (at line) in SI: a finite number within
+// the trace's limits.
+func (rd *traceReader) cell(row []string, line int, c TraceColumn) (float64, error) {
+	s := strings.TrimSpace(row[c.Index-1])
+	x, err := strconv.ParseFloat(s, 64)
+	if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
+		return 0, fmt.Errorf("%s:%d: %s: %s is not a finite number; expected a %s in %s", rd.name, line, c, quoteCell(s), c.Quantity, c.Unit)
+	}
+	v, lim := x*c.Scale, traceLimits[c.Quantity]
+	if !(math.Abs(v) <= lim.max) {
+		return 0, fmt.Errorf("%s:%d: %s: %s %s is beyond the ±%s a trace may hold; expected a %s in %s", rd.name, line, c, quoteCell(s), c.Unit, lim.text, c.Quantity, c.Unit)
+	}
+	return v, nil
+}
+
+// add appends a row's values (time, current and voltage, SI) read at line
+// to tr; a row at the previous row's time is counted and dropped. The
+// slices double when full (append grows large slices by a quarter, which
+// copied a million-sample trace some twenty times).
+func (in *traceInput) add(tr *MeasuredTrace, values []float64, line int, row []string) error {
+	t, k := values[0], len(tr.Time)
+	if k > 0 && t == tr.Time[k-1] {
+		tr.Repeated++
+		return nil
+	}
+	if k > 0 && !(t > tr.Time[k-1]) {
+		c := in.cols[0]
+		return fmt.Errorf("%s: time %s %s does not increase (the previous sample, line %d, is at %.6g %s)", c,
+			strings.TrimSpace(row[c.Index-1]), c.Unit, in.line[k-1], tr.Time[k-1]/c.Scale, c.Unit)
+	}
+	if k == MaxTraceSamples {
+		return fmt.Errorf("more than %d samples: decimate the record (fit compares at most %d points)", MaxTraceSamples, FitMaxPoints)
+	}
+	if k == cap(tr.Time) {
+		tr.Time, tr.Current = slices.Grow(tr.Time, k), slices.Grow(tr.Current, k)
+		in.line = slices.Grow(in.line, k)
+		if len(values) > 2 {
+			tr.Voltage = slices.Grow(tr.Voltage, k)
 		}
 	}
-	return tr, nil
+	tr.Time = append(tr.Time, t)
+	in.line = append(in.line, line)
+	tr.Current = append(tr.Current, values[1])
+	if len(values) > 2 {
+		tr.Voltage = append(tr.Voltage, values[2])
+	}
+	return nil
 }
 
 // Resample returns the trace on a uniform time grid of step dt (linear
@@ -440,124 +517,164 @@ func DetectEvents(tr *MeasuredTrace) (*TraceEvents, error) {
 	dt := tr.MedianStep()
 	t, i := tr.Resample(dt, win)
 	ev := &TraceEvents{Step: dt}
-	// Baseline and noise from the raw samples before energizing: start
-	// with the first 10, then extend the window (up to 2 % of the record)
-	// while the samples stay within 5 σ of it.
-	stats := func(n int) (mean, sd float64) {
-		s, s2 := 0.0, 0.0
-		for k := 0; k < n; k++ {
-			s += tr.Current[k]
-			s2 += tr.Current[k] * tr.Current[k]
-		}
-		mean = s / float64(n)
-		return mean, math.Sqrt(math.Max(s2/float64(n)-mean*mean, 0))
-	}
-	nb := min(10, len(tr.Current))
-	ev.Offset, ev.Noise = stats(nb)
-	for nb < max(10, len(tr.Current)/50) && math.Abs(tr.Current[nb]-ev.Offset) < 5*math.Max(ev.Noise, 1e-12) {
-		nb++
-		if nb%10 == 0 {
-			ev.Offset, ev.Noise = stats(nb)
-		}
-	}
-	ev.Offset, ev.Noise = stats(nb)
+	ev.Offset, ev.Noise = baseline(tr.Current)
 	peakAll := 0.0
 	for k := range i {
 		i[k] -= ev.Offset
 		peakAll = math.Max(peakAll, i[k])
 	}
-	smNoise := ev.Noise / math.Sqrt(float64(win))
-	thr := math.Max(5*smNoise, 0.01*peakAll)
-	start := -1
+	d := eventDetector{ev: ev, t: t, i: i, raw: tr.Current, smNoise: ev.Noise / math.Sqrt(float64(win))}
+	d.thr = math.Max(5*d.smNoise, 0.01*peakAll)
+	d.start = -1
 	for k := range i {
-		if i[k] > thr {
-			start = k
+		if i[k] > d.thr {
+			d.start = k
 			break
 		}
 	}
-	if start < 0 || peakAll <= 5*smNoise {
+	if d.start < 0 || peakAll <= 5*d.smNoise {
 		return nil, ErrNoCurrent
 	}
-	// Back-extrapolate to the baseline with a least-squares line through
-	// the raw samples of the early rise (from the threshold to 4 times it):
-	// just after switch-on the current rises linearly, di/dt = V/L.
-	var sx, sy, sxx, sxy, nn float64
-	for k := start; k < len(i) && i[k] < 4*thr; k++ {
-		x, y := t[k], tr.Current[min(k, len(tr.Current)-1)]-ev.Offset
-		sx, sy, sxx, sxy, nn = sx+x, sy+y, sxx+x*x, sxy+x*y, nn+1
-	}
-	ev.Energize = t[start]
-	ev.EnergizeErr = dt
-	if nn >= 3 {
-		den := nn*sxx - sx*sx
-		slope := (nn*sxy - sx*sy) / den
-		icpt := (sy - slope*sx) / nn
-		if slope > 0 {
-			t0 := -icpt / slope
-			if t0 > t[0] && t0 <= t[start] {
-				ev.Energize = t0
-				// σ of the intercept of a least-squares line (any statistics text)
-				sdSlope := ev.Noise * math.Sqrt(nn/den)
-				ev.EnergizeErr = math.Max(dt/2, ev.Noise/slope/math.Sqrt(nn)+math.Abs(t0)*sdSlope/slope)
-			}
-		}
-	}
+	d.energize()
 	// The dip: a local maximum followed by a fall of more than the noise
 	// and 2 % of the peak, then a rise again.
-	dip := math.Max(6*smNoise, 0.02*peakAll)
-	kMax := start
-	for k := start; k < len(i); k++ {
+	d.dip(math.Max(6*d.smNoise, 0.02*peakAll))
+	d.decay()
+	return ev, nil
+}
+
+// baseline returns the mean and standard deviation (A) of the raw samples
+// before energizing: the first 10, extended (up to 2 % of the record)
+// while the samples stay within 5 σ of it.
+func baseline(current []float64) (offset, noise float64) {
+	stats := func(n int) (mean, sd float64) {
+		s, s2 := 0.0, 0.0
+		for k := 0; k < n; k++ {
+			s += current[k]
+			s2 += current[k] * current[k]
+		}
+		mean = s / float64(n)
+		return mean, math.Sqrt(math.Max(s2/float64(n)-mean*mean, 0))
+	}
+	nb := min(10, len(current))
+	offset, noise = stats(nb)
+	for nb < max(10, len(current)/50) && math.Abs(current[nb]-offset) < 5*math.Max(noise, 1e-12) {
+		nb++
+		if nb%10 == 0 {
+			offset, noise = stats(nb)
+		}
+	}
+	return stats(nb)
+}
+
+// eventDetector finds the events on the smoothed current i (A, baseline
+// removed) at uniform times t (s).
+type eventDetector struct {
+	ev      *TraceEvents
+	t, i    []float64
+	raw     []float64 // the unsmoothed current (A, baseline included)
+	smNoise float64   // A, the noise of the smoothed current
+	thr     float64   // A, the threshold of "the current is on"
+	start   int       // the first sample above thr
+}
+
+// energize back-extrapolates the rise to the baseline with a least-squares
+// line through the raw samples of the early rise (from the threshold to 4
+// times it): just after switch-on the current rises linearly, di/dt =
+// V/L. Without such a line the energize instant is the first sample above
+// the threshold, ± a sample step.
+func (d *eventDetector) energize() {
+	ev, t, i, dt := d.ev, d.t, d.i, d.ev.Step
+	var sx, sy, sxx, sxy, nn float64
+	for k := d.start; k < len(i) && i[k] < 4*d.thr; k++ {
+		x, y := t[k], d.raw[min(k, len(d.raw)-1)]-ev.Offset
+		sx, sy, sxx, sxy, nn = sx+x, sy+y, sxx+x*x, sxy+x*y, nn+1
+	}
+	ev.Energize = t[d.start]
+	ev.EnergizeErr = dt
+	if nn < 3 {
+		return
+	}
+	den := nn*sxx - sx*sx
+	slope := (nn*sxy - sx*sy) / den
+	icpt := (sy - slope*sx) / nn
+	if !(slope > 0) {
+		return
+	}
+	if t0 := -icpt / slope; t0 > t[0] && t0 <= t[d.start] {
+		ev.Energize = t0
+		// σ of the intercept of a least-squares line (any statistics text)
+		sdSlope := ev.Noise * math.Sqrt(nn/den)
+		ev.EnergizeErr = math.Max(dt/2, ev.Noise/slope/math.Sqrt(nn)+math.Abs(t0)*sdSlope/slope)
+	}
+}
+
+// dip finds the pull-in dip: a local maximum followed by a fall of more
+// than depth (A), then a rise again by depth; the minimum is the seat
+// instant. A fall without a rise is the turn-off: no dip.
+func (d *eventDetector) dip(depth float64) {
+	i := d.i
+	kMax := d.start
+	for k := d.start; k < len(i); k++ {
 		if i[k] > i[kMax] {
 			kMax = k
 		}
-		if i[kMax]-i[k] > dip {
-			// find the minimum, then require a rise by dip after it
+		if i[kMax]-i[k] > depth {
+			// find the minimum, then require a rise by depth after it
 			kMin := k
 			for m := k; m < len(i); m++ {
 				if i[m] < i[kMin] {
 					kMin = m
 				}
-				if i[m]-i[kMin] > dip {
-					ev.HasDip = true
-					ev.Peak, ev.PeakI = t[kMax], i[kMax]
-					ev.Seat, ev.SeatI = t[kMin], i[kMin]
-					// uncertainty: the flat bottom of the dip within the noise
-					lo, hi := kMin, kMin
-					for lo > kMax && i[lo-1]-i[kMin] < 2*smNoise {
-						lo--
-					}
-					for hi < m && i[hi+1]-i[kMin] < 2*smNoise {
-						hi++
-					}
-					ev.SeatErr = math.Max(dt, float64(hi-lo)*dt/2)
-					break
+				if i[m]-i[kMin] > depth {
+					d.seat(kMax, kMin, m)
+					return
 				}
 			}
-			if ev.HasDip {
-				break
-			}
-			// a fall without a rise: the turn-off
-			break
+			return
 		}
 	}
-	// Turn-off: the last time the current is within the dip threshold of
-	// its late maximum before it falls to the baseline for good.
+}
+
+// seat records the dip with its peak at kMax, its minimum at kMin and the
+// rise found by m; its uncertainty is the flat bottom of the dip within
+// the noise.
+func (d *eventDetector) seat(kMax, kMin, m int) {
+	ev, t, i, dt := d.ev, d.t, d.i, d.ev.Step
+	ev.HasDip = true
+	ev.Peak, ev.PeakI = t[kMax], i[kMax]
+	ev.Seat, ev.SeatI = t[kMin], i[kMin]
+	lo, hi := kMin, kMin
+	for lo > kMax && i[lo-1]-i[kMin] < 2*d.smNoise {
+		lo--
+	}
+	for hi < m && i[hi+1]-i[kMin] < 2*d.smNoise {
+		hi++
+	}
+	ev.SeatErr = math.Max(dt, float64(hi-lo)*dt/2)
+}
+
+// decay finds the end of the decay (the current back below the threshold
+// for good) and the turn-off: the last time the current is within the
+// noise of its late maximum before it falls to the baseline for good.
+func (d *eventDetector) decay() {
+	ev, t, i, dt := d.ev, d.t, d.i, d.ev.Step
 	end := len(i) - 1
-	for end > 0 && i[end] < thr {
+	for end > 0 && i[end] < d.thr {
 		end--
 	}
-	if end < len(i)-1 {
-		ev.DecayEnd = t[end+1]
-		ev.DecayEndErr = dt + smNoise/math.Max(math.Abs((i[end]-i[end+1])/dt), 1e-30)
-		kOff := end
-		for kOff > start && i[kOff-1] >= i[kOff]-smNoise {
-			kOff--
-		}
-		// walk back while the current keeps falling
-		for kOff > start && i[kOff-1] > i[kOff] {
-			kOff--
-		}
-		ev.TurnOff = t[kOff]
+	if end == len(i)-1 {
+		return
 	}
-	return ev, nil
+	ev.DecayEnd = t[end+1]
+	ev.DecayEndErr = dt + d.smNoise/math.Max(math.Abs((i[end]-i[end+1])/dt), 1e-30)
+	kOff := end
+	for kOff > d.start && i[kOff-1] >= i[kOff]-d.smNoise {
+		kOff--
+	}
+	// walk back while the current keeps falling
+	for kOff > d.start && i[kOff-1] > i[kOff] {
+		kOff--
+	}
+	ev.TurnOff = t[kOff]
 }
