@@ -5,10 +5,10 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"math"
 	"os"
 	"path/filepath"
 	"regexp"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -43,117 +43,160 @@ func Load(path string) (*Scenario, error) {
 // spaces. Unknown keys, duplicate keys, empty values and keys that do not
 // apply (to the suppression type, say) are errors.
 //
-// Every number must also lie in its key's range (scenarioRanges, listed in
-// the README), whole numbers must be whole, and a pwm or fixed-frequency
-// drive must give at least one period while it applies; the name must be
-// printable text (control characters are refused). Table and curve files
-// must be regular files of at most MaxTableBytes.
+// Every number must also lie in its key's range (listed in the README's
+// "Scenario files"), whole numbers must be whole, and a pwm or
+// fixed-frequency drive must give at least one period while it applies;
+// the name must be printable text (control characters are refused). Table
+// and curve files must be regular files of at most MaxTableBytes. A key
+// given with no value ("mass:") is an error, even for an optional key; an
+// optional section given empty ("ratings:") counts as empty.
 //
-// Keys (required unless marked optional) and the defaults of optional ones:
+// Sections and keys, with an example value each; a key is required unless
+// its comment says optional (then with its default) or names the cases it
+// is for. This list is generated from the key specifications of the
+// scenario_<section>.go files (TestScenarioKeyReference; the README shows
+// the same list and the ranges):
 //
-//	name: text                                  optional, default ""
+//	name: irrigation valve (demo data)        # optional; free text: printable, at most 200 characters
 //	supply:
-//	  voltage: 24 V                             > 0
-//	  source resistance: 0.5 ohm                optional, default 0; >= 0
+//	  voltage: 24 V
+//	  source resistance: 0.5 ohm              # optional, default 0 ohm
+//	  bulk capacitance: 470 uF                # optional; a capacitor at the drive's terminals behind the source resistance, which must then be > 0
+//	  low voltage: 21.6 V                     # optional; the lowest supply in tolerance (hot-coil check), at most voltage
 //	coil:
-//	  resistance: 48 ohm                        > 0, at the reference temperature
-//	  reference temperature: 20 degC            optional, default 20 degC (293.15 K)
-//	  temperature: 40 degC                      optional, default: the reference temperature
-//	  temperature coefficient: 0.00393 /K       optional, default 0.00393 /K (annealed copper,
-//	                                            IEC 60028); the resistance at the run
-//	                                            temperature must stay > 0
-//	  turns: 1800                               optional whole number > 0; default 0 (not given)
-//	  build:                                    instead of resistance: the winding from bobbin
-//	                                            and wire (resistance at 20 degC from IEC 60028)
-//	    inner diameter: 10 mm                   > 0, winding space
-//	    outer diameter: 26 mm                   > inner diameter
-//	    length: 22 mm                           > 0
-//	    wire gauge: 32                          AWG 0..46, or
-//	    wire diameter: 0.2 mm                   bare copper
-//	    insulation grade: 2                     enamel grade 1, 2 or 3, or
-//	    overall diameter: 0.23 mm               insulated diameter
-//	    turns: 2500                             whole number, or
-//	    fill factor: 0.5                        copper area / winding window, < 0.91
-//	magnet:                                     exactly one of "gap law", "table", "geometry"
-//	  eddy resistance: 200 ohm                  optional, default none; > 0: equivalent
-//	                                            shorted turn for eddy currents, referred
-//	                                            to the coil's turns
-//	  gap law:
-//	    closed inductance: 250 mH               > 0, at the seated gap
-//	    open inductance: 120 mH                 > 0, < closed inductance
-//	    pole area: 50 mm2                       optional, default 0 (not given); > 0; needs coil.turns
-//	  table:
-//	    file: valve_flux.csv                    relative to the scenario file's folder; must exist
-//	    current unit: A                         unit of the table's currents
-//	    gap unit: mm                            unit of the table's gaps
-//	    flux linkage unit: mWb                  unit of the table's flux linkages
-//	  geometry:                                 a plunger magnet from its dimensions; needs coil.build
-//	    plunger diameter, plunger length, pole diameter, pole length, shell outer diameter,
-//	    shell wall, shell length, end plate thickness, sliding gap, sliding length: lengths > 0
-//	    steel saturation: 2.0 T                 saturation polarization (analytic law), with
-//	    steel permeability: 1500                initial relative permeability > 1, or
-//	    steel curve:                            a measured B–H curve
-//	      file: steel.csv                       rows "H, B"
+//	  resistance: 72 ohm                      # at the reference temperature; or instead build
+//	  reference temperature: 20 degC          # optional, default 20 degC
+//	  temperature: 40 degC                    # optional; winding temperature during the run; default the reference temperature
+//	  temperature coefficient: 0.00393 /K     # optional, default 0.00393 /K; annealed copper (IEC 60028); the resistance at the run temperature must stay > 0
+//	  turns: 2400                             # optional; needed with magnet.gap law.pole area; with build, give the turns inside it
+//	  build:                                  # instead of resistance (and turns): the winding from bobbin and wire (resistance at 20 degC from IEC 60028)
+//	    inner diameter: 10 mm                 # winding space of the bobbin
+//	    outer diameter: 26 mm                 # > inner diameter
+//	    length: 22 mm
+//	    wire gauge: 32                        # AWG (ASTM B258); or wire diameter
+//	    wire diameter: 0.2 mm                 # bare copper; or wire gauge
+//	    overall diameter: 0.23 mm             # insulated; or insulation grade
+//	    insulation grade: 2                   # enamel grade 1..3 (approximate build-up); or overall diameter
+//	    turns: 2500                           # or fill factor
+//	    fill factor: 0.52                     # copper area / winding window; or turns
+//	  winding capacitance: 150 pF             # optional, default none; the winding's capacitance across its terminals (see "Parasitics")
+//	  core loss resistance: 20 kohm           # optional, default none; a resistance across the terminals for the core (iron) loss
+//	magnet:                                   # exactly one of gap law, table, geometry
+//	  gap law:                                # L(x) = L_leak + 1/(a + b·x), linear iron
+//	    closed inductance: 300 mH             # at the seated gap
+//	    open inductance: 120 mH               # at the rest gap, < closed inductance
+//	    pole area: 50 mm2                     # optional; needs coil.turns; fixes b = 1/(µ0·A·N²) and solves the leakage
+//	  table:                                  # flux linkage versus current and gap, from a field solver or bench
+//	    file: valve_flux.csv                  # relative to the scenario file's folder (see "Flux-linkage table")
+//	    current unit: A                       # unit of the table's currents
+//	    gap unit: mm                          # unit of the table's gaps
+//	    flux linkage unit: mWb                # unit of the table's flux linkages
+//	  geometry:                               # a plunger magnet from its dimensions (needs coil.build)
+//	    plunger diameter: 8 mm
+//	    plunger length: 12 mm                 # steel path from the working-gap face to the front-plate bushing
+//	    pole diameter: 8 mm                   # fixed pole piece the plunger is pulled to (flat faces)
+//	    pole length: 12 mm                    # from the back plate's inner face to the pole face
+//	    shell outer diameter: 32 mm
+//	    shell wall: 1.5 mm
+//	    shell length: 28 mm                   # over both end plates
+//	    end plate thickness: 2.5 mm
+//	    sliding gap: 0.05 mm                  # radial clearance in the front-plate bushing
+//	    sliding length: 4 mm
+//	    steel saturation: 2.0 T               # Frohlich–Kennelly law: saturation polarization; or steel curve
+//	    steel permeability: 1500              # and initial relative permeability of the same law
+//	    steel curve:                          # instead of the analytic law: a measured B–H curve
+//	      file: steel_bh.csv                  # rows H, B from 0, 0; relative to the scenario file's folder
 //	      field unit: A/m
 //	      flux density unit: T
-//	    table currents: 40                      optional, default 40 (4..400)
-//	    table gaps: 60                          optional, default 60 (4..400)
-//	    max current: 2 A                        optional, default 3 × supply voltage / coil resistance
+//	    table currents: 40                    # optional, default 40; grid of the built table
+//	    table gaps: 60                        # optional, default 60
+//	    max current: 1 A                      # optional, default 3 × supply voltage / coil resistance; top of the table's current range
+//	  eddy resistance: 400 ohm                # optional, default none; eddy currents as a shorted turn, referred to the coil's turns
 //	plunger:
-//	  mass: 6 g                                 > 0
-//	  rest gap: 1.2 mm                          > seated gap
-//	  seated gap: 0.05 mm                       >= 0
-//	  spring preload: 2 N                       >= 0, spring force at the rest gap
-//	  spring rate: 0.8 N/mm                     >= 0
-//	  damping: 0.5 N*s/m                        optional, default 0; >= 0
-//	  restitution: 0.3                          optional plain number 0..1, default 0
-//	  stick speed: 0.05 m/s                     optional, default 0.05 m/s; > 0
-//	  load:                                     optional section
-//	    constant force: 0.5 N                   optional, default 0; any sign, > 0 pushes the gap open
-//	    pressure: 3 bar                         optional, default 0 (none); >= 0; when given,
-//	                                            seal travel and exactly one of orifice
-//	                                            diameter / orifice area are required
-//	    orifice diameter: 1.2 mm                > 0; OrificeArea = π d²/4
-//	    orifice area: 1.1 mm2                   > 0
-//	    seal travel: 0.3 mm                     > 0, <= rest gap − seated gap
-//	switch:
-//	  on resistance: 50 mohm                    >= 0
-//	  output capacitance: 300 pF                optional, default 0 (ideal edges); >= 0
-//	  breakdown voltage: 60 V                   > supply voltage
-//	  body diode drop: 0.7 V                    optional, default 0.7 V; > 0
+//	  mass: 8 g
+//	  rest gap: 1.2 mm                        # air gap at the rest stop (de-energized), > seated gap
+//	  seated gap: 0.05 mm                     # residual gap at the energized stop
+//	  spring preload: 2 N                     # return-spring force at the rest gap, pushing the gap open
+//	  spring rate: 0.5 N/mm
+//	  damping: 0.5 N*s/m                      # optional, default 0 N*s/m; viscous
+//	  restitution: 0.2                        # optional; plain number, at both stops; 0 when not given
+//	  stick speed: 0.05 m/s                   # optional, default 0.05 m/s; slower impacts or rebounds end in sticking
+//	  load:                                   # optional
+//	    constant force: 0.5 N                 # optional, default 0 N; positive pushes the gap open
+//	    pressure: 3 bar                       # optional; pressure on a valve orifice holding the seal shut; needs seal travel and one of orifice diameter, orifice area
+//	    orifice diameter: 1.0 mm              # with pressure; or orifice area
+//	    orifice area: 0.79 mm2                # with pressure; or orifice diameter
+//	    seal travel: 0.3 mm                   # with pressure: lift over which the pressure force fades to zero, at most rest gap − seated gap
+//	switch:                                   # low-side switch (MOSFET)
+//	  on resistance: 40 mohm
+//	  output capacitance: 300 pF              # optional, default 0 F; 0: ideal edges
+//	  breakdown voltage: 60 V                 # where the switch avalanches, > supply.voltage
+//	  body diode drop: 0.7 V                  # optional, default 0.7 V
+//	  rise time: 100 ns                       # optional, default 0 s; edge times, for the switching-loss estimate
+//	  fall time: 100 ns                       # optional, default 0 s
 //	suppression:
-//	  type: freewheel diode                     none | freewheel diode | diode zener | tvs |
-//	                                            rc snubber | switch clamp
-//	  forward drop: 0.8 V                       freewheel diode, diode zener: required, > 0
-//	  zener voltage: 33 V                       diode zener: required, > 0
-//	  clamp voltage: 36 V                       tvs: required, > supply voltage;
-//	                                            switch clamp: required, > supply voltage
-//	                                            and < breakdown voltage
-//	  resistance: 0.2 ohm                       freewheel diode, diode zener, tvs, switch clamp:
-//	                                            optional, default 0, >= 0;
-//	                                            rc snubber: required, > 0
-//	  capacitance: 100 nF                       rc snubber: required, > 0
+//	  type: freewheel diode                   # none | freewheel diode | diode zener | tvs | rc snubber | switch clamp | reverse drive
+//	  forward drop: 0.8 V                     # for freewheel diode, diode zener, reverse drive; diode forward drop; reverse drive: each bridge diode's
+//	  zener voltage: 33 V                     # for diode zener
+//	  clamp voltage: 36 V                     # for tvs, switch clamp; tvs: across the coil, > supply.voltage; switch clamp: switch node to ground, > supply.voltage and < switch.breakdown voltage
+//	  resistance: 0.1 ohm                     # optional, default 0 ohm; for freewheel diode, diode zener, tvs, rc snubber, switch clamp, reverse drive; dynamic resistance of the diode, zener or tvs; rc snubber: the resistor, required, with a range of its own
+//	  capacitance: 100 nF                     # for rc snubber
+//	  reverse pulse: 2 ms                     # optional, default 0 s; for reverse drive; H-bridge: at turn-off the coil sees −(supply + 2 drops) and returns its energy to the supply; drive it in reverse this long first
+//	drive:                                    # optional; default constant (switch on while energized)
+//	  mode: peak and hold                     # constant | pwm | peak and hold | boost then hold
+//	  frequency: 20 kHz                       # for pwm, peak and hold; peak and hold: with fixed-frequency regulation only
+//	  duty: 0.4                               # for pwm; fraction of the period
+//	  peak current: 1.5 A                     # for peak and hold; at least hold current
+//	  peak time: 30 ms                        # for peak and hold; from energize
+//	  hold current: 0.4 A                     # for peak and hold
+//	  regulation: fixed frequency             # for peak and hold; fixed frequency (with frequency) or hysteresis (with band)
+//	  band: 40 mA                             # for peak and hold; hysteresis: the full band width, below twice the hold current
+//	  decay: slow                             # optional, default slow; for pwm, peak and hold; slow: off-times recirculate through a diode across the coil; fast: through the suppression part
+//	  recirculation drop: 0.7 V               # for pwm, peak and hold; slow decay: the recirculation path's drop
+//	  recirculation resistance: 0.1 ohm       # optional, default 0 ohm; for pwm, peak and hold; slow decay
+//	  boost voltage: 48 V                     # for boost then hold; > supply.voltage
+//	  boost time: 10 ms                       # for boost then hold; the supply is raised that long
 //	timing:
-//	  energize at: 1 ms                         optional, default 0; >= 0
-//	  de-energize at: 100 ms                    > energize at
-//	  end: 200 ms                               > de-energize at
-//	ratings:                                    optional section; every key optional and,
-//	                                            when given, > 0; a missing key is not checked
-//	  switch voltage: 60 V                      -> Limits.SwitchVoltage
-//	  avalanche energy: 20 mJ                   -> Limits.AvalancheEnergy
-//	  clamp energy: 50 mJ                       -> Limits.ClampEnergy
-//	  clamp current: 2 A                        -> Limits.ClampCurrent
-//	  pull-in time: 30 ms                       -> Limits.MaxPullIn (a maximum)
-//	  release time: 20 ms                       -> Limits.MaxRelease (a maximum)
-//	  drop time: 40 ms                          -> Limits.MaxDrop (a maximum)
-//	solver:                                     optional section
-//	  tolerance: 1e-8                           optional plain number in [1e-12, 1e-3];
-//	                                            default 0 (the integrator's own)
-//	  max steps: 500000                         optional whole number > 0 (5e5 is accepted);
-//	                                            default 0 (the integrator's own)
-//
-// A key given with no value ("mass:") is an error, even for an optional
-// key; an optional section given empty ("ratings:") counts as empty.
+//	  energize at: 1 ms                       # optional, default 0 s
+//	  de-energize at: 150 ms                  # > energize at
+//	  end: 300 ms                             # > de-energize at
+//	thermal:                                  # optional; the coil's thermal network (the winding temperature becomes a state): the ambient and exactly one of a rating, a surface or a two-node network
+//	  ambient: 40 degC
+//	  insulation class: F                     # optional; IEC 60085: A 105, E 120, B 130, F 155, H 180, N 200, R 220 degC
+//	  temperature rise: 80 K                  # one node from a rating: the steady rise (in K) at a power
+//	  at power: 10 W
+//	  time constant: 12 min                   # and the thermal time constant
+//	  surface area: 60 cm2                    # or one node from a surface: its area
+//	  convection coefficient: 12 W*m^-2*K^-1  # 12 W*m^-2*K^-1 is common practice for still air
+//	  heat capacity: 150 J/K                  # may be left out with coil.build: copper mass × 385 J/(kg·K)
+//	  winding heat capacity: 60 J/K           # or a two-node network
+//	  winding to housing: 2 K/W
+//	  housing heat capacity: 300 J/K
+//	  housing to ambient: 5 K/W
+//	duty:                                     # optional; the operating pattern for `coilkick heat`
+//	  on time: 1.25 s                         # with period; or segments
+//	  period: 5 s                             # > on time
+//	  duration: 480 min                       # optional, default until the periodic steady state; the study's length
+//	  segments: ["1 s on", "2 s off", "500 ms on", "6.5 s off"] # instead of on time and period: a cycle of segments (each a duration and on or off), repeated
+//	tolerances:                               # optional; for `coilkick corners`
+//	  supply: 10 %                            # optional, default 0 %; ± of the supply voltage
+//	  coil resistance: 7 %                    # optional, default 0 %
+//	  spring: 10 %                            # optional, default 0 %; ± of spring preload and rate
+//	  load: 20 %                              # optional, default 0 %; ± of the load (pressure, constant force)
+//	  ambient: 10 K                           # optional, default 0 K; ± on the winding temperature, in K
+//	  hot winding: 100 degC                   # optional; the winding temperature of the hot corner, as it stands; default the run's temperature + ambient
+//	ratings:                                  # optional; each key optional; a missing one is not checked
+//	  switch voltage: 60 V                    # optional; the peak switch voltage must not exceed it
+//	  avalanche energy: 20 mJ                 # optional; single pulse
+//	  clamp energy: 50 mJ                     # optional; per operation
+//	  clamp current: 2 A                      # optional
+//	  pull-in time: 40 ms                     # optional; requirement: a maximum
+//	  release time: 80 ms                     # optional; a maximum
+//	  drop time: 100 ms                       # optional; a maximum
+//	  hold force margin: 1.2                  # optional; a minimum: pull at the lowest hold current ÷ spring + load at the seat
+//	solver:                                   # optional
+//	  tolerance: 1e-8                         # optional; relative tolerance; default the integrator's own (1e-8)
+//	  max steps: 2000000                      # optional; attempted steps before the run fails with a clear error; default the integrator's own (2000000)
 func Parse(data []byte, name string) (*Scenario, error) { return parse(data, name, nil) }
 
 // parse is Parse; when sections is not nil, the loader records there the
@@ -337,15 +380,17 @@ func describeNode(n *yaml.Node) string {
 // duplicate keys.
 type yamlSection struct {
 	path string
+	spec *sectionSpec
 	pos  Pos // where the section's key was written (the root: its first key)
 	vals map[string]*yaml.Node
 }
 
-// section checks that n is a mapping whose keys are all in allowed and
+// section checks that n is a mapping whose keys are all keys of spec and
 // records each key's position. n == nil or an empty value gives an empty
 // section. It returns nil when n is not a mapping (the error is recorded).
-func (l *scenarioLoader) section(path string, at Pos, n *yaml.Node, allowed []string) *yamlSection {
-	sec := &yamlSection{path: path, pos: at, vals: map[string]*yaml.Node{}}
+func (l *scenarioLoader) section(spec *sectionSpec, at Pos, n *yaml.Node) *yamlSection {
+	path, allowed := spec.path, spec.names()
+	sec := &yamlSection{path: path, spec: spec, pos: at, vals: map[string]*yaml.Node{}}
 	if l.sections != nil {
 		l.sections[path] = allowed
 	}
@@ -434,7 +479,7 @@ func (sec *yamlSection) has(key string) bool {
 }
 
 // sub returns the sub-section key of sec (nil when absent or not a map).
-func (l *scenarioLoader) sub(sec *yamlSection, key string, allowed []string) *yamlSection {
+func (l *scenarioLoader) sub(sec *yamlSection, key string) *yamlSection {
 	if sec == nil {
 		return nil
 	}
@@ -442,8 +487,7 @@ func (l *scenarioLoader) sub(sec *yamlSection, key string, allowed []string) *ya
 	if !ok {
 		return nil
 	}
-	path := fieldPath(sec.path, key)
-	return l.section(path, l.s.pos[path], n, allowed)
+	return l.section(sec.spec.key(key).sub, l.s.pos[fieldPath(sec.path, key)], n)
 }
 
 // scalar returns the text of sec's key. Missing: "" and false, with an
@@ -488,38 +532,53 @@ func (l *scenarioLoader) quantity(sec *yamlSection, key string, dim Dim, require
 	return v, true
 }
 
-// get reads a quantity, checks it against its key's range (see
-// scenarioRanges) and stores it in *dst. An optional missing key stores def
-// (describing it as defText for messages).
-func (l *scenarioLoader) get(sec *yamlSection, key string, dim Dim, dst *float64, required bool, def float64, defText string) bool {
+// read reads the quantity key of sec as its spec says (see keyNeed):
+// it checks the value against the key's range and stores it in *dst, or
+// stores the default of an optional key that is missing. It reports
+// whether *dst now holds a checked value or the default.
+func (l *scenarioLoader) read(sec *yamlSection, key string, dst *float64) bool {
 	if sec == nil {
 		return false
 	}
-	return l.getIn(sec, key, dim, fieldPath(sec.path, key), dst, required, def, defText)
+	return l.readSpec(sec, sec.spec.key(key), dst)
 }
 
-// getIn is get with the range of scenarioRanges[rangeKey].
-func (l *scenarioLoader) getIn(sec *yamlSection, key string, dim Dim, rangeKey string, dst *float64, required bool, def float64, defText string) bool {
+// readWhole is read for a whole number.
+func (l *scenarioLoader) readWhole(sec *yamlSection, key string, dst *int) bool {
+	var v float64
+	if !l.read(sec, key, &v) {
+		return false
+	}
+	*dst = int(v)
+	return true
+}
+
+// readSpec is read with the spec k (a variant with its own range).
+func (l *scenarioLoader) readSpec(sec *yamlSection, k *keySpec, dst *float64) bool {
 	if sec == nil {
 		return false
 	}
-	path := fieldPath(sec.path, key)
-	r, ok := scenarioRanges[rangeKey]
-	if !ok || r.dim != dim {
-		panic(fmt.Sprintf("no range of %s for %s", dim.Name(), rangeKey)) // a programmer error: every key has one
+	path := fieldPath(sec.path, k.name)
+	if k.kind != keyQuantity || k.rng.text == "" {
+		panic("coilkick: " + path + " is not a quantity with a range") // a programmer error
 	}
-	if !sec.has(key) && !required {
-		*dst = def
-		l.ok[path] = true
-		l.text[path] = "default " + defText
-		return true
+	if !sec.has(k.name) {
+		switch k.need {
+		case optional:
+			*dst = k.def
+			l.ok[path] = true
+			l.text[path] = "default " + k.defText
+			return true
+		case whenGiven:
+			return false
+		}
 	}
-	v, ok := l.quantity(sec, key, dim, required)
+	v, ok := l.quantity(sec, k.name, k.rng.dim, true)
 	if !ok {
 		return false
 	}
-	if !r.contains(v) {
-		l.errf(path, "%s", r.problem(l.text[path], v))
+	if !k.rng.contains(v) {
+		l.errf(path, "%s", k.rng.problem(l.text[path], v))
 		l.ok[path] = false
 		return false
 	}
@@ -586,214 +645,157 @@ func (l *scenarioLoader) exceed(big string, vBig float64, small string, vSmall f
 	}
 }
 
-// Keys of each section.
-var (
-	topKeys     = []string{"name", "supply", "coil", "magnet", "plunger", "switch", "suppression", "drive", "timing", "thermal", "duty", "tolerances", "ratings", "solver"}
-	supplyKeys  = []string{"voltage", "source resistance", "bulk capacitance", "low voltage"}
-	thermalKeys = []string{"ambient", "insulation class", "temperature rise", "at power", "time constant",
-		"surface area", "convection coefficient", "heat capacity",
-		"winding heat capacity", "winding to housing", "housing heat capacity", "housing to ambient"}
-	dutyKeys      = []string{"on time", "period", "duration", "segments"}
-	toleranceKeys = []string{"supply", "coil resistance", "spring", "load", "ambient", "hot winding"}
-	driveKeys     = []string{"mode", "frequency", "duty", "peak current", "peak time", "hold current", "regulation", "band",
-		"decay", "recirculation drop", "recirculation resistance", "boost voltage", "boost time"}
-	driveModes    = []string{DriveConstant, DrivePWM, DrivePeakHold, DriveBoostHold}
-	driveModeKeys = map[string][]string{
-		DriveConstant:  {},
-		DrivePWM:       {"frequency", "duty", "decay", "recirculation drop", "recirculation resistance"},
-		DrivePeakHold:  {"frequency", "peak current", "peak time", "hold current", "regulation", "band", "decay", "recirculation drop", "recirculation resistance"},
-		DriveBoostHold: {"boost voltage", "boost time"},
+// choice is a "give either ... or ..." rule of a section.
+type choice struct {
+	alts      [][]string // the keys of each alternative
+	both      string     // the message when more than one alternative is given
+	bothAt    string     // the field it names (at its place); "": the later of the first two given
+	missing   string     // the message when none is given; "": none is no error here
+	missingAt string     // the field that message names, at the section's place
+}
+
+// bothGiven is what pick returns when more than one alternative is given.
+const bothGiven = -2
+
+// pick returns the index of the one alternative of c that sec gives, -1
+// when it gives none and bothGiven when it gives more than one, recording
+// c's message for those cases.
+func (l *scenarioLoader) pick(sec *yamlSection, c choice) int {
+	var given []int
+	var first []string // the first key given of each alternative given
+	for i, alt := range c.alts {
+		for _, k := range alt {
+			if sec.has(k) {
+				given = append(given, i)
+				first = append(first, fieldPath(sec.path, k))
+				break
+			}
+		}
 	}
-	coilKeys = []string{"resistance", "reference temperature", "temperature", "temperature coefficient", "turns", "build",
-		"winding capacitance", "core loss resistance"}
-	coilBuildKeys = []string{"inner diameter", "outer diameter", "length", "wire gauge", "wire diameter", "overall diameter", "insulation grade", "turns", "fill factor"}
-	magnetKeys    = []string{MagnetGapLaw, MagnetTable, MagnetGeom, "eddy resistance"}
-	geometryKeys  = []string{"plunger diameter", "plunger length", "pole diameter", "pole length", "shell outer diameter", "shell wall",
-		"shell length", "end plate thickness", "sliding gap", "sliding length", "steel saturation", "steel permeability", "steel curve",
-		"table currents", "table gaps", "max current"}
-	steelCurveKeys  = []string{"file", "field unit", "flux density unit"}
-	gapLawKeys      = []string{"closed inductance", "open inductance", "pole area"}
-	tableKeys       = []string{"file", "current unit", "gap unit", "flux linkage unit"}
-	plungerKeys     = []string{"mass", "rest gap", "seated gap", "spring preload", "spring rate", "damping", "restitution", "stick speed", "load"}
-	loadKeys        = []string{"constant force", "pressure", "orifice diameter", "orifice area", "seal travel"}
-	switchKeys      = []string{"on resistance", "output capacitance", "breakdown voltage", "body diode drop", "rise time", "fall time"}
-	suppressionKeys = []string{"type", "forward drop", "zener voltage", "clamp voltage", "resistance", "capacitance", "reverse pulse"}
-	timingKeys      = []string{"energize at", "de-energize at", "end"}
-	ratingsKeys     = []string{"switch voltage", "avalanche energy", "clamp energy", "clamp current", "pull-in time", "release time", "drop time", "hold force margin"}
-	solverKeys      = []string{"tolerance", "max steps"}
-
-	suppressionTypes = []string{SuppressNone, SuppressFreewheel, SuppressDiodeZener, SuppressTVS, SuppressSnubber, SuppressSwitchClamp, SuppressBridge}
-	// keys that apply to each suppression type, besides "type"
-	suppressionTypeKeys = map[string][]string{
-		SuppressNone:        {},
-		SuppressFreewheel:   {"forward drop", "resistance"},
-		SuppressDiodeZener:  {"forward drop", "zener voltage", "resistance"},
-		SuppressTVS:         {"clamp voltage", "resistance"},
-		SuppressSnubber:     {"resistance", "capacitance"},
-		SuppressSwitchClamp: {"clamp voltage", "resistance"},
-		SuppressBridge:      {"forward drop", "resistance", "reverse pulse"},
+	switch len(given) {
+	case 0:
+		if c.missing != "" {
+			l.errAt(c.missingAt, sec.pos, "%s", c.missing)
+		}
+		return -1
+	case 1:
+		return given[0]
 	}
-)
+	at := c.bothAt
+	if at == "" {
+		at = l.later(first[0], first[1])
+	}
+	l.errf(at, "%s", c.both)
+	return bothGiven
+}
 
-// Defaults of optional keys (see Parse).
-const (
-	defaultRefTemperature = 293.15  // K, 20 °C
-	defaultTempCoeff      = 0.00393 // 1/K, annealed copper at 20 °C (IEC 60028)
-	defaultStickSpeed     = 0.05    // m/s
-	defaultBodyDiodeDrop  = 0.7     // V
-)
-
-func (l *scenarioLoader) load(root *yaml.Node) {
-	top := l.section("", nodePos(root), root, topKeys)
-	if top == nil {
+// readChoice reads the one alternative of c that sec gives (each
+// alternative one key) into its destination, a *float64 or a *int.
+func (l *scenarioLoader) readChoice(sec *yamlSection, c choice, dst ...any) {
+	k := l.pick(sec, c)
+	if k < 0 {
 		return
 	}
-	s := l.s
-	if text, ok := l.scalar(top, "name", false, "a name (text)"); ok {
-		if why := badName(text); why != "" {
-			l.errf("name", "%s", why)
-		} else {
-			s.Name = text
-		}
+	switch d := dst[k].(type) {
+	case *float64:
+		l.read(sec, c.alts[k][0], d)
+	case *int:
+		l.readWhole(sec, c.alts[k][0], d)
 	}
-	need := func(key string, keys []string) *yamlSection {
-		if !top.has(key) {
-			l.errAt(key, top.pos, "missing section (required); its keys: %s", strings.Join(keys, ", "))
-			return nil
-		}
-		return l.sub(top, key, keys)
-	}
-	supply := need("supply", supplyKeys)
-	coil := need("coil", coilKeys)
-	magnet := need("magnet", magnetKeys)
-	plunger := need("plunger", plungerKeys)
-	sw := need("switch", switchKeys)
-	supp := need("suppression", suppressionKeys)
-	timing := need("timing", timingKeys)
-	ratings := l.sub(top, "ratings", ratingsKeys)
-	solver := l.sub(top, "solver", solverKeys)
+}
 
-	// supply
-	l.get(supply, "voltage", Voltage, &s.Supply.Voltage, true, 0, "")
-	l.get(supply, "source resistance", Resistance, &s.Supply.SourceResistance, false, 0, "0 ohm")
-	if supply != nil && supply.has("low voltage") {
-		if l.get(supply, "low voltage", Voltage, &s.Supply.LowVoltage, true, 0, "") {
-			l.exceed("supply.voltage", s.Supply.Voltage, "supply.low voltage", s.Supply.LowVoltage, true)
-		}
-	}
-	if supply != nil && supply.has("bulk capacitance") {
-		if l.get(supply, "bulk capacitance", Capacitance, &s.Supply.BulkCapacitance, true, 0, "") && !(s.Supply.SourceResistance > 0) {
-			l.errf("supply.bulk capacitance", "needs a supply.source resistance > 0 (the capacitor would be tied to an ideal source)")
-		}
-	}
-
-	l.loadCoil(coil)
-	l.loadMagnet(magnet)
-	l.loadPlunger(plunger)
-
-	// switch
-	l.get(sw, "on resistance", Resistance, &s.Switch.OnResistance, true, 0, "")
-	l.get(sw, "output capacitance", Capacitance, &s.Switch.OutputCapacitance, false, 0, "0 F")
-	l.get(sw, "breakdown voltage", Voltage, &s.Switch.BreakdownVoltage, true, 0, "")
-	l.get(sw, "body diode drop", Voltage, &s.Switch.BodyDiodeDrop, false, defaultBodyDiodeDrop, "0.7 V")
-	l.get(sw, "rise time", Time, &s.Switch.RiseTime, false, 0, "0 s")
-	l.get(sw, "fall time", Time, &s.Switch.FallTime, false, 0, "0 s")
-	l.exceed("switch.breakdown voltage", s.Switch.BreakdownVoltage, "supply.voltage", s.Supply.Voltage, false)
-
-	l.loadSuppression(supp)
-	l.loadDrive(l.sub(top, "drive", driveKeys))
-	l.loadThermal(l.sub(top, "thermal", thermalKeys))
-	if tol := l.sub(top, "tolerances", toleranceKeys); tol != nil {
-		t := &s.Tolerances
-		frac := func(key string, dst *float64) {
-			l.get(tol, key, Dimensionless, dst, false, 0, "0 %")
-		}
-		frac("supply", &t.Supply)
-		frac("coil resistance", &t.CoilResistance)
-		frac("spring", &t.Spring)
-		frac("load", &t.Load)
-		if l.get(tol, "ambient", Temperature, &t.Ambient, false, 0, "0 K") {
-			if txt := l.text["tolerances.ambient"]; strings.Contains(txt, "C") {
-				l.errf("tolerances.ambient", "%q: a temperature spread is written in K, e.g. \"10 K\"", txt)
-			}
-		}
-		if tol.has("hot winding") {
-			l.get(tol, "hot winding", Temperature, &t.HotWinding, true, 0, "")
-		}
-	}
-	if duty := l.sub(top, "duty", dutyKeys); duty != nil {
-		d := &DutySpec{}
-		s.Duty = d
-		if n, ok := duty.vals["segments"]; ok {
-			if duty.has("on time") || duty.has("period") {
-				l.errf("duty.segments", "give either segments or on time and period, not both")
-			}
-			l.loadSegments(n, d)
-		} else {
-			l.get(duty, "on time", Time, &d.OnTime, true, 0, "")
-			l.get(duty, "period", Time, &d.Period, true, 0, "")
-			l.exceed("duty.period", d.Period, "duty.on time", d.OnTime, false)
-		}
-		l.get(duty, "duration", Time, &d.Duration, false, 0, "until the periodic steady state")
-	}
-
-	// timing
-	l.get(timing, "energize at", Time, &s.Timing.EnergizeAt, false, 0, "0 s")
-	l.get(timing, "de-energize at", Time, &s.Timing.DeenergizeAt, true, 0, "")
-	l.get(timing, "end", Time, &s.Timing.End, true, 0, "")
-	l.exceed("timing.de-energize at", s.Timing.DeenergizeAt, "timing.energize at", s.Timing.EnergizeAt, false)
-	l.exceed("timing.end", s.Timing.End, "timing.de-energize at", s.Timing.DeenergizeAt, false)
-	l.checkFrequency()
-
-	// ratings: every key optional; a missing key stays 0 (not checked)
-	rating := func(key string, dim Dim, dst *float64) {
-		if ratings.has(key) {
-			l.get(ratings, key, dim, dst, true, 0, "")
-		}
-	}
-	rating("switch voltage", Voltage, &s.Limits.SwitchVoltage)
-	rating("avalanche energy", Energy, &s.Limits.AvalancheEnergy)
-	rating("clamp energy", Energy, &s.Limits.ClampEnergy)
-	rating("clamp current", Current, &s.Limits.ClampCurrent)
-	rating("pull-in time", Time, &s.Limits.MaxPullIn)
-	rating("release time", Time, &s.Limits.MaxRelease)
-	rating("drop time", Time, &s.Limits.MaxDrop)
-	rating("hold force margin", Dimensionless, &s.Limits.MinHoldMargin)
-
-	// solver
-	if solver.has("tolerance") {
-		l.get(solver, "tolerance", Dimensionless, &s.Solver.Tolerance, true, 0, "")
-	}
-	if solver.has("max steps") {
-		var n float64
-		if l.get(solver, "max steps", Dimensionless, &n, true, 0, "") {
-			s.Solver.MaxSteps = int(n)
+// refuse records why at each of keys that sec gives (keys that do not
+// apply in the present case).
+func (l *scenarioLoader) refuse(sec *yamlSection, why string, keys ...string) {
+	for _, k := range keys {
+		if sec.has(k) {
+			l.errf(fieldPath(sec.path, k), "%s", why)
 		}
 	}
 }
 
-// checkFrequency checks that a PWM or fixed-frequency chopping frequency
-// gives at least one whole period while it applies: the energized time
-// (de-energize at − energize at), less the peak time of a peak-and-hold
-// drive. A slower one never completes a period, and its hold figures would
-// mean nothing.
-func (l *scenarioLoader) checkFrequency() {
-	d, t := &l.s.Drive, &l.s.Timing
-	if !l.ok["drive.frequency"] || !l.ok["timing.energize at"] || !l.ok["timing.de-energize at"] || !(t.DeenergizeAt > t.EnergizeAt) {
+// refuseOthers records an error at each key of sec, other than its first
+// (the mode or type), that does not apply to mode (see keySpec.only);
+// why(applies) says so, given the keys that do.
+func (l *scenarioLoader) refuseOthers(sec *yamlSection, mode string, why func(applies []string) string) {
+	applies := sec.spec.keysFor(mode)
+	for _, k := range sec.spec.keys[1:] {
+		if sec.has(k.name) && !slices.Contains(k.only, mode) {
+			l.errf(fieldPath(sec.path, k.name), "%s", why(applies))
+		}
+	}
+}
+
+// topSection is the scenario file's top level: its name and sections.
+var topSection = &sectionSpec{path: "", keys: []*keySpec{
+	{name: "name", kind: keyText, need: whenGiven, example: "irrigation valve (demo data)",
+		doc: "free text: printable, at most 200 characters"},
+	{name: "supply", kind: keySection, sub: supplySection},
+	{name: "coil", kind: keySection, sub: coilSection},
+	{name: "magnet", kind: keySection, sub: magnetSection, doc: "exactly one of gap law, table, geometry"},
+	{name: "plunger", kind: keySection, sub: plungerSection},
+	{name: "switch", kind: keySection, sub: switchSection, doc: "low-side switch (MOSFET)"},
+	{name: "suppression", kind: keySection, sub: suppressionSection},
+	{name: "drive", kind: keySection, sub: driveSection, need: whenGiven,
+		doc: "default constant (switch on while energized)"},
+	{name: "timing", kind: keySection, sub: timingSection},
+	{name: "thermal", kind: keySection, sub: thermalSection, need: whenGiven,
+		doc: "the coil's thermal network (the winding temperature becomes a state): the ambient and exactly one of a rating, a surface or a two-node network"},
+	{name: "duty", kind: keySection, sub: dutySection, need: whenGiven, doc: "the operating pattern for `coilkick heat`"},
+	{name: "tolerances", kind: keySection, sub: tolerancesSection, need: whenGiven, doc: "for `coilkick corners`"},
+	{name: "ratings", kind: keySection, sub: ratingsSection, need: whenGiven,
+		doc: "each key optional; a missing one is not checked"},
+	{name: "solver", kind: keySection, sub: solverSection, need: whenGiven},
+}}
+
+// Keys of sections, for messages and tests.
+var (
+	topKeys     = topSection.names()
+	supplyKeys  = supplySection.names()
+	plungerKeys = plungerSection.names()
+	loadKeys    = plungerLoadSection.names()
+)
+
+// load reads the scenario from the root of its YAML tree: the name, then
+// each section in the order of its cross-checks (a section's checks may use
+// the values of those read before it).
+func (l *scenarioLoader) load(root *yaml.Node) {
+	top := l.section(topSection, nodePos(root), root)
+	if top == nil {
 		return
 	}
-	window := t.DeenergizeAt - t.EnergizeAt
-	what := "the drive is energized (timing.de-energize at − timing.energize at)"
-	if d.Mode == DrivePeakHold {
-		if !l.ok["drive.peak time"] || !(window > d.PeakTime) {
-			return // no hold: the peak phase lasts until de-energize
+	l.loadName(top)
+	secs := map[string]*yamlSection{}
+	for _, k := range topSection.keys {
+		if k.kind != keySection {
+			continue
 		}
-		window -= d.PeakTime
-		what = "the hold lasts (timing.de-energize at − timing.energize at − drive.peak time)"
+		if k.need == required && !top.has(k.name) {
+			l.errAt(k.name, top.pos, "missing section (required); its keys: %s", strings.Join(k.sub.names(), ", "))
+		}
+		secs[k.name] = l.sub(top, k.name)
 	}
-	if d.Frequency*window < 1 {
-		l.errf("drive.frequency", "%s gives less than one period in the %.4g s %s; expected a frequency of at least %.4g Hz",
-			l.show("drive.frequency"), window, what, 1/window)
+	for _, step := range []struct {
+		section string
+		load    func(*yamlSection)
+	}{
+		{"supply", l.loadSupply}, {"coil", l.loadCoil}, {"magnet", l.loadMagnet}, {"plunger", l.loadPlunger},
+		{"switch", l.loadSwitch}, {"suppression", l.loadSuppression}, {"drive", l.loadDrive},
+		{"thermal", l.loadThermal}, {"tolerances", l.loadTolerances}, {"duty", l.loadDuty},
+		{"timing", l.loadTiming}, {"ratings", l.loadRatings}, {"solver", l.loadSolver},
+	} {
+		step.load(secs[step.section])
+	}
+}
+
+// loadName reads the scenario's name: printable text (see badName).
+func (l *scenarioLoader) loadName(top *yamlSection) {
+	if text, ok := l.scalar(top, "name", false, "a name (text)"); ok {
+		if why := badName(text); why != "" {
+			l.errf("name", "%s", why)
+		} else {
+			l.s.Name = text
+		}
 	}
 }
 
@@ -874,104 +876,6 @@ func escapeLines(err error) error {
 	return err
 }
 
-func (l *scenarioLoader) loadCoil(coil *yamlSection) {
-	if coil == nil {
-		return
-	}
-	c := &l.s.Coil
-	switch hasR, hasB := coil.has("resistance"), coil.has("build"); {
-	case hasR && hasB:
-		l.errf(l.later("coil.resistance", "coil.build"), "give either coil.resistance (measured) or coil.build (bobbin and wire), not both")
-	case hasB:
-		l.loadCoilBuild(coil)
-		if coil.has("turns") {
-			l.errf("coil.turns", "with coil.build, give the turns (or a fill factor) inside the build")
-		}
-	default:
-		l.get(coil, "resistance", Resistance, &c.Resistance, true, 0, "")
-	}
-	l.get(coil, "reference temperature", Temperature, &c.RefTemperature, false, defaultRefTemperature, "20 degC")
-	if coil.has("temperature") {
-		l.get(coil, "temperature", Temperature, &c.Temperature, true, 0, "")
-	} else if l.ok["coil.reference temperature"] {
-		c.Temperature = c.RefTemperature
-		l.ok["coil.temperature"] = true
-		l.text["coil.temperature"] = "default reference temperature"
-	}
-	l.get(coil, "temperature coefficient", PerKelvin, &c.TempCoeff, false, defaultTempCoeff, "0.00393 /K")
-	l.get(coil, "winding capacitance", Capacitance, &c.WindingCapacitance, false, 0, "none")
-	l.get(coil, "core loss resistance", Resistance, &c.CoreLossResistance, false, 0, "none")
-	if coil.has("turns") {
-		l.get(coil, "turns", Dimensionless, &c.Turns, true, 0, "")
-	}
-	// The winding resistance at the run temperature must stay positive.
-	if (l.ok["coil.resistance"] || c.Build != nil) && l.ok["coil.reference temperature"] && l.ok["coil.temperature"] && l.ok["coil.temperature coefficient"] {
-		if f := 1 + c.TempCoeff*(c.Temperature-c.RefTemperature); !(f > 0) {
-			at := l.later("coil.temperature coefficient", "coil.temperature")
-			l.errf(at, "coil.temperature coefficient %s at coil.temperature %s gives a resistance of zero or less",
-				l.show("coil.temperature coefficient"), l.show("coil.temperature"))
-		}
-	}
-}
-
-func (l *scenarioLoader) loadMagnet(magnet *yamlSection) {
-	if magnet == nil {
-		return
-	}
-	m := &l.s.Magnet
-	l.get(magnet, "eddy resistance", Resistance, &m.EddyResistance, false, 0, "none")
-	var given []string
-	for _, k := range []string{MagnetGapLaw, MagnetTable, MagnetGeom} {
-		if magnet.has(k) {
-			given = append(given, k)
-		}
-	}
-	switch {
-	case len(given) == 0:
-		l.errAt("magnet", magnet.pos, "needs one of the sections %q, %q or %q", MagnetGapLaw, MagnetTable, MagnetGeom)
-		return
-	case len(given) > 1:
-		at := l.later("magnet."+given[0], "magnet."+given[1])
-		l.errf(at, "give only one of %q, %q and %q", MagnetGapLaw, MagnetTable, MagnetGeom)
-		return
-	}
-	hasGap := given[0] == MagnetGapLaw
-	if given[0] == MagnetGeom {
-		l.loadGeometry(magnet)
-		return
-	}
-	if hasGap {
-		m.Kind = MagnetGapLaw
-		g := l.sub(magnet, MagnetGapLaw, gapLawKeys)
-		if g == nil {
-			return
-		}
-		l.get(g, "closed inductance", Inductance, &m.ClosedInductance, true, 0, "")
-		l.get(g, "open inductance", Inductance, &m.OpenInductance, true, 0, "")
-		l.exceed("magnet.gap law.closed inductance", m.ClosedInductance, "magnet.gap law.open inductance", m.OpenInductance, false)
-		if g.has("pole area") {
-			if l.get(g, "pole area", Area, &m.PoleArea, true, 0, "") && !l.ok["coil.turns"] {
-				l.errf("magnet.gap law.pole area", "needs coil.turns, which is not given")
-			}
-		}
-		return
-	}
-	m.Kind = MagnetTable
-	t := l.sub(magnet, MagnetTable, tableKeys)
-	if t == nil {
-		return
-	}
-	if file, ok := l.scalar(t, "file", true, `a file name, e.g. "valve_flux.csv"`); ok {
-		m.TableFile = l.inputFile("magnet.table.file", file, "table")
-	}
-	l.unit(t, "current unit", Current, "A", &m.CurrentScale)
-	l.unit(t, "gap unit", Length, "mm", &m.GapScale)
-	l.unit(t, "flux linkage unit", FluxLinkage, "mWb", &m.FluxScale)
-	m.TableUnits = fmt.Sprintf("current in %s, gap in %s, flux linkage in %s (magnet.table)",
-		strings.TrimSpace(l.text["magnet.table.current unit"]), strings.TrimSpace(l.text["magnet.table.gap unit"]),
-		strings.TrimSpace(l.text["magnet.table.flux linkage unit"]))
-}
-
 // inputFile checks the CSV file named at path (a field such as
 // "magnet.table.file"), resolved against the scenario's folder: it must be
 // a regular file of at most MaxTableBytes. It returns the resolved name, or
@@ -1007,41 +911,6 @@ func (l *scenarioLoader) inputFile(path, file, kind string) string {
 	return ""
 }
 
-// readFluxTable reads the scenario's flux-linkage table file through
-// OpenInput (a regular file of at most MaxTableBytes). Its errors point at
-// magnet.table.file and name the table's file, line and column, and the
-// table's units.
-func readFluxTable(s *Scenario) (*magnet.Table, error) {
-	m := &s.Magnet
-	f, err := OpenInput(m.TableFile, "flux-linkage table", MaxTableBytes)
-	if err != nil {
-		return nil, s.Errorf("magnet.table.file", "%v", err)
-	}
-	defer f.Close()
-	tb, err := magnet.ReadTableCSV(f, m.TableFile, m.CurrentScale, m.GapScale, m.FluxScale)
-	if err != nil {
-		return nil, s.Errorf("magnet.table.file", "%s; the table's units: %s", inputDetail(err), m.TableUnits)
-	}
-	return tb, nil
-}
-
-// readSteelCurve reads the scenario's B–H curve file as readFluxTable
-// reads the table.
-func readSteelCurve(s *Scenario) (*magnet.BHTable, error) {
-	gs := &s.Magnet.Geometry
-	const field = "magnet.geometry.steel curve.file"
-	f, err := OpenInput(gs.SteelCurveFile, "steel curve", MaxTableBytes)
-	if err != nil {
-		return nil, s.Errorf(field, "%v", err)
-	}
-	defer f.Close()
-	bh, err := magnet.ReadBHCSV(f, gs.SteelCurveFile, gs.HScale, gs.BScale)
-	if err != nil {
-		return nil, s.Errorf(field, "%s; the curve's units: %s", inputDetail(err), gs.CurveUnits)
-	}
-	return bh, nil
-}
-
 // inputDetail is the message of a CSV reader's error without the package
 // prefix: "file:line:column: message".
 func inputDetail(err error) string {
@@ -1052,9 +921,15 @@ func inputDetail(err error) string {
 	return trimPackagePrefix(err.Error())
 }
 
-// unit reads a unit alone (such as "mWb") and stores its SI value.
-func (l *scenarioLoader) unit(sec *yamlSection, key string, dim Dim, example string, dst *float64) {
-	want := fmt.Sprintf("a unit of %s, e.g. %q", strings.SplitN(dim.Name(), " ", 2)[1], example)
+// unit reads a unit alone (such as "mWb": a keyUnit of its spec's
+// dimension) and stores its SI value.
+func (l *scenarioLoader) unit(sec *yamlSection, key string, dst *float64) {
+	if sec == nil {
+		return
+	}
+	k := sec.spec.key(key)
+	dim := k.rng.dim
+	want := fmt.Sprintf("a unit of %s, e.g. %q", strings.SplitN(dim.Name(), " ", 2)[1], k.example)
 	text, ok := l.scalar(sec, key, true, want)
 	if !ok {
 		return
@@ -1085,405 +960,4 @@ func (l *scenarioLoader) unit(sec *yamlSection, key string, dim Dim, example str
 	}
 	*dst = v
 	l.ok[path] = true
-}
-
-func (l *scenarioLoader) loadPlunger(pl *yamlSection) {
-	if pl == nil {
-		return
-	}
-	p := &l.s.Plunger
-	l.get(pl, "mass", Mass, &p.Mass, true, 0, "")
-	l.get(pl, "rest gap", Length, &p.RestGap, true, 0, "")
-	l.get(pl, "seated gap", Length, &p.SeatedGap, true, 0, "")
-	l.exceed("plunger.rest gap", p.RestGap, "plunger.seated gap", p.SeatedGap, false)
-	l.get(pl, "spring preload", Force, &p.SpringPreload, true, 0, "")
-	l.get(pl, "spring rate", ForcePerLength, &p.SpringRate, true, 0, "")
-	l.get(pl, "damping", Damping, &p.Damping, false, 0, "0 N*s/m")
-	if pl.has("restitution") {
-		l.get(pl, "restitution", Dimensionless, &p.Restitution, true, 0, "")
-	}
-	l.get(pl, "stick speed", Velocity, &p.StickSpeed, false, defaultStickSpeed, "0.05 m/s")
-
-	ld := l.sub(pl, "load", loadKeys)
-	if ld == nil {
-		return
-	}
-	l.get(ld, "constant force", Force, &p.ConstantLoad, false, 0, "0 N")
-	if !ld.has("pressure") {
-		for _, k := range []string{"orifice diameter", "orifice area", "seal travel"} {
-			if ld.has(k) {
-				l.errf("plunger.load."+k, "applies only when plunger.load.pressure is given")
-			}
-		}
-		return
-	}
-	l.get(ld, "pressure", Pressure, &p.Pressure, true, 0, "")
-	hasD, hasA := ld.has("orifice diameter"), ld.has("orifice area")
-	switch {
-	case hasD && hasA:
-		at := l.later("plunger.load.orifice diameter", "plunger.load.orifice area")
-		l.errf(at, "give either plunger.load.orifice diameter or plunger.load.orifice area, not both")
-	case hasD:
-		var d float64
-		if l.get(ld, "orifice diameter", Length, &d, true, 0, "") {
-			p.OrificeArea = math.Pi * d * d / 4
-		}
-	case hasA:
-		l.get(ld, "orifice area", Area, &p.OrificeArea, true, 0, "")
-	default:
-		l.errf("plunger.load.pressure", "needs plunger.load.orifice diameter or plunger.load.orifice area")
-	}
-	if !ld.has("seal travel") {
-		l.errf("plunger.load.pressure", "needs plunger.load.seal travel, e.g. \"0.3 mm\"")
-		return
-	}
-	if l.get(ld, "seal travel", Length, &p.SealTravel, true, 0, "") &&
-		l.ok["plunger.rest gap"] && l.ok["plunger.seated gap"] && p.RestGap > p.SeatedGap {
-		if stroke := p.RestGap - p.SeatedGap; p.SealTravel > stroke {
-			l.errf("plunger.load.seal travel", "%s must not exceed the stroke plunger.rest gap − plunger.seated gap = %s − %s (lines %d, %d)",
-				l.show("plunger.load.seal travel"), l.show("plunger.rest gap"), l.show("plunger.seated gap"),
-				l.s.pos["plunger.rest gap"].Line, l.s.pos["plunger.seated gap"].Line)
-		}
-	}
-}
-
-func (l *scenarioLoader) loadSuppression(sec *yamlSection) {
-	if sec == nil {
-		return
-	}
-	sp := &l.s.Suppression
-	kind, ok := l.scalar(sec, "type", true, "one of: "+strings.Join(suppressionTypes, ", "))
-	if !ok {
-		return
-	}
-	if !containsKey(suppressionTypes, kind) {
-		hint := ""
-		if h := suggestKey(kind, suppressionTypes); h != "" {
-			hint = fmt.Sprintf(" (did you mean %q?)", h)
-		}
-		l.errf("suppression.type", "unknown suppression type %q%s; expected one of: %s", kind, hint, strings.Join(suppressionTypes, ", "))
-		return
-	}
-	sp.Kind = kind
-	applies := suppressionTypeKeys[kind]
-	for _, k := range suppressionKeys[1:] {
-		if sec.has(k) && !containsKey(applies, k) {
-			list := "only type"
-			if len(applies) > 0 {
-				list = "type, " + strings.Join(applies, ", ")
-			}
-			l.errf("suppression."+k, "does not apply to suppression type %q (its keys: %s)", kind, list)
-		}
-	}
-	switch kind {
-	case SuppressFreewheel:
-		l.get(sec, "forward drop", Voltage, &sp.ForwardDrop, true, 0, "")
-		l.get(sec, "resistance", Resistance, &sp.Resistance, false, 0, "0 ohm")
-	case SuppressDiodeZener:
-		l.get(sec, "forward drop", Voltage, &sp.ForwardDrop, true, 0, "")
-		l.get(sec, "zener voltage", Voltage, &sp.ZenerVoltage, true, 0, "")
-		l.get(sec, "resistance", Resistance, &sp.Resistance, false, 0, "0 ohm")
-	case SuppressTVS:
-		l.get(sec, "clamp voltage", Voltage, &sp.ClampVoltage, true, 0, "")
-		l.get(sec, "resistance", Resistance, &sp.Resistance, false, 0, "0 ohm")
-		l.exceed("suppression.clamp voltage", sp.ClampVoltage, "supply.voltage", l.s.Supply.Voltage, false)
-	case SuppressSwitchClamp:
-		l.get(sec, "clamp voltage", Voltage, &sp.ClampVoltage, true, 0, "")
-		l.get(sec, "resistance", Resistance, &sp.Resistance, false, 0, "0 ohm")
-		l.exceed("suppression.clamp voltage", sp.ClampVoltage, "supply.voltage", l.s.Supply.Voltage, false)
-		l.exceed("switch.breakdown voltage", l.s.Switch.BreakdownVoltage, "suppression.clamp voltage", sp.ClampVoltage, false)
-	case SuppressSnubber:
-		l.getIn(sec, "resistance", Resistance, rangeSnubberResistance, &sp.Resistance, true, 0, "")
-		l.get(sec, "capacitance", Capacitance, &sp.Capacitance, true, 0, "")
-	case SuppressBridge:
-		l.get(sec, "forward drop", Voltage, &sp.ForwardDrop, true, 0, "")
-		l.get(sec, "resistance", Resistance, &sp.Resistance, false, 0, "0 ohm")
-		l.get(sec, "reverse pulse", Time, &sp.ReversePulse, false, 0, "0 s")
-	}
-}
-
-// loadCoilBuild reads coil.build: a winding from bobbin and wire.
-func (l *scenarioLoader) loadCoilBuild(coil *yamlSection) {
-	b := l.sub(coil, "build", coilBuildKeys)
-	if b == nil {
-		return
-	}
-	cb := &CoilBuildSpec{}
-	l.s.Coil.Build = cb
-	l.get(b, "inner diameter", Length, &cb.InnerDiameter, true, 0, "")
-	l.get(b, "outer diameter", Length, &cb.OuterDiameter, true, 0, "")
-	l.get(b, "length", Length, &cb.Length, true, 0, "")
-	l.exceed("coil.build.outer diameter", cb.OuterDiameter, "coil.build.inner diameter", cb.InnerDiameter, false)
-	switch g, d := b.has("wire gauge"), b.has("wire diameter"); {
-	case g && d:
-		l.errf(l.later("coil.build.wire gauge", "coil.build.wire diameter"), "give either a wire gauge (AWG) or a wire diameter, not both")
-	case g:
-		var v float64
-		if l.get(b, "wire gauge", Dimensionless, &v, true, 0, "") {
-			cb.WireGauge = int(v)
-		}
-	case d:
-		l.get(b, "wire diameter", Length, &cb.WireDiameter, true, 0, "")
-	default:
-		l.errAt("coil.build.wire gauge", b.pos, "missing: give a wire gauge (AWG number) or a bare wire diameter")
-	}
-	switch o, gr := b.has("overall diameter"), b.has("insulation grade"); {
-	case o && gr:
-		l.errf(l.later("coil.build.overall diameter", "coil.build.insulation grade"), "give either the insulated overall diameter or the insulation grade, not both")
-	case o:
-		l.get(b, "overall diameter", Length, &cb.OverallDiameter, true, 0, "")
-	case gr:
-		var v float64
-		if l.get(b, "insulation grade", Dimensionless, &v, true, 0, "") {
-			cb.Grade = int(v)
-		}
-	default:
-		l.errAt("coil.build.insulation grade", b.pos, "missing: give the enamel insulation grade (1, 2 or 3) or the insulated overall diameter")
-	}
-	switch t, f := b.has("turns"), b.has("fill factor"); {
-	case t && f:
-		l.errf(l.later("coil.build.turns", "coil.build.fill factor"), "give either the turns or a fill factor, not both")
-	case t:
-		l.get(b, "turns", Dimensionless, &cb.Turns, true, 0, "")
-	case f:
-		l.get(b, "fill factor", Dimensionless, &cb.FillFactor, true, 0, "")
-	default:
-		l.errAt("coil.build.turns", b.pos, "missing: give the turns or a copper fill factor")
-	}
-}
-
-// Defaults of the geometry section.
-const (
-	defaultTableCurrents = 40
-	defaultTableGaps     = 60
-)
-
-// loadGeometry reads magnet.geometry: a plunger magnet from dimensions.
-func (l *scenarioLoader) loadGeometry(magnet *yamlSection) {
-	m := &l.s.Magnet
-	m.Kind = MagnetGeom
-	g := l.sub(magnet, MagnetGeom, geometryKeys)
-	if g == nil {
-		return
-	}
-	gs := &m.Geometry
-	for _, f := range []struct {
-		key string
-		dst *float64
-	}{
-		{"plunger diameter", &gs.PlungerDiameter}, {"plunger length", &gs.PlungerLength},
-		{"pole diameter", &gs.PoleDiameter}, {"pole length", &gs.PoleLength},
-		{"shell outer diameter", &gs.ShellOuterDiameter}, {"shell wall", &gs.ShellWall},
-		{"shell length", &gs.ShellLength}, {"end plate thickness", &gs.EndPlateThickness},
-		{"sliding gap", &gs.SlidingGap}, {"sliding length", &gs.SlidingLength},
-	} {
-		l.get(g, f.key, Length, f.dst, true, 0, "")
-	}
-	if l.s.Coil.Build == nil {
-		l.errAt("magnet.geometry", g.pos, "needs coil.build: the winding space and turns come from the bobbin")
-	}
-	switch a, c := g.has("steel saturation") || g.has("steel permeability"), g.has("steel curve"); {
-	case a && c:
-		l.errf("magnet.geometry.steel curve", "give either the analytic steel law (steel saturation, steel permeability) or a steel curve file, not both")
-	case c:
-		sc := l.sub(g, "steel curve", steelCurveKeys)
-		if sc != nil {
-			if file, ok := l.scalar(sc, "file", true, `a file name, e.g. "steel_bh.csv"`); ok {
-				gs.SteelCurveFile = l.inputFile("magnet.geometry.steel curve.file", file, "steel curve")
-			}
-			l.unit(sc, "field unit", FieldStrength, "A/m", &gs.HScale)
-			l.unit(sc, "flux density unit", FluxDensity, "T", &gs.BScale)
-			gs.CurveUnits = fmt.Sprintf("field strength in %s, flux density in %s (magnet.geometry.steel curve)",
-				strings.TrimSpace(l.text["magnet.geometry.steel curve.field unit"]), strings.TrimSpace(l.text["magnet.geometry.steel curve.flux density unit"]))
-		}
-	default:
-		l.get(g, "steel saturation", FluxDensity, &gs.SteelSaturation, true, 0, "")
-		l.get(g, "steel permeability", Dimensionless, &gs.SteelPermeability, true, 0, "")
-	}
-	for _, f := range []struct {
-		key string
-		dst *int
-		def int
-	}{{"table currents", &gs.TableCurrents, defaultTableCurrents}, {"table gaps", &gs.TableGaps, defaultTableGaps}} {
-		var v float64
-		if l.get(g, f.key, Dimensionless, &v, false, float64(f.def), strconv.Itoa(f.def)) {
-			*f.dst = int(v)
-		}
-	}
-	l.get(g, "max current", Current, &gs.MaxCurrent, false, 0, "3 × supply voltage / coil resistance")
-}
-
-// loadDrive reads the optional drive section (default: constant drive).
-func (l *scenarioLoader) loadDrive(sec *yamlSection) {
-	d := &l.s.Drive
-	d.Mode = DriveConstant
-	if sec == nil {
-		return
-	}
-	mode, ok := l.scalar(sec, "mode", true, "one of: "+strings.Join(driveModes, ", "))
-	if !ok {
-		return
-	}
-	if !containsKey(driveModes, mode) {
-		l.errf("drive.mode", "unknown drive mode %q; expected one of: %s", mode, strings.Join(driveModes, ", "))
-		return
-	}
-	d.Mode = mode
-	applies := driveModeKeys[mode]
-	for _, k := range driveKeys[1:] {
-		if sec.has(k) && !containsKey(applies, k) {
-			l.errf("drive."+k, "does not apply to drive mode %q (its keys: mode, %s)", mode, strings.Join(applies, ", "))
-		}
-	}
-	decay := func() {
-		text, ok := l.scalar(sec, "decay", false, `"slow" or "fast"`)
-		switch {
-		case !ok && !sec.has("decay"):
-			d.Decay = "slow"
-		case text == "slow" || text == "fast":
-			d.Decay = text
-		case ok:
-			l.errf("drive.decay", "%q: expected \"slow\" (through the recirculation path) or \"fast\" (through the suppression part)", text)
-		}
-		if d.Decay == "slow" {
-			l.get(sec, "recirculation drop", Voltage, &d.RecirculationDrop, true, 0, "")
-			l.get(sec, "recirculation resistance", Resistance, &d.RecirculationResistance, false, 0, "0 ohm")
-		} else {
-			for _, k := range []string{"recirculation drop", "recirculation resistance"} {
-				if sec.has(k) {
-					l.errf("drive."+k, "applies to slow decay only")
-				}
-			}
-		}
-	}
-	switch mode {
-	case DrivePWM:
-		l.get(sec, "frequency", Frequency, &d.Frequency, true, 0, "")
-		l.get(sec, "duty", Dimensionless, &d.Duty, true, 0, "")
-		decay()
-	case DrivePeakHold:
-		l.get(sec, "peak current", Current, &d.PeakCurrent, true, 0, "")
-		l.get(sec, "peak time", Time, &d.PeakTime, true, 0, "")
-		l.get(sec, "hold current", Current, &d.HoldCurrent, true, 0, "")
-		l.exceed("drive.peak current", d.PeakCurrent, "drive.hold current", d.HoldCurrent, true)
-		reg, ok := l.scalar(sec, "regulation", true, `"hysteresis" or "fixed frequency"`)
-		switch {
-		case !ok:
-		case reg == "hysteresis":
-			d.Regulation = reg
-			l.get(sec, "band", Current, &d.Band, true, 0, "")
-			if sec.has("frequency") {
-				l.errf("drive.frequency", "applies to fixed-frequency regulation only")
-			}
-			if d.Band >= 2*d.HoldCurrent && d.HoldCurrent > 0 {
-				l.errf("drive.band", "%q must be below twice the hold current", l.text["drive.band"])
-			}
-		case reg == "fixed frequency":
-			d.Regulation = reg
-			l.get(sec, "frequency", Frequency, &d.Frequency, true, 0, "")
-			if sec.has("band") {
-				l.errf("drive.band", "applies to hysteresis regulation only")
-			}
-		default:
-			l.errf("drive.regulation", "%q: expected \"hysteresis\" or \"fixed frequency\"", reg)
-		}
-		decay()
-	case DriveBoostHold:
-		l.get(sec, "boost voltage", Voltage, &d.BoostVoltage, true, 0, "")
-		l.get(sec, "boost time", Time, &d.BoostTime, true, 0, "")
-		l.exceed("drive.boost voltage", d.BoostVoltage, "supply.voltage", l.s.Supply.Voltage, false)
-	}
-}
-
-// loadThermal reads the optional thermal section: one of three ways to give
-// the network (a datasheet rating, a surface, or an explicit two-node
-// network).
-func (l *scenarioLoader) loadThermal(sec *yamlSection) {
-	if sec == nil {
-		return
-	}
-	t := &ThermalSpec{}
-	l.s.Thermal = t
-	l.get(sec, "ambient", Temperature, &t.Ambient, true, 0, "")
-	if text, ok := l.scalar(sec, "insulation class", false, "an IEC 60085 class letter: A, E, B, F, H, N or R"); ok {
-		t.Class = strings.TrimSpace(text)
-	}
-	rating := sec.has("temperature rise") || sec.has("at power") || sec.has("time constant")
-	surface := sec.has("surface area") || sec.has("convection coefficient") || sec.has("heat capacity")
-	network := sec.has("winding heat capacity") || sec.has("winding to housing") || sec.has("housing heat capacity") || sec.has("housing to ambient")
-	n := 0
-	for _, b := range []bool{rating, surface, network} {
-		if b {
-			n++
-		}
-	}
-	if n != 1 {
-		l.errAt("thermal", sec.pos, "give exactly one of: a rating (temperature rise, at power, time constant), a surface (surface area, convection coefficient, heat capacity) or a two-node network (winding heat capacity, winding to housing, housing heat capacity, housing to ambient)")
-		return
-	}
-	switch {
-	case rating:
-		t.Kind = "rating"
-		if l.get(sec, "temperature rise", Temperature, &t.Rise, true, 0, "") {
-			if txt := l.text["thermal.temperature rise"]; strings.Contains(txt, "C") {
-				l.errf("thermal.temperature rise", "%q: a temperature rise is written in K, e.g. \"60 K\"", txt)
-			}
-		}
-		l.get(sec, "at power", Power, &t.AtPower, true, 0, "")
-		l.get(sec, "time constant", Time, &t.TimeConstant, true, 0, "")
-	case surface:
-		t.Kind = "surface"
-		l.get(sec, "surface area", Area, &t.SurfaceArea, true, 0, "")
-		l.get(sec, "convection coefficient", HeatTransfer, &t.Convection, true, 0, "")
-		if l.s.Coil.Build == nil || sec.has("heat capacity") {
-			l.get(sec, "heat capacity", HeatCapacity, &t.HeatCapacity, true, 0, "")
-		}
-	case network:
-		t.Kind = "network"
-		l.get(sec, "winding heat capacity", HeatCapacity, &t.HeatCapacity, true, 0, "")
-		l.get(sec, "winding to housing", ThermalResistance, &t.WindingToHousing, true, 0, "")
-		l.get(sec, "housing heat capacity", HeatCapacity, &t.HousingCapacity, true, 0, "")
-		l.get(sec, "housing to ambient", ThermalResistance, &t.HousingToAmbient, true, 0, "")
-	}
-}
-
-// loadSegments reads duty.segments: a list such as ["2 s on", "3 s off"],
-// repeated as the operating cycle.
-func (l *scenarioLoader) loadSegments(n *yaml.Node, d *DutySpec) {
-	n = derefAlias(n)
-	if n.Kind != yaml.SequenceNode || len(n.Content) == 0 {
-		l.errAt("duty.segments", nodePos(n), `expected a list of segments, e.g. ["2 s on", "3 s off"]`)
-		return
-	}
-	anyOn, anyOff := false, false
-	for k, item := range n.Content {
-		item = derefAlias(item)
-		at := fmt.Sprintf("duty.segments[%d]", k+1)
-		text := strings.TrimSpace(item.Value)
-		fields := strings.Fields(text)
-		if item.Kind != yaml.ScalarNode || len(fields) < 2 {
-			l.errAt(at, nodePos(item), `%q: expected a duration and "on" or "off", e.g. "2 s on"`, text)
-			continue
-		}
-		state := fields[len(fields)-1]
-		if state != "on" && state != "off" {
-			l.errAt(at, nodePos(item), `%q: expected it to end in "on" or "off"`, text)
-			continue
-		}
-		durText := strings.Join(fields[:len(fields)-1], " ")
-		dur, err := ParseQuantity(durText, Time)
-		if err != nil {
-			l.errAt(at, nodePos(item), "%v", err)
-			continue
-		}
-		if r := scenarioRanges[rangeDutySegment]; !r.contains(dur) {
-			l.errAt(at, nodePos(item), "%s", r.problem(durText, dur))
-			continue
-		}
-		d.Segments = append(d.Segments, DutySegment{On: state == "on", Duration: dur})
-		anyOn, anyOff = anyOn || state == "on", anyOff || state == "off"
-	}
-	if len(d.Segments) == len(n.Content) && (!anyOn || !anyOff) {
-		l.errAt("duty.segments", nodePos(n), "the segments need at least one on and one off")
-	}
 }

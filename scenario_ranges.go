@@ -3,17 +3,25 @@ package coilkick
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 )
 
-// Accepted ranges of the scenario's numeric keys. Every value the loader
-// reads is checked against its key's range, so that a typo of a few orders
-// of magnitude (1e21 Hz, 1e-30 g, a 1e-20 mm shell wall) is an error that
-// states the range and its unit, rather than a run that ends in "step size
-// underflow" or prints +Inf. The ranges are wide: they hold every solenoid
-// drive we know of with room to spare, and stop where the models or the
-// numbers stop making sense (common practice, no source). The README's key
-// reference lists the same texts (a test keeps them in step).
+// Key specifications and their accepted ranges. Each section of a scenario
+// file states its keys once, as keySpecs in its own file (scenario_supply.go,
+// scenario_coil.go, ...): name, dimension and range, whether the key must be
+// given, its default, and the words of the key reference. The loader reads
+// every key through its spec; the README's key reference and range table and
+// the key listing in Parse's doc comment are generated from the same specs
+// (TestScenarioKeyReference), so that they cannot go stale.
+//
+// Every value the loader reads is checked against its key's range, so that a
+// typo of a few orders of magnitude (1e21 Hz, 1e-30 g, a 1e-20 mm shell
+// wall) is an error that states the range and its unit, rather than a run
+// that ends in "step size underflow" or prints +Inf. The ranges are wide:
+// they hold every solenoid drive we know of with room to spare, and stop
+// where the models or the numbers stop making sense (common practice, no
+// source).
 
 // valueRange is the accepted range of one scenario value, in SI units.
 type valueRange struct {
@@ -130,127 +138,138 @@ func wholeRange(spec, note string) valueRange {
 	return r
 }
 
-// rangeSnubberResistance is suppression.resistance of an RC snubber (the
-// resistor itself), which differs from the dynamic resistance of the
-// other suppression types.
-const rangeSnubberResistance = "suppression.resistance (rc snubber)"
+// keyKind is what a key's value is.
+type keyKind int
 
-// rangeDutySegment is the range of each item of duty.segments.
-const rangeDutySegment = "duty.segments (each)"
+const (
+	keyQuantity keyKind = iota // a number with its unit (or a plain number), in rng
+	keyText                    // a word or free text: a name, a type, a mode
+	keyFile                    // a file name, relative to the scenario file's folder
+	keyUnit                    // a unit alone, such as "mWb"
+	keyList                    // a list (duty.segments)
+	keySection                 // a section of keys (sub)
+)
 
-// scenarioRanges maps each numeric key (its path) to its range.
-var scenarioRanges = map[string]valueRange{
-	"supply.voltage":           newRange(Voltage, "100 mV to 1 kV", ""),
-	"supply.source resistance": newRange(Resistance, "0 ohm to 1 kohm", ""),
-	"supply.bulk capacitance":  newRange(Capacitance, "1 nF to 1 F", ""),
-	"supply.low voltage":       newRange(Voltage, "100 mV to 1 kV", ""),
+// keyNeed says whether a key must be given.
+type keyNeed int
 
-	"coil.resistance":              newRange(Resistance, "1 mohm to 100 kohm", ""),
-	"coil.reference temperature":   newRange(Temperature, "-100 degC to 400 degC", ""),
-	"coil.temperature":             newRange(Temperature, "-100 degC to 400 degC", ""),
-	"coil.temperature coefficient": newRange(PerKelvin, "0 /K to 0.01 /K", "copper 0.00393 /K"),
-	"coil.winding capacitance":     newRange(Capacitance, "1 pF to 1 µF", ""),
-	"coil.core loss resistance":    newRange(Resistance, "1 ohm to 1 Gohm", ""),
-	"coil.turns":                   wholeRange("1 to 1000000", "turns"),
+const (
+	// required: a missing key is an error (where the key applies).
+	required keyNeed = iota
+	// optional: a missing key takes the default (def, shown as defText).
+	optional
+	// whenGiven: a missing key stays zero ("not given") and is not checked.
+	whenGiven
+	// needWhere: required in the cases its doc names (one of a choice,
+	// with another key); the section's loader decides.
+	needWhere
+)
 
-	"coil.build.inner diameter":        newRange(Length, "100 µm to 1 m", ""),
-	"coil.build.outer diameter":        newRange(Length, "100 µm to 1 m", ""),
-	"coil.build.length":                newRange(Length, "100 µm to 1 m", ""),
-	"coil.build.wire gauge":            wholeRange("0 to 46", "AWG, ASTM B258"),
-	"coil.build.wire diameter":         newRange(Length, "10 µm to 10 mm", ""),
-	"coil.build.overall diameter":      newRange(Length, "10 µm to 10 mm", ""),
-	"coil.build.insulation grade":      wholeRange("1 to 3", "enamel grade"),
-	"coil.build.turns":                 wholeRange("1 to 1000000", "turns"),
-	"coil.build.fill factor":           newRange(Dimensionless, "0.01 to below 0.91", "copper area ÷ winding window; round wire cannot fill more"),
-	"magnet.eddy resistance":           newRange(Resistance, "1 mohm to 1 Gohm", ""),
-	"magnet.gap law.closed inductance": newRange(Inductance, "1 µH to 1 kH", ""),
-	"magnet.gap law.open inductance":   newRange(Inductance, "1 µH to 1 kH", ""),
-	"magnet.gap law.pole area":         newRange(Area, "0.01 mm2 to 0.1 m2", ""),
+// keySpec states one key of a scenario section: the one place for its
+// name, what its value is (dimension and range), whether it must be given
+// and its default, and the words the key reference shows for it.
+type keySpec struct {
+	name    string     // as written in the file: "rest gap"
+	kind    keyKind    // keyQuantity unless said
+	rng     valueRange // of a quantity: dimension and accepted range (rng.whole: a whole number)
+	rangeAs string     // a variant of another key's range: its label, such as "rc snubber" ("": none)
+	need    keyNeed
+	def     float64      // SI value taken when an optional key is missing
+	defText string       // the default as messages and the key reference show it: "0 ohm"
+	only    []string     // the modes or types the key applies to (drive, suppression); nil: always
+	example string       // a value, as the key reference shows it
+	doc     string       // what the key is and its rules beyond the range, for the key reference
+	sub     *sectionSpec // the keys of a section
+}
 
-	"magnet.geometry.plunger diameter":     newRange(Length, "100 µm to 1 m", ""),
-	"magnet.geometry.plunger length":       newRange(Length, "100 µm to 1 m", ""),
-	"magnet.geometry.pole diameter":        newRange(Length, "100 µm to 1 m", ""),
-	"magnet.geometry.pole length":          newRange(Length, "100 µm to 1 m", ""),
-	"magnet.geometry.shell outer diameter": newRange(Length, "100 µm to 1 m", ""),
-	"magnet.geometry.shell wall":           newRange(Length, "100 µm to 1 m", ""),
-	"magnet.geometry.shell length":         newRange(Length, "100 µm to 1 m", ""),
-	"magnet.geometry.end plate thickness":  newRange(Length, "100 µm to 1 m", ""),
-	"magnet.geometry.sliding gap":          newRange(Length, "1 µm to 10 mm", ""),
-	"magnet.geometry.sliding length":       newRange(Length, "100 µm to 1 m", ""),
-	"magnet.geometry.steel saturation":     newRange(FluxDensity, "100 mT to 3 T", "saturation polarization of steel"),
-	"magnet.geometry.steel permeability":   newRange(Dimensionless, "above 1 to 1000000", "initial relative permeability of steel"),
-	"magnet.geometry.table currents":       wholeRange("4 to 400", "grid size"),
-	"magnet.geometry.table gaps":           wholeRange("4 to 400", "grid size"),
-	"magnet.geometry.max current":          newRange(Current, "1 mA to 1 kA", ""),
+// sectionSpec is a section of a scenario file and its keys, in the order
+// messages list them.
+type sectionSpec struct {
+	path     string // "plunger.load"; "" for the top level
+	keys     []*keySpec
+	variants []*keySpec // the same keys in special cases, with their own range (rangeAs)
+}
 
-	"plunger.mass":                   newRange(Mass, "1 mg to 100 kg", ""),
-	"plunger.rest gap":               newRange(Length, "10 µm to 100 mm", ""),
-	"plunger.seated gap":             newRange(Length, "0 mm to 10 mm", ""),
-	"plunger.spring preload":         newRange(Force, "0 N to 10 kN", ""),
-	"plunger.spring rate":            newRange(ForcePerLength, "0 N/mm to 10 kN/mm", ""),
-	"plunger.damping":                newRange(Damping, "0 N*s/m to 100 kN*s/m", ""),
-	"plunger.restitution":            newRange(Dimensionless, "0 to 1", ""),
-	"plunger.stick speed":            newRange(Velocity, "100 µm/s to 10 m/s", ""),
-	"plunger.load.constant force":    newRange(Force, "-10 kN to 10 kN", ""),
-	"plunger.load.pressure":          newRange(Pressure, "0 bar to 1000 bar", ""),
-	"plunger.load.orifice diameter":  newRange(Length, "10 µm to 100 mm", ""),
-	"plunger.load.orifice area":      newRange(Area, "0.0001 mm2 to 10000 mm2", ""),
-	"plunger.load.seal travel":       newRange(Length, "1 µm to 100 mm", ""),
-	"switch.on resistance":           newRange(Resistance, "0 ohm to 1 kohm", ""),
-	"switch.output capacitance":      newRange(Capacitance, "0 or 1 pF to 1 µF", "0: ideal edges"),
-	"switch.breakdown voltage":       newRange(Voltage, "1 V to 10 kV", ""),
-	"switch.body diode drop":         newRange(Voltage, "100 mV to 5 V", ""),
-	"switch.rise time":               newRange(Time, "0 s to 1 ms", ""),
-	"switch.fall time":               newRange(Time, "0 s to 1 ms", ""),
-	"suppression.forward drop":       newRange(Voltage, "50 mV to 10 V", ""),
-	"suppression.zener voltage":      newRange(Voltage, "1 V to 10 kV", ""),
-	"suppression.clamp voltage":      newRange(Voltage, "1 V to 10 kV", ""),
-	"suppression.resistance":         newRange(Resistance, "0 ohm to 1 Mohm", ""),
-	rangeSnubberResistance:           newRange(Resistance, "1 mohm to 1 Mohm", ""),
-	"suppression.capacitance":        newRange(Capacitance, "1 pF to 1 mF", ""),
-	"suppression.reverse pulse":      newRange(Time, "0 s to 10 s", ""),
-	"drive.frequency":                newRange(Frequency, "1 Hz to 10 MHz", ""),
-	"drive.duty":                     newRange(Dimensionless, "above 0 to 1", "fraction of the period"),
-	"drive.peak current":             newRange(Current, "1 µA to 1 kA", ""),
-	"drive.peak time":                newRange(Time, "1 µs to 60 min", ""),
-	"drive.hold current":             newRange(Current, "1 µA to 1 kA", ""),
-	"drive.band":                     newRange(Current, "1 µA to 1 kA", ""),
-	"drive.recirculation drop":       newRange(Voltage, "0 V to 10 V", ""),
-	"drive.recirculation resistance": newRange(Resistance, "0 ohm to 1 kohm", ""),
-	"drive.boost voltage":            newRange(Voltage, "100 mV to 1 kV", ""),
-	"drive.boost time":               newRange(Time, "1 µs to 60 min", ""),
-	"timing.energize at":             newRange(Time, "0 s to 60 min", ""),
-	"timing.de-energize at":          newRange(Time, "1 µs to 60 min", ""),
-	"timing.end":                     newRange(Time, "1 µs to 60 min", ""),
-	"thermal.ambient":                newRange(Temperature, "-100 degC to 400 degC", ""),
-	"thermal.temperature rise":       newRange(Temperature, "100 mK to 500 K", ""),
-	"thermal.at power":               newRange(Power, "1 mW to 100 kW", ""),
-	"thermal.time constant":          newRange(Time, "100 ms to 6000 min", ""),
-	"thermal.surface area":           newRange(Area, "1 mm2 to 10 m2", ""),
-	"thermal.convection coefficient": newRange(HeatTransfer, "0.1 W*m^-2*K^-1 to 10000 W*m^-2*K^-1", ""),
-	"thermal.heat capacity":          newRange(HeatCapacity, "1 mJ/K to 1 MJ/K", ""),
-	"thermal.winding heat capacity":  newRange(HeatCapacity, "1 mJ/K to 1 MJ/K", ""),
-	"thermal.winding to housing":     newRange(ThermalResistance, "1 mK/W to 10000 K/W", ""),
-	"thermal.housing heat capacity":  newRange(HeatCapacity, "1 mJ/K to 1 MJ/K", ""),
-	"thermal.housing to ambient":     newRange(ThermalResistance, "1 mK/W to 10000 K/W", ""),
-	"duty.on time":                   newRange(Time, "1 ms to 1440 min", "at most a day"),
-	"duty.period":                    newRange(Time, "1 ms to 1440 min", "at most a day"),
-	rangeDutySegment:                 newRange(Time, "1 ms to 1440 min", "at most a day"),
-	"duty.duration":                  newRange(Time, "0 s to 525600 min", "at most a year"),
-	"tolerances.supply":              newRange(Dimensionless, "0 % to below 100 %", ""),
-	"tolerances.coil resistance":     newRange(Dimensionless, "0 % to below 100 %", ""),
-	"tolerances.spring":              newRange(Dimensionless, "0 % to below 100 %", ""),
-	"tolerances.load":                newRange(Dimensionless, "0 % to below 100 %", ""),
-	"tolerances.ambient":             newRange(Temperature, "0 K to 100 K", "a spread in K"),
-	"tolerances.hot winding":         newRange(Temperature, "-100 degC to 400 degC", ""),
-	"ratings.switch voltage":         newRange(Voltage, "1 V to 10 kV", ""),
-	"ratings.avalanche energy":       newRange(Energy, "1 µJ to 10 kJ", ""),
-	"ratings.clamp energy":           newRange(Energy, "1 µJ to 10 kJ", ""),
-	"ratings.clamp current":          newRange(Current, "1 µA to 10 kA", ""),
-	"ratings.pull-in time":           newRange(Time, "1 µs to 60 min", ""),
-	"ratings.release time":           newRange(Time, "1 µs to 60 min", ""),
-	"ratings.drop time":              newRange(Time, "1 µs to 60 min", ""),
-	"ratings.hold force margin":      newRange(Dimensionless, "0.01 to 100", ""),
-	"solver.tolerance":               newRange(Dimensionless, "1e-12 to 1e-3", "relative tolerance"),
-	"solver.max steps":               wholeRange("1 to 100000000", "attempted steps"),
+// names lists the keys of the section, in order.
+func (sec *sectionSpec) names() []string {
+	names := make([]string, len(sec.keys))
+	for i, k := range sec.keys {
+		names[i] = k.name
+	}
+	return names
+}
+
+// key returns the spec of the section's key name. It panics on a name the
+// section has not: the loader asks only for its own keys.
+func (sec *sectionSpec) key(name string) *keySpec {
+	for _, k := range sec.keys {
+		if k.name == name {
+			return k
+		}
+	}
+	panic(fmt.Sprintf("coilkick: section %q has no key %q", sec.path, name))
+}
+
+// keysFor lists the keys that apply to a mode or type (see keySpec.only),
+// in the section's order.
+func (sec *sectionSpec) keysFor(mode string) []string {
+	var keys []string
+	for _, k := range sec.keys {
+		if slices.Contains(k.only, mode) {
+			keys = append(keys, k.name)
+		}
+	}
+	return keys
+}
+
+// rangeKey is the key's name in scenarioRanges: its path, followed by the
+// variant's label in parentheses.
+func (k *keySpec) rangeKey(path string) string {
+	p := fieldPath(path, k.name)
+	if k.rangeAs != "" {
+		p += " (" + k.rangeAs + ")"
+	}
+	return p
+}
+
+// walkSpecs calls f for every section, depth first in the order of the
+// keys (the order of the key reference).
+func walkSpecs(sec *sectionSpec, f func(*sectionSpec)) {
+	f(sec)
+	for _, k := range sec.keys {
+		if k.sub != nil {
+			walkSpecs(k.sub, f)
+		}
+	}
+}
+
+// scenarioRanges maps each numeric key (its path, or rangeKey for a
+// variant) to its range, from the specs.
+var scenarioRanges = collectRanges(topSection)
+
+// collectRanges gathers the ranges of the specs below top.
+func collectRanges(top *sectionSpec) map[string]valueRange {
+	ranges := map[string]valueRange{}
+	walkSpecs(top, func(sec *sectionSpec) {
+		for _, k := range slices.Concat(sec.keys, sec.variants) {
+			if k.rng.text != "" {
+				ranges[k.rangeKey(sec.path)] = k.rng
+			}
+		}
+	})
+	return ranges
+}
+
+// unitOf is the "range" of a keyUnit key: its dimension alone.
+func unitOf(dim Dim) valueRange { return valueRange{dim: dim} }
+
+// variant returns the spec of key name in mode: the variant for that mode
+// (rangeAs) when the section has one, else the key's own.
+func (sec *sectionSpec) variant(name, mode string) *keySpec {
+	for _, v := range sec.variants {
+		if v.name == name && v.rangeAs == mode {
+			return v
+		}
+	}
+	return sec.key(name)
 }

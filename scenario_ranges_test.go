@@ -1,100 +1,66 @@
 package coilkick
 
 import (
+	"math"
 	"os"
-	"sort"
 	"strings"
 	"testing"
 )
 
-// nonNumericKeys are the scenario keys that are not numbers (sections,
-// words, file names, units); every other key has a range.
-var nonNumericKeys = map[string]bool{
-	"coil.build": true, "magnet.gap law": true, "magnet.table": true, "magnet.geometry": true,
-	"magnet.table.file": true, "magnet.table.current unit": true, "magnet.table.gap unit": true, "magnet.table.flux linkage unit": true,
-	"magnet.geometry.steel curve": true, "magnet.geometry.steel curve.file": true,
-	"magnet.geometry.steel curve.field unit": true, "magnet.geometry.steel curve.flux density unit": true,
-	"plunger.load": true, "suppression.type": true, "drive.mode": true, "drive.regulation": true, "drive.decay": true,
-	"thermal.insulation class": true, "duty.segments": true,
-}
-
-// loaderSections are the loader's sections and their keys.
-func loaderSections() map[string][]string {
-	return map[string][]string{
-		"supply": supplyKeys, "coil": coilKeys, "coil.build": coilBuildKeys, "magnet": magnetKeys,
-		"magnet.gap law": gapLawKeys, "magnet.table": tableKeys, "magnet.geometry": geometryKeys,
-		"magnet.geometry.steel curve": steelCurveKeys, "plunger": plungerKeys, "plunger.load": loadKeys,
-		"switch": switchKeys, "suppression": suppressionKeys, "drive": driveKeys, "timing": timingKeys,
-		"thermal": thermalKeys, "duty": dutyKeys, "tolerances": toleranceKeys, "ratings": ratingsKeys, "solver": solverKeys,
-	}
-}
-
-// Every numeric key of every section has a range, and every range belongs
-// to a key the loader reads.
+// Every quantity key has a range, and no other key has one; the ranges
+// of scenarioRanges are those of the keys.
 func TestRangesCoverEveryKey(t *testing.T) {
 	t.Parallel()
-	known := map[string]bool{rangeSnubberResistance: true, rangeDutySegment: true}
-	for sec, keys := range loaderSections() {
-		for _, k := range keys {
-			p := sec + "." + k
-			known[p] = true
-			if _, ok := scenarioRanges[p]; !ok && !nonNumericKeys[p] {
-				t.Errorf("%s: no range in scenarioRanges (and not listed as non-numeric)", p)
+	n := 0
+	walkSpecs(topSection, func(sec *sectionSpec) {
+		for _, k := range sec.keys {
+			p := fieldPath(sec.path, k.name)
+			switch {
+			case k.kind == keyQuantity && k.rng.text == "":
+				t.Errorf("%s: a quantity without a range", p)
+			case k.kind == keyUnit && k.rng.dim == (Dim{}):
+				t.Errorf("%s: a unit without a dimension", p)
+			case k.kind != keyQuantity && k.kind != keyList && k.rng.text != "":
+				t.Errorf("%s: a range on a key that is no number", p)
+			case k.kind == keySection && k.sub == nil, k.kind != keySection && k.sub != nil:
+				t.Errorf("%s: kind and sub disagree", p)
+			case k.sub != nil && k.sub.path != p:
+				t.Errorf("%s: its section's path is %q", p, k.sub.path)
+			}
+			if k.rng.text != "" {
+				n++
 			}
 		}
-	}
-	for p := range scenarioRanges {
-		if !known[p] {
-			t.Errorf("scenarioRanges has %q, which is no key of the loader", p)
-		}
-	}
-}
-
-// The README's key reference lists every range as the messages state it.
-func TestRangesInREADME(t *testing.T) {
-	t.Parallel()
-	readme, err := os.ReadFile("README.md")
-	if err != nil {
-		t.Fatal(err)
-	}
-	var keys []string
-	for k := range scenarioRanges {
-		keys = append(keys, k)
-	}
-	sort.Strings(keys)
-	for _, k := range keys {
-		r := scenarioRanges[k]
-		text := r.text
-		if r.whole {
-			text = "whole number " + text
-		}
-		row := "| `" + k + "` | " + text + " | " + r.note + " |"
-		if !strings.Contains(string(readme), row) {
-			t.Errorf("README lacks the row %q", row)
-		}
+		n += len(sec.variants)
+	})
+	if len(scenarioRanges) != n {
+		t.Errorf("scenarioRanges has %d ranges, the keys %d (two keys of one path?)", len(scenarioRanges), n)
 	}
 }
 
-// The defaults of optional keys lie in their ranges.
+// The default of every optional key is what its text says and lies in its
+// range; a default that is no quantity ("none", "until the periodic steady
+// state") is 0, the loader's "not given".
 func TestRangesHoldDefaults(t *testing.T) {
 	t.Parallel()
-	for _, c := range []struct {
-		key string
-		v   float64
-	}{
-		{"coil.reference temperature", defaultRefTemperature},
-		{"coil.temperature coefficient", defaultTempCoeff},
-		{"plunger.stick speed", defaultStickSpeed},
-		{"switch.body diode drop", defaultBodyDiodeDrop},
-		{"magnet.geometry.table currents", defaultTableCurrents},
-		{"magnet.geometry.table gaps", defaultTableGaps},
-		{"switch.output capacitance", 0},
-		{"supply.source resistance", 0},
-	} {
-		if r := scenarioRanges[c.key]; !r.contains(c.v) {
-			t.Errorf("default %s = %g is outside its range %s", c.key, c.v, r.expected())
+	walkSpecs(topSection, func(sec *sectionSpec) {
+		for _, k := range sec.keys {
+			if k.need != optional || k.kind != keyQuantity {
+				continue
+			}
+			p := fieldPath(sec.path, k.name)
+			v, err := ParseQuantity(k.defText, k.rng.dim)
+			switch {
+			case err != nil && k.def != 0:
+				t.Errorf("%s: default %g, written %q (%v)", p, k.def, k.defText, err)
+			case err != nil:
+			case math.Abs(v-k.def) > 1e-12*math.Abs(k.def):
+				t.Errorf("%s: default %g, but its text %q is %g", p, k.def, k.defText, v)
+			case !k.rng.contains(k.def):
+				t.Errorf("%s: default %q is outside its range %s", p, k.defText, k.rng.expected())
+			}
 		}
-	}
+	})
 }
 
 // The range's edges and its messages (common practice, no source: the

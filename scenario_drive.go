@@ -1,0 +1,149 @@
+package coilkick
+
+import (
+	"fmt"
+	"strings"
+)
+
+// driveModes are the values of drive.mode.
+var driveModes = []string{DriveConstant, DrivePWM, DrivePeakHold, DriveBoostHold}
+
+// Modes that chop (their off-times decay slowly or fast).
+var choppedModes = []string{DrivePWM, DrivePeakHold}
+
+// driveSection is how the driver drives the coil while energized
+// (DriveSpec); each key applies to the modes it lists (only).
+var driveSection = &sectionSpec{path: "drive", keys: []*keySpec{
+	{name: "mode", kind: keyText, example: DrivePeakHold, doc: strings.Join(driveModes, " | ")},
+	{name: "frequency", rng: newRange(Frequency, "1 Hz to 10 MHz", ""), need: needWhere, example: "20 kHz",
+		only: choppedModes, doc: "peak and hold: with fixed-frequency regulation only"},
+	{name: "duty", rng: newRange(Dimensionless, "above 0 to 1", "fraction of the period"), example: "0.4",
+		only: []string{DrivePWM}, doc: "fraction of the period"},
+	{name: "peak current", rng: newRange(Current, "1 µA to 1 kA", ""), example: "1.5 A", only: []string{DrivePeakHold},
+		doc: "at least hold current"},
+	{name: "peak time", rng: newRange(Time, "1 µs to 60 min", ""), example: "30 ms", only: []string{DrivePeakHold},
+		doc: "from energize"},
+	{name: "hold current", rng: newRange(Current, "1 µA to 1 kA", ""), example: "0.4 A", only: []string{DrivePeakHold}},
+	{name: "regulation", kind: keyText, example: "fixed frequency", only: []string{DrivePeakHold},
+		doc: "fixed frequency (with frequency) or hysteresis (with band)"},
+	{name: "band", rng: newRange(Current, "1 µA to 1 kA", ""), need: needWhere, example: "40 mA", only: []string{DrivePeakHold},
+		doc: "hysteresis: the full band width, below twice the hold current"},
+	{name: "decay", kind: keyText, need: optional, defText: "slow", example: "slow", only: choppedModes,
+		doc: "slow: off-times recirculate through a diode across the coil; fast: through the suppression part"},
+	{name: "recirculation drop", rng: newRange(Voltage, "0 V to 10 V", ""), need: needWhere, example: "0.7 V",
+		only: choppedModes, doc: "slow decay: the recirculation path's drop"},
+	{name: "recirculation resistance", rng: newRange(Resistance, "0 ohm to 1 kohm", ""), need: optional, defText: "0 ohm",
+		example: "0.1 ohm", only: choppedModes, doc: "slow decay"},
+	{name: "boost voltage", rng: newRange(Voltage, "100 mV to 1 kV", ""), example: "48 V", only: []string{DriveBoostHold},
+		doc: "> supply.voltage"},
+	{name: "boost time", rng: newRange(Time, "1 µs to 60 min", ""), example: "10 ms", only: []string{DriveBoostHold},
+		doc: "the supply is raised that long"},
+}}
+
+// loadDrive reads the optional drive section (default: constant drive).
+func (l *scenarioLoader) loadDrive(sec *yamlSection) {
+	d := &l.s.Drive
+	d.Mode = DriveConstant
+	if sec == nil {
+		return
+	}
+	mode, ok := l.scalar(sec, "mode", true, "one of: "+strings.Join(driveModes, ", "))
+	if !ok {
+		return
+	}
+	if !containsKey(driveModes, mode) {
+		l.errf("drive.mode", "unknown drive mode %q; expected one of: %s", mode, strings.Join(driveModes, ", "))
+		return
+	}
+	d.Mode = mode
+	l.refuseOthers(sec, mode, func(applies []string) string {
+		return fmt.Sprintf("does not apply to drive mode %q (its keys: mode, %s)", mode, strings.Join(applies, ", "))
+	})
+	switch mode {
+	case DrivePWM:
+		l.read(sec, "frequency", &d.Frequency)
+		l.read(sec, "duty", &d.Duty)
+		l.loadDecay(sec)
+	case DrivePeakHold:
+		l.read(sec, "peak current", &d.PeakCurrent)
+		l.read(sec, "peak time", &d.PeakTime)
+		l.read(sec, "hold current", &d.HoldCurrent)
+		l.exceed("drive.peak current", d.PeakCurrent, "drive.hold current", d.HoldCurrent, true)
+		l.loadRegulation(sec)
+		l.loadDecay(sec)
+	case DriveBoostHold:
+		l.read(sec, "boost voltage", &d.BoostVoltage)
+		l.read(sec, "boost time", &d.BoostTime)
+		l.exceed("drive.boost voltage", d.BoostVoltage, "supply.voltage", l.s.Supply.Voltage, false)
+	}
+}
+
+// loadRegulation reads how a peak-and-hold drive regulates the hold
+// current: within a hysteresis band, or chopping at a fixed frequency.
+func (l *scenarioLoader) loadRegulation(sec *yamlSection) {
+	d := &l.s.Drive
+	reg, ok := l.scalar(sec, "regulation", true, `"hysteresis" or "fixed frequency"`)
+	switch {
+	case !ok:
+	case reg == "hysteresis":
+		d.Regulation = reg
+		l.read(sec, "band", &d.Band)
+		l.refuse(sec, "applies to fixed-frequency regulation only", "frequency")
+		if d.Band >= 2*d.HoldCurrent && d.HoldCurrent > 0 {
+			l.errf("drive.band", "%q must be below twice the hold current", l.text["drive.band"])
+		}
+	case reg == "fixed frequency":
+		d.Regulation = reg
+		l.read(sec, "frequency", &d.Frequency)
+		l.refuse(sec, "applies to hysteresis regulation only", "band")
+	default:
+		l.errf("drive.regulation", "%q: expected \"hysteresis\" or \"fixed frequency\"", reg)
+	}
+}
+
+// loadDecay reads how a chopped drive's off-times decay: slowly through
+// the recirculation path (its drop and resistance), or fast through the
+// suppression part.
+func (l *scenarioLoader) loadDecay(sec *yamlSection) {
+	d := &l.s.Drive
+	text, ok := l.scalar(sec, "decay", false, `"slow" or "fast"`)
+	switch {
+	case !ok && !sec.has("decay"):
+		d.Decay = "slow"
+	case text == "slow" || text == "fast":
+		d.Decay = text
+	case ok:
+		l.errf("drive.decay", "%q: expected \"slow\" (through the recirculation path) or \"fast\" (through the suppression part)", text)
+	}
+	if d.Decay == "slow" {
+		l.read(sec, "recirculation drop", &d.RecirculationDrop)
+		l.read(sec, "recirculation resistance", &d.RecirculationResistance)
+	} else {
+		l.refuse(sec, "applies to slow decay only", "recirculation drop", "recirculation resistance")
+	}
+}
+
+// checkFrequency checks that a PWM or fixed-frequency chopping frequency
+// gives at least one whole period while it applies: the energized time
+// (de-energize at − energize at), less the peak time of a peak-and-hold
+// drive. A slower one never completes a period, and its hold figures would
+// mean nothing.
+func (l *scenarioLoader) checkFrequency() {
+	d, t := &l.s.Drive, &l.s.Timing
+	if !l.ok["drive.frequency"] || !l.ok["timing.energize at"] || !l.ok["timing.de-energize at"] || !(t.DeenergizeAt > t.EnergizeAt) {
+		return
+	}
+	window := t.DeenergizeAt - t.EnergizeAt
+	what := "the drive is energized (timing.de-energize at − timing.energize at)"
+	if d.Mode == DrivePeakHold {
+		if !l.ok["drive.peak time"] || !(window > d.PeakTime) {
+			return // no hold: the peak phase lasts until de-energize
+		}
+		window -= d.PeakTime
+		what = "the hold lasts (timing.de-energize at − timing.energize at − drive.peak time)"
+	}
+	if d.Frequency*window < 1 {
+		l.errf("drive.frequency", "%s gives less than one period in the %.4g s %s; expected a frequency of at least %.4g Hz",
+			l.show("drive.frequency"), window, what, 1/window)
+	}
+}
