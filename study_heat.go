@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"math"
 	"sort"
+
+	"coilkick/magnet"
 )
 
 // DutyPattern is an intermittent operation: the coil is energized for
@@ -349,11 +351,8 @@ func (out *cycleRun) addHistory(p HeatPoint) bool {
 // until the steady-state peak is found (HeatResult explains the terms).
 // With keep, it records the history of the study's cycles.
 func (h *heatModel) run(segs []DutySegment, duration float64, keep bool) cycleRun {
-	th, ta := h.md.Thermal, h.md.Ambient
-	T := 0.0
-	for _, sg := range segs {
-		T += sg.Duration
-	}
+	ta := h.md.Ambient
+	T := segmentsTime(segs)
 	study := int(maxHeatCycles) // cycles of the study; with no duration, until the steady state
 	if duration > 0 {
 		// In float first: a duration of 1e18 min overflowed the int.
@@ -364,24 +363,11 @@ func (h *heatModel) run(segs []DutySegment, duration float64, keep bool) cycleRu
 	var startW, startH float64 // state at the start of the study's last cycle
 	powers := make([]float64, len(segs))
 	lastPowers := make([]float64, len(segs))
-	// peaks until the steady state is found (the study may go on past it,
-	// within convergedTol of it).
-	var peaks []float64
-	calm := 0 // cycles running that meet the convergence test
+	var st steadyTest
 	for c := 1; ; c++ {
 		w0, h0 := tw, thh
-		peak := math.Inf(-1)
-		for k, sg := range segs {
-			p := 0.0
-			if sg.On {
-				p = h.energyAt(tw, sg.Duration) / sg.Duration
-			}
-			powers[k] = p
-			tw, thh = th.Advance(tw, thh, p, ta, sg.Duration)
-			if sg.On {
-				peak = math.Max(peak, tw)
-			}
-		}
+		var peak float64
+		tw, thh, peak = h.cycle(segs, tw, thh, powers)
 		if c <= study {
 			out.peak, out.valley, out.cycles = peak, tw, c
 			startW, startH = w0, h0
@@ -390,78 +376,157 @@ func (h *heatModel) run(segs []DutySegment, duration float64, keep bool) cycleRu
 				out.addHistory(HeatPoint{Cycle: c, Time: float64(c) * T, Peak: peak, Valley: tw})
 			}
 		}
-		if !out.found {
-			peaks = append(peaks, peak)
-			if n := len(peaks); n > 2 {
-				d, dPrev := peaks[n-1]-peaks[n-2], peaks[n-2]-peaks[n-3]
-				tail := 0.0 // geometric estimate of the approach still to come
-				ok := math.Abs(d) < convergedTol
-				if d != 0 {
-					q := d / dPrev
-					ok = ok && q > 0 && q < 1
-					tail = d * q / (1 - q)
-					ok = ok && math.Abs(tail) < convergedTol
-				}
-				if ok {
-					calm++
-				} else {
-					calm = 0
-				}
-				if calm >= 3 {
-					out.found, out.steadyPeak = true, peak+tail
-				}
-			}
-		}
-		if h.simErr != nil || tw > RunawayTemperature || peak > RunawayTemperature {
+		st.add(peak)
+		if h.failed(tw, peak) {
 			break
 		}
-		if duration == 0 && out.found {
-			study = c // the study ends in the steady state
-			break
+		if duration == 0 && st.found {
+			break // the study ends in the steady state
 		}
-		if out.found && calm >= 3 && c < study && c > steadyLead {
+		if st.found && c < study && c > steadyLead {
 			// The periodic steady state is reached long before the study
 			// ends: every later cycle repeats this one (within
 			// convergedTol), so the study's last cycle is this one.
 			out.cycles = study
 			if keep {
-				// The history goes on with the repeated cycle.
-				for c2 := (c/out.stride + 1) * out.stride; c2 <= study; c2 += out.stride {
-					if out.addHistory(HeatPoint{Cycle: c2, Time: float64(c2) * T, Peak: peak, Valley: tw}) {
-						c2 = (c2 / out.stride) * out.stride
-					}
-				}
+				out.repeatHistory(c, study, T, peak, tw)
 			}
 			break
 		}
-		if c >= study && (out.found || c >= int(maxHeatCycles)) {
+		if c >= study && (st.found || c >= int(maxHeatCycles)) {
 			break
 		}
 	}
-	if keep && (len(out.hist) == 0 || out.hist[len(out.hist)-1].Cycle != out.cycles) {
+	if keep {
+		out.closeHistory(T)
+	}
+	if st.found {
+		out.found, out.steadyPeak, out.steadyCycle = true, st.peak, st.firstSteady()
+	}
+	out.mean = meanTemperature(h.md.Thermal, ta, segs, lastPowers, startW, startH) / T
+	return out
+}
+
+// cycle steps the network through one cycle of segments from winding and
+// housing temperatures tw, thh (K), with the coil loss of each on segment
+// applied as a constant power (W, written to powers); it returns the
+// temperatures at the cycle's end and the winding's peak (K).
+func (h *heatModel) cycle(segs []DutySegment, tw, thh float64, powers []float64) (float64, float64, float64) {
+	th, ta := h.md.Thermal, h.md.Ambient
+	peak := math.Inf(-1)
+	for k, sg := range segs {
+		p := 0.0
+		if sg.On {
+			p = h.energyAt(tw, sg.Duration) / sg.Duration
+		}
+		powers[k] = p
+		tw, thh = th.Advance(tw, thh, p, ta, sg.Duration)
+		if sg.On {
+			peak = math.Max(peak, tw)
+		}
+	}
+	return tw, thh, peak
+}
+
+// steadyTest watches the cycle peaks for the periodic steady state: three
+// cycles running whose peak moved by less than convergedTol, approaching
+// geometrically with a tail (the approach still to come) below it too.
+type steadyTest struct {
+	peaks []float64 // the peaks until the steady state is found
+	calm  int       // cycles running that meet the test
+	found bool
+	peak  float64 // K, the steady-state peak: the last peak and the tail
+}
+
+// add takes the next cycle's peak (K).
+func (s *steadyTest) add(peak float64) {
+	if s.found {
+		return
+	}
+	s.peaks = append(s.peaks, peak)
+	n := len(s.peaks)
+	if n <= 2 {
+		return
+	}
+	d, dPrev := s.peaks[n-1]-s.peaks[n-2], s.peaks[n-2]-s.peaks[n-3]
+	tail := 0.0 // geometric estimate of the approach still to come
+	ok := math.Abs(d) < convergedTol
+	if d != 0 {
+		q := d / dPrev
+		ok = ok && q > 0 && q < 1
+		tail = d * q / (1 - q)
+		ok = ok && math.Abs(tail) < convergedTol
+	}
+	if ok {
+		s.calm++
+	} else {
+		s.calm = 0
+	}
+	if s.calm >= 3 {
+		s.found, s.peak = true, peak+tail
+	}
+}
+
+// firstSteady returns the first cycle (from 1) from which every peak
+// lies within SteadyTol of the steady-state peak.
+func (s *steadyTest) firstSteady() int {
+	k := len(s.peaks)
+	for k > 0 && math.Abs(s.peaks[k-1]-s.peak) < SteadyTol {
+		k--
+	}
+	return k + 1
+}
+
+// segmentsTime returns the duration of a cycle of segments (s).
+func segmentsTime(segs []DutySegment) float64 {
+	T := 0.0
+	for _, sg := range segs {
+		T += sg.Duration
+	}
+	return T
+}
+
+// failed says the stepping must stop: a simulation failed, or the winding
+// (at tw, peak: K) ran away.
+func (h *heatModel) failed(tw, peak float64) bool {
+	return h.simErr != nil || tw > RunawayTemperature || peak > RunawayTemperature
+}
+
+// closeHistory ends the history with the study's last cycle (T the cycle
+// time, s) unless it is there.
+func (out *cycleRun) closeHistory(T float64) {
+	if len(out.hist) == 0 || out.hist[len(out.hist)-1].Cycle != out.cycles {
 		out.hist = append(out.hist, HeatPoint{Cycle: out.cycles, Time: float64(out.cycles) * T, Peak: out.peak, Valley: out.valley})
 	}
-	if out.found {
-		k := len(peaks)
-		for k > 0 && math.Abs(peaks[k-1]-out.steadyPeak) < SteadyTol {
-			k--
+}
+
+// repeatHistory continues the history from cycle c to the study's last
+// cycle with the repeated steady cycle (peak and valley, K; T the cycle
+// time, s).
+func (out *cycleRun) repeatHistory(c, study int, T, peak, valley float64) {
+	for c2 := (c/out.stride + 1) * out.stride; c2 <= study; c2 += out.stride {
+		if out.addHistory(HeatPoint{Cycle: c2, Time: float64(c2) * T, Peak: peak, Valley: valley}) {
+			c2 = (c2 / out.stride) * out.stride
 		}
-		out.steadyCycle = k + 1
 	}
-	// Time-mean winding temperature over the study's last cycle, by the
-	// exact solution on sub-intervals (the power is piecewise constant).
+}
+
+// meanTemperature returns the time integral of the winding temperature
+// (K·s) over one cycle of segments with the given powers (W) from the
+// winding and housing temperatures tw, thh (K), by the exact solution on
+// 100 sub-intervals per segment (the power is piecewise constant) and the
+// trapezoidal rule.
+func meanTemperature(th *magnet.Thermal, ta float64, segs []DutySegment, powers []float64, tw, thh float64) float64 {
 	const n = 100
-	tw, thh = startW, startH
 	sum := 0.0
 	for k, sg := range segs {
 		for j := 0; j < n; j++ {
-			tw2, th2 := th.Advance(tw, thh, lastPowers[k], ta, sg.Duration/n)
+			tw2, th2 := th.Advance(tw, thh, powers[k], ta, sg.Duration/n)
 			sum += 0.5 * (tw + tw2) * sg.Duration / n
 			tw, thh = tw2, th2
 		}
 	}
-	out.mean = sum / T
-	return out
+	return sum
 }
 
 // heldOn integrates the network from ambient with the coil held on (its
