@@ -115,18 +115,40 @@ func (a *Assessment) NotApplicableCount() int {
 func (md *Model) Assess(res *Result) Assessment {
 	var a Assessment
 	m := &res.Metrics
+	a.Checks = md.checks(m)
+	note := func(fig, level, format string, args ...any) {
+		a.Notes = append(a.Notes, Note{Figure: fig, Level: level, Text: fmt.Sprintf(format, args...)})
+	}
+	md.driveNotes(m, note)
+	if d := m.DropOut; d.Happened {
+		note("stays seated while energized", "warning", "%s", md.dropOutText(d))
+	}
+	if hot := math.Max(md.Temperature, m.FinalWindingTemperature); hot > HotSurfaceCaution {
+		note("", "caution", "the winding runs at %.0f degC: its surface may be hot enough to burn", hot-273.15)
+	}
+	if r := m.EnergyResidualRel(); r > ResidualWarning {
+		note("energy residual", "warning", "the energy balance leaves %.2g of the largest energy that flowed unexplained: tighten the solver tolerance", r)
+	}
+	note("", "info", "these are model estimates from the data in the scenario; confirm on the bench, and follow local electrical codes and licensed practice for wiring, insulation and protection")
+	return a
+}
+
+// checks compares the run's metrics with the ratings and requirements
+// that are set.
+func (md *Model) checks(m *Metrics) []Check {
+	var checks []Check
 	lim := md.Limits
 	maxCheck := func(name, unit string, value, limit float64, happened bool) {
 		if limit <= 0 {
 			return
 		}
-		a.Checks = append(a.Checks, Check{Name: name, Unit: unit, Value: value, Limit: limit,
+		checks = append(checks, Check{Name: name, Unit: unit, Value: value, Limit: limit,
 			Happened: happened, Pass: happened && WithinMax(value, limit)})
 	}
 	na := m.ReleaseNotApplicable()
 	timeCheck := func(name string, iv Interval, limit float64) {
 		if limit > 0 && na != "" {
-			a.Checks = append(a.Checks, Check{Name: name, Unit: "s", Limit: limit, NotApplicable: na})
+			checks = append(checks, Check{Name: name, Unit: "s", Limit: limit, NotApplicable: na})
 			return
 		}
 		maxCheck(name, "s", iv.Seconds, limit, iv.Happened)
@@ -139,22 +161,25 @@ func (md *Model) Assess(res *Result) Assessment {
 	maxCheck("clamp energy", "J", m.ClampEnergy, lim.ClampEnergy, true)
 	maxCheck("peak clamp current", "A", m.PeakClampCurrent, lim.ClampCurrent, true)
 	if lim.MinHoldMargin > 0 {
-		a.Checks = append(a.Checks, Check{Name: "hold force margin", Unit: "", Value: m.Hold.ForceMargin, Limit: lim.MinHoldMargin,
+		checks = append(checks, Check{Name: "hold force margin", Unit: "", Value: m.Hold.ForceMargin, Limit: lim.MinHoldMargin,
 			Happened: m.Hold.Measured, Min: true,
 			Pass: m.Hold.Measured && AtLeast(m.Hold.ForceMargin, lim.MinHoldMargin)})
 	}
 	if m.PullIn.Happened {
 		// A plunger that drops out while energized fails whatever the ratings.
-		a.Checks = append(a.Checks, Check{Name: "stays seated while energized", Happened: true,
+		checks = append(checks, Check{Name: "stays seated while energized", Happened: true,
 			Value: boolFigure(!m.DropOut.Happened), Min: true, Pass: !m.DropOut.Happened})
 	}
+	return checks
+}
 
-	note := func(fig, level, format string, args ...any) {
-		a.Notes = append(a.Notes, Note{Figure: fig, Level: level, Text: fmt.Sprintf(format, args...)})
-	}
+// driveNotes writes the notes on the motion, the turn-off, the
+// suppression and the chopping.
+func (md *Model) driveNotes(m *Metrics, note func(fig, level, format string, args ...any)) {
+	lim := md.Limits
 	if !m.PullIn.Happened {
 		note("pull-in time", "warning", "the plunger did not pull in: the magnetic force never overcame the spring and load before the run ended")
-	} else if na == "" && !m.Release.Happened {
+	} else if m.ReleaseNotApplicable() == "" && !m.Release.Happened {
 		note("release time", "warning", "the plunger did not release before the run ended (residual flux or a weak spring holds it)")
 	}
 	if m.PeakSwitchVoltage > KickCautionVoltage {
@@ -179,32 +204,26 @@ func (md *Model) Assess(res *Result) Assessment {
 	if h := m.Hold; h.Measured && h.Chopped && h.ChoppingFrequency > 0 && !AtLeast(h.ChoppingFrequency, AudibleLimit) {
 		note("chopping frequency", "warning", "the driver chops at %.3g kHz, inside the audible range (below %.0f kHz, common practice, no source): the coil may whine", h.ChoppingFrequency/1e3, AudibleLimit/1e3)
 	}
-	if d := m.DropOut; d.Happened {
-		phase := "while energized, before the hold"
-		if d.InHold {
-			phase = "during the hold"
-		}
-		advice := "raise the hold current or duty"
-		if md.Control.Mode == circuit.Constant {
-			advice = "the coil's pull at the supply voltage is too weak: raise the supply or the ampere-turns, or lower the spring or load"
-		}
-		text := fmt.Sprintf("the plunger drops out %s, %s after energize, at %s: the pull at the seated gap (%.3g N) fell to the spring + load there (%.3g N), so a current below this does not hold it",
-			phase, formatDuration(d.Time), formatCurrent(d.Current), d.Pull, d.Passive)
-		if k := lim.MinHoldMargin; k > 0 {
-			if ih, ok := seatHoldingCurrent(md, k); ok {
-				text += fmt.Sprintf("; the hold force margin %.3g needs %s", k, formatCurrent(ih))
-			}
-		}
-		note("stays seated while energized", "warning", "%s; %s", text, advice)
+}
+
+// dropOutText describes a drop-out while energized and what to change.
+func (md *Model) dropOutText(d DropOut) string {
+	phase := "while energized, before the hold"
+	if d.InHold {
+		phase = "during the hold"
 	}
-	if hot := math.Max(md.Temperature, m.FinalWindingTemperature); hot > HotSurfaceCaution {
-		note("", "caution", "the winding runs at %.0f degC: its surface may be hot enough to burn", hot-273.15)
+	advice := "raise the hold current or duty"
+	if md.Control.Mode == circuit.Constant {
+		advice = "the coil's pull at the supply voltage is too weak: raise the supply or the ampere-turns, or lower the spring or load"
 	}
-	if r := m.EnergyResidualRel(); r > ResidualWarning {
-		note("energy residual", "warning", "the energy balance leaves %.2g of the largest energy that flowed unexplained: tighten the solver tolerance", r)
+	text := fmt.Sprintf("the plunger drops out %s, %s after energize, at %s: the pull at the seated gap (%.3g N) fell to the spring + load there (%.3g N), so a current below this does not hold it",
+		phase, formatDuration(d.Time), formatCurrent(d.Current), d.Pull, d.Passive)
+	if k := md.Limits.MinHoldMargin; k > 0 {
+		if ih, ok := seatHoldingCurrent(md, k); ok {
+			text += fmt.Sprintf("; the hold force margin %.3g needs %s", k, formatCurrent(ih))
+		}
 	}
-	note("", "info", "these are model estimates from the data in the scenario; confirm on the bench, and follow local electrical codes and licensed practice for wiring, insulation and protection")
-	return a
+	return text + "; " + advice
 }
 
 // formatCurrent writes a current in A or mA.
