@@ -2,6 +2,7 @@ package coilkick
 
 import (
 	"bytes"
+	"errors"
 	"fmt"
 	"math"
 	"regexp"
@@ -50,74 +51,27 @@ const MaxSweepPoints = 1000000
 // against the scenario by Sweeper.Check, the values by the loader at each
 // point.
 func ParseVary(spec string) (Vary, error) {
-	bad := func(format string, args ...any) (Vary, error) {
-		return Vary{}, fmt.Errorf("--vary %q: %s; expected %s", spec, fmt.Sprintf(format, args...), VarySyntax)
+	bad := func(err error) (Vary, error) {
+		return Vary{}, fmt.Errorf("--vary %q: %v; expected %s", spec, err, VarySyntax)
 	}
 	key, rng, ok := strings.Cut(spec, "=")
 	if !ok {
-		return bad("no \"=\" between the key and its values")
+		return bad(errors.New("no \"=\" between the key and its values"))
 	}
-	parts := strings.Split(key, ".")
-	for i, p := range parts {
-		if parts[i] = strings.TrimSpace(p); parts[i] == "" {
-			if strings.TrimSpace(key) == "" {
-				return bad("no key before \"=\"")
-			}
-			return bad("key %q has an empty part; a key is a dotted path of scenario keys such as \"supply.voltage\"", strings.TrimSpace(key))
-		}
+	k, err := varyKey(key)
+	if err != nil {
+		return bad(err)
 	}
-	v := Vary{Key: strings.Join(parts, "."), Spec: spec}
-	for _, r := range v.Key {
-		if isControlRune(r) || r == utf8.RuneError {
-			return bad("the key has the control character or invalid byte %U", r)
-		}
-	}
+	v := Vary{Key: k, Spec: spec}
 	if strings.TrimSpace(rng) == "" {
-		return bad("no values after \"=\"")
+		return bad(errors.New("no values after \"=\""))
 	}
 	if strings.Contains(rng, ":") {
 		if strings.Contains(rng, ",") {
-			return bad("%q mixes a range (:) and a list (,)", rng)
+			return bad(fmt.Errorf("%q mixes a range (:) and a list (,)", rng))
 		}
-		r := strings.Split(rng, ":")
-		switch {
-		case len(r) == 2:
-			return bad("the range %q has no STEPS (the number of values)", strings.TrimSpace(rng))
-		case len(r) != 3:
-			return bad("the range %q has %d parts, not the three FROM:TO:STEPS", strings.TrimSpace(rng), len(r))
-		}
-		a, ua, err := splitValue(r[0])
-		if err != nil {
-			return bad("FROM: %v", err)
-		}
-		b, ub, err := splitValue(r[1])
-		if err != nil {
-			return bad("TO: %v", err)
-		}
-		if ub == "" {
-			ub = ua
-		}
-		if ua != ub {
-			return bad("FROM and TO must use the same unit (%q, %q)", ua, ub)
-		}
-		n, err := strconv.Atoi(strings.TrimSpace(r[2]))
-		switch {
-		case err != nil || n < 1 || n > maxSweepSteps:
-			return bad("STEPS %q must be a whole number from 1 to %d", strings.TrimSpace(r[2]), maxSweepSteps)
-		case n == 1 && a != b:
-			return bad("STEPS 1 gives FROM alone; a range from %q to %q needs STEPS of 2 or more", strings.TrimSpace(r[0]), strings.TrimSpace(r[1]))
-		}
-		for k := 0; k < n; k++ {
-			x := a
-			if n > 1 {
-				u := float64(k) / float64(n-1)
-				if d := b - a; !math.IsInf(d, 0) {
-					x = a + d*u
-				} else {
-					x = a*(1-u) + b*u // FROM and TO far apart: b − a overflows
-				}
-			}
-			v.Values = append(v.Values, strings.TrimSpace(strconv.FormatFloat(x, 'g', 10, 64)+" "+ua))
+		if v.Values, err = varyRange(rng); err != nil {
+			return bad(err)
 		}
 		return v, nil
 	}
@@ -127,9 +81,76 @@ func ParseVary(spec string) (Vary, error) {
 		}
 	}
 	if len(v.Values) == 0 {
-		return bad("no values after \"=\"")
+		return bad(errors.New("no values after \"=\""))
 	}
 	return v, nil
+}
+
+// varyKey returns the dotted key of a --vary value, its parts trimmed.
+func varyKey(key string) (string, error) {
+	parts := strings.Split(key, ".")
+	for i, p := range parts {
+		if parts[i] = strings.TrimSpace(p); parts[i] == "" {
+			if strings.TrimSpace(key) == "" {
+				return "", errors.New("no key before \"=\"")
+			}
+			return "", fmt.Errorf("key %q has an empty part; a key is a dotted path of scenario keys such as \"supply.voltage\"", strings.TrimSpace(key))
+		}
+	}
+	k := strings.Join(parts, ".")
+	for _, r := range k {
+		if isControlRune(r) || r == utf8.RuneError {
+			return "", fmt.Errorf("the key has the control character or invalid byte %U", r)
+		}
+	}
+	return k, nil
+}
+
+// varyRange returns the values of a range FROM:TO:STEPS, with FROM's
+// unit.
+func varyRange(rng string) ([]string, error) {
+	r := strings.Split(rng, ":")
+	switch {
+	case len(r) == 2:
+		return nil, fmt.Errorf("the range %q has no STEPS (the number of values)", strings.TrimSpace(rng))
+	case len(r) != 3:
+		return nil, fmt.Errorf("the range %q has %d parts, not the three FROM:TO:STEPS", strings.TrimSpace(rng), len(r))
+	}
+	a, ua, err := splitValue(r[0])
+	if err != nil {
+		return nil, fmt.Errorf("FROM: %v", err)
+	}
+	b, ub, err := splitValue(r[1])
+	if err != nil {
+		return nil, fmt.Errorf("TO: %v", err)
+	}
+	if ub == "" {
+		ub = ua
+	}
+	if ua != ub {
+		return nil, fmt.Errorf("FROM and TO must use the same unit (%q, %q)", ua, ub)
+	}
+	n, err := strconv.Atoi(strings.TrimSpace(r[2]))
+	switch {
+	case err != nil || n < 1 || n > maxSweepSteps:
+		return nil, fmt.Errorf("STEPS %q must be a whole number from 1 to %d", strings.TrimSpace(r[2]), maxSweepSteps)
+	case n == 1 && a != b:
+		return nil, fmt.Errorf("STEPS 1 gives FROM alone; a range from %q to %q needs STEPS of 2 or more", strings.TrimSpace(r[0]), strings.TrimSpace(r[1]))
+	}
+	values := make([]string, 0, n)
+	for k := 0; k < n; k++ {
+		x := a
+		if n > 1 {
+			u := float64(k) / float64(n-1)
+			if d := b - a; !math.IsInf(d, 0) {
+				x = a + d*u
+			} else {
+				x = a*(1-u) + b*u // FROM and TO far apart: b − a overflows
+			}
+		}
+		values = append(values, strings.TrimSpace(strconv.FormatFloat(x, 'g', 10, 64)+" "+ua))
+	}
+	return values, nil
 }
 
 // splitValue splits "20 V" into 20 and "V".
