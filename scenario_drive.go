@@ -57,7 +57,7 @@ func (l *scenarioLoader) loadDrive(sec *yamlSection) {
 	}
 	d.Mode = mode
 	l.refuseOthers(sec, mode, func(applies []string) string {
-		return fmt.Sprintf("does not apply to drive mode %q (its keys: mode, %s)", mode, strings.Join(applies, ", "))
+		return fmt.Sprintf("does not apply to drive mode %q (its keys: %s)", mode, strings.Join(append([]string{"mode"}, applies...), ", "))
 	})
 	switch mode {
 	case DrivePWM:
