@@ -25,8 +25,10 @@
 //   - scenario*.go — scenario loading and units. scenario.go holds the
 //     scenario's types (the file's sections); scenario_load.go reads a file
 //     into them (Load, Parse) and the scenario_<section>.go files read one
-//     section each; scenario_ranges.go states every numeric key's range
-//     and unit; scenario_units.go parses quantities with units
+//     section each; scenario_ranges.go holds every key's specification
+//     (keySpec: name, dimension and unit, range, required or default), the
+//     one table the loader, the README's key reference and the Parse
+//     comment are checked against; scenario_units.go parses quantities with units
 //     (ParseQuantity); scenario_input.go opens input files safely.
 //   - sim_*.go — the coupled system. sim_model.go builds a Model from a
 //     scenario (Build, LoadModel); sim_system.go is the state vector and
@@ -66,7 +68,8 @@
 //     (sim_run.go), system.guardsAt (sim_system.go) and the parts' guards
 //     in package circuit; the event is applied by run.event (sim_run.go).
 //   - Where a YAML key is parsed: in the scenario_<section>.go file of its
-//     section, through the key's specification (name, dimension, range);
+//     section (scenario_drive.go for the drive section), by
+//     scenarioLoader.read with the key's keySpec from scenario_ranges.go;
 //     the units of its value are parsed by ParseQuantity in
 //     scenario_units.go.
 package coilkick
