@@ -146,47 +146,10 @@ func NewBHTable(h, b []float64) (*BHTable, error) {
 // newBHTable returns the table, or the 0-based point index (−1 for none)
 // and a message.
 func newBHTable(h, b []float64) (*BHTable, int, string) {
-	if len(h) != len(b) {
-		return nil, -1, fmt.Sprintf("need one flux density per field strength, got %d H and %d B values", len(h), len(b))
-	}
-	if len(h) < 2 {
-		return nil, -1, fmt.Sprintf("need at least 2 points, (0, 0) and one more, got %d", len(h))
+	if idx, msg := checkBH(h, b); msg != "" {
+		return nil, idx, msg
 	}
 	n := len(h)
-	if n > MaxBHPoints {
-		return nil, -1, fmt.Sprintf("%d points, more than the %d a B–H curve may have", n, MaxBHPoints)
-	}
-	for k := range h {
-		switch {
-		case !isFinite(h[k]):
-			return nil, k, fmt.Sprintf("field strength is not finite: %g A/m", h[k])
-		case !isFinite(b[k]):
-			return nil, k, fmt.Sprintf("flux density is not finite: %g T", b[k])
-		case h[k] > maxBHField:
-			return nil, k, fmt.Sprintf("field strength %g A/m is above %g A/m, beyond any measured steel curve: check the field unit", h[k], maxBHField)
-		case b[k] > maxBHFluxDensity:
-			return nil, k, fmt.Sprintf("flux density %g T is above %g T, beyond any steel: check the flux density unit", b[k], maxBHFluxDensity)
-		case k == 0 && (h[0] != 0 || b[0] != 0):
-			return nil, k, fmt.Sprintf("the curve must start at H = 0 A/m, B = 0 T (no remanence), got (%g A/m, %g T)", h[0], b[0])
-		case k > 0 && !(h[k] > h[k-1]):
-			return nil, k, fmt.Sprintf("field strength must be strictly increasing: %g A/m after %g A/m", h[k], h[k-1])
-		case k > 0 && !(b[k] > b[k-1]):
-			return nil, k, fmt.Sprintf("flux density must be strictly increasing: %g T after %g T", b[k], b[k-1])
-		}
-	}
-	if h[n-1] < minBHFieldTop || b[n-1] < minBHFluxDensityTop {
-		return nil, n - 1, fmt.Sprintf("the curve ends at %g A/m, %g T: a steel curve reaches at least %g A/m and %g T; check the units", h[n-1], b[n-1], minBHFieldTop, minBHFluxDensityTop)
-	}
-	// Points closer than minBHSpacing of the curve's span in H or B give
-	// slopes that overflow between them.
-	for k := 1; k < n; k++ {
-		switch {
-		case h[k]-h[k-1] < minBHSpacing*h[n-1]:
-			return nil, k, fmt.Sprintf("field strength %g A/m is too close to the previous point's %g A/m (less than %g of the curve's span)", h[k], h[k-1], minBHSpacing)
-		case b[k]-b[k-1] < minBHSpacing*b[n-1]:
-			return nil, k, fmt.Sprintf("flux density %g T is too close to the previous point's %g T (less than %g of the curve's span)", b[k], b[k-1], minBHSpacing)
-		}
-	}
 	t := &BHTable{
 		b: append([]float64(nil), b...),
 		h: append([]float64(nil), h...),
@@ -200,6 +163,44 @@ func newBHTable(h, b []float64) (*BHTable, int, string) {
 		p[0], p[1], p[2], p[3] = c0, c1, c2, c3
 	}
 	return t, -1, ""
+}
+
+// checkBH validates a curve's points (see NewBHTable); it returns the
+// 0-based index of the offending point (−1 for none) and a message, or ""
+// for a good curve.
+func checkBH(h, b []float64) (int, string) {
+	if len(h) != len(b) {
+		return -1, fmt.Sprintf("need one flux density per field strength, got %d H and %d B values", len(h), len(b))
+	}
+	if len(h) < 2 {
+		return -1, fmt.Sprintf("need at least 2 points, (0, 0) and one more, got %d", len(h))
+	}
+	n := len(h)
+	if n > MaxBHPoints {
+		return -1, fmt.Sprintf("%d points, more than the %d a B–H curve may have", n, MaxBHPoints)
+	}
+	for k := range h {
+		switch {
+		case !isFinite(h[k]):
+			return k, fmt.Sprintf("field strength is not finite: %g A/m", h[k])
+		case !isFinite(b[k]):
+			return k, fmt.Sprintf("flux density is not finite: %g T", b[k])
+		case h[k] > maxBHField:
+			return k, fmt.Sprintf("field strength %g A/m is above %g A/m, beyond any measured steel curve: check the field unit", h[k], maxBHField)
+		case b[k] > maxBHFluxDensity:
+			return k, fmt.Sprintf("flux density %g T is above %g T, beyond any steel: check the flux density unit", b[k], maxBHFluxDensity)
+		case k == 0 && (h[0] != 0 || b[0] != 0):
+			return k, fmt.Sprintf("the curve must start at H = 0 A/m, B = 0 T (no remanence), got (%g A/m, %g T)", h[0], b[0])
+		case k > 0 && !(h[k] > h[k-1]):
+			return k, fmt.Sprintf("field strength must be strictly increasing: %g A/m after %g A/m", h[k], h[k-1])
+		case k > 0 && !(b[k] > b[k-1]):
+			return k, fmt.Sprintf("flux density must be strictly increasing: %g T after %g T", b[k], b[k-1])
+		}
+	}
+	if h[n-1] < minBHFieldTop || b[n-1] < minBHFluxDensityTop {
+		return n - 1, fmt.Sprintf("the curve ends at %g A/m, %g T: a steel curve reaches at least %g A/m and %g T; check the units", h[n-1], b[n-1], minBHFieldTop, minBHFluxDensityTop)
+	}
+	return checkBHSpacing(h, b)
 }
 
 // Points returns copies of the table's field strengths (A/m) and flux
@@ -250,6 +251,22 @@ func searchNodes(v []float64, x float64) int {
 	return lo
 }
 
+// checkBHSpacing returns the first point closer than minBHSpacing of the
+// curve's span in H or B to the previous one (such points give slopes that
+// overflow between them), as checkBH does.
+func checkBHSpacing(h, b []float64) (int, string) {
+	n := len(h)
+	for k := 1; k < n; k++ {
+		switch {
+		case h[k]-h[k-1] < minBHSpacing*h[n-1]:
+			return k, fmt.Sprintf("field strength %g A/m is too close to the previous point's %g A/m (less than %g of the curve's span)", h[k], h[k-1], minBHSpacing)
+		case b[k]-b[k-1] < minBHSpacing*b[n-1]:
+			return k, fmt.Sprintf("flux density %g T is too close to the previous point's %g T (less than %g of the curve's span)", b[k], b[k-1], minBHSpacing)
+		}
+	}
+	return -1, ""
+}
+
 // ReadBHCSV reads a B–H curve from CSV and builds a BHTable. Lines starting
 // with '#' are comments and a UTF-8 byte-order mark is skipped. Each row
 // holds H then B; a first row whose first cell is not a number is taken as
@@ -259,19 +276,13 @@ func searchNodes(v []float64, x float64) int {
 // *InputError naming the file, line and column: "magnet: name:LINE:COLUMN:
 // ...".
 func ReadBHCSV(r io.Reader, name string, hScale, bScale float64) (*BHTable, error) {
-	for _, sc := range []struct {
-		what string
-		v    float64
-	}{{"H", hScale}, {"B", bScale}} {
-		if !(sc.v > 0) || math.IsInf(sc.v, 0) {
-			return nil, inputErr(name, 0, 0, "%s scale must be positive and finite, got %g", sc.what, sc.v)
-		}
+	if err := checkScales(name, csvScale{"H", hScale}, csvScale{"B", bScale}); err != nil {
+		return nil, err
 	}
 	in := newCSVInput(r, name)
 	var (
 		hs, bs []float64
-		lines  []int
-		cols   [][2]int
+		points []recordPos
 		first  = true
 	)
 	for {
@@ -294,28 +305,25 @@ func ReadBHCSV(r io.Reader, name string, hScale, bScale float64) (*BHTable, erro
 		if len(hs) == MaxBHPoints {
 			return nil, inputErr(name, line, 1, "more than %d points: a B–H curve may have at most %d", MaxBHPoints, MaxBHPoints)
 		}
-		c := [2]int{in.column(0), in.column(1)}
-		h, err := parseCell(rec[0])
+		p := in.pos(line, 2)
+		h, err := in.value(rec, p, 0, hScale, "H (cell 1)")
 		if err != nil {
-			return nil, inputErr(name, line, c[0], "H (cell 1): %v", err)
+			return nil, err
 		}
-		b, err := parseCell(rec[1])
+		b, err := in.value(rec, p, 1, bScale, "B (cell 2)")
 		if err != nil {
-			return nil, inputErr(name, line, c[1], "B (cell 2): %v", err)
+			return nil, err
 		}
-		hs = append(hs, h*hScale)
-		bs = append(bs, b*bScale)
-		lines = append(lines, line)
-		cols = append(cols, c)
+		hs, bs, points = append(hs, h), append(bs, b), append(points, p)
 	}
 	t, idx, msg := newBHTable(hs, bs)
 	if msg != "" {
-		if idx >= 0 && idx < len(lines) {
-			col := cols[idx][0]
+		if idx >= 0 && idx < len(points) {
+			cell := 0 // the H cell, or B for a flux density's error
 			if strings.HasPrefix(msg, "flux density") {
-				col = cols[idx][1]
+				cell = 1
 			}
-			return nil, inputErr(name, lines[idx], col, "%s", msg)
+			return nil, points[idx].errAt(name, cell, msg)
 		}
 		return nil, inputErr(name, 0, 0, "%s", msg)
 	}

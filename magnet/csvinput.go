@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 )
 
 // Size limits of the CSV inputs, so that a hostile or mistaken file is a
@@ -93,4 +94,58 @@ func (in *csvInput) next() (rec []string, line int, err error) {
 func (in *csvInput) column(k int) int {
 	_, col := in.cr.FieldPos(k)
 	return col
+}
+
+// csvScale is a scale of a CSV input: the SI value of one file unit of
+// the quantity what.
+type csvScale struct {
+	what string
+	v    float64
+}
+
+// checkScales returns an *InputError for the first scale that is not
+// positive and finite.
+func checkScales(name string, scales ...csvScale) error {
+	for _, sc := range scales {
+		if !(sc.v > 0) || math.IsInf(sc.v, 0) {
+			return inputErr(name, 0, 0, "%s scale must be positive and finite, got %g", sc.what, sc.v)
+		}
+	}
+	return nil
+}
+
+// recordPos is where a record was read: its line and the column of each
+// cell, so that an error found after reading points at the cell.
+type recordPos struct {
+	line int
+	cols []int
+}
+
+// pos returns the position of the last record read (n cells, at line).
+func (in *csvInput) pos(line, n int) recordPos {
+	p := recordPos{line: line, cols: make([]int, n)}
+	for k := range p.cols {
+		p.cols[k] = in.column(k)
+	}
+	return p
+}
+
+// errAt returns an *InputError in file at cell k of the record (column 0
+// for a cell outside it).
+func (p recordPos) errAt(file string, k int, msg string) *InputError {
+	col := 0
+	if k >= 0 && k < len(p.cols) {
+		col = p.cols[k]
+	}
+	return inputErr(file, p.line, col, "%s", msg)
+}
+
+// value parses cell k of a record read at p (parseCell) and multiplies it
+// by scale; an error names the cell as what: "current (cell 1): ...".
+func (in *csvInput) value(rec []string, p recordPos, k int, scale float64, what string) (float64, error) {
+	v, err := parseCell(rec[k])
+	if err != nil {
+		return 0, p.errAt(in.name, k, what+": "+err.Error())
+	}
+	return v * scale, nil
 }

@@ -167,6 +167,27 @@ func checkGrid(currents, gaps []float64, flux [][]float64) *gridErr {
 	if nX > MaxTableGaps || nI > MaxTableCurrents {
 		return newGridErr(noRow, "%d currents × %d gaps is larger than a table may be (at most %d currents and %d gaps)", nI, nX, MaxTableCurrents, MaxTableGaps)
 	}
+	if ge := checkGaps(gaps); ge != nil {
+		return ge
+	}
+	if len(flux) != nI {
+		return newGridErr(noRow, "flux has %d rows, want one per current (%d)", len(flux), nI)
+	}
+	if ge := checkCurrents(currents, gaps, flux); ge != nil {
+		return ge
+	}
+	for j := range nX {
+		if ge := checkFluxColumn(currents, gaps, flux, j); ge != nil {
+			return ge
+		}
+	}
+	return nil
+}
+
+// checkGaps validates the gaps (m): finite, non-negative, strictly
+// ascending, the last within the table's bounds, neighbours apart.
+func checkGaps(gaps []float64) *gridErr {
+	nX := len(gaps)
 	for j, x := range gaps {
 		if !isFinite(x) {
 			return newGridErr(-1, "gap %d is not finite: %g m", j+1, x).at(j + 1)
@@ -186,9 +207,14 @@ func checkGrid(currents, gaps []float64, flux [][]float64) *gridErr {
 			return newGridErr(-1, "gap %d (%g m) is too close to gap %d (%g m): less than %g of the last gap", j+1, gaps[j], j, gaps[j-1], minTableSpacing).at(j + 1)
 		}
 	}
-	if len(flux) != nI {
-		return newGridErr(noRow, "flux has %d rows, want one per current (%d)", len(flux), nI)
-	}
+	return nil
+}
+
+// checkCurrents validates the currents (A: finite, from 0, strictly
+// ascending, the last within the table's bounds, neighbours apart) and
+// that each flux row has a finite value per gap.
+func checkCurrents(currents, gaps []float64, flux [][]float64) *gridErr {
+	nI, nX := len(currents), len(gaps)
 	for k, c := range currents {
 		if !isFinite(c) {
 			return newGridErr(k, "current is not finite: %g A", c).at(0)
@@ -216,32 +242,37 @@ func checkGrid(currents, gaps []float64, flux [][]float64) *gridErr {
 			return newGridErr(k, "current %g A is too close to the previous one, %g A: less than %g of the last current", currents[k], currents[k-1], minTableSpacing).at(0)
 		}
 	}
-	for j := range nX {
-		big, kBig := 0.0, 0
-		for k := range nI {
-			if a := math.Abs(flux[k][j]); a > big {
-				big, kBig = a, k
-			}
+	return nil
+}
+
+// checkFluxColumn validates the flux linkages (Wb) at gap j: the largest
+// within the table's bounds, zero at zero current, strictly increasing in
+// current by steps of at least minFluxStep of the largest.
+func checkFluxColumn(currents, gaps []float64, flux [][]float64, j int) *gridErr {
+	big, kBig := 0.0, 0
+	for k := range currents {
+		if a := math.Abs(flux[k][j]); a > big {
+			big, kBig = a, k
 		}
-		if big < minTableFlux || big > maxTableFlux {
-			return newGridErr(kBig, "the largest flux linkage at gap %g m, %g Wb, is outside %g Wb to %g Wb: check the flux linkage unit", gaps[j], big, minTableFlux, maxTableFlux).at(j + 1)
+	}
+	if big < minTableFlux || big > maxTableFlux {
+		return newGridErr(kBig, "the largest flux linkage at gap %g m, %g Wb, is outside %g Wb to %g Wb: check the flux linkage unit", gaps[j], big, minTableFlux, maxTableFlux).at(j + 1)
+	}
+	if math.Abs(flux[0][j]) > zeroFluxTol*big {
+		return newGridErr(0, "flux linkage at 0 A must be 0 (no permanent magnet), got %g Wb at gap %g m", flux[0][j], gaps[j]).at(j + 1)
+	}
+	for k := 1; k < len(currents); k++ {
+		prev := flux[k-1][j]
+		if k == 1 {
+			prev = 0
 		}
-		if math.Abs(flux[0][j]) > zeroFluxTol*big {
-			return newGridErr(0, "flux linkage at 0 A must be 0 (no permanent magnet), got %g Wb at gap %g m", flux[0][j], gaps[j]).at(j + 1)
+		if !(flux[k][j] > prev) {
+			return newGridErr(k, "flux linkage must be strictly increasing in current: at gap %g m, %g Wb at %g A after %g Wb at %g A",
+				gaps[j], flux[k][j], currents[k], prev, currents[k-1]).at(j + 1)
 		}
-		for k := 1; k < nI; k++ {
-			prev := flux[k-1][j]
-			if k == 1 {
-				prev = 0
-			}
-			if !(flux[k][j] > prev) {
-				return newGridErr(k, "flux linkage must be strictly increasing in current: at gap %g m, %g Wb at %g A after %g Wb at %g A",
-					gaps[j], flux[k][j], currents[k], prev, currents[k-1]).at(j + 1)
-			}
-			if flux[k][j]-prev < minFluxStep*big {
-				return newGridErr(k, "flux linkage barely increases in current: at gap %g m, %g Wb at %g A after %g Wb at %g A (less than %g of the column's largest)",
-					gaps[j], flux[k][j], currents[k], prev, currents[k-1], minFluxStep).at(j + 1)
-			}
+		if flux[k][j]-prev < minFluxStep*big {
+			return newGridErr(k, "flux linkage barely increases in current: at gap %g m, %g Wb at %g A after %g Wb at %g A (less than %g of the column's largest)",
+				gaps[j], flux[k][j], currents[k], prev, currents[k-1], minFluxStep).at(j + 1)
 		}
 	}
 	return nil
@@ -544,30 +575,11 @@ func (t *Table) Partials(lam, x float64) (diDlam, diDx float64) {
 // and MaxTableGaps gaps are read. Errors are *InputError naming the file,
 // line and column: "magnet: name:LINE:COLUMN: ...".
 func ReadTableCSV(r io.Reader, name string, currentScale, gapScale, fluxScale float64) (*Table, error) {
-	for _, sc := range []struct {
-		what string
-		v    float64
-	}{{"current", currentScale}, {"gap", gapScale}, {"flux", fluxScale}} {
-		if !(sc.v > 0) || math.IsInf(sc.v, 0) {
-			return nil, inputErr(name, 0, 0, "%s scale must be positive and finite, got %g", sc.what, sc.v)
-		}
+	if err := checkScales(name, csvScale{"current", currentScale}, csvScale{"gap", gapScale}, csvScale{"flux", fluxScale}); err != nil {
+		return nil, err
 	}
 	in := newCSVInput(r, name)
-	var (
-		gaps, currents []float64
-		flux           [][]float64
-		headerLine     int
-		headerCols     []int   // column of each header cell
-		rowLines       []int   // line of each current row
-		rowCols        [][]int // column of each cell of each current row
-	)
-	cols := func(n int) []int {
-		c := make([]int, n)
-		for k := range c {
-			c[k] = in.column(k)
-		}
-		return c
-	}
+	g := &tableGrid{}
 	for {
 		rec, line, err := in.next()
 		if err == io.EOF {
@@ -576,72 +588,91 @@ func ReadTableCSV(r io.Reader, name string, currentScale, gapScale, fluxScale fl
 		if err != nil {
 			return nil, err
 		}
-		if gaps == nil {
-			headerLine = line
-			if len(rec) < 3 {
-				return nil, inputErr(name, line, 1, "header needs a label cell and at least 2 gaps, got %d cells", len(rec))
-			}
-			if len(rec)-1 > MaxTableGaps {
-				return nil, inputErr(name, line, in.column(MaxTableGaps+1), "header has %d gaps, more than the %d a table may have", len(rec)-1, MaxTableGaps)
-			}
-			headerCols = cols(len(rec))
-			gaps = make([]float64, len(rec)-1)
-			for j, cell := range rec[1:] {
-				v, err := parseCell(cell)
-				if err != nil {
-					return nil, inputErr(name, line, headerCols[j+1], "gap (cell %d of the header): %v", j+2, err)
-				}
-				gaps[j] = v * gapScale
-			}
-			continue
+		if g.gaps == nil {
+			err = g.readHeader(in, rec, line, gapScale)
+		} else {
+			err = g.readRow(in, rec, line, currentScale, fluxScale)
 		}
-		if len(rec) != len(gaps)+1 {
-			return nil, inputErr(name, line, 1, "row has %d cells, want %d (a current and one flux linkage per gap)", len(rec), len(gaps)+1)
-		}
-		if len(currents) == MaxTableCurrents {
-			return nil, inputErr(name, line, 1, "more than %d current rows: a table may have at most %d", MaxTableCurrents, MaxTableCurrents)
-		}
-		rc := cols(len(rec))
-		v, err := parseCell(rec[0])
 		if err != nil {
-			return nil, inputErr(name, line, rc[0], "current (cell 1): %v", err)
+			return nil, err
 		}
-		row := make([]float64, len(gaps))
-		for j, cell := range rec[1:] {
-			f, err := parseCell(cell)
-			if err != nil {
-				return nil, inputErr(name, line, rc[j+1], "flux linkage (cell %d): %v", j+2, err)
-			}
-			row[j] = f * fluxScale
-		}
-		currents = append(currents, v*currentScale)
-		flux = append(flux, row)
-		rowLines = append(rowLines, line)
-		rowCols = append(rowCols, rc)
 	}
-	if gaps == nil {
+	if g.gaps == nil {
 		return nil, inputErr(name, 0, 0, "no data: want a header row of gaps and at least 2 current rows")
 	}
-	t, ge := newTable(currents, gaps, flux)
+	t, ge := newTable(g.currents, g.gaps, g.flux)
 	if ge != nil {
-		switch {
-		case ge.row == -1:
-			col := 0
-			if ge.cell >= 0 && ge.cell < len(headerCols) {
-				col = headerCols[ge.cell]
-			}
-			return nil, inputErr(name, headerLine, col, "%s", ge.msg)
-		case ge.row >= 0 && ge.row < len(rowLines):
-			col := 0
-			if ge.cell >= 0 && ge.cell < len(rowCols[ge.row]) {
-				col = rowCols[ge.row][ge.cell]
-			}
-			return nil, inputErr(name, rowLines[ge.row], col, "%s", ge.msg)
-		default:
-			return nil, inputErr(name, 0, 0, "%s", ge.msg)
-		}
+		return nil, g.locate(name, ge)
 	}
 	return t, nil
+}
+
+// tableGrid is a flux-linkage table as read (SI), with where each record
+// was read.
+type tableGrid struct {
+	gaps, currents []float64
+	flux           [][]float64
+	header         recordPos
+	rows           []recordPos // of each current row
+}
+
+// readHeader reads the header record (at line): a label cell, then the
+// gaps.
+func (g *tableGrid) readHeader(in *csvInput, rec []string, line int, gapScale float64) error {
+	if len(rec) < 3 {
+		return inputErr(in.name, line, 1, "header needs a label cell and at least 2 gaps, got %d cells", len(rec))
+	}
+	if len(rec)-1 > MaxTableGaps {
+		return inputErr(in.name, line, in.column(MaxTableGaps+1), "header has %d gaps, more than the %d a table may have", len(rec)-1, MaxTableGaps)
+	}
+	g.header = in.pos(line, len(rec))
+	gaps := make([]float64, len(rec)-1)
+	for j := range gaps {
+		v, err := in.value(rec, g.header, j+1, gapScale, fmt.Sprintf("gap (cell %d of the header)", j+2))
+		if err != nil {
+			return err
+		}
+		gaps[j] = v
+	}
+	g.gaps = gaps
+	return nil
+}
+
+// readRow reads a current row (at line): the current, then λ at each gap.
+func (g *tableGrid) readRow(in *csvInput, rec []string, line int, currentScale, fluxScale float64) error {
+	if len(rec) != len(g.gaps)+1 {
+		return inputErr(in.name, line, 1, "row has %d cells, want %d (a current and one flux linkage per gap)", len(rec), len(g.gaps)+1)
+	}
+	if len(g.currents) == MaxTableCurrents {
+		return inputErr(in.name, line, 1, "more than %d current rows: a table may have at most %d", MaxTableCurrents, MaxTableCurrents)
+	}
+	p := in.pos(line, len(rec))
+	current, err := in.value(rec, p, 0, currentScale, "current (cell 1)")
+	if err != nil {
+		return err
+	}
+	row := make([]float64, len(g.gaps))
+	for j := range row {
+		if row[j], err = in.value(rec, p, j+1, fluxScale, fmt.Sprintf("flux linkage (cell %d)", j+2)); err != nil {
+			return err
+		}
+	}
+	g.currents = append(g.currents, current)
+	g.flux = append(g.flux, row)
+	g.rows = append(g.rows, p)
+	return nil
+}
+
+// locate returns a grid error as an *InputError at the line and column of
+// its row and cell.
+func (g *tableGrid) locate(name string, ge *gridErr) *InputError {
+	switch {
+	case ge.row == -1:
+		return g.header.errAt(name, ge.cell, ge.msg)
+	case ge.row >= 0 && ge.row < len(g.rows):
+		return g.rows[ge.row].errAt(name, ge.cell, ge.msg)
+	}
+	return inputErr(name, 0, 0, "%s", ge.msg)
 }
 
 // parseCell parses one numeric cell.
