@@ -9,16 +9,21 @@ import (
 
 func TestAWGDiameterASTMB258(t *testing.T) {
 	t.Parallel()
+	// The diameters are the ASTM B258 defining formula,
+	// d = 0.005 in · 92^((36 − n)/39), evaluated independently (Python,
+	// 0.8118, 0.5106, 0.2546 mm), not the standard's printed table, which
+	// rounds to 0.0001 in (from memory: 0.0320 in = 0.8128 mm for AWG 20,
+	// outside this tolerance).
 	tests := []struct {
 		gauge int
 		want  float64 // mm
 	}{
-		{20, 0.8118}, // source: ASTM B258 table, AWG 20
-		{24, 0.5106}, // source: ASTM B258 table, AWG 24
-		{30, 0.2546}, // source: ASTM B258 table, AWG 30
+		{20, 0.8118}, // source: ASTM B258 defining formula, AWG 20
+		{24, 0.5106}, // source: ASTM B258 defining formula, AWG 24
+		{30, 0.2546}, // source: ASTM B258 defining formula, AWG 30
 		{36, 0.1270}, // source: ASTM B258, AWG 36 is 0.005 in by definition
 	}
-	const tolMM = 0.0005 // the tables' last digit
+	const tolMM = 0.0005 // the values are rounded to 0.0001 mm; common practice, no source
 	for _, tc := range tests {
 		d, err := AWGDiameter(tc.gauge)
 		if err != nil {
@@ -28,7 +33,7 @@ func TestAWGDiameterASTMB258(t *testing.T) {
 			t.Errorf("AWGDiameter(%d) = %.5f mm, want %.4f mm within %g mm", tc.gauge, got, tc.want, tolMM)
 		}
 	}
-	// source: ASTM B258 defining law, 39 gauges are a diameter ratio of 92
+	// source: ASTM B258 defining formula, 39 gauges are a diameter ratio of 92
 	// (0000 = 0.46 in to 36 = 0.005 in); checked between 0 and 39.
 	d0, _ := AWGDiameter(0)
 	d39, _ := AWGDiameter(39)
