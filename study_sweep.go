@@ -138,6 +138,7 @@ func varyRange(rng string) ([]string, error) {
 		return nil, fmt.Errorf("STEPS 1 gives FROM alone; a range from %q to %q needs STEPS of 2 or more", strings.TrimSpace(r[0]), strings.TrimSpace(r[1]))
 	}
 	values := make([]string, 0, n)
+	var buf []byte // a value's text: the number, then the unit (one allocation per value)
 	for k := 0; k < n; k++ {
 		x := a
 		if n > 1 {
@@ -148,7 +149,11 @@ func varyRange(rng string) ([]string, error) {
 				x = a*(1-u) + b*u // FROM and TO far apart: b − a overflows
 			}
 		}
-		values = append(values, strings.TrimSpace(strconv.FormatFloat(x, 'g', 10, 64)+" "+ua))
+		buf = strconv.AppendFloat(buf[:0], x, 'g', 10, 64)
+		if ua != "" { // trimmed by splitValue
+			buf = append(append(buf, ' '), ua...)
+		}
+		values = append(values, string(buf))
 	}
 	return values, nil
 }
