@@ -581,7 +581,9 @@ func (h *heatModel) maxDuty() float64 {
 }
 
 // lowestPullIn finds the lowest supply voltage at which the plunger still
-// pulls in with the winding at temperature t, by bisection.
+// pulls in with the winding at temperature t, by bisection to supplyTol; a
+// supply too low for the drive (below a clamp, say) does not pull in. It
+// returns 0 when the nominal supply does not pull in either.
 func lowestPullIn(md *Model, t float64) (float64, error) {
 	pulls := func(v float64) (bool, error) {
 		r, err := Simulate(md, &Options{NoTrace: true, FixedTemperature: t, SupplyVoltage: v})
@@ -595,23 +597,8 @@ func lowestPullIn(md *Model, t float64) (float64, error) {
 	if err != nil || !ok {
 		return 0, err
 	}
-	lo := 0.0
-	for (hi-lo)/hi > supplyTol {
-		mid := 0.5 * (lo + hi)
-		if mid <= 0 {
-			break
-		}
-		ok, err := pulls(mid)
-		if err != nil {
-			// a supply too low for the drive (below a clamp, say) does not pull in
-			lo = mid
-			continue
-		}
-		if ok {
-			hi = mid
-		} else {
-			lo = mid
-		}
-	}
-	return hi, nil
+	return bisect(0, hi, supplyTol, func(v float64) (bool, error) {
+		ok, err := pulls(v)
+		return err == nil && ok, nil
+	})
 }
