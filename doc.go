@@ -48,8 +48,9 @@
 //     writes the safety notes; assess_magnet.go computes the coil and
 //     magnet figures without simulating (MagnetSummary, ForceCurves).
 //   - study_*.go — design studies on many runs: study_sweep.go (a grid
-//     over scenario keys), study_corners.go (tolerance corners, Monte
-//     Carlo yield, and the solve-for searches), study_clamps.go (the
+//     over scenario keys), study_corners.go (tolerance corners and Monte
+//     Carlo yield), study_solve.go (the solve-for searches by bisection:
+//     lowest supply, hold setting and clamp voltage), study_clamps.go (the
 //     suppression options compared and one recommended), study_heat.go
 //     (the duty-cycle heating study).
 //   - fit*.go — calibration from a measured trace: fit_trace.go reads a
