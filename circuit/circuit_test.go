@@ -442,18 +442,18 @@ func TestSolveSnubberOn(t *testing.T) {
 			d.Solve(On, tt.iL, 0, tt.vS, &pt)
 			// source: Ohm's law across the snubber resistor, which sees the
 			// coil voltage less the snubber capacitor voltage.
-			wantIp := (pt.CoilVoltage - tt.vS) / refRsn
-			if !closeRel(pt.ClampCurrent, wantIp) {
-				t.Errorf("Solve(%v, i=%g) ClampCurrent = %g, want %g", On, tt.iL, pt.ClampCurrent, wantIp)
+			wantIP := (pt.CoilVoltage - tt.vS) / refRsn
+			if !closeRel(pt.ClampCurrent, wantIP) {
+				t.Errorf("Solve(%v, i=%g) ClampCurrent = %g, want %g", On, tt.iL, pt.ClampCurrent, wantIP)
 			}
 			// source: Kirchhoff's voltage law round source, Rs, coil and Ron,
 			// with the snubber current joining the coil current (KCL).
-			wantCoil := refV0 - (tt.rs+tt.ron)*(tt.iL+wantIp)
+			wantCoil := refV0 - (tt.rs+tt.ron)*(tt.iL+wantIP)
 			if !closeRel(pt.CoilVoltage, wantCoil) {
 				t.Errorf("Solve(%v, i=%g) CoilVoltage = %g, want %g", On, tt.iL, pt.CoilVoltage, wantCoil)
 			}
 			// source: capacitor law i = C·dv/dt.
-			if want := wantIp / refCsn; !closeRel(pt.DSnubberCap, want) {
+			if want := wantIP / refCsn; !closeRel(pt.DSnubberCap, want) {
 				t.Errorf("Solve(%v, i=%g) DSnubberCap = %g, want %g", On, tt.iL, pt.DSnubberCap, want)
 			}
 			if tt.rs == 0 && tt.ron == 0 && pt.CoilVoltage != refV0 {
