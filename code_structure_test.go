@@ -26,38 +26,12 @@ const (
 // exceed the limits (a table of data, a state machine read best whole).
 const longMarker = "Long: "
 
-// overLimit lists the functions still over the limits, with their size
-// when the limit was introduced: they may shrink, never grow; an entry
-// within the limits must be removed.
-var overLimit = map[string][2]int{
-	"cmd/coilkick.buildReport":        {184, 47},
-	"cmd/coilkick.checkFlagValues":    {46, 22},
-	"cmd/coilkick.checkOutputs":       {65, 27},
-	"cmd/coilkick.cmdFit":             {129, 37},
-	"cmd/coilkick.cmdMagnet":          {70, 25},
-	"cmd/coilkick.cmdSolve":           {78, 22},
-	"cmd/coilkick.cmdSweep":           {90, 27},
-	"cmd/coilkick/plot.MarkedScatter": {83, 21},
-	"cmd/coilkick/plot.SweepLines":    {83, 23},
-	"cmd/coilkick/plot.drawStacked":   {161, 24},
-	"coilkick.DetectEvents":           {136, 35},
-	"coilkick.Fit":                    {321, 71},
-	"coilkick.Model.Assess":           {94, 33},
-	"coilkick.ParseVary":              {82, 28},
-	"coilkick.ReadTraceCSV":           {190, 53},
-	"coilkick.heatModel.run":          {115, 41},
-	"magnet.ReadTableCSV":             {100, 27},
-	"magnet.checkGrid":                {90, 39},
-	"magnet.newBHTable":               {56, 22},
-}
-
 // TestFunctionSize: no function of the module (outside tests) is longer
 // than maxFuncLines or more complex than maxFuncComplexity unless its doc
 // comment says why (longMarker).
 func TestFunctionSize(t *testing.T) {
 	t.Parallel()
 	fset := token.NewFileSet()
-	seen := map[string]bool{}
 	err := filepath.WalkDir(".", func(path string, d fs.DirEntry, err error) error {
 		if err != nil {
 			return err
@@ -87,20 +61,7 @@ func TestFunctionSize(t *testing.T) {
 			name := pkg + "." + funcName(fd)
 			lines := fset.Position(fd.End()).Line - fset.Position(fd.Pos()).Line + 1
 			cyc := complexity(fd)
-			if lines <= maxFuncLines && cyc <= maxFuncComplexity {
-				if _, ok := overLimit[name]; ok {
-					t.Errorf("%s: %d lines, complexity %d, now within the limits: remove it from overLimit", name, lines, cyc)
-				}
-				continue
-			}
-			if reason := longReason(fd.Doc); reason != "" {
-				continue
-			}
-			if was, ok := overLimit[name]; ok {
-				seen[name] = true
-				if lines > was[0] || cyc > was[1] {
-					t.Errorf("%s grew: %d lines, complexity %d (was %d, %d)", name, lines, cyc, was[0], was[1])
-				}
+			if lines <= maxFuncLines && cyc <= maxFuncComplexity || longReason(fd.Doc) != "" {
 				continue
 			}
 			t.Errorf("%s (%s): %d lines, complexity %d, over %d lines or %d: split it, or say why in its doc comment (%q)",
@@ -110,11 +71,6 @@ func TestFunctionSize(t *testing.T) {
 	})
 	if err != nil {
 		t.Fatal(err)
-	}
-	for name := range overLimit {
-		if !seen[name] {
-			t.Logf("overLimit lists %s, which is gone or within the limits", name)
-		}
 	}
 }
 

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"encoding/json"
 	"fmt"
 	"io"
 	"math"
@@ -57,31 +58,38 @@ func TestFitRoundTripRunCSV(t *testing.T) {
 	if tr.Repeated == 0 || tr.Voltage == nil {
 		t.Errorf("run CSV read with %d repeated rows and voltage %v; it has a row on each side of every event and a coil voltage", tr.Repeated, tr.Voltage != nil)
 	}
-	md, err := coilkick.LoadModel(demo)
+	// The CLI fits the same files: exit 0, the values in its --json, the
+	// floor said in its text, no "± 0", no NaN.
+	out.Reset()
+	errb.Reset()
+	js := filepath.Join(dir, "fit.json")
+	if code := run(&out, &errb, []string{"coilkick", "fit", demo, "--trace", csvPath, "--json", js}); code != exitOK {
+		t.Fatalf("fit: exit %d\n%s", code, errb.String())
+	}
+	data, err := os.ReadFile(js)
 	if err != nil {
 		t.Fatal(err)
 	}
-	fr, err := coilkick.Fit(md, tr, []coilkick.FitParam{coilkick.FitResistance, coilkick.FitClosedInductance, coilkick.FitOpenInductance})
-	if err != nil {
+	var doc fitDoc
+	if err := json.Unmarshal(data, &doc); err != nil {
 		t.Fatal(err)
 	}
-	for _, v := range fr.Values {
-		want := truth[v.Param]
+	if len(doc.Parameters) != len(truth) {
+		t.Fatalf("%d parameters fitted, want %d", len(doc.Parameters), len(truth))
+	}
+	for _, p := range doc.Parameters {
+		want := truth[coilkick.FitParam(p.Name)]
+		if p.Value == nil || p.StdErr == nil {
+			t.Fatalf("%s: value %v ± %v, want both", p.Name, p.Value, p.StdErr)
+		}
+		v, se := *p.Value, *p.StdErr
 		// Within the stated 2σ (the test's own acceptance rule), and the
 		// σ itself small: below 1e-4 of the value, so that the check
 		// cannot pass on an inflated error bar.
-		if !(v.StdErr > 0) || v.StdErr > 1e-4*want || math.Abs(v.Value-want) > 2*v.StdErr {
-			t.Errorf("%s: fitted %.9g ± %.2g, true %g (off by %.2g σ)", v.Param, v.Value, v.StdErr, want, (v.Value-want)/v.StdErr)
+		if !(se > 0) || se > 1e-4*want || math.Abs(v-want) > 2*se {
+			t.Errorf("%s: fitted %.9g ± %.2g, true %g (off by %.2g σ)", p.Name, v, se, want, (v-want)/se)
 		}
-		t.Logf("%s: fitted %.12g ± %.2g, true %g (relative error %.1e, %.3f σ)", v.Param, v.Value, v.StdErr, want, v.Value/want-1, (v.Value-want)/v.StdErr)
-	}
-	t.Logf("RMS %.3g A, residual σ %.3g A (floor %.3g A, used %v), ρ %.3f, shift %.3g ± %.2g s, offset %.3g ± %.2g A",
-		fr.RMS, fr.ResidualSD, fr.NoiseFloor, fr.FloorUsed, fr.Autocorrelation, fr.Shift, fr.ShiftErr, fr.Offset, fr.OffsetErr)
-	// The CLI on the same files: exit 0, the floor said, no "± 0", no NaN.
-	out.Reset()
-	errb.Reset()
-	if code := run(&out, &errb, []string{"coilkick", "fit", demo, "--trace", csvPath}); code != exitOK {
-		t.Fatalf("fit: exit %d\n%s", code, errb.String())
+		t.Logf("%s: fitted %.12g ± %.2g, true %g (relative error %.1e, %.3f σ)", p.Name, v, se, want, v/want-1, (v-want)/se)
 	}
 	text := out.String()
 	for _, bad := range []string{"± 0 ", "± 0\n", "NaN", "Inf"} {
@@ -127,7 +135,8 @@ func TestFitOutputs(t *testing.T) {
 	if code := run(&out, &errb, []string{"coilkick", "fit", scen, "--trace", trace, "-o", fitted, "--csv", csvOut, "--plot", plotOut}); code != exitOK {
 		t.Fatalf("fit: exit %d\n%s", code, errb.String())
 	}
-	for _, want := range []string{"baseline offset", "time alignment", "Uncertainty: Gauss–Newton covariance", "lag-1 autocorrelation"} {
+	for _, want := range []string{"dip minimum (seated)", "resistance", "baseline offset", "time alignment", "Uncertainty: Gauss–Newton covariance",
+		"lag-1 autocorrelation", "Fitted scenario written to " + fitted} {
 		if !strings.Contains(out.String(), want) {
 			t.Errorf("fit output lacks %q:\n%s", want, out.String())
 		}
@@ -195,7 +204,8 @@ func runWithin(t *testing.T, args []string, unblock func()) (code int, stdout, s
 // read (not a regular file, too large, bad cells) ends with exit status 1
 // (an error; 2 is kept for a failing rating), an error naming the file,
 // the line, the column and its unit where one is at fault, and no output
-// file: neither the fitted scenario (-o) nor the overlay CSV or plot.
+// file: neither the fitted scenario (-o) nor the overlay CSV, the JSON or
+// the plot.
 // Before: the wrong units and the singular covariance "fitted" with exit
 // status 0 and wrote the fitted scenario; the FIFO blocked for ever; the
 // BOM was a header error.
@@ -250,7 +260,7 @@ func TestFitHostileTraces(t *testing.T) {
 		t.Run(c.name, func(t *testing.T) {
 			out := t.TempDir()
 			args := []string{"coilkick", "fit", c.scenario, "--trace", c.trace, "-o", filepath.Join(out, "fitted.yaml"),
-				"--csv", filepath.Join(out, "fit.csv"), "--plot", filepath.Join(out, "fit.svg")}
+				"--csv", filepath.Join(out, "fit.csv"), "--json", filepath.Join(out, "fit.json"), "--plot", filepath.Join(out, "fit.svg")}
 			if c.params != "" {
 				args = append(args, "--params", c.params)
 			}
@@ -309,32 +319,46 @@ func TestStdErrText(t *testing.T) {
 
 // TestFitKeepFailed: --keep-failed writes the outputs of a failed fit
 // (to look at the overlay), still with exit status 1, and says the fit
-// failed on standard output too.
+// failed on standard output too; its --json is one document that says
+// failed with the reasons and null for the σ it could not compute.
 func TestFitKeepFailed(t *testing.T) {
 	t.Parallel()
 	out := t.TempDir()
-	fitted := filepath.Join(out, "fitted.yaml")
+	fitted, js := filepath.Join(out, "fitted.yaml"), filepath.Join(out, "fit.json")
 	var stdout, stderr bytes.Buffer
 	code := run(&stdout, &stderr, []string{"coilkick", "fit", "../../scenarios/irrigation-valve.yaml", "--trace", "../../testdata/fit/bad/current-A.csv",
-		"--keep-failed", "-o", fitted, "--csv", filepath.Join(out, "fit.csv")})
+		"--keep-failed", "-o", fitted, "--csv", filepath.Join(out, "fit.csv"), "--json", js})
 	if code != exitError || !strings.Contains(stderr.String(), "--keep-failed") || !strings.Contains(stderr.String(), "the fit failed") {
 		t.Errorf("exit %d, stderr %q; want %d and the failure", code, stderr.String(), exitError)
 	}
 	if !strings.Contains(stdout.String(), "FIT FAILED") || !strings.Contains(stdout.String(), "check the unit of column 2 \"current (A)\"") {
 		t.Errorf("stdout does not say the fit failed and why:\n%s", stdout.String())
 	}
-	if names := fitFiles(t, out); strings.Join(names, " ") != "fit.csv fitted.yaml" {
+	if names := fitFiles(t, out); strings.Join(names, " ") != "fit.csv fit.json fitted.yaml" {
 		t.Errorf("files after --keep-failed: %v", names)
+	}
+	data, err := os.ReadFile(js)
+	if err != nil {
+		t.Fatal(err)
+	}
+	doc, _ := machineDoc(t, data, "fit")
+	if doc["failed"] != true || len(doc["failure"].([]any)) == 0 {
+		t.Errorf("failed %v, failure %v; want true and the reasons", doc["failed"], doc["failure"])
+	}
+	for _, p := range doc["parameters"].([]any) {
+		if se := p.(map[string]any)["std_error"]; se != nil {
+			t.Errorf("parameter %v: std_error %v, want null (the uncertainties cannot be computed)", p.(map[string]any)["name"], se)
+		}
 	}
 }
 
 // TestFitBOMTrace: a trace with a UTF-8 byte-order mark fits as the same
 // trace without it (before: "column 1 "\ufefftime (ms)": expected a name
-// and a unit").
+// and a unit"); one parameter is enough to read it.
 func TestFitBOMTrace(t *testing.T) {
 	t.Parallel()
 	var stdout, stderr bytes.Buffer
-	code := run(&stdout, &stderr, []string{"coilkick", "fit", "../../scenarios/irrigation-valve.yaml", "--trace", "../../testdata/fit/bom-scope.csv"})
+	code := run(&stdout, &stderr, []string{"coilkick", "fit", "../../scenarios/irrigation-valve.yaml", "--trace", "../../testdata/fit/bom-scope.csv", "--params", "resistance"})
 	if code != exitOK || !strings.Contains(stdout.String(), "resistance") || strings.Contains(stdout.String(), "FAILED") {
 		t.Errorf("exit %d\n%s%s", code, stdout.String(), stderr.String())
 	}

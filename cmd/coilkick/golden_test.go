@@ -16,8 +16,8 @@ var update = flag.Bool("update", false, "rewrite the golden files in testdata/go
 var solverLine = regexp.MustCompile(`(?m)^Solver: .*$`)
 
 // TestGoldenSummaries compares the text output of a few commands with
-// committed golden files; on a mismatch it writes NAME.got beside the
-// golden file. Regenerate with: go test ./cmd/coilkick -run Golden -update
+// committed golden files (the command lines run once per test binary,
+// runShared); on a mismatch it writes NAME.got beside the golden file. Regenerate with: go test ./cmd/coilkick -run Golden -update
 func TestGoldenSummaries(t *testing.T) {
 	cases := []struct {
 		name string
@@ -30,12 +30,11 @@ func TestGoldenSummaries(t *testing.T) {
 		{"bad-unit-check", []string{"check", "../../testdata/bad/wrong_unit.yaml"}, exitError},
 	}
 	for _, c := range cases {
-		var out, errb bytes.Buffer
-		code := run(&out, &errb, append([]string{"coilkick"}, c.args...))
-		if code != c.code {
-			t.Errorf("%s: exit %d, want %d; stderr %s", c.name, code, c.code, errb.String())
+		r := runShared(c.args...)
+		if r.code != c.code {
+			t.Errorf("%s: exit %d, want %d; stderr %s", c.name, r.code, c.code, r.stderr)
 		}
-		got := solverLine.ReplaceAll(append(out.Bytes(), errb.Bytes()...), []byte("Solver: (masked)"))
+		got := solverLine.ReplaceAll([]byte(r.stdout+r.stderr), []byte("Solver: (masked)"))
 		path := filepath.Join("testdata", "golden", c.name+".txt")
 		if *update {
 			if err := os.WriteFile(path, got, 0o644); err != nil {

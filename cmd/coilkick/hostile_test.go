@@ -30,7 +30,8 @@ import (
 // signal handling and exit status): with COILKICK_TEST_MAIN=1 the test
 // binary is coilkick, its arguments the command line. COILKICK_TEST_FSIZE
 // limits the size of any file the process writes (RLIMIT_FSIZE), as a full
-// disk or a quota does.
+// disk or a quota does. Otherwise it makes sharedDir for the tests'
+// shared outputs (fixtures_test.go).
 func TestMain(m *testing.M) {
 	if os.Getenv("COILKICK_TEST_MAIN") == "1" {
 		if n, err := strconv.ParseUint(os.Getenv("COILKICK_TEST_FSIZE"), 10, 64); err == nil {
@@ -44,7 +45,15 @@ func TestMain(m *testing.M) {
 		main()
 		return
 	}
-	os.Exit(m.Run())
+	dir, err := os.MkdirTemp("", "coilkick-test-")
+	if err != nil {
+		fmt.Fprintln(os.Stderr, err)
+		os.Exit(1)
+	}
+	sharedDir = dir
+	code := m.Run()
+	os.RemoveAll(dir)
+	os.Exit(code)
 }
 
 // hostileDir makes a folder with the inputs the cases use, all with an old
@@ -451,7 +460,8 @@ func TestProcessStandardOutput(t *testing.T) {
 // command exits 1 naming the file and the cause, the old file is intact,
 // no new or temporary file is left. Two outputs of one command are
 // written together: when the larger one fails, the smaller one, which
-// fitted, is not replaced either.
+// fitted, is not replaced either. (The fits fit one parameter: the
+// outputs are the point, not the fit.)
 func TestFullDisk(t *testing.T) {
 	t.Parallel()
 	const (
@@ -472,9 +482,9 @@ func TestFullDisk(t *testing.T) {
 		{"run PNG", small, []string{"run", valve, "--plot", "$O"}, "old.png"},
 		{"run SVG", small, []string{"run", valve, "--plot", "$O"}, "new.svg"},
 		{"report HTML", small, []string{"report", valve, "-o", "$O"}, "old.html"},
-		{"fitted scenario", small, []string{"fit", valve, "--trace", trace, "-o", "$O"}, "old.yaml"},
-		{"fit CSV", small, []string{"fit", valve, "--trace", trace, "--csv", "$O"}, "old.csv"},
-		{"fit plot", small, []string{"fit", valve, "--trace", trace, "--plot", "$O"}, "new.png"},
+		{"fitted scenario", small, []string{"fit", valve, "--trace", trace, "--params", "resistance", "-o", "$O"}, "old.yaml"},
+		{"fit CSV", small, []string{"fit", valve, "--trace", trace, "--params", "resistance", "--csv", "$O"}, "old.csv"},
+		{"fit plot", small, []string{"fit", valve, "--trace", trace, "--params", "resistance", "--plot", "$O"}, "new.svg"},
 		{"magnet curves", small, []string{"magnet", valve, "--curves", "$O"}, "old.csv"},
 		{"magnet plot", small, []string{"magnet", valve, "--plot", "$O"}, "new.svg"},
 		{"heat CSV", small, []string{"heat", duty, "--csv", "$O"}, "old.csv"},

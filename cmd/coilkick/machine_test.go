@@ -5,7 +5,6 @@ import (
 	"encoding/csv"
 	"encoding/json"
 	"math"
-	"path/filepath"
 	"strconv"
 	"strings"
 	"testing"
@@ -13,8 +12,10 @@ import (
 
 // machineCommands is one invocation of every command that writes
 // machine-readable output, with the exit status it must give (the
-// door-strike corners fail a rating on purpose: exit 2 still writes).
-func machineCommands(dir string) []struct {
+// door-strike corners fail a rating on purpose: exit 2 still writes). The
+// study commands are those of studyCases, so that their --json - and
+// --csv - run once (runShared).
+func machineCommands() []struct {
 	name string
 	args []string
 	code int
@@ -28,10 +29,10 @@ func machineCommands(dir string) []struct {
 		{"magnet", []string{"magnet", "../../scenarios/dosing-valve-geometry.yaml"}, exitOK},
 		{"heat", []string{"heat", "../../scenarios/door-strike-duty.yaml"}, exitOK},
 		{"check", []string{"check", "../../scenarios/process-air-valve.yaml"}, exitOK},
-		{"fit", []string{"fit", "../../scenarios/irrigation-valve.yaml", "--trace", "../../testdata/fit/irrigation-scope.csv", "-o", filepath.Join(dir, "fitted.yaml")}, exitOK},
-		{"sweep", []string{"sweep", "../../scenarios/irrigation-valve.yaml", "--vary", "supply.voltage=22 V:26 V:3"}, exitOK},
+		{"fit", []string{"fit", "../../scenarios/irrigation-valve.yaml", "--trace", "../../testdata/fit/irrigation-scope.csv"}, exitOK},
+		{"sweep", []string{"sweep", sweepLowVoltageDemo, "--vary", "supply.voltage=21 V:25 V:3", "--vary", "plunger.mass=5 g,9 g"}, exitOK},
 		{"corners", []string{"corners", "../../scenarios/door-strike-duty.yaml", "--samples", "4"}, exitFailing},
-		{"clamps", []string{"clamps", "../../scenarios/irrigation-valve.yaml"}, exitOK},
+		{"clamps", []string{"clamps", "../../scenarios/process-air-valve.yaml"}, exitOK},
 		{"solve", []string{"solve", "../../scenarios/process-air-valve.yaml"}, exitOK},
 	}
 }
@@ -42,20 +43,14 @@ func machineCommands(dir string) []struct {
 // readable output"; JSON per RFC 8259, which has no NaN or Inf).
 func TestMachineJSON(t *testing.T) {
 	t.Parallel()
-	dir := t.TempDir()
-	for _, tc := range machineCommands(dir) {
+	for _, tc := range machineCommands() {
 		t.Run(tc.name, func(t *testing.T) {
 			t.Parallel()
-			var stdout, stderr bytes.Buffer
-			args := append([]string{"coilkick"}, tc.args...)
-			if tc.name == "fit" {
-				args[len(args)-1] = filepath.Join(dir, "fitted-json.yaml")
+			r := runShared(append(tc.args, "--json", "-")...)
+			if r.code != tc.code {
+				t.Fatalf("exit %d, want %d: %s", r.code, tc.code, r.stderr)
 			}
-			code := runApp(&stdout, &stderr, append(args, "--json", "-"))
-			if code != tc.code {
-				t.Fatalf("exit %d, want %d: %s", code, tc.code, stderr.String())
-			}
-			machineDoc(t, stdout.Bytes(), tc.name)
+			machineDoc(t, []byte(r.stdout), tc.name)
 		})
 	}
 }
@@ -120,22 +115,16 @@ func walkKeys(t *testing.T, at string, v any, keys map[string]bool) {
 // number, empty, true/false, or (a name column) text without "NaN"/"Inf".
 func TestMachineCSV(t *testing.T) {
 	t.Parallel()
-	dir := t.TempDir()
-	for _, tc := range machineCommands(dir) {
+	for _, tc := range machineCommands() {
 		t.Run(tc.name, func(t *testing.T) {
 			t.Parallel()
-			var stdout, stderr bytes.Buffer
-			args := append([]string{"coilkick"}, tc.args...)
-			if tc.name == "fit" {
-				args[len(args)-1] = filepath.Join(dir, "fitted-csv.yaml")
+			r := runShared(append(tc.args, "--csv", "-")...)
+			if r.code != tc.code {
+				t.Fatalf("exit %d, want %d: %s", r.code, tc.code, r.stderr)
 			}
-			code := runApp(&stdout, &stderr, append(args, "--csv", "-"))
-			if code != tc.code {
-				t.Fatalf("exit %d, want %d: %s", code, tc.code, stderr.String())
-			}
-			rows, err := csv.NewReader(bytes.NewReader(stdout.Bytes())).ReadAll()
+			rows, err := csv.NewReader(strings.NewReader(r.stdout)).ReadAll()
 			if err != nil {
-				t.Fatalf("stdout is not CSV (or not rectangular): %v\n%s", err, stdout.String())
+				t.Fatalf("stdout is not CSV (or not rectangular): %v\n%s", err, r.stdout)
 			}
 			if len(rows) < 2 {
 				t.Fatalf("%d rows: want a header and at least one row", len(rows))

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/csv"
 	"encoding/json"
+	"image/png"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -11,6 +12,8 @@ import (
 	"testing"
 )
 
+// TestRunExitCodes: each command's exit status, what it prints, and that
+// the files it wrote open (checkWrittenFiles).
 func TestRunExitCodes(t *testing.T) {
 	t.Parallel()
 	dir := t.TempDir()
@@ -47,35 +50,39 @@ func TestRunExitCodes(t *testing.T) {
 			[]string{"16 corners", "winding 100 degC", "Monte Carlo: 10 samples"}, nil},
 		{"corners without tolerances", []string{"corners", "../../scenarios/irrigation-valve.yaml"}, exitError, nil, []string{"tolerances"}},
 		{"solve", []string{"solve", "../../scenarios/process-air-valve.yaml"}, exitOK, []string{"lowest supply that pulls in", "lowest holding current"}, nil},
-		{"plot window", []string{"run", "../../scenarios/peak-hold-valve.yaml", "--plot", filepath.Join(dir, "w.png"), "--plot-window", "0:40"}, exitOK, []string{"pull-in time"}, nil},
+		{"plot window", []string{"run", "../../scenarios/peak-hold-valve.yaml", "--plot", filepath.Join(dir, "w.svg"), "--plot-window", "0:40"}, exitOK, []string{"pull-in time"}, nil},
 		{"plot window bad", []string{"run", "../../scenarios/irrigation-valve.yaml", "--plot", filepath.Join(dir, "w2.png"), "--plot-window", "5:1"}, exitError, nil, []string{"--plot-window"}},
-		{"fit", []string{"fit", "../../scenarios/irrigation-valve.yaml", "--trace", "../../testdata/fit/irrigation-scope.csv", "-o", filepath.Join(dir, "fitted.yaml"), "--plot", filepath.Join(dir, "fit.svg")}, exitOK,
-			[]string{"dip minimum (seated)", "resistance", "Fitted scenario written"}, nil},
 		{"fit bad param", []string{"fit", "../../scenarios/irrigation-valve.yaml", "--trace", "../../testdata/fit/irrigation-scope.csv", "--params", "colour"}, exitError, nil, []string{"unknown parameter"}},
 		{"sweep plot", []string{"sweep", "../../scenarios/irrigation-valve.yaml", "--vary", "supply.voltage=22 V:26 V:3", "--vary", "plunger.mass=6 g,8 g", "--plot", filepath.Join(dir, "sw.svg"), "--figure", "release"}, exitOK, []string{"6 g"}, nil},
-		{"clamps plot", []string{"clamps", "../../scenarios/irrigation-valve.yaml", "--plot", filepath.Join(dir, "cl.png")}, exitOK, []string{"recommended"}, nil},
+		{"clamps plot", []string{"clamps", "../../scenarios/irrigation-valve.yaml", "--plot", filepath.Join(dir, "cl.svg")}, exitOK, []string{"recommended"}, nil},
 		{"heat plot", []string{"heat", "../../scenarios/door-strike-duty.yaml", "--plot", filepath.Join(dir, "ht.svg")}, exitOK, []string{"peak"}, nil},
-		{"magnet plot", []string{"magnet", "../../scenarios/irrigation-valve.yaml", "--plot", filepath.Join(dir, "mg.png")}, exitOK, []string{"saturation onset"}, nil},
+		{"magnet plot", []string{"magnet", "../../scenarios/irrigation-valve.yaml", "--plot", filepath.Join(dir, "mg.svg")}, exitOK, []string{"saturation onset"}, nil},
 		{"magnet bad currents", []string{"magnet", "../../scenarios/irrigation-valve.yaml", "--currents", "0.1,x"}, exitError, nil, []string{"--currents"}},
 	}
-	for _, c := range cases {
-		var out, errb bytes.Buffer
-		code := run(&out, &errb, append([]string{"coilkick"}, c.args...))
-		if code != c.code {
-			t.Errorf("%s: exit %d, want %d\nstdout:\n%s\nstderr:\n%s", c.name, code, c.code, out.String(), errb.String())
-			continue
+	t.Run("cases", func(t *testing.T) {
+		for _, c := range cases {
+			t.Run(c.name, func(t *testing.T) {
+				t.Parallel()
+				r := runShared(c.args...) // the demos' plain runs are also the golden files'
+				if r.code != c.code {
+					t.Fatalf("exit %d, want %d\nstdout:\n%s\nstderr:\n%s", r.code, c.code, r.stdout, r.stderr)
+				}
+				for _, s := range c.stdout {
+					if !strings.Contains(r.stdout, s) {
+						t.Errorf("stdout lacks %q:\n%s", s, r.stdout)
+					}
+				}
+				for _, s := range c.stderr {
+					if !strings.Contains(r.stderr, s) {
+						t.Errorf("stderr lacks %q:\n%s", s, r.stderr)
+					}
+				}
+				if r.code != exitError {
+					checkWrittenFiles(t, c.args)
+				}
+			})
 		}
-		for _, s := range c.stdout {
-			if !strings.Contains(out.String(), s) {
-				t.Errorf("%s: stdout lacks %q:\n%s", c.name, s, out.String())
-			}
-		}
-		for _, s := range c.stderr {
-			if !strings.Contains(errb.String(), s) {
-				t.Errorf("%s: stderr lacks %q:\n%s", c.name, s, errb.String())
-			}
-		}
-	}
+	})
 	// The CSV has the promised columns and finite numbers.
 	f, err := os.Open(csvPath)
 	if err != nil {
@@ -94,6 +101,38 @@ func TestRunExitCodes(t *testing.T) {
 		for _, cell := range r {
 			if _, err := strconv.ParseFloat(cell, 64); err != nil || strings.Contains(cell, "NaN") {
 				t.Fatalf("CSV cell %q is not a finite number", cell)
+			}
+		}
+	}
+}
+
+// checkWrittenFiles opens the files a command line wrote: each --plot an
+// SVG that parses as XML with a title (its first text) or a PNG that
+// decodes; each --csv and --curves a CSV with a header and rows.
+func checkWrittenFiles(t *testing.T, args []string) {
+	t.Helper()
+	for k := 0; k+1 < len(args); k++ {
+		file := args[k+1]
+		switch args[k] {
+		case "--plot":
+			data, err := os.ReadFile(file)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if strings.HasSuffix(file, ".png") {
+				if _, err := png.DecodeConfig(bytes.NewReader(data)); err != nil {
+					t.Errorf("%s does not decode as PNG: %v", file, err)
+				}
+			} else if f := parseSVG(t, data); len(f.texts) == 0 || f.texts[0] == "" {
+				t.Errorf("%s has no title", file)
+			}
+		case "--csv", "--curves":
+			data, err := os.ReadFile(file)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if rows, err := csv.NewReader(bytes.NewReader(data)).ReadAll(); err != nil || len(rows) < 2 {
+				t.Errorf("%s: not a CSV with a header and rows (%d rows, %v)", file, len(rows), err)
 			}
 		}
 	}

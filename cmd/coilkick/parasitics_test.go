@@ -19,17 +19,14 @@ func TestEventListCompacted(t *testing.T) {
 	dir := t.TempDir()
 	path := variant(t, dir, "process-air-valve.yaml", "  type: diode zener\n  forward drop: 0.8 V\n  zener voltage: 33 V",
 		"  type: tvs\n  clamp voltage: 40 V", "  winding capacitance: 120 pF\n  core loss resistance: 75 kohm\n", "")
-	out, _, code := runArgs("run", path)
-	if code != exitOK && code != exitFailing {
-		t.Fatalf("exit %d", code)
+	js := filepath.Join(dir, "s.json")
+	out, errs, code := runArgs("run", path, "--json", js)
+	if (code != exitOK && code != exitFailing) || errs != "" {
+		t.Fatalf("exit %d: %s", code, errs)
 	}
 	if !strings.Contains(out, "switch body diode conducts 8 times between 102.7497 ms and 103.4240 ms") ||
 		strings.Count(out, "conduction through the switch body diode") != 0 {
 		t.Errorf("text events not compacted:\n%s", out)
-	}
-	js := filepath.Join(dir, "s.json")
-	if _, errs, _ := runArgs("run", path, "--json", js); errs != "" {
-		t.Fatal(errs)
 	}
 	var doc struct {
 		Events []struct {
@@ -64,20 +61,14 @@ func TestEventListCompacted(t *testing.T) {
 // is below 1 % of the rail).
 func TestDemoRingVisible(t *testing.T) {
 	t.Parallel()
-	dir := t.TempDir()
-	csvPath := filepath.Join(dir, "t.csv")
-	out, errs, code := runArgs("run", "../../scenarios/process-air-valve.yaml", "--csv", csvPath,
-		"--plot", filepath.Join(dir, "w.png"), "--plot-window", "102.9:104")
-	if code != exitOK {
-		t.Fatalf("exit %d: %s", code, errs)
+	d := demoOutputs(t, "../../scenarios/process-air-valve.yaml")
+	if d.run.code != exitOK {
+		t.Fatalf("exit %d: %s", d.run.code, d.run.stderr)
 	}
-	if strings.Contains(out, "nothing but the coil resistance damps the ring") {
+	if strings.Contains(d.run.stdout, "nothing but the coil resistance damps the ring") {
 		t.Error("the undamped-ring note on a demo with core loss")
 	}
-	data, err := os.ReadFile(csvPath)
-	if err != nil {
-		t.Fatal(err)
-	}
+	data := d.read(t, d.csv)
 	var ts, vs []float64
 	for _, line := range strings.Split(strings.TrimSpace(string(data)), "\n")[1:] {
 		f := strings.Split(line, ",")

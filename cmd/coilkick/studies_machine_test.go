@@ -58,7 +58,6 @@ func number(t *testing.T, doc map[string]any, path string) float64 {
 // a figure does not apply, and the figures the text prints.
 func TestStudiesJSON(t *testing.T) {
 	t.Parallel()
-	dir := t.TempDir()
 	cases := []struct {
 		name  string
 		args  []string
@@ -145,7 +144,7 @@ func TestStudiesJSON(t *testing.T) {
 				t.Errorf("last history peak %g, want the study's peak %g", last, number(t, d, "winding_peak_degC"))
 			}
 		}},
-		{"fit", []string{"fit", gapLawDemo, "--trace", scopeTrace, "-o", filepath.Join(dir, "fitted.yaml")}, exitOK, func(t *testing.T, d map[string]any) {
+		{"fit", []string{"fit", gapLawDemo, "--trace", scopeTrace}, exitOK, func(t *testing.T, d map[string]any) {
 			ps := lookup(t, d, "parameters").([]any)
 			if len(ps) != 3 {
 				t.Fatalf("%d parameters, want 3", len(ps))
@@ -184,12 +183,11 @@ func TestStudiesJSON(t *testing.T) {
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			t.Parallel()
-			var stdout, stderr bytes.Buffer
-			code := run(&stdout, &stderr, append(append([]string{"coilkick"}, c.args...), "--json", "-"))
-			if code != c.code {
-				t.Fatalf("exit %d, want %d\n%s", code, c.code, stderr.String())
+			r := runShared(append(c.args, "--json", "-")...)
+			if r.code != c.code {
+				t.Fatalf("exit %d, want %d\n%s", r.code, c.code, r.stderr)
 			}
-			doc, keys := machineDoc(t, stdout.Bytes(), strings.Fields(c.name)[0])
+			doc, keys := machineDoc(t, []byte(r.stdout), strings.Fields(c.name)[0])
 			if len(keys) < 5 {
 				t.Errorf("%d keys", len(keys))
 			}
@@ -198,18 +196,19 @@ func TestStudiesJSON(t *testing.T) {
 	}
 }
 
-// readCSV runs a command with --csv - (or another flag to -) and parses
+// readCSV runs a command with --csv - (or another flag to -), once per
+// test binary (runShared), and parses
 // standard output: a header of keys matching keyPattern, then rows whose
 // cells are numbers, empty, or true/false.
 func readCSV(t *testing.T, code int, args ...string) (header []string, rows [][]string) {
 	t.Helper()
-	var stdout, stderr bytes.Buffer
-	if got := run(&stdout, &stderr, append([]string{"coilkick"}, args...)); got != code {
-		t.Fatalf("%s: exit %d, want %d\n%s", strings.Join(args, " "), got, code, stderr.String())
+	r := runShared(args...)
+	if r.code != code {
+		t.Fatalf("%s: exit %d, want %d\n%s", strings.Join(args, " "), r.code, code, r.stderr)
 	}
-	all, err := csv.NewReader(bytes.NewReader(stdout.Bytes())).ReadAll()
+	all, err := csv.NewReader(strings.NewReader(r.stdout)).ReadAll()
 	if err != nil || len(all) < 2 {
-		t.Fatalf("%s: standard output is not a CSV with a header and rows (%v):\n%.2000s", strings.Join(args, " "), err, stdout.String())
+		t.Fatalf("%s: standard output is not a CSV with a header and rows (%v):\n%.2000s", strings.Join(args, " "), err, r.stdout)
 	}
 	for _, k := range all[0] {
 		if !keyPattern.MatchString(k) {
@@ -309,42 +308,20 @@ func TestStudiesCSV(t *testing.T) {
 	})
 	t.Run("check", func(t *testing.T) {
 		t.Parallel()
-		h, rows := readCSV(t, exitOK, "check", gapLawDemo, "--csv", "-")
+		h, rows := readCSV(t, exitOK, "check", "../../scenarios/process-air-valve.yaml", "--csv", "-")
 		if strings.Join(h, ",") != "ok" || len(rows) != 1 || rows[0][0] != "true" {
 			t.Errorf("check CSV %q %q, want ok / true", h, rows)
 		}
 	})
 }
 
-// TestStudiesMachineFailures: a failed fit writes no --json unless
-// --keep-failed, and then says failed with the reasons and null for the σ
-// it could not compute; a scenario that does not check writes nothing;
-// a failing heat study still writes its JSON and exits 2.
+// TestStudiesMachineFailures: a scenario that does not check writes
+// nothing; a failing heat study still writes its JSON and exits 2. (A
+// failed fit's --json: TestFitHostileTraces, none; TestFitKeepFailed,
+// with --keep-failed.)
 func TestStudiesMachineFailures(t *testing.T) {
 	t.Parallel()
 	dir := t.TempDir()
-	const badTrace = "../../testdata/fit/bad/current-A.csv"
-	out := filepath.Join(dir, "fit.json")
-	if code, _, stderr := runCLI("fit", gapLawDemo, "--trace", badTrace, "--json", out); code != exitError || !strings.Contains(stderr, "the fit failed") {
-		t.Errorf("failed fit: exit %d, %q", code, stderr)
-	}
-	if _, err := os.Stat(out); !os.IsNotExist(err) {
-		t.Errorf("a failed fit wrote %s without --keep-failed", out)
-	}
-	var stdout, stderr bytes.Buffer
-	if code := run(&stdout, &stderr, []string{"coilkick", "fit", gapLawDemo, "--trace", badTrace, "--json", "-", "--keep-failed"}); code != exitError {
-		t.Fatalf("failed fit with --keep-failed: exit %d, want 1", code)
-	}
-	doc, _ := machineDoc(t, stdout.Bytes(), "fit")
-	if doc["failed"] != true || len(doc["failure"].([]any)) == 0 {
-		t.Errorf("failed %v, failure %v; want true and the reasons", doc["failed"], doc["failure"])
-	}
-	for _, p := range doc["parameters"].([]any) {
-		if se := p.(map[string]any)["std_error"]; se != nil {
-			t.Errorf("parameter %v: std_error %v, want null (the uncertainties cannot be computed)", p.(map[string]any)["name"], se)
-		}
-	}
-
 	badJSON, badCSV := filepath.Join(dir, "check.json"), filepath.Join(dir, "check.csv")
 	code, outText, errText := runCLI("check", "../../testdata/bad/wrong_unit.yaml", "--json", badJSON, "--csv", badCSV)
 	if code != exitError || outText != "" || !strings.Contains(errText, "plunger.mass") {
@@ -358,12 +335,11 @@ func TestStudiesMachineFailures(t *testing.T) {
 
 	// Class A (105 °C) at 50 % relative on-time: the peak exceeds it.
 	hot := heatVariant(t, "insulation class: F", "insulation class: A", "on time: 1.25 s", "on time: 2.5 s")
-	stdout.Reset()
-	stderr.Reset()
+	var stdout, stderr bytes.Buffer
 	if code := run(&stdout, &stderr, []string{"coilkick", "heat", hot, "--json", "-"}); code != exitFailing {
 		t.Fatalf("hot heat study: exit %d, want 2\n%s", code, stderr.String())
 	}
-	doc, _ = machineDoc(t, stdout.Bytes(), "heat")
+	doc, _ := machineDoc(t, stdout.Bytes(), "heat")
 	if doc["failed"] != true || lookup(t, doc, "insulation.pass") != false {
 		t.Errorf("failed %v, insulation.pass %v; want true, false", doc["failed"], lookup(t, doc, "insulation.pass"))
 	}

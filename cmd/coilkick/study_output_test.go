@@ -4,7 +4,6 @@ import (
 	"bytes"
 	"encoding/csv"
 	"encoding/json"
-	"html"
 	"math"
 	"os"
 	"path/filepath"
@@ -63,6 +62,13 @@ func runStudy(t *testing.T, args ...string) (int, []byte, string) {
 	var out, errb bytes.Buffer
 	code := run(&out, &errb, append([]string{"coilkick"}, args...))
 	return code, out.Bytes(), errb.String()
+}
+
+// sharedStudy is runStudy for a command line that writes only to
+// standard output, run once per test binary (runShared).
+func sharedStudy(args ...string) (int, []byte, string) {
+	r := runShared(args...)
+	return r.code, []byte(r.stdout), r.stderr
 }
 
 // readmeSection returns the backquoted names of the README's section
@@ -143,7 +149,7 @@ func TestStudyOutputJSON(t *testing.T) {
 	for _, tc := range studyCases() {
 		t.Run(tc.name, func(t *testing.T) {
 			t.Parallel()
-			code, out, errs := runStudy(t, append(tc.args, "--json", "-")...)
+			code, out, errs := sharedStudy(append(tc.args, "--json", "-")...)
 			if code != tc.code {
 				t.Fatalf("exit %d, want %d: %s", code, tc.code, errs)
 			}
@@ -173,7 +179,7 @@ func TestStudyOutputCSV(t *testing.T) {
 	for _, tc := range studyCases() {
 		t.Run(tc.name, func(t *testing.T) {
 			t.Parallel()
-			code, out, errs := runStudy(t, append(tc.args, "--csv", "-")...)
+			code, out, errs := sharedStudy(append(tc.args, "--csv", "-")...)
 			if code != tc.code {
 				t.Fatalf("exit %d, want %d: %s", code, tc.code, errs)
 			}
@@ -181,7 +187,7 @@ func TestStudyOutputCSV(t *testing.T) {
 			if err != nil || len(rows) < 2 {
 				t.Fatalf("standard output is not a CSV with rows (%v):\n%.2000s", err, out)
 			}
-			_, doc, _ := runStudy(t, append(tc.args, "--json", "-")...)
+			_, doc, _ := sharedStudy(append(tc.args, "--json", "-")...)
 			if want := recordKeys(t, doc, tc.list); !slices.Equal(rows[0], want) {
 				t.Errorf("CSV header\n%v\nJSON %s keys\n%v", rows[0], tc.list, want)
 			}
@@ -230,7 +236,7 @@ func TestStudyOutputFiles(t *testing.T) {
 				if err != nil {
 					t.Fatal(err)
 				}
-				_, want, _ := runStudy(t, append(tc.args, f.flag, "-")...)
+				_, want, _ := sharedStudy(append(tc.args, f.flag, "-")...)
 				if !bytes.Equal(got, want) {
 					t.Errorf("%s FILE differs from %s -", f.flag, f.flag)
 				}
@@ -268,7 +274,7 @@ func TestStudyOutputValues(t *testing.T) {
 		Failed  bool     `json:"failed"`
 		Invalid *string  `json:"invalid"`
 	}
-	_, out, _ := runStudy(t, "sweep", sweepLowVoltageDemo, "--vary", "supply.voltage=21 V:25 V:3", "--vary", "plunger.mass=5 g,9 g", "--json", "-")
+	_, out, _ := sharedStudy("sweep", sweepLowVoltageDemo, "--vary", "supply.voltage=21 V:25 V:3", "--vary", "plunger.mass=5 g,9 g", "--json", "-")
 	var sw struct {
 		Keys []struct {
 			Key, Column, Unit string
@@ -296,7 +302,7 @@ func TestStudyOutputValues(t *testing.T) {
 		}
 	}
 
-	_, out, _ = runStudy(t, "corners", "../../scenarios/door-strike-duty.yaml", "--samples", "4", "--json", "-")
+	_, out, _ = sharedStudy("corners", "../../scenarios/door-strike-duty.yaml", "--samples", "4", "--json", "-")
 	var co struct {
 		Checks []struct {
 			Name    string   `json:"name"`
@@ -331,7 +337,7 @@ func TestStudyOutputValues(t *testing.T) {
 		t.Errorf("pull-in check: %+v", pi)
 	}
 
-	_, out, _ = runStudy(t, "clamps", "../../scenarios/process-air-valve.yaml", "--json", "-")
+	_, out, _ = sharedStudy("clamps", "../../scenarios/process-air-valve.yaml", "--json", "-")
 	var cl struct {
 		Options []struct {
 			Name        string   `json:"name"`
@@ -366,7 +372,7 @@ func TestStudyOutputValues(t *testing.T) {
 		}
 	}
 
-	_, out, _ = runStudy(t, "solve", "../../scenarios/door-strike-duty.yaml", "--json", "-")
+	_, out, _ = sharedStudy("solve", "../../scenarios/door-strike-duty.yaml", "--json", "-")
 	var so struct {
 		Answers []struct {
 			ID       string   `json:"id"`
@@ -461,18 +467,15 @@ func parseOneVary(spec string) ([]coilkick.Vary, error) {
 	return []coilkick.Vary{v}, err
 }
 
-// svgTexts returns the texts of an SVG file.
+// svgTexts returns the texts of an SVG file (parseSVG: well-formed XML),
+// one a line.
 func svgTexts(t *testing.T, file string) string {
 	t.Helper()
 	data, err := os.ReadFile(file)
 	if err != nil {
 		t.Fatal(err)
 	}
-	var b strings.Builder
-	for _, m := range regexp.MustCompile(`(?s)<text [^>]*>(.*?)</text>`).FindAllStringSubmatch(string(data), -1) {
-		b.WriteString(html.UnescapeString(m[1]) + "\n")
-	}
-	return b.String()
+	return strings.Join(parseSVG(t, data).texts, "\n") + "\n"
 }
 
 // TestStudyPlotMarks: the sweep plot draws the scenario's limit on the
@@ -483,7 +486,9 @@ func TestStudyPlotMarks(t *testing.T) {
 	t.Parallel()
 	dir := t.TempDir()
 	sw := filepath.Join(dir, "sweep.svg")
-	code, _, errs := runStudy(t, "sweep", "../../scenarios/peak-hold-valve.yaml", "--vary", "supply.voltage=8 V:24 V:5",
+	// The pull-in is the figure: the hold is cut to 100 ms.
+	peakHold := variant(t, dir, "peak-hold-valve.yaml", "de-energize at: 1000 ms", "de-energize at: 100 ms", "end: 1050 ms", "end: 150 ms")
+	code, _, errs := runStudy(t, "sweep", peakHold, "--vary", "supply.voltage=8 V:24 V:5",
 		"--vary", "plunger.mass=6 g,12 g", "--plot", sw)
 	if code != exitFailing {
 		t.Fatalf("sweep: exit %d: %s", code, errs)
@@ -496,7 +501,7 @@ func TestStudyPlotMarks(t *testing.T) {
 		}
 	}
 	// The limit is swept: not drawn, and the legend says why.
-	code, _, errs = runStudy(t, "sweep", "../../scenarios/peak-hold-valve.yaml", "--vary", "ratings.pull-in time=1 ms,10 ms", "--plot", sw)
+	code, _, errs = runStudy(t, "sweep", peakHold, "--vary", "ratings.pull-in time=1 ms,10 ms", "--plot", sw)
 	if texts = svgTexts(t, sw); code != exitFailing || !strings.Contains(texts, "limit not drawn: ratings.pull-in time is swept") {
 		t.Errorf("sweep of the limit: exit %d (%s), plot texts:\n%s", code, errs, texts)
 	}

@@ -2,12 +2,12 @@ package main
 
 import (
 	"bytes"
+	"encoding/json"
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
-
-	"coilkick"
 )
 
 // variant writes a copy of a demo scenario with text replaced, into dir.
@@ -38,8 +38,9 @@ func runArgs(args ...string) (stdout, stderr string, code int) {
 	return out.String(), errb.String(), code
 }
 
-// TestEveryNotePrintedOnce: each note of the assessment appears exactly
-// once in the run summary (the audible-range warning was printed twice).
+// TestEveryNotePrintedOnce: each note of the assessment (the notes of the
+// same run's --json) appears exactly once in the run summary (the
+// audible-range warning was printed twice).
 func TestEveryNotePrintedOnce(t *testing.T) {
 	t.Parallel()
 	dir := t.TempDir()
@@ -50,21 +51,26 @@ func TestEveryNotePrintedOnce(t *testing.T) {
 		variant(t, dir, "peak-hold-valve.yaml", "frequency: 20 kHz", "frequency: 15 kHz", "hold current: 0.4 A", "hold current: 0.25 A",
 			"de-energize at: 1000 ms", "de-energize at: 100 ms", "end: 1050 ms", "end: 150 ms"),
 	}
-	for _, path := range paths {
-		md, err := coilkick.LoadModel(path)
+	for k, path := range paths {
+		js := filepath.Join(dir, fmt.Sprintf("%d.json", k))
+		out, errs, code := runArgs("run", path, "--json", js)
+		if code != exitOK && code != exitFailing {
+			t.Fatalf("%s: exit %d: %s", path, code, errs)
+		}
+		data, err := os.ReadFile(js)
 		if err != nil {
 			t.Fatal(err)
 		}
-		res, err := coilkick.Simulate(md, nil)
-		if err != nil {
+		var doc struct {
+			Notes []coilkickNote `json:"notes"`
+		}
+		if err := json.Unmarshal(data, &doc); err != nil {
 			t.Fatal(err)
 		}
-		as := md.Assess(res)
-		out, _, _ := runArgs("run", path)
-		if len(as.Notes) < 2 {
-			t.Errorf("%s: only %d notes", path, len(as.Notes))
+		if len(doc.Notes) < 2 {
+			t.Errorf("%s: only %d notes", path, len(doc.Notes))
 		}
-		for _, n := range as.Notes {
+		for _, n := range doc.Notes {
 			if c := strings.Count(out, n.Text); c != 1 {
 				t.Errorf("%s: note printed %d times: %q", path, c, n.Text)
 			}
@@ -117,12 +123,12 @@ func TestDropOutReported(t *testing.T) {
 // settled, not a ripple or a chopping frequency.
 func TestConstantHoldNoRipple(t *testing.T) {
 	t.Parallel()
-	out, _, _ := runArgs("run", "../../scenarios/irrigation-valve.yaml")
+	out := demoOutputs(t, "../../scenarios/irrigation-valve.yaml").run.stdout
 	if strings.Contains(out, "ripple") || strings.Contains(out, "chopping frequency") ||
 		!strings.Contains(out, "hold current at end           333 mA, settled (within 1 % of V/R = 333 mA)") {
 		t.Errorf("constant hold:\n%s", out)
 	}
-	out, _, _ = runArgs("run", "../../scenarios/peak-hold-valve.yaml")
+	out = demoOutputs(t, "../../scenarios/peak-hold-valve.yaml").run.stdout
 	if !strings.Contains(out, "hold current ripple") || !strings.Contains(out, "chopping frequency            20 kHz\n") ||
 		strings.Contains(out, "audible") {
 		t.Errorf("chopped hold:\n%s", out)
