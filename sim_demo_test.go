@@ -326,3 +326,37 @@ func BenchmarkPeakHold1s20kHz(b *testing.B) {
 		})
 	}
 }
+
+// TestMetricsCheckNamesNonFinite: a run's check names the first figure
+// that is not finite by its field path in words, and passes a run whose
+// figures are all finite.
+func TestMetricsCheckNamesNonFinite(t *testing.T) {
+	t.Parallel()
+	md, err := LoadModel("scenarios/irrigation-valve.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := Simulate(md, &Options{NoTrace: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, tc := range []struct {
+		set  func(m *Metrics)
+		want string // "" for a run that passes
+	}{
+		{func(*Metrics) {}, ""},
+		{func(m *Metrics) { m.Hold.ClampPower = math.NaN() }, `"hold clamp power"`},
+		{func(m *Metrics) { m.PeakSwitchVoltage = math.Inf(1) }, `"peak switch voltage"`},
+		{func(m *Metrics) { m.DropOut.Current = math.Inf(-1) }, `"drop out current"`},
+	} {
+		m := res.Metrics
+		tc.set(&m)
+		err := m.check()
+		switch {
+		case tc.want == "" && err != nil:
+			t.Errorf("finite figures: %v", err)
+		case tc.want != "" && (err == nil || !strings.Contains(err.Error(), tc.want)):
+			t.Errorf("check() = %v, want an error naming %s", err, tc.want)
+		}
+	}
+}

@@ -728,16 +728,19 @@ func (r *run) accepted(s *stepView) {
 	if r.ringRetired {
 		r.checkRetiredRing(s.y1)
 	}
+	// The outputs depend on the first stateJac components only (the
+	// quadratures do not feed back): only those are interpolated.
+	ys := r.ys[:stateJac]
 	for r.sampleNext < len(r.sampleTimes) && r.sampleTimes[r.sampleNext] <= s.t1 {
-		s.interp(r.sampleTimes[r.sampleNext], r.ys[:])
-		r.res.Samples = append(r.res.Samples, r.current(r.ys[:]))
+		s.interp(r.sampleTimes[r.sampleNext], ys)
+		r.res.Samples = append(r.res.Samples, r.current(ys))
 		r.sampleNext++
 	}
 	// Sample inside the step for the peaks.
 	for _, th := range [...]float64{1.0 / 3, 2.0 / 3, 1} {
 		tt := s.t0 + th*(s.t1-s.t0)
-		s.interp(tt, r.ys[:])
-		o := r.out(r.ys[:])
+		s.interp(tt, ys)
+		o := r.out(ys)
 		r.peaks(o)
 		if th == 1 && !r.noTrace {
 			r.res.Trace.add(s.t1, o)
@@ -827,6 +830,9 @@ func newRun(md *Model, opt *Options, tol float64) (*run, []float64) {
 		sys.thermal = md.Thermal
 	}
 	res := &Result{}
+	if len(opt.SampleTimes) > 0 {
+		res.Samples = make([]float64, 0, len(opt.SampleTimes))
+	}
 	r := &run{system: sys, tOn: timing.EnergizeAt, tOff: timing.DeenergizeAt, tEnd: timing.End, tRing: math.Inf(1),
 		noRetire: opt.FollowRing, cols: make([]int, 0, stateJac), noFastForward: opt.FollowPeriods, tol: tol,
 		res: res, noTrace: opt.NoTrace, baseV0: drive.Supply.Voltage, tRevEnd: math.Inf(1),
@@ -945,25 +951,41 @@ func (m *Metrics) check() error {
 }
 
 // nonFinite returns the path of the first float field of v that is NaN or
-// infinite ("" if none).
+// infinite, its field names as words after path ("" if none; "value" for
+// a bare float).
 func nonFinite(v reflect.Value, path string) string {
+	p, bad := firstNonFinite(v)
+	switch {
+	case !bad:
+		return ""
+	case path != "" && p != "":
+		return path + " " + p
+	case path+p == "":
+		return "value"
+	}
+	return path + p
+}
+
+// firstNonFinite reports whether v holds a NaN or infinite float and the
+// field names down to the first one as words; the names are built only
+// for the field that is not finite (a run's check walks every figure).
+func firstNonFinite(v reflect.Value) (string, bool) {
 	switch v.Kind() {
 	case reflect.Float64:
-		if f := v.Float(); math.IsNaN(f) || math.IsInf(f, 0) {
-			return path
-		}
+		f := v.Float()
+		return "", math.IsNaN(f) || math.IsInf(f, 0)
 	case reflect.Struct:
 		for k := 0; k < v.NumField(); k++ {
-			name := words(v.Type().Field(k).Name)
-			if path != "" {
-				name = path + " " + name
-			}
-			if p := nonFinite(v.Field(k), name); p != "" {
-				return p
+			if p, bad := firstNonFinite(v.Field(k)); bad {
+				name := words(v.Type().Field(k).Name)
+				if p != "" {
+					name += " " + p
+				}
+				return name, true
 			}
 		}
 	}
-	return ""
+	return "", false
 }
 
 // finish fills the energy figures.
