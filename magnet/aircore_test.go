@@ -375,3 +375,104 @@ func TestAirCoreInductanceBadInput(t *testing.T) {
 		}
 	}
 }
+
+func TestThickCentreFieldMatchesLoopSum(t *testing.T) {
+	t.Parallel()
+	// source: Biot–Savart on-axis loop field (Griffiths, Introduction to
+	// Electrodynamics, ch. 5) summed over the winding's cross-section: an
+	// n × n grid of loops at the cell midpoints, each carrying N/n² turns
+	// (midpoint rule in r and z, error ~ (cell/size)² ≈ 1e-6 for n = 500).
+	// Independent of the closed form's integration by asinh.
+	const n, turns, current = 500, 2857, 0.276
+	for _, g := range []struct{ di, do, l float64 }{
+		{10e-3, 26e-3, 22e-3}, // the dosing demo's bobbin
+		{4e-3, 40e-3, 5e-3},   // short and deep
+		{10e-3, 12e-3, 80e-3}, // long and thin
+	} {
+		r1, r2 := g.di/2, g.do/2
+		var sum float64
+		for i := 0; i < n; i++ {
+			r := r1 + (float64(i)+0.5)/n*(r2-r1)
+			for j := 0; j < n; j++ {
+				z := (float64(j)+0.5)/n*g.l - g.l/2
+				sum += loopAxisField(current, r, z)
+			}
+		}
+		sum *= float64(turns) / (n * n)
+		got := ThickCentreField(turns, current, g.di, g.do, g.l)
+		if e := relErr(got, sum); e > 1e-5 {
+			t.Errorf("ThickCentreField(%g, %g, %g) = %g T, loop sum %g T: relative %g > 1e-5", g.di, g.do, g.l, got, sum, e)
+		}
+	}
+}
+
+func TestThickCentreFieldLimits(t *testing.T) {
+	t.Parallel()
+	const turns, current = 1000, 0.5
+	// A thin winding (depth 1e-6 of the radius) is the current sheet of
+	// CentreField at its diameter (same source: the finite-solenoid
+	// formula, Griffiths ch. 5); the depth's own effect is of order 1e-12.
+	for _, l := range []float64{0, 1e-3, 0.02, 0.5} {
+		d := 0.02
+		got := ThickCentreField(turns, current, d*(1-1e-6), d*(1+1e-6), l)
+		if want := CentreField(turns, current, l, d); relErr(got, want) > 1e-9 {
+			t.Errorf("thin winding, l = %g m: %g T, CentreField %g T", l, got, want)
+		}
+	}
+	// source: long-solenoid field µ0·(N/l)·I (Ampère's law, any
+	// electromagnetics text), end effect of order (d_outer/l)².
+	for _, ratio := range []float64{10, 100, 1000} {
+		do := 0.02
+		got := ThickCentreField(turns, current, 0.01, do, ratio*do)
+		want := Mu0 * turns / (ratio * do) * current
+		if e := relErr(got, want); e > 1/(ratio*ratio) {
+			t.Errorf("l/d = %g: %g T, long limit %g T: relative %g", ratio, got, want, e)
+		}
+	}
+	// source: a flat (l → 0) winding is a disc of loops with the centre
+	// field µ0·I/(2r) each (Biot–Savart, Griffiths ch. 5), integrated over
+	// r with N/(r2 − r1) turns per metre: µ0·N·I·ln(r2/r1)/(2·(r2 − r1)).
+	r1, r2 := 0.005, 0.013
+	flat := Mu0 * turns * current * math.Log(r2/r1) / (2 * (r2 - r1))
+	if got := ThickCentreField(turns, current, 2*r1, 2*r2, 0); relErr(got, flat) > 1e-14 {
+		t.Errorf("flat winding: %g T, want %g T", got, flat)
+	}
+	if got := ThickCentreField(turns, current, 2*r1, 2*r2, 1e-9); relErr(got, flat) > 1e-9 {
+		t.Errorf("winding 1 nm long: %g T, want the flat %g T", got, flat)
+	}
+	// source: Montgomery, Solenoid Magnet Design (1969), B0 = µ0·J·r1·F(α, β)
+	// with F = β·ln[(α + √(α² + β²))/(1 + √(1 + β²))] (the same law in the
+	// dimensionless form a magnet designer tabulates).
+	di, do, l := 10e-3, 26e-3, 22e-3
+	alpha, beta := do/di, l/di
+	j := turns * current / (l * (do - di) / 2)
+	fab := beta * math.Log((alpha+math.Hypot(alpha, beta))/(1+math.Hypot(1, beta)))
+	if got, want := ThickCentreField(turns, current, di, do, l), Mu0*j*di/2*fab; relErr(got, want) > 1e-12 {
+		t.Errorf("ThickCentreField = %g T, Montgomery's µ0·J·r1·F(α, β) = %g T", got, want)
+	}
+	// Odd in the current; a solid winding (inner diameter 0) is finite.
+	if a, b := ThickCentreField(turns, -current, di, do, l), ThickCentreField(turns, current, di, do, l); a != -b {
+		t.Errorf("not odd in the current: %g, %g", a, b)
+	}
+	if b := ThickCentreField(turns, current, 0, do, l); !(b > 0) || !isFinite(b) {
+		t.Errorf("solid winding: %g T", b)
+	}
+}
+
+func TestThickCentreFieldBadInput(t *testing.T) {
+	t.Parallel()
+	nan, inf := math.NaN(), math.Inf(1)
+	for _, a := range [][5]float64{
+		{-1, 1, 0.01, 0.02, 0.01}, {nan, 1, 0.01, 0.02, 0.01}, {inf, 1, 0.01, 0.02, 0.01},
+		{100, nan, 0.01, 0.02, 0.01}, {100, inf, 0.01, 0.02, 0.01},
+		{100, 1, -0.01, 0.02, 0.01}, {100, 1, nan, 0.02, 0.01},
+		{100, 1, 0.02, 0.02, 0.01}, {100, 1, 0.02, 0.01, 0.01}, {100, 1, 0.01, nan, 0.01}, {100, 1, 0.01, inf, 0.01},
+		{100, 1, 0.01, 0.02, -0.01}, {100, 1, 0.01, 0.02, nan}, {100, 1, 0.01, 0.02, inf},
+		{100, 1, 0, 0.02, 0}, // a solid flat disc: infinite at its centre
+		{1e300, 1e300, 0.01, 0.02, 0.01},
+	} {
+		if got := ThickCentreField(a[0], a[1], a[2], a[3], a[4]); got != 0 {
+			t.Errorf("ThickCentreField%v = %g, want 0", a, got)
+		}
+	}
+}

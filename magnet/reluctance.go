@@ -501,6 +501,20 @@ func (p *PlungerMagnet) SteelFluxDensity(i, x float64) (b float64, part string, 
 	return b, part, nil
 }
 
+// GapFluxDensity returns the flux density B (T) between the working gap's
+// faces at current i (A) and gap x (m): the face flux over the face area,
+// Φ_face/A = µ0·F_gap/x (the uniform field of the face permeance µ0·A/x;
+// the fringing flux around the faces is not in it). Its Maxwell pull
+// B²·A/(2µ0) is the face part of the model's force. Odd in i; it returns
+// Solve's errors.
+func (p *PlungerMagnet) GapFluxDensity(i, x float64) (float64, error) {
+	st, err := p.solve(i, x)
+	if err != nil {
+		return 0, err
+	}
+	return st.FaceFlux / p.aGap, nil
+}
+
 // Turns returns the coil's turn count.
 func (p *PlungerMagnet) Turns() float64 { return p.turns }
 

@@ -462,3 +462,49 @@ func BenchmarkBuildTable40x40(b *testing.B) {
 // camelCase matches a Go-style identifier with an inner capital letter
 // (ShellWall, WindingInnerRadius), which a user's message must not show.
 var camelCase = regexp.MustCompile(`\b[A-Za-z][a-z]+[A-Z][a-z]+`)
+
+func TestPlungerGapFluxDensity(t *testing.T) {
+	t.Parallel()
+	// source: magnetic Ohm's law (Hopkinson's law) for the series circuit
+	// without fringing and leakage, Φ = N·I/Σℜ (as in
+	// TestPlungerSeriesCircuitHopkinson), and B = Φ/A over the face area
+	// π·(d/2)² of the 8 mm plunger.
+	g := testPlungerGeometry()
+	area := math.Pi * g.PlungerDiameter * g.PlungerDiameter / 4
+	p := mustPlunger(t, linearSteel(1500), WithoutFringing(), WithoutLeakage())
+	slide, iron := seriesReluctance(g, 1500)
+	for _, x := range []float64{0.05e-3, 1.5e-3} {
+		for _, i := range []float64{0.1, -0.3} {
+			b, err := p.GapFluxDensity(i, x)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if want := testPlungerTurns * i / (x/(Mu0*area) + slide + iron) / area; relErr(b, want) > 1e-10 {
+				t.Errorf("x %g m, i %g A: B = %g T, want Φ/A = %g T", x, i, b, want)
+			}
+		}
+	}
+	// With fringing and saturating steel: B = µ0·F_gap/x, the uniform
+	// field between flat faces (H = F/x across the gap, B = µ0·H), from the
+	// solved gap MMF; not the gap flux, which includes the fringing.
+	q := mustPlunger(t, LowCarbonSteel())
+	for _, x := range []float64{0.05e-3, 1.5e-3} {
+		st, err := q.Solve(0.3, x)
+		if err != nil {
+			t.Fatal(err)
+		}
+		b, err := q.GapFluxDensity(0.3, x)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if want := Mu0 * st.GapMMF / x; relErr(b, want) > 1e-12 {
+			t.Errorf("x %g m: B = %g T, want µ0·F_gap/x = %g T", x, b, want)
+		}
+		if !(b*area < st.GapFlux) {
+			t.Errorf("x %g m: face flux %g Wb not below the gap flux %g Wb (fringing)", x, b*area, st.GapFlux)
+		}
+	}
+	if _, err := q.GapFluxDensity(0.3, 0); err == nil {
+		t.Error("gap 0 accepted")
+	}
+}
