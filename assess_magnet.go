@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"math"
 	"reflect"
+
+	"coilkick/magnet"
 )
 
 // MagnetSummary is what the magnet alone does at the scenario's supply:
@@ -68,6 +70,139 @@ func (md *Model) MagnetSummary() MagnetSummary {
 func (s MagnetSummary) Check() error {
 	if name := nonFinite(reflect.ValueOf(s), ""); name != "" {
 		return fmt.Errorf("the magnet figure %q is not a finite number (an input far outside its range?)", name)
+	}
+	return nil
+}
+
+// CoilField is the winding's own (air-core) field and inductance beside
+// the flux density in the real magnet's working gap, at the rated current
+// (the "Coil field" block of coilkick magnet). A figure that cannot be
+// computed is 0, never NaN: the air-core figures need the winding's
+// dimensions (coil.build, HasBuild), the gap figures a magnet from
+// geometry or a gap law with a pole area (GapSource), the gains both.
+type CoilField struct {
+	Current  float64 // A, rated current (supply over the coil resistance at the run temperature)
+	HasBuild bool    // the winding's dimensions are known
+	// CentreField (T) is the air-core flux density at the winding's
+	// centre, magnet.ThickCentreField over the winding window (uniform
+	// current density); CentreFieldMeanDiameter (T) the thin-solenoid
+	// magnet.CentreField at the mean winding diameter, for comparison.
+	CentreField, CentreFieldMeanDiameter float64
+	// WheelerInductance (H) is magnet.WheelerMultilayer with the mean
+	// radius, length and depth of the window; AirCoreInductance (H) the
+	// numerical magnet.AirCoreInductance (AirCoreCells across the smaller
+	// side of the window, cells about square).
+	WheelerInductance, AirCoreInductance float64
+	// GapSource says where the gap flux density comes from: GapFromNetwork,
+	// GapFromPull, or "" when it is not available.
+	GapSource string
+	PoleArea  float64 // m², the working gap's face area; 0 when unknown
+	// GapFieldSeated, GapFieldRest (T): the flux density between the pole
+	// faces at the seated and rest gaps.
+	GapFieldSeated, GapFieldRest float64
+	// GainSeated, GainRest: gap flux density over CentreField, how much the
+	// iron circuit multiplies the coil's own field.
+	GainSeated, GainRest float64
+}
+
+// Sources of CoilField's gap flux density.
+const (
+	// GapFromNetwork: the face flux density of the reluctance network of a
+	// magnet from geometry, magnet.PlungerMagnet.GapFluxDensity.
+	GapFromNetwork = "reluctance network"
+	// GapFromPull: from the model's pull F at rated current by Maxwell's
+	// pull on a pole face, F = B²·A/(2µ0), so B = √(2µ0·F/A) (Maxwell
+	// stress; Hayt & Buck, Engineering Electromagnetics, the force on
+	// magnetic materials), with the gap law's pole area A.
+	GapFromPull = "Maxwell's pull"
+)
+
+// AirCoreCells is the number of cells of the numerical air-core
+// inductance across the smaller side of the winding window (about 1e-4
+// relative, magnet.AirCoreInductance); the other side gets as many cells
+// as keep them about square, at most airCoreMaxCells.
+const (
+	AirCoreCells    = 32
+	airCoreMaxCells = 256
+)
+
+// CoilFieldFigures computes the coil field figures. s is the scenario md
+// was built from, for the winding window (coil.build) and the gap law's
+// pole area; with s nil only a magnet from geometry gives them.
+func (md *Model) CoilFieldFigures(s *Scenario) CoilField {
+	f := CoilField{Current: md.Drive.Supply.Voltage / md.CoilResistance()}
+	if ri, ro, l, ok := md.windingWindow(s); ok && md.Coil.Turns > 0 {
+		f.airCore(md.Coil.Turns, ri, ro, l)
+	}
+	p := md.Plunger
+	switch {
+	case md.Geometry != nil:
+		bs, errS := md.Geometry.GapFluxDensity(f.Current, p.GapMin)
+		br, errR := md.Geometry.GapFluxDensity(f.Current, p.GapMax)
+		if errS == nil && errR == nil {
+			f.GapSource, f.PoleArea = GapFromNetwork, md.Geometry.FaceArea()
+			f.GapFieldSeated, f.GapFieldRest = math.Abs(bs), math.Abs(br)
+		}
+	case s != nil && s.Magnet.Kind == MagnetGapLaw && s.Magnet.PoleArea > 0:
+		a := s.Magnet.PoleArea
+		pull := func(x float64) float64 {
+			return math.Sqrt(2 * magnet.Mu0 * math.Max(md.Magnet.Force(f.Current, x), 0) / a)
+		}
+		f.GapSource, f.PoleArea = GapFromPull, a
+		f.GapFieldSeated, f.GapFieldRest = pull(p.GapMin), pull(p.GapMax)
+	}
+	if f.CentreField > 0 && f.GapSource != "" {
+		f.GainSeated, f.GainRest = f.GapFieldSeated/f.CentreField, f.GapFieldRest/f.CentreField
+	}
+	if f.Check() != nil { // an input far outside its range: report nothing rather than NaN
+		return CoilField{Current: f.Current}
+	}
+	return f
+}
+
+// windingWindow returns the winding's inner and outer radius and length
+// (m): from the scenario's coil.build, else from the magnet's geometry.
+func (md *Model) windingWindow(s *Scenario) (ri, ro, l float64, ok bool) {
+	if s != nil && s.Coil.Build != nil {
+		b := s.Coil.Build
+		return b.InnerDiameter / 2, b.OuterDiameter / 2, b.Length, true
+	}
+	if md.Geometry != nil {
+		g := md.Geometry.Geometry()
+		return g.WindingInnerRadius, g.WindingOuterRadius, g.WindingLength, true
+	}
+	return 0, 0, 0, false
+}
+
+// airCore fills the air-core figures of turns spread over the window.
+func (f *CoilField) airCore(turns, ri, ro, l float64) {
+	f.HasBuild = true
+	depth, mean := ro-ri, ri+ro // depth and mean diameter
+	f.CentreField = magnet.ThickCentreField(turns, f.Current, 2*ri, 2*ro, l)
+	f.CentreFieldMeanDiameter = magnet.CentreField(turns, f.Current, l, mean)
+	f.WheelerInductance = magnet.WheelerMultilayer(turns, mean/2, l, depth)
+	nr, nz := airCoreGrid(depth, l)
+	f.AirCoreInductance = magnet.AirCoreInductance(magnet.CoilBuild{InnerDiameter: 2 * ri, OuterDiameter: 2 * ro, Length: l}, turns, nr, nz)
+}
+
+// airCoreGrid returns about square cells, AirCoreCells across the smaller
+// side of a depth × length window.
+func airCoreGrid(depth, length float64) (nr, nz int) {
+	cells := func(side, small float64) int {
+		return int(math.Min(airCoreMaxCells, math.Max(AirCoreCells, math.Round(AirCoreCells*side/small))))
+	}
+	small := math.Min(depth, length)
+	if !(small > 0) || math.IsInf(small, 0) {
+		return AirCoreCells, AirCoreCells
+	}
+	return cells(depth, small), cells(length, small)
+}
+
+// Check refuses coil field figures with a figure that is not a finite
+// number, naming the figure.
+func (f CoilField) Check() error {
+	if name := nonFinite(reflect.ValueOf(f), ""); name != "" {
+		return fmt.Errorf("the coil field figure %q is not a finite number (an input far outside its range?)", name)
 	}
 	return nil
 }
