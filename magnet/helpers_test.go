@@ -117,6 +117,9 @@ func testModels(t testing.TB) []namedModel {
 		{"gap law no leakage", mustGapLaw(t)},
 		{"table of gap law", gapLawTable(t, g, 30, 25)},
 		{"saturating table", saturatingTable(t)},
+		{"curves of gap law", gapLawCurves(t, g, []float64{0.6, 1.5, 3})},
+		{"one curve of gap law", gapLawCurves(t, g, []float64{1.2})},
+		{"curves of saturating table", saturatingCurves(t)},
 	}
 }
 

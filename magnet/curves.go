@@ -1,0 +1,511 @@
+package magnet
+
+import (
+	"fmt"
+	"math"
+	"sort"
+)
+
+// MaxForceCurves is the largest number of force curves (currents) a
+// CurveModel takes; data sheets and pull tests give one to a handful
+// (common practice, no source).
+const MaxForceCurves = 32
+
+// MaxCurvePoints is the largest number of points of one force curve.
+const MaxCurvePoints = 2000
+
+// ForceCurve is a measured pull force versus working air gap at one coil
+// current: a data-sheet curve or a pull test.
+type ForceCurve struct {
+	Current float64   // A, > 0
+	Gaps    []float64 // m, strictly ascending
+	Forces  []float64 // N, ≥ 0, the pull toward the smaller gap
+}
+
+// CurveError is a data error of NewCurveModel at a curve (its index in
+// the slice given) and a point of it (−1: the curve as a whole).
+type CurveError struct {
+	Curve, Point int
+	Msg          string
+}
+
+func (e *CurveError) Error() string { return "magnet: force curves: " + e.Msg }
+
+func curveErr(curve, point int, format string, args ...any) *CurveError {
+	return &CurveError{Curve: curve, Point: point, Msg: fmt.Sprintf(format, args...)}
+}
+
+// curveSeg is one piece of a force curve's interpolant: on [x0, x0 + h],
+// F = c0 + c1·s + c2·s² + c3·s³ with s = x − x0; p is the curve's
+// integral from its first knot to x0.
+type curveSeg struct{ x0, h, c0, c1, c2, c3, p float64 }
+
+// gapCurve is one force curve, interpolated in gap.
+type gapCurve struct {
+	i    float64 // A
+	segs []curveSeg
+	lo   float64 // m: the gap span of the data
+	hi   float64
+	top  float64 // ∫ F dx from the first knot to the model's open gap, J
+}
+
+// CurveModel is a magnetic model built from force–gap curves at one or
+// more currents and the inductance measured at the open (rest) gap.
+//
+// The co-energy is anchored at the open gap x_o, where the magnet is taken
+// as linear with the measured inductance L_o, and follows elsewhere from
+// F = −∂W'/∂x at constant current (the co-energy principle, e.g.
+// Fitzgerald & Kingsley, Electric Machinery, ch. 3):
+//
+//	W'(i, x) = ½·L_o·i² + ΔW(i, x),  ΔW(i, x) = ∫_x^x_o F(i, s) ds.
+//
+// Each curve k (current i_k) is interpolated in gap by a shape-preserving
+// piecewise cubic Hermite interpolant (shapeSlopes), held at its end
+// values outside its data, and integrated exactly: G_k(x) = ∫_x^x_o F_k ds,
+// so the co-energy at the curves' currents is y_k(x) = ½·L_o·i_k² + G_k(x).
+// In current, at each gap, λ = ∂W'/∂i is piecewise linear: through the
+// nodes (0, 0), (i_k, a_k) and one knot per interval between, of value the
+// interval's mean flux linkage m_k = (y_k+1 − y_k)/(i_k+1 − i_k), placed
+// so that λ's integral over the interval is y_k+1 − y_k. The node values
+// a_k interpolate the means linearly between the intervals' middles (and
+// extrapolate at the last curve), so a_k lies between m_k−1 and m_k: λ
+// rises wherever the means rise, which is the condition for W' to be
+// convex in i — for the curves to come from a passive magnet (NewCurveModel
+// refuses them otherwise). Curves that scale with i² (a linear magnet)
+// give λ = L(x)·i exactly; with a single curve the model is linear at
+// every current, L(x) = L_o + 2·G_1(x)/i_1². Above the highest curve λ
+// rises at L_o (the iron taken as saturated: the extra ampere-turns add
+// flux as the open gap's inductance does), so the force grows about
+// linearly with the current there. Saturation shows wherever the curves
+// stop scaling with i².
+//
+// The force is F = −∂W'/∂x of that co-energy exactly (the gap derivatives
+// are carried through by forward-mode automatic differentiation): energy
+// is conserved by construction, and at a curve's current the force is that
+// curve (at its points, its data). λ is odd in i. Gaps outside GapRange are
+// clamped: λ, W' and the force hold their end values.
+type CurveModel struct {
+	lo         float64 // H, at xMax
+	xMin, xMax float64 // m
+	curves     []gapCurve
+	cur        []float64 // A, the curves' currents
+}
+
+// NewCurveModel builds the model from the curves (ascending currents), the
+// inductance lOpen (H) measured at the open gap xMax (m), over the gaps
+// xMin..xMax (the plunger's stroke; xMin ≥ 0). It returns a *CurveError for
+// a curve that cannot come from a passive magnet or cannot be
+// interpolated: fewer than two points, gaps not strictly ascending, a
+// negative or non-finite force, a curve entirely outside xMin..xMax, a
+// current not above the previous curve's, a force that falls where the
+// current rises at a gap, or a flux linkage that would not rise with the
+// current.
+func NewCurveModel(curves []ForceCurve, lOpen, xMin, xMax float64) (*CurveModel, error) {
+	if !(lOpen > 0) || math.IsInf(lOpen, 0) {
+		return nil, fmt.Errorf("magnet: force curves: open-gap inductance must be positive and finite, got %g H", lOpen)
+	}
+	if !(xMin >= 0) || !(xMax > xMin) || math.IsInf(xMax, 0) {
+		return nil, fmt.Errorf("magnet: force curves: need 0 ≤ seated gap < rest gap, got %g m and %g m", xMin, xMax)
+	}
+	if len(curves) == 0 || len(curves) > MaxForceCurves {
+		return nil, curveErr(-1, -1, "%d curves; give 1 to %d", len(curves), MaxForceCurves)
+	}
+	m := &CurveModel{lo: lOpen, xMin: xMin, xMax: xMax}
+	for k, c := range curves {
+		gc, err := newGapCurve(k, c, xMin, xMax)
+		if err != nil {
+			return nil, err
+		}
+		if k > 0 && !(c.Current > curves[k-1].Current) {
+			return nil, curveErr(k, 0, "current %.4g A is not above the previous curve's %.4g A; give the curves in order of rising current, one current each", c.Current, curves[k-1].Current)
+		}
+		m.curves = append(m.curves, gc)
+		m.cur = append(m.cur, c.Current)
+	}
+	for k := 1; k < len(curves); k++ {
+		if err := m.checkRising(k, curves); err != nil {
+			return nil, err
+		}
+	}
+	if err := m.checkFlux(); err != nil {
+		return nil, err
+	}
+	return m, nil
+}
+
+// newGapCurve checks curve k and builds its interpolant over its data,
+// extended at its end values to cover xMin..xMax.
+func newGapCurve(k int, c ForceCurve, xMin, xMax float64) (gapCurve, *CurveError) {
+	n := len(c.Gaps)
+	switch {
+	case !(c.Current > 0) || math.IsInf(c.Current, 0):
+		return gapCurve{}, curveErr(k, 0, "current must be positive and finite, got %g A", c.Current)
+	case n != len(c.Forces):
+		return gapCurve{}, curveErr(k, -1, "%d gaps but %d forces", n, len(c.Forces))
+	case n < 2:
+		return gapCurve{}, curveErr(k, 0, "the curve at %.4g A has %d point; a curve needs at least two", c.Current, n)
+	case n > MaxCurvePoints:
+		return gapCurve{}, curveErr(k, MaxCurvePoints, "the curve at %.4g A has %d points; at most %d", c.Current, n, MaxCurvePoints)
+	}
+	for j := range n {
+		x, f := c.Gaps[j], c.Forces[j]
+		switch {
+		case !(x >= 0) || math.IsInf(x, 0):
+			return gapCurve{}, curveErr(k, j, "gap must be ≥ 0 and finite, got %g m", x)
+		case j > 0 && !(x > c.Gaps[j-1]):
+			return gapCurve{}, curveErr(k, j, "gap %.4g mm does not follow %.4g mm of the previous point: a curve's gaps must rise (or fall) strictly", x*1e3, c.Gaps[j-1]*1e3)
+		case !(f >= 0) || math.IsInf(f, 0):
+			return gapCurve{}, curveErr(k, j, "force must be ≥ 0 and finite (a pull), got %g N", f)
+		}
+	}
+	if c.Gaps[n-1] <= xMin || c.Gaps[0] >= xMax {
+		return gapCurve{}, curveErr(k, -1, "the curve at %.4g A covers gaps %.4g–%.4g mm, outside the stroke %.4g–%.4g mm", c.Current, c.Gaps[0]*1e3, c.Gaps[n-1]*1e3, xMin*1e3, xMax*1e3)
+	}
+	g := gapCurve{i: c.Current, lo: c.Gaps[0], hi: c.Gaps[n-1]}
+	d := make([]float64, n)
+	shapeSlopes(c.Gaps, c.Forces, d)
+	p := 0.0
+	add := func(x0, h, c0, c1, c2, c3 float64) {
+		g.segs = append(g.segs, curveSeg{x0: x0, h: h, c0: c0, c1: c1, c2: c2, c3: c3, p: p})
+		p += h * (c0 + h*(c1/2+h*(c2/3+h*c3/4)))
+	}
+	if xMin < c.Gaps[0] {
+		add(xMin, c.Gaps[0]-xMin, c.Forces[0], 0, 0, 0)
+	}
+	for j := 0; j < n-1; j++ {
+		h := c.Gaps[j+1] - c.Gaps[j]
+		c0, c1, c2, c3 := hermiteCoeffs(h, c.Forces[j], c.Forces[j+1], d[j], d[j+1])
+		add(c.Gaps[j], h, c0, c1, c2, c3)
+	}
+	if xMax > c.Gaps[n-1] {
+		add(c.Gaps[n-1], xMax-c.Gaps[n-1], c.Forces[n-1], 0, 0, 0)
+	}
+	_, g.top = g.eval(xMax)
+	return g, nil
+}
+
+// shapeSlopes sets d to the node slopes of a shape-preserving cubic
+// Hermite interpolant of y(x): the three-point (parabola) derivative,
+// third-order accurate on smooth data, limited by the filter of Hyman
+// (J. M. Hyman, "Accurate monotonicity preserving cubic interpolation",
+// SIAM J. Sci. Stat. Comput. 4(4), 645–654, 1983): zero at a local
+// extremum of the data, else at most three times the smaller adjacent
+// secant in magnitude, with the secant's sign — which keeps each interval
+// monotone where the data are (Fritsch & Carlson 1980) and a force curve
+// from going negative between non-negative points.
+func shapeSlopes(x, y, d []float64) {
+	n := len(x)
+	h := func(k int) float64 { return x[k+1] - x[k] }
+	del := func(k int) float64 { return (y[k+1] - y[k]) / h(k) }
+	if n == 2 {
+		d[0], d[1] = del(0), del(0)
+		return
+	}
+	for k := 1; k < n-1; k++ {
+		a, b := del(k-1), del(k)
+		d[k] = 0
+		if a*b > 0 {
+			p := (h(k)*a + h(k-1)*b) / (h(k-1) + h(k))
+			d[k] = math.Copysign(math.Min(math.Abs(p), 3*math.Min(math.Abs(a), math.Abs(b))), a)
+		}
+	}
+	d[0] = endSlope(h(0), h(1), del(0), del(1))
+	d[n-1] = endSlope(h(n-2), h(n-3), del(n-2), del(n-3))
+}
+
+// endSlope is the one-sided three-point slope at an end with the interval
+// h0 and secant d0 next to it and h1, d1 beyond, limited as inside: zero
+// when its sign differs from d0's, at most 3·|d0|.
+func endSlope(h0, h1, d0, d1 float64) float64 {
+	d := ((2*h0+h1)*d0 - h0*d1) / (h0 + h1)
+	if d*d0 <= 0 {
+		return 0
+	}
+	return math.Copysign(math.Min(math.Abs(d), 3*math.Abs(d0)), d0)
+}
+
+// eval returns the curve's force F (N) at x and its integral P (J) from the
+// first knot to x; x is within the knots.
+func (g *gapCurve) eval(x float64) (f, p float64) {
+	k := sort.Search(len(g.segs), func(k int) bool { return g.segs[k].x0+g.segs[k].h >= x })
+	if k == len(g.segs) {
+		k--
+	}
+	s := &g.segs[k]
+	t := math.Min(math.Max(x-s.x0, 0), s.h)
+	f = s.c0 + t*(s.c1+t*(s.c2+t*s.c3))
+	p = s.p + t*(s.c0+t*(s.c1/2+t*(s.c2/3+t*s.c3/4)))
+	return f, p
+}
+
+// dual is a number with its derivative along the gap, for the co-energy
+// and flux linkage as functions of x (forward-mode automatic
+// differentiation): the force is then the exact −∂W'/∂x of the co-energy
+// as computed.
+type dual struct{ v, d float64 }
+
+func (a dual) add(b dual) dual      { return dual{a.v + b.v, a.d + b.d} }
+func (a dual) sub(b dual) dual      { return dual{a.v - b.v, a.d - b.d} }
+func (a dual) mul(b dual) dual      { return dual{a.v * b.v, a.d*b.v + a.v*b.d} }
+func (a dual) scale(k float64) dual { return dual{a.v * k, a.d * k} }
+func (a dual) div(b dual) dual {
+	return dual{a.v / b.v, (a.d*b.v - a.v*b.d) / (b.v * b.v)}
+}
+
+// profile is the model at one gap: the co-energy at the curves' currents
+// y_k (node 0 at zero current), the mean flux linkage m_k over each current
+// interval, and the flux linkage a_k at each node, all with their
+// derivatives along the gap.
+type profile struct {
+	n int // curves
+	y [MaxForceCurves + 1]dual
+	m [MaxForceCurves]dual
+	a [MaxForceCurves + 1]dual
+}
+
+// node returns the current of node k (0: zero current).
+func (m *CurveModel) node(k int) float64 {
+	if k == 0 {
+		return 0
+	}
+	return m.cur[k-1]
+}
+
+// profileAt returns the profile at gap x (clamped to the range).
+func (m *CurveModel) profileAt(x float64) profile {
+	x = clamp(x, m.xMin, m.xMax)
+	n := len(m.curves)
+	p := profile{n: n}
+	for k := range m.curves {
+		c := &m.curves[k]
+		f, q := c.eval(x)
+		i := c.i
+		// W'(i_k, x) = ½·L_o·i_k² + ∫_x^x_o F_k ds; ∂/∂x = −F_k(x)
+		p.y[k+1] = dual{0.5*m.lo*i*i + c.top - q, -f}
+	}
+	for k := range n {
+		p.m[k] = p.y[k+1].sub(p.y[k]).scale(1 / (m.node(k+1) - m.node(k)))
+	}
+	if n == 1 {
+		p.a[1] = p.m[0].scale(2)
+		return p
+	}
+	mid := func(k int) float64 { return 0.5 * (m.node(k) + m.node(k+1)) }
+	for k := 1; k < n; k++ {
+		r := (m.node(k) - mid(k-1)) / (mid(k) - mid(k-1))
+		p.a[k] = p.m[k-1].add(p.m[k].sub(p.m[k-1]).scale(r))
+	}
+	r := (m.node(n) - mid(n-1)) / (mid(n-1) - mid(n-2))
+	p.a[n] = p.m[n-1].add(p.m[n-1].sub(p.m[n-2]).scale(r))
+	return p
+}
+
+// state is the model at one current and gap: co-energy W' (J) and flux
+// linkage λ (Wb) with their gap derivatives, and ∂λ/∂i (H).
+type state struct {
+	w, lam dual
+	dlam   float64
+}
+
+// at evaluates the profile at current i ≥ 0. Between two nodes λ is
+// piecewise linear through a_k, a knot of value m_k and a_k+1, the knot
+// placed so that λ's mean over the interval is m_k: W' then takes the
+// curves' co-energy at their currents, λ rises wherever the m_k rise, and
+// a curve that scales with i² gives the knot at the interval's middle on
+// the straight line λ = L·i. With one curve λ is linear; above the last
+// curve λ rises at L_o from a_n.
+func (m *CurveModel) at(p *profile, i float64) state {
+	n := p.n
+	if n == 1 {
+		k := 1 / (m.cur[0] * m.cur[0])
+		return state{w: p.y[1].scale(k * i * i), lam: p.y[1].scale(2 * k * i), dlam: 2 * k * p.y[1].v}
+	}
+	if in := m.cur[n-1]; i >= in {
+		s := i - in
+		return state{w: p.y[n].add(p.a[n].scale(s)).add(dual{0.5 * m.lo * s * s, 0}),
+			lam: p.a[n].add(dual{m.lo * s, 0}), dlam: m.lo}
+	}
+	k := sort.SearchFloat64s(m.cur, i) // node k ≤ i < node k+1
+	if i == m.node(k+1) {
+		k++ // i on a node: the interval that starts there
+	}
+	h := m.node(k+1) - m.node(k)
+	a, b, c := p.a[k], p.m[k], p.a[k+1]
+	th := c.sub(b).div(c.sub(a)) // knot at θ·h
+	pk := th.scale(h)
+	s := dual{i - m.node(k), 0}
+	if s.v <= pk.v {
+		sl := b.sub(a).div(pk)
+		return state{w: p.y[k].add(a.mul(s)).add(sl.mul(s).mul(s).scale(0.5)), lam: a.add(sl.mul(s)), dlam: sl.v}
+	}
+	q := s.sub(pk)
+	sl := c.sub(b).div(dual{h, 0}.sub(pk))
+	w := p.y[k].add(a.add(b).mul(pk).scale(0.5)).add(b.mul(q)).add(sl.mul(q).mul(q).scale(0.5))
+	return state{w: w, lam: b.add(sl.mul(q)), dlam: sl.v}
+}
+
+// FluxLinkage returns λ = ∂W'/∂i (Wb).
+func (m *CurveModel) FluxLinkage(i, x float64) float64 {
+	p := m.profileAt(x)
+	return math.Copysign(m.at(&p, math.Abs(i)).lam.v, i)
+}
+
+// CoEnergy returns W'(i, x) (J).
+func (m *CurveModel) CoEnergy(i, x float64) float64 {
+	p := m.profileAt(x)
+	return m.at(&p, math.Abs(i)).w.v
+}
+
+// Force returns F = −∂W'/∂x (N); outside GapRange the end value.
+func (m *CurveModel) Force(i, x float64) float64 {
+	p := m.profileAt(x)
+	return -m.at(&p, math.Abs(i)).w.d
+}
+
+// GapRange returns the stroke the model was built for.
+func (m *CurveModel) GapRange() (min, max float64) { return m.xMin, m.xMax }
+
+// Current returns i with FluxLinkage(i, x) = lam: λ is piecewise linear in
+// i, so each piece inverts exactly.
+func (m *CurveModel) Current(lam, x float64) float64 {
+	p := m.profileAt(x)
+	return math.Copysign(m.current(&p, math.Abs(lam)), lam)
+}
+
+func (m *CurveModel) current(p *profile, lam float64) float64 {
+	n := p.n
+	if n == 1 {
+		return lam / p.a[1].v * m.cur[0]
+	}
+	// the pieces' corners (i, λ) in order: nodes and knots
+	i0, l0 := 0.0, 0.0
+	for k := range n {
+		h := m.node(k+1) - m.node(k)
+		a, b, c := p.a[k].v, p.m[k].v, p.a[k+1].v
+		ik := m.node(k) + h*(c-b)/(c-a)
+		for _, corner := range [2][2]float64{{ik, b}, {m.node(k + 1), c}} {
+			i1, l1 := corner[0], corner[1]
+			if lam <= l1 && l1 > l0 {
+				return i0 + (i1-i0)*(lam-l0)/(l1-l0)
+			}
+			i0, l0 = i1, l1
+		}
+	}
+	return m.cur[n-1] + (lam-p.a[n].v)/m.lo
+}
+
+// Partials returns ∂i/∂λ (1/H) and ∂i/∂x (A/m) at (λ, x) (0 outside
+// GapRange, where the model is clamped).
+func (m *CurveModel) Partials(lam, x float64) (diDlam, diDx float64) {
+	p := m.profileAt(x)
+	st := m.at(&p, m.current(&p, math.Abs(lam)))
+	diDx = -st.lam.d / st.dlam
+	if x < m.xMin || x > m.xMax {
+		diDx = 0
+	}
+	return 1 / st.dlam, math.Copysign(diDx, lam)
+}
+
+// OpenInductance returns the measured inductance the model is anchored at
+// (H, at the rest gap).
+func (m *CurveModel) OpenInductance() float64 { return m.lo }
+
+// SmallSignalInductance returns the model's inductance at zero current
+// (H): L_o + ∂²ΔW/∂i² at i = 0; with one curve L_o + 2·G_1(x)/i_1².
+func (m *CurveModel) SmallSignalInductance(x float64) float64 {
+	p := m.profileAt(x)
+	return m.at(&p, 0).dlam
+}
+
+// Currents returns the curves' currents (A), ascending.
+func (m *CurveModel) Currents() []float64 { return append([]float64(nil), m.cur...) }
+
+// DataGaps returns the gaps (m) the curves' data cover together: from the
+// smallest first gap to the largest last gap. Outside it the force is
+// extrapolated at the curves' end values.
+func (m *CurveModel) DataGaps() (lo, hi float64) {
+	lo, hi = math.Inf(1), math.Inf(-1)
+	for _, g := range m.curves {
+		lo, hi = math.Min(lo, g.lo), math.Max(hi, g.hi)
+	}
+	return lo, hi
+}
+
+// risingTol is the relative amount by which a curve's force may fall
+// below the lower current's at a gap (rounding of the data).
+const risingTol = 1e-6
+
+// checkRising refuses a curve k whose force falls below curve k−1's at a
+// gap both cover (at each data point of either).
+func (m *CurveModel) checkRising(k int, curves []ForceCurve) *CurveError {
+	a, b := &m.curves[k-1], &m.curves[k]
+	lo, hi := math.Max(a.lo, b.lo), math.Min(a.hi, b.hi)
+	check := func(x float64, point int) *CurveError {
+		if x < lo || x > hi {
+			return nil
+		}
+		fa, _ := a.eval(x)
+		fb, _ := b.eval(x)
+		if fb < fa*(1-risingTol) {
+			return curveErr(k, point, "at gap %.4g mm the force %.4g N at %.4g A is below the %.4g N at the lower current %.4g A: a passive magnet's pull cannot fall when the current rises", x*1e3, fb, b.i, fa, a.i)
+		}
+		return nil
+	}
+	for j, x := range curves[k].Gaps {
+		if err := check(x, j); err != nil {
+			return err
+		}
+	}
+	for _, x := range curves[k-1].Gaps {
+		if err := check(x, -1); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// fluxCheckSub is the number of check points per gap interval of each
+// curve at which NewCurveModel verifies that the curves' co-energy is
+// convex in the current.
+const fluxCheckSub = 8
+
+// convexTol is the relative rise of the mean flux linkage from one current
+// interval to the next below which the curves are refused: a passive
+// magnet's flux linkage rises with the current (by at least its air-core
+// inductance; common practice, no source).
+const convexTol = 1e-9
+
+// checkFlux refuses curves whose co-energy is not convex in the current at
+// some gap: the mean flux linkage over each interval between the curves'
+// currents must rise from one interval to the next (λ = ∂W'/∂i rises with
+// i in a passive magnet). It checks at every knot of every curve and
+// fluxCheckSub points between.
+func (m *CurveModel) checkFlux() *CurveError {
+	var gaps []float64
+	for _, g := range m.curves {
+		for _, s := range g.segs {
+			for q := 0; q < fluxCheckSub; q++ {
+				gaps = append(gaps, s.x0+s.h*float64(q)/fluxCheckSub)
+			}
+		}
+	}
+	gaps = append(gaps, m.xMax)
+	for _, x := range gaps {
+		if x < m.xMin || x > m.xMax {
+			continue
+		}
+		p := m.profileAt(x)
+		for k := 1; k < p.n; k++ {
+			if lo, hi := p.m[k-1].v, p.m[k].v; !(hi > lo*(1+convexTol)) {
+				return curveErr(k, -1, "at gap %.4g mm the curves at %.4g A and %.4g A give a mean flux linkage of %.4g mWb between them, not above the %.4g mWb below %.4g A: a passive magnet's flux linkage rises with the current; the force at %.4g A is too high for the curves below it (or the open-gap inductance too low)", x*1e3, m.node(k), m.node(k+1), hi*1e3, lo*1e3, m.node(k), m.node(k+1))
+			}
+		}
+	}
+	return nil
+}
+
+
+// String describes the model.
+func (m *CurveModel) String() string {
+	return fmt.Sprintf("force curves (%d at %.4g–%.4g A, L_o %.4g H)", len(m.cur), m.cur[0], m.cur[len(m.cur)-1], m.lo)
+}
