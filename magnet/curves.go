@@ -504,7 +504,6 @@ func (m *CurveModel) checkFlux() *CurveError {
 	return nil
 }
 
-
 // String describes the model.
 func (m *CurveModel) String() string {
 	return fmt.Sprintf("force curves (%d at %.4g–%.4g A, L_o %.4g H)", len(m.cur), m.cur[0], m.cur[len(m.cur)-1], m.lo)
