@@ -47,7 +47,7 @@ type printed struct{ v, half float64 }
 
 // printedNumber is a number in the text output, with its SI prefix and
 // unit when it has one.
-var printedNumber = regexp.MustCompile(`(-?\d+)(?:\.(\d+))?(?: ?(µ|m|k)?(A|V|W|J|s|Hz|H|ohm|N|g|m)\b)?`)
+var printedNumber = regexp.MustCompile(`(-?\d+)(?:\.(\d+))?(?: ?(µ|m|k)?(A|V|W|J|s|Hz|H|ohm|N|T|g|m)\b)?`)
 
 // figuresAfter returns the numbers printed after label on the first line
 // of lines that contains it.
@@ -294,7 +294,66 @@ func TestGoldenClosedForms(t *testing.T) {
 			{"time constant L/R", 0, lSeated.v / r20, lSeated.half / lSeated.v, "L/R (RL circuit, any circuits textbook)"},
 			{"time constant L/R", 1, lRest.v / r20, lRest.half / lRest.v, "L/R (RL circuit, any circuits textbook)"},
 		})
+		checkCoilFieldClosedForms(t, sc, lines, turns, v/r20)
 	})
+}
+
+// checkCoilFieldClosedForms checks the dosing demo's "Coil field" block:
+// the air-core figures against their formulas at the winding's turns and
+// the rated current i, the printed ratios against the printed fields, and
+// the printed gap flux density against the printed pull by Maxwell's
+// formula.
+func checkCoilFieldClosedForms(t *testing.T, sc *coilkick.Scenario, lines []string, turns, i float64) {
+	t.Helper()
+	const mu0 = 4 * math.Pi * 1e-7 // H/m, the SI value before 2019 (1e-9 from CODATA 2018)
+	b := sc.Coil.Build
+	r1, r2, l := b.InnerDiameter/2, b.OuterDiameter/2, b.Length
+	const in = 0.0254
+	a, c := (r1+r2)/2/in, (r2-r1)/in
+	centre := figuresAfter(t, lines, "air-core centre flux density")[0]
+	rel := func(p printed) float64 { return p.half / p.v }
+	forms := []closedForm{
+		{"Coil field at rated current", 0, i, 0, "supply ÷ R20 (Ohm's law)"},
+		{"air-core centre flux density", 0, mu0 * turns * i / (2 * (r2 - r1)) * math.Log((r2+math.Hypot(r2, l/2))/(r1+math.Hypot(r1, l/2))), 0,
+			"thick winding of uniform current density, µ0·J·r1·F(α, β) (Montgomery, Solenoid Magnet Design, 1969)"},
+		{"air-core centre flux density", 1, mu0 * turns * i / math.Hypot(l, r1+r2), 0,
+			"finite thin solenoid µ0·N·I/√(l² + d²) at the mean diameter (Griffiths, Introduction to Electrodynamics, ch. 5)"},
+		{"air-core inductance", 0, 1e-6 * 0.8 * a * a * turns * turns / (6*a + 9*l/in + 10*c), 0,
+			"Wheeler 1928, L[µH] = 0.8·a²·N²/(6a + 9b + 10c), inches"},
+	}
+	// The ratios: the printed gap field over the printed centre field
+	// (their definition), within both prints' rounding.
+	var gains []float64
+	for k, at := range []string{"seated", "rest"} {
+		gap := figuresAfter(t, lines, "gap flux density, "+at+" gap")[0]
+		gains = append(gains, gap.v/centre.v)
+		forms = append(forms,
+			closedForm{"gap flux density, " + at + " gap", 1, gap.v / centre.v, rel(gap) + rel(centre), "gap field ÷ air-core centre field"},
+			closedForm{"the iron circuit multiplies", k, gap.v / centre.v, rel(gap) + rel(centre), "gap field ÷ air-core centre field"})
+	}
+	checkClosedForms(t, "dosing-magnet", forms)
+	// source: Maxwell's pull on a pole face F = B²·A/(2µ0) (Hayt & Buck,
+	// Engineering Electromagnetics, the force on magnetic materials) with
+	// A = π·d²/4, plus the fringing permeance's share 4·t·x/(d·(x + π·t))
+	// of the network's pull (Roters' paths, magnet/reluctance.go; t the
+	// radial room to the coil bore); 1 % for the table's pull (measured
+	// 0.5 %, TestCoilFieldGeometry), the rest the prints' rounding.
+	d := sc.Magnet.Geometry.PlungerDiameter
+	tf := r1 - d/2
+	for _, at := range []struct {
+		name string
+		x    float64
+	}{{"seated", sc.Plunger.SeatedGap}, {"rest", sc.Plunger.RestGap}} {
+		gap := figuresAfter(t, lines, "gap flux density, "+at.name+" gap")[0]
+		pull := figuresAfter(t, lines, "pull at "+at.name+" gap, rated current")[0]
+		want := gap.v * gap.v * math.Pi * d * d / 4 / (2 * mu0) * (1 + 4*tf*at.x/(d*(at.x+math.Pi*tf)))
+		if tol := 2*rel(gap) + rel(pull) + 0.01; math.Abs(pull.v-want) > tol*want {
+			t.Errorf("%s gap: pull %g N printed, Maxwell's pull of the printed %g T is %g N (tolerance %g)", at.name, pull.v, gap.v, want, tol)
+		}
+	}
+	if !(gains[0] > gains[1] && gains[1] > 1) {
+		t.Errorf("gap field ratios %v: want the seated above the rest gap's, both above 1", gains)
+	}
 }
 
 // TestMagnetCurvesClosedForm: magnet --curves of the gap-law demo is the

@@ -16,25 +16,34 @@ import (
 // cmdMagnet prints the coil and magnet figures and writes the force
 // curves (--curves, --json, --plot) and the figures (--json, --csv).
 func cmdMagnet(c *cli.Context, w io.Writer) error {
-	path, md, err := loadArg(c)
+	sim, err := loadScenario(c)
 	if err != nil {
 		return err
 	}
+	path, md := sim.path, sim.md
 	s := md.MagnetSummary()
 	if err := checkMagnetFigures(path, md, &s); err != nil {
 		return err
 	}
+	field := md.CoilFieldFigures(sim.sc)
 	currents, err := magnetCurrents(c.String("currents"), s.RatedCurrent)
 	if err != nil {
 		return err
 	}
-	if err := writeMagnetOutputs(c, w, path, md, &s, currents); err != nil {
+	if err := writeMagnetOutputs(c, w, path, md, &magnetFigs{&s, &field}, currents); err != nil {
 		return err
 	}
 	if !toStdout(c, "json", "csv", "curves") {
-		printMagnet(w, path, md, &s)
+		printMagnet(w, path, md, &magnetFigs{&s, &field})
 	}
 	return nil
+}
+
+// magnetFigs are the magnet command's figures: the magnet summary and
+// the coil field.
+type magnetFigs struct {
+	s     *coilkick.MagnetSummary
+	field *coilkick.CoilField
 }
 
 // checkMagnetFigures refuses a magnet whose figures are not finite (a
@@ -84,7 +93,7 @@ func ratedFamily(rated float64) []float64 {
 // writeMagnetOutputs writes the magnet's outputs together: the plot (81
 // gaps), the curves of --curves and --json (curveGaps gaps), the figures
 // of --json and --csv.
-func writeMagnetOutputs(c *cli.Context, w io.Writer, path string, md *coilkick.Model, s *coilkick.MagnetSummary, currents []float64) error {
+func writeMagnetOutputs(c *cli.Context, w io.Writer, path string, md *coilkick.Model, figs *magnetFigs, currents []float64) error {
 	outs := newOutputs(w)
 	if f := c.String("plot"); f != "" {
 		curves, err := md.ForceCurves(currents, 81)
@@ -109,7 +118,8 @@ func writeMagnetOutputs(c *cli.Context, w io.Writer, path string, md *coilkick.M
 	if f := c.String("curves"); f != "" {
 		outs.add(f, func(out io.Writer) error { return writeCurves(out, md, curves) })
 	}
-	doc := newMagnetDoc(path, md, s, curves)
+	doc := newMagnetDoc(path, md, figs.s, curves)
+	doc.Field = newMagnetCoilField(figs.field)
 	if f := c.String("json"); f != "" {
 		outs.add(f, func(out io.Writer) error { return writeJSONDoc(out, doc) })
 	}
@@ -134,7 +144,8 @@ func toStdout(c *cli.Context, flags ...string) bool {
 	return false
 }
 
-func printMagnet(w io.Writer, path string, md *coilkick.Model, s *coilkick.MagnetSummary) {
+func printMagnet(w io.Writer, path string, md *coilkick.Model, figs *magnetFigs) {
+	s := figs.s
 	b := bufio.NewWriter(w)
 	defer b.Flush()
 	name := md.Name
@@ -185,9 +196,68 @@ func printMagnet(w io.Writer, path string, md *coilkick.Model, s *coilkick.Magne
 			}
 		}
 	}
+	printCoilField(b, figs.field)
 	if s.ForceAtRest <= s.SpringAtRest {
 		fmt.Fprintln(b, "\n  WARNING: at rated current the pull at the rest gap does not exceed the spring and load: it will not pull in")
 	}
+}
+
+// printCoilField prints the coil field block: the winding's air-core
+// field and inductance, the working gap's flux density and their ratio;
+// a figure that needs what the scenario does not give is left out, with
+// a one-line hint.
+func printCoilField(b io.Writer, f *coilkick.CoilField) {
+	row := func(name, value string) { fmt.Fprintf(b, "  %-34s %s\n", name, value) }
+	gap := f.GapSource != ""
+	if !f.HasBuild && !gap {
+		fmt.Fprintln(b, "Coil field: not available (the air-core field needs coil.build; the gap field a magnet from geometry or a gap law pole area)")
+		return
+	}
+	fmt.Fprintf(b, "Coil field at rated current (%s)\n", si(f.Current, "A"))
+	if f.HasBuild {
+		row("air-core centre flux density", fmt.Sprintf("%s (thick winding; %s as a thin coil of the mean diameter)", si(f.CentreField, "T"), si(f.CentreFieldMeanDiameter, "T")))
+		row("air-core inductance", fmt.Sprintf("%s (Wheeler), %s (numerical)", si(f.WheelerInductance, "H"), si(f.AirCoreInductance, "H")))
+	}
+	if !gap {
+		fmt.Fprintln(b, "  (the gap flux density needs a magnet from geometry or a gap law pole area)")
+		return
+	}
+	for _, at := range []struct {
+		name      string
+		b, factor float64
+	}{{"seated", f.GapFieldSeated, f.GainSeated}, {"rest", f.GapFieldRest, f.GainRest}} {
+		v := si(at.b, "T")
+		if f.HasBuild {
+			v += fmt.Sprintf(" (%s × the air-core centre field)", sig3(at.factor))
+		}
+		row("gap flux density, "+at.name+" gap", v)
+	}
+	switch f.GapSource {
+	case coilkick.GapFromNetwork:
+		fmt.Fprintf(b, "  (gap flux density between the %s pole faces, from the reluctance network, fringing flux not in it)\n", area(f.PoleArea))
+	case coilkick.GapFromPull:
+		fmt.Fprintf(b, "  (gap flux density from the pull by Maxwell's formula B = √(2·µ0·F/A), pole area %s)\n", area(f.PoleArea))
+	}
+	if f.HasBuild {
+		fmt.Fprintf(b, "  (the iron circuit multiplies the coil's own field by %s seated, %s at rest)\n", sig3(f.GainSeated), sig3(f.GainRest))
+	} else {
+		fmt.Fprintln(b, "  (the air-core field needs coil.build)")
+	}
+}
+
+// sig3 formats a positive ratio with three significant digits, without
+// an exponent.
+func sig3(v float64) string {
+	digits := 0
+	if v > 0 {
+		digits = max(0, min(6, 2-int(math.Floor(math.Log10(v)))))
+	}
+	return strconv.FormatFloat(v, 'f', digits, 64)
+}
+
+// area formats an area (m²) in mm².
+func area(a float64) string {
+	return strconv.FormatFloat(a*1e6, 'g', 3, 64) + " mm²"
 }
 
 // writeCurves writes the force curves in long form, one row per current
@@ -207,9 +277,41 @@ func writeCurves(w io.Writer, md *coilkick.Model, curves []coilkick.ForceCurve) 
 // output"); magnetCoil, magnetFigures and magnetCurves its parts.
 type magnetDoc struct {
 	jsonHeader
-	Coil   magnetCoil    `json:"coil"`
-	Magnet magnetFigures `json:"magnet"`
-	Curves magnetCurves  `json:"force_curves"`
+	Coil   magnetCoil      `json:"coil"`
+	Magnet magnetFigures   `json:"magnet"`
+	Field  magnetCoilField `json:"coil_field"`
+	Curves magnetCurves    `json:"force_curves"`
+}
+
+// magnetCoilField: the coil's air-core field and the working gap's field
+// at rated current (coilkick.CoilField); null where not available.
+type magnetCoilField struct {
+	CentreField       *float64 `json:"air_core_centre_flux_density_T"`
+	CentreFieldThin   *float64 `json:"air_core_centre_flux_density_thin_T"`
+	WheelerInductance *float64 `json:"air_core_inductance_wheeler_H"`
+	AirCoreInductance *float64 `json:"air_core_inductance_numerical_H"`
+	GapSource         *string  `json:"gap_flux_density_source"`
+	PoleArea          *float64 `json:"pole_area_m2"`
+	GapFieldSeated    *float64 `json:"gap_flux_density_seated_T"`
+	GapFieldRest      *float64 `json:"gap_flux_density_rest_T"`
+	GainSeated        *float64 `json:"gap_to_air_core_field_seated"`
+	GainRest          *float64 `json:"gap_to_air_core_field_rest"`
+}
+
+func newMagnetCoilField(f *coilkick.CoilField) magnetCoilField {
+	build, gap := f.HasBuild, f.GapSource != ""
+	d := magnetCoilField{
+		CentreField: optional(f.CentreField, build), CentreFieldThin: optional(f.CentreFieldMeanDiameter, build),
+		WheelerInductance: optional(f.WheelerInductance, build), AirCoreInductance: optional(f.AirCoreInductance, build),
+		PoleArea: optional(f.PoleArea, f.PoleArea > 0), GapFieldSeated: optional(f.GapFieldSeated, gap),
+		GapFieldRest: optional(f.GapFieldRest, gap), GainSeated: optional(f.GainSeated, build && gap),
+		GainRest: optional(f.GainRest, build && gap),
+	}
+	if gap {
+		src := f.GapSource
+		d.GapSource = &src
+	}
+	return d
 }
 
 type magnetCoil struct {
@@ -308,10 +410,11 @@ func newMagnetDoc(path string, md *coilkick.Model, s *coilkick.MagnetSummary, cu
 }
 
 // writeMagnetCSV writes the summary figures as one row: the keys of the
-// document's coil and magnet parts, less the text (the steel part's
-// name) and the constants of the saturation definition.
+// document's coil, magnet and coil_field parts, less the text (the steel
+// part's name, the gap field's source) and the constants of the
+// saturation definition.
 func writeMagnetCSV(w io.Writer, d *magnetDoc) error {
-	c, m := &d.Coil, &d.Magnet
+	c, m, f := &d.Coil, &d.Magnet, &d.Field
 	intPtr := func(v *int) string {
 		if v == nil {
 			return ""
@@ -333,6 +436,11 @@ func writeMagnetCSV(w io.Writer, d *magnetDoc) error {
 		{"pulls_in_at_rated_current", strconv.FormatBool(m.PullsIn)},
 		{"saturation_onset_seated_A", numPtr(m.SaturationSeated)}, {"saturation_onset_rest_A", numPtr(m.SaturationRest)},
 		{"steel_flux_density_seated_T", numPtr(m.SteelFluxSeated)}, {"steel_flux_density_rest_T", numPtr(m.SteelFluxRest)},
+		{"air_core_centre_flux_density_T", numPtr(f.CentreField)}, {"air_core_centre_flux_density_thin_T", numPtr(f.CentreFieldThin)},
+		{"air_core_inductance_wheeler_H", numPtr(f.WheelerInductance)}, {"air_core_inductance_numerical_H", numPtr(f.AirCoreInductance)},
+		{"pole_area_m2", numPtr(f.PoleArea)}, {"gap_flux_density_seated_T", numPtr(f.GapFieldSeated)},
+		{"gap_flux_density_rest_T", numPtr(f.GapFieldRest)},
+		{"gap_to_air_core_field_seated", numPtr(f.GainSeated)}, {"gap_to_air_core_field_rest", numPtr(f.GainRest)},
 	}
 	header, row := make([]string, len(cols)), make([]string, len(cols))
 	for k, col := range cols {

@@ -84,6 +84,7 @@ func TestStudiesJSON(t *testing.T) {
 			if lookup(t, d, "magnet.pulls_in_at_rated_current") != true {
 				t.Errorf("pulls_in_at_rated_current is not true")
 			}
+			checkCoilFieldJSON(t, d)
 			gaps := lookup(t, d, "force_curves.gap_m").([]any)
 			passive := lookup(t, d, "force_curves.spring_and_load_N").([]any)
 			curves := lookup(t, d, "force_curves.curves").([]any)
@@ -99,7 +100,10 @@ func TestStudiesJSON(t *testing.T) {
 		{"magnet gap law", []string{"magnet", gapLawDemo, "--currents", "0.1, 200 mA"}, exitOK, func(t *testing.T, d map[string]any) {
 			// No winding build, no geometry: null, not 0 and not absent.
 			for _, k := range []string{"coil.mean_turn_length_m", "coil.copper_mass_kg", "coil.layers",
-				"magnet.steel_flux_density_seated_T", "magnet.steel_flux_density_rest_part"} {
+				"magnet.steel_flux_density_seated_T", "magnet.steel_flux_density_rest_part",
+				"coil_field.air_core_centre_flux_density_T", "coil_field.air_core_inductance_wheeler_H",
+				"coil_field.gap_flux_density_source", "coil_field.gap_flux_density_seated_T",
+				"coil_field.pole_area_m2", "coil_field.gap_to_air_core_field_rest"} {
 				if v := lookup(t, d, k); v != nil {
 					t.Errorf("%s = %v, want null (does not apply to a gap-law magnet)", k, v)
 				}
@@ -226,6 +230,71 @@ func readCSV(t *testing.T, code int, args ...string) (header []string, rows [][]
 		}
 	}
 	return all[0], all[1:]
+}
+
+// checkCoilFieldJSON checks magnet --json's coil_field of the dosing demo
+// (2857 turns, 10/26 × 22 mm window, 8 mm plunger) at full precision.
+func checkCoilFieldJSON(t *testing.T, d map[string]any) {
+	t.Helper()
+	const mu0 = 4 * math.Pi * 1e-7 // H/m, the SI value before 2019
+	n, i := number(t, d, "coil.turns"), number(t, d, "coil.rated_current_A")
+	r1, r2, l := 5e-3, 13e-3, 22e-3
+	// source: thick winding of uniform current density (Montgomery,
+	// Solenoid Magnet Design, 1969, µ0·J·r1·F(α, β)); the finite thin
+	// solenoid µ0·N·I/√(l² + d²) at the mean diameter (Griffiths ch. 5).
+	thick := mu0 * n * i / (2 * (r2 - r1)) * math.Log((r2+math.Hypot(r2, l/2))/(r1+math.Hypot(r1, l/2)))
+	thin := mu0 * n * i / math.Hypot(l, r1+r2)
+	for _, c := range []struct {
+		key  string
+		want float64
+	}{
+		{"coil_field.air_core_centre_flux_density_T", thick},
+		{"coil_field.air_core_centre_flux_density_thin_T", thin},
+		{"coil_field.pole_area_m2", math.Pi * 4e-3 * 4e-3}, // π·(d/2)², the 8 mm plunger's face
+		{"coil_field.gap_to_air_core_field_seated", number(t, d, "coil_field.gap_flux_density_seated_T") / thick},
+		{"coil_field.gap_to_air_core_field_rest", number(t, d, "coil_field.gap_flux_density_rest_T") / thick},
+	} {
+		if got := number(t, d, c.key); math.Abs(got-c.want) > 1e-9*c.want {
+			t.Errorf("%s = %g, want %g", c.key, got, c.want)
+		}
+	}
+	if got := lookup(t, d, "coil_field.gap_flux_density_source"); got != coilkick.GapFromNetwork {
+		t.Errorf("gap_flux_density_source %v, want %q", got, coilkick.GapFromNetwork)
+	}
+	number(t, d, "coil_field.air_core_inductance_wheeler_H")
+	number(t, d, "coil_field.air_core_inductance_numerical_H")
+}
+
+// TestMagnetKeysInReadme: every key of magnet --json (the geometry demo,
+// where every figure is given) is named in the README's section "magnet"
+// of "Machine-readable output".
+func TestMagnetKeysInReadme(t *testing.T) {
+	t.Parallel()
+	code, out, errs := sharedStudy("magnet", geometryDemo, "--json", "-")
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var doc map[string]any
+	if err := json.Unmarshal(out, &doc); err != nil {
+		t.Fatal(err)
+	}
+	documented := readmeSection(t, "magnet")
+	var walk func(prefix string, v any)
+	walk = func(prefix string, v any) {
+		m, ok := v.(map[string]any)
+		if !ok {
+			return
+		}
+		for k, sub := range m {
+			if !documented[k] {
+				t.Errorf("key %s%s is not in the README's section \"magnet\"", prefix, k)
+			}
+			if k != "curves" {
+				walk(prefix+k+".", sub)
+			}
+		}
+	}
+	walk("", doc)
 }
 
 // TestStudiesCSV: magnet --csv (the figures, one row) and --curves (long
