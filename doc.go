@@ -46,7 +46,11 @@
 //     figure of a run (Metrics; each field's comment is its definition);
 //     assess.go checks them against the ratings and requirements and
 //     writes the safety notes; assess_magnet.go computes the coil and
-//     magnet figures without simulating (MagnetSummary, ForceCurves).
+//     magnet figures without simulating (MagnetSummary, ForceCurves);
+//     assess_curves.go describes a magnet given as force curves (CurveData:
+//     what the model assumed, where it extrapolates, the LCR readings
+//     against the curves). scenario_force_curves.go reads the force-curve
+//     file (columns with units, one curve per current or voltage).
 //   - study_*.go — design studies on many runs: study_sweep.go (a grid
 //     over scenario keys), study_corners.go (tolerance corners and Monte
 //     Carlo yield), study_solve.go (the solve-for searches by bisection:

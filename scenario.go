@@ -107,11 +107,12 @@ const (
 	MagnetGapLaw = "gap law"
 	MagnetTable  = "table"
 	MagnetGeom   = "geometry"
+	MagnetCurves = "force curves"
 )
 
 // MagnetSpec selects and parameterises the magnetic model.
 type MagnetSpec struct {
-	Kind string // MagnetGapLaw or MagnetTable
+	Kind string // MagnetGapLaw, MagnetTable, MagnetGeom or MagnetCurves
 
 	// EddyResistance (ohm) is the equivalent shorted turn for eddy
 	// currents, referred to the coil's turns; 0 for none.
@@ -131,6 +132,12 @@ type MagnetSpec struct {
 
 	// geometry
 	Geometry GeometrySpec
+
+	// force curves (with OpenInductance, and ClosedInductance when given)
+	CurvesFile       string  // path as written, resolved against the scenario's folder
+	OpenFrequency    float64 // Hz, the LCR test frequency of OpenInductance; 0: not given
+	ClosedFrequency  float64 // Hz, of ClosedInductance; 0: not given
+	CurveTemperature float64 // K, the coil's temperature for curves given at voltages; 0: not given
 }
 
 // GeometrySpec is a plunger magnet described by its dimensions (m) and

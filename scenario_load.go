@@ -81,7 +81,7 @@ func Load(path string) (*Scenario, error) {
 //	    fill factor: 0.52                     # copper area / winding window; or turns
 //	  winding capacitance: 150 pF             # optional, default none; the winding's capacitance across its terminals (see "Parasitics")
 //	  core loss resistance: 20 kohm           # optional, default none; a resistance across the terminals for the core (iron) loss
-//	magnet:                                   # exactly one of gap law, table, geometry
+//	magnet:                                   # exactly one of gap law, table, geometry, force curves
 //	  gap law:                                # L(x) = L_leak + 1/(a + b·x), linear iron
 //	    closed inductance: 300 mH             # at the seated gap
 //	    open inductance: 120 mH               # at the rest gap, < closed inductance
@@ -111,6 +111,13 @@ func Load(path string) (*Scenario, error) {
 //	    table currents: 40                    # optional, default 40; grid of the built table
 //	    table gaps: 60                        # optional, default 60
 //	    max current: 1 A                      # optional, default 3 × supply voltage / coil resistance; top of the table's current range
+//	  force curves:                           # pull force versus gap at one or more currents or voltages, and LCR readings (see "Magnet from force curves")
+//	    file: valve_force.csv                 # columns gap or stroke, current or voltage, force, each with its unit; relative to the scenario file's folder
+//	    open inductance: 95 mH                # LCR reading with the plunger held at the rest gap; the model's anchor
+//	    open inductance frequency: 1 kHz      # optional; the LCR meter's test frequency of the open reading (reported beside it)
+//	    closed inductance: 240 mH             # optional; LCR reading at the seated gap; compared with the curves' value, not used by the model
+//	    closed inductance frequency: 1 kHz    # optional; the LCR meter's test frequency of the closed reading
+//	    coil temperature: 20 degC             # optional; the coil's temperature when the curves were taken; needed when the file gives voltages (current = V/R(T))
 //	  eddy resistance: 400 ohm                # optional, default none; eddy currents as a shorted turn, referred to the coil's turns
 //	plunger:
 //	  mass: 8 g
@@ -732,7 +739,7 @@ var topSection = &sectionSpec{path: "", keys: []*keySpec{
 		doc: "free text: printable, at most 200 characters"},
 	{name: "supply", kind: keySection, sub: supplySection},
 	{name: "coil", kind: keySection, sub: coilSection},
-	{name: "magnet", kind: keySection, sub: magnetSection, doc: "exactly one of gap law, table, geometry"},
+	{name: "magnet", kind: keySection, sub: magnetSection, doc: "exactly one of gap law, table, geometry, force curves"},
 	{name: "plunger", kind: keySection, sub: plungerSection},
 	{name: "switch", kind: keySection, sub: switchSection, doc: "low-side switch (MOSFET)"},
 	{name: "suppression", kind: keySection, sub: suppressionSection},

@@ -477,7 +477,7 @@ func TestLoadEdits(t *testing.T) {
 		{"mass: 6 g", "mass: [6 g]", []string{"e.yaml:12:9: plunger.mass: expected a mass", "got a list"}},
 		{"resistance: 48 ohm", "resistance: 48 ohm\n  temperature coefficient: 0.004 /degC", []string{"e.yaml:7:28: coil.temperature coefficient", "degC can only stand alone"}},
 		{"resistance: 48 ohm", "resistance: 48 ohm\n  temperature: -300 degC", []string{"coil.temperature", "below absolute zero"}},
-		{"    open inductance: 120 mH\n", "    open inductance: 120 mH\n  table:\n    file: x.csv\n", []string{"e.yaml:11:3: magnet.table", `give only one of "gap law", "table" and "geometry"`}},
+		{"    open inductance: 120 mH\n", "    open inductance: 120 mH\n  table:\n    file: x.csv\n", []string{"e.yaml:11:3: magnet.table", `give only one of "gap law", "table", "geometry" and "force curves"`}},
 		{"  gap law:\n    closed inductance: 250 mH\n    open inductance: 120 mH\n", "", []string{"e.yaml:7:1: magnet", "needs one of"}},
 		{"  spring rate: 0.8 N/mm\n", "  spring rate: 0.8 N/mm\n  restitution: 1.5\n", []string{"plunger.restitution", `"1.5" is too large; expected a plain number from 0 to 1`}},
 		{"  spring rate: 0.8 N/mm\n", "  spring rate: 0.8 N/mm\n  load:\n    seal travel: 0.3 mm\n", []string{"plunger.load.seal travel", "applies only when plunger.load.pressure is given"}},

@@ -16,6 +16,8 @@ var magnetSection = &sectionSpec{path: "magnet", keys: []*keySpec{
 		doc: "flux linkage versus current and gap, from a field solver or bench"},
 	{name: MagnetGeom, kind: keySection, sub: geometrySection, need: needWhere,
 		doc: "a plunger magnet from its dimensions (needs coil.build)"},
+	{name: MagnetCurves, kind: keySection, sub: forceCurvesSection, need: needWhere,
+		doc: "pull force versus gap at one or more currents or voltages, and LCR readings (see \"Magnet from force curves\")"},
 	{name: "eddy resistance", rng: newRange(Resistance, "1 mohm to 1 Gohm", ""), need: optional, defText: "none",
 		example: "400 ohm", doc: "eddy currents as a shorted turn, referred to the coil's turns"},
 }}
@@ -39,9 +41,9 @@ var tableSection = &sectionSpec{path: "magnet.table", keys: []*keySpec{
 
 // magnetChoice: one model section.
 var magnetChoice = choice{
-	alts:      [][]string{{MagnetGapLaw}, {MagnetTable}, {MagnetGeom}},
-	both:      fmt.Sprintf("give only one of %q, %q and %q", MagnetGapLaw, MagnetTable, MagnetGeom),
-	missing:   fmt.Sprintf("needs one of the sections %q, %q or %q", MagnetGapLaw, MagnetTable, MagnetGeom),
+	alts:      [][]string{{MagnetGapLaw}, {MagnetTable}, {MagnetGeom}, {MagnetCurves}},
+	both:      fmt.Sprintf("give only one of %q, %q, %q and %q", MagnetGapLaw, MagnetTable, MagnetGeom, MagnetCurves),
+	missing:   fmt.Sprintf("needs one of the sections %q, %q, %q or %q", MagnetGapLaw, MagnetTable, MagnetGeom, MagnetCurves),
 	missingAt: "magnet",
 }
 
@@ -61,6 +63,9 @@ func (l *scenarioLoader) loadMagnet(sec *yamlSection) {
 	case 2:
 		l.s.Magnet.Kind = MagnetGeom
 		l.loadGeometry(l.sub(sec, MagnetGeom))
+	case 3:
+		l.s.Magnet.Kind = MagnetCurves
+		l.loadForceCurves(l.sub(sec, MagnetCurves))
 	}
 }
 

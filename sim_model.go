@@ -21,7 +21,10 @@ type Model struct {
 	// given as geometry (Magnet is then its flux-linkage table); nil
 	// otherwise.
 	Geometry *magnet.PlungerMagnet
-	Magnet   magnet.Model
+	// Curves describes the force-curve data when the magnet was given as
+	// force curves (Magnet is then a *magnet.CurveModel); nil otherwise.
+	Curves *CurveData
+	Magnet magnet.Model
 	// EddyResistance (ohm) is the equivalent shorted turn for eddy currents
 	// in the steel, referred to the coil's turns; 0 for none.
 	EddyResistance float64
@@ -197,6 +200,12 @@ func buildMagnet(s *Scenario, md *Model) error {
 				lo*1e3, hi*1e3, p.SeatedGap*1e3, p.RestGap*1e3)
 		}
 		md.Magnet = tb
+	case MagnetCurves:
+		cm, f, err := buildForceCurves(s, md)
+		if err != nil {
+			return err
+		}
+		md.Magnet, md.Curves = cm, newCurveData(s, cm, f)
 	case MagnetGeom:
 		pm, tb, err := buildGeometry(s, md)
 		if err != nil {
