@@ -120,6 +120,11 @@ func (md *Model) Assess(res *Result) Assessment {
 		a.Notes = append(a.Notes, Note{Figure: fig, Level: level, Text: fmt.Sprintf(format, args...)})
 	}
 	md.driveNotes(m, note)
+	if c := md.Curves; c != nil {
+		if top := c.Currents[len(c.Currents)-1]; m.PeakCurrent > top*(1+LimitRelTol) {
+			note("peak current", "info", "the magnet comes from force curves up to %.3g A; this run reaches %.3g A, where the model extrapolates (flux rising at the open-gap inductance, as in saturated iron): the pull there is an estimate; add a curve at that current", top, m.PeakCurrent)
+		}
+	}
 	if d := m.DropOut; d.Happened {
 		note("stays seated while energized", "warning", "%s", md.dropOutText(d))
 	}

@@ -73,7 +73,10 @@ func (d *CurveData) Notes() []string {
 // inductanceText is "95 mH (LCR at 1 kHz)".
 func inductanceText(l, f float64) string {
 	s := fmt.Sprintf("%.4g mH", l*1e3)
-	if f > 0 {
+	switch {
+	case f >= 1e3:
+		s += fmt.Sprintf(" (LCR at %.4g kHz)", f/1e3)
+	case f > 0:
 		s += fmt.Sprintf(" (LCR at %.4g Hz)", f)
 	}
 	return s
@@ -85,7 +88,7 @@ func (d *CurveData) lcrNote() string {
 	head := fmt.Sprintf("closed-gap reading %s against %.4g mH from the curves (%+.0f %%)", inductanceText(d.ClosedInductance, d.ClosedFrequency), d.CurveClosedInductance*1e3, 100*(r-1))
 	switch {
 	case r < 1-lcrFarTol:
-		return head + ": a reading below the curves' value is what eddy currents in solid iron do at the LCR's test frequency (the AC flux stays near the surface; the DC inductance is higher), and saturation of the lowest curve lowers the curves' value less; the model uses the curves, and a time constant from the reading would be too short"
+		return head + ": a reading below the curves' value is what eddy currents in solid iron do at the LCR's test frequency (the AC flux stays near the surface, so the reading is below the DC inductance); the model uses the curves, and a time constant L/R taken from the reading would be too short"
 	case r > 1+lcrFarTol:
 		return head + ": a reading above the curves' value means the curves give too little pull at the small gaps (taken hot, at a different stroke origin, or the lowest curve already saturated at the seat), or the seated gap is smaller than stated; check the stroke origin and the seated gap"
 	}

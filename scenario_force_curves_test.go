@@ -171,3 +171,35 @@ func BenchmarkForceCurvesBuild3x20(b *testing.B) {
 		}
 	}
 }
+
+// TestForceCurvesExtrapolationNote: a run whose current goes above the
+// highest curve says that the model extrapolates there; one that stays
+// within the curves does not.
+func TestForceCurvesExtrapolationNote(t *testing.T) {
+	t.Parallel()
+	ref, err := LoadModel("scenarios/irrigation-valve.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	g := ref.Magnet.(*magnet.GapLaw)
+	for _, tc := range []struct {
+		top  float64
+		want bool
+	}{{0.2, true}, {0.34, false}} { // the run's steady current is 24 V / 72 ohm = 0.333 A
+		md, err := LoadModel(irrigationWithCurves(t, gapLawCurveCSV(g, []float64{0.1, tc.top}, 40), ""))
+		if err != nil {
+			t.Fatal(err)
+		}
+		res, err := Simulate(md, &Options{NoTrace: true})
+		if err != nil {
+			t.Fatal(err)
+		}
+		got := false
+		for _, n := range md.Assess(res).Notes {
+			got = got || strings.Contains(n.Text, "where the model extrapolates")
+		}
+		if got != tc.want {
+			t.Errorf("curves up to %g A, peak %g A: extrapolation note %v, want %v", tc.top, res.Metrics.PeakCurrent, got, tc.want)
+		}
+	}
+}

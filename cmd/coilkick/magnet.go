@@ -6,6 +6,7 @@ import (
 	"io"
 	"math"
 	"strconv"
+	"strings"
 
 	"github.com/urfave/cli/v2"
 
@@ -196,9 +197,30 @@ func printMagnet(w io.Writer, path string, md *coilkick.Model, figs *magnetFigs)
 			}
 		}
 	}
+	printCurveModel(b, md.Curves)
 	printCoilField(b, figs.field)
 	if s.ForceAtRest <= s.SpringAtRest {
 		fmt.Fprintln(b, "\n  WARNING: at rated current the pull at the rest gap does not exceed the spring and load: it will not pull in")
+	}
+}
+
+// printCurveModel prints what a magnet from force curves was built from,
+// what it assumed and where it extrapolates; nothing for other magnets.
+func printCurveModel(b io.Writer, d *coilkick.CurveData) {
+	if d == nil {
+		return
+	}
+	levels := make([]string, len(d.Currents))
+	for k, i := range d.Currents {
+		levels[k] = si(i, "A")
+		if d.Voltages != nil {
+			levels[k] = si(d.Voltages[k], "V") + " (" + levels[k] + ")"
+		}
+	}
+	fmt.Fprintf(b, "Magnet from force curves (%s)\n", d.File)
+	fmt.Fprintf(b, "  %-34s %s\n", "curves at", strings.Join(levels, ", "))
+	for _, n := range d.Notes() {
+		fmt.Fprintf(b, "  - %s\n", n)
 	}
 }
 
@@ -281,6 +303,41 @@ type magnetDoc struct {
 	Magnet magnetFigures   `json:"magnet"`
 	Field  magnetCoilField `json:"coil_field"`
 	Curves magnetCurves    `json:"force_curves"`
+	Model  *magnetCurveSrc `json:"force_curve_model"` // null unless the magnet was given as force curves
+}
+
+// magnetCurveSrc: what a magnet from force curves was built from
+// (coilkick.CurveData) and its notes.
+type magnetCurveSrc struct {
+	File                  string    `json:"file"`
+	Currents              []float64 `json:"currents_A"`
+	Voltages              []float64 `json:"voltages_V"`            // null unless given at voltages
+	Temperature           *float64  `json:"coil_temperature_degC"` // null unless given at voltages
+	DataGapMin            float64   `json:"data_gap_min_m"`        // the curves' gap span
+	DataGapMax            float64   `json:"data_gap_max_m"`        //
+	OpenInductance        float64   `json:"open_inductance_H"`     // the LCR reading the model is anchored at
+	OpenFrequency         *float64  `json:"open_inductance_test_frequency_Hz"`
+	ClosedInductance      *float64  `json:"closed_inductance_lcr_H"` // null when not given
+	ClosedFrequency       *float64  `json:"closed_inductance_test_frequency_Hz"`
+	CurveClosedInductance float64   `json:"closed_inductance_from_curves_H"`
+	Notes                 []string  `json:"notes"`
+}
+
+// newCurveSrc is the document's force_curve_model part; nil for other
+// magnets.
+func newCurveSrc(d *coilkick.CurveData) *magnetCurveSrc {
+	if d == nil {
+		return nil
+	}
+	c := &magnetCurveSrc{File: d.File, Currents: d.Currents, Voltages: d.Voltages, DataGapMin: d.DataGapMin, DataGapMax: d.DataGapMax,
+		OpenInductance: d.OpenInductance, OpenFrequency: optional(d.OpenFrequency, d.OpenFrequency > 0),
+		ClosedInductance: optional(d.ClosedInductance, d.ClosedInductance > 0), ClosedFrequency: optional(d.ClosedFrequency, d.ClosedFrequency > 0),
+		CurveClosedInductance: d.CurveClosedInductance, Notes: d.Notes()}
+	if d.Voltages != nil {
+		t := toDegC(d.Temperature)
+		c.Temperature = &t
+	}
+	return c
 }
 
 // magnetCoilField: the coil's air-core field and the working gap's field
@@ -369,7 +426,7 @@ type magnetCurve struct {
 
 func newMagnetDoc(path string, md *coilkick.Model, s *coilkick.MagnetSummary, curves []coilkick.ForceCurve) *magnetDoc {
 	r := md.CoilResistance()
-	d := &magnetDoc{jsonHeader: newHeader("magnet", md, path)}
+	d := &magnetDoc{jsonHeader: newHeader("magnet", md, path), Model: newCurveSrc(md.Curves)}
 	d.Coil = magnetCoil{Turns: optional(md.Coil.Turns, md.Coil.Turns > 0), Resistance20: md.Coil.ResistanceAt(293.15),
 		Temperature: toDegC(md.Temperature), Resistance: r, Supply: md.Drive.Supply.Voltage,
 		RatedCurrent: s.RatedCurrent, RatedPower: md.Drive.Supply.Voltage * s.RatedCurrent}
