@@ -22,6 +22,9 @@ type CurveData struct {
 	// CurveClosedInductance (H) is the model's inductance at the seated gap
 	// at zero current, from the curves.
 	CurveClosedInductance float64
+	// Smooth: λ between the curves' currents is the smooth spline (else
+	// piecewise linear; magnet.CurveModel).
+	Smooth bool
 }
 
 // newCurveData collects the description of a force-curve magnet.
@@ -30,7 +33,7 @@ func newCurveData(s *Scenario, cm *magnet.CurveModel, f *forceCurveFile) *CurveD
 	d := &CurveData{File: m.CurvesFile, Currents: cm.Currents(), SeatedGap: s.Plunger.SeatedGap, RestGap: s.Plunger.RestGap,
 		OpenInductance: m.OpenInductance, OpenFrequency: m.OpenFrequency,
 		ClosedInductance: m.ClosedInductance, ClosedFrequency: m.ClosedFrequency,
-		CurveClosedInductance: cm.SmallSignalInductance(s.Plunger.SeatedGap)}
+		CurveClosedInductance: cm.SmallSignalInductance(s.Plunger.SeatedGap), Smooth: cm.Smooth()}
 	if f.voltage {
 		d.Voltages, d.Temperature = append([]float64(nil), f.volts...), m.CurveTemperature
 	}
@@ -52,7 +55,11 @@ func (d *CurveData) Notes() []string {
 	if len(d.Currents) == 1 {
 		notes = append(notes, fmt.Sprintf("one curve: the magnet is taken as linear at every current (no saturation), L(x) = L_open + 2·∫F/i² dx at %.3g A", d.Currents[0]))
 	} else {
-		notes = append(notes, fmt.Sprintf("%d curves, %.3g A to %.3g A: saturation as the curves show it; below %.3g A interpolated toward zero current", len(d.Currents), d.Currents[0], top, d.Currents[0]))
+		how := "a smooth spline through the curves' co-energy"
+		if !d.Smooth {
+			how = "piecewise linear in the current (the curves saturate too sharply between their currents for a smooth spline to keep the flux rising; the current's slope shows corners at the curves' currents: a curve between them smooths it)"
+		}
+		notes = append(notes, fmt.Sprintf("%d curves, %.3g A to %.3g A: saturation as the curves show it; the flux linkage between them is %s; below %.3g A interpolated toward zero current", len(d.Currents), d.Currents[0], top, how, d.Currents[0]))
 	}
 	if d.Voltages != nil {
 		notes = append(notes, fmt.Sprintf("curves given at voltages; currents = V/R at the coil's %.4g degC", d.Temperature-273.15))
@@ -72,7 +79,7 @@ func (d *CurveData) Notes() []string {
 
 // inductanceText is "95 mH (LCR at 1 kHz)".
 func inductanceText(l, f float64) string {
-	s := fmt.Sprintf("%.4g mH", l*1e3)
+	s := henry(l)
 	switch {
 	case f >= 1e3:
 		s += fmt.Sprintf(" (LCR at %.4g kHz)", f/1e3)
@@ -82,10 +89,18 @@ func inductanceText(l, f float64) string {
 	return s
 }
 
+// henry is an inductance for the notes: "196 mH", "1.26 H".
+func henry(l float64) string {
+	if l >= 1 {
+		return fmt.Sprintf("%.3g H", l)
+	}
+	return fmt.Sprintf("%.3g mH", l*1e3)
+}
+
 // lcrNote compares the closed-gap LCR reading with the curves' value.
 func (d *CurveData) lcrNote() string {
 	r := d.ClosedInductance / d.CurveClosedInductance
-	head := fmt.Sprintf("closed-gap reading %s against %.4g mH from the curves (%+.0f %%)", inductanceText(d.ClosedInductance, d.ClosedFrequency), d.CurveClosedInductance*1e3, 100*(r-1))
+	head := fmt.Sprintf("closed-gap reading %s against %s from the curves (%+.0f %%)", inductanceText(d.ClosedInductance, d.ClosedFrequency), henry(d.CurveClosedInductance), 100*(r-1))
 	switch {
 	case r < 1-lcrFarTol:
 		return head + ": a reading below the curves' value is what eddy currents in solid iron do at the LCR's test frequency (the AC flux stays near the surface, so the reading is below the DC inductance); the model uses the curves, and a time constant L/R taken from the reading would be too short"

@@ -203,3 +203,45 @@ func TestForceCurvesExtrapolationNote(t *testing.T) {
 		}
 	}
 }
+
+// TestCurveDataNotes: the notes say what the model assumed and where it
+// extrapolates, and read the closed-gap LCR reading against the curves'
+// value: more than 5 % below is the eddy-current effect, more than 5 %
+// above points at the curves, within 5 % they agree (the 5 % is common
+// practice, no source).
+func TestCurveDataNotes(t *testing.T) {
+	t.Parallel()
+	base := CurveData{File: "c.csv", Currents: []float64{0.1, 0.2}, DataGapMin: 0.1e-3, DataGapMax: 1e-3,
+		SeatedGap: 0.1e-3, RestGap: 1e-3, OpenInductance: 0.1, CurveClosedInductance: 1, Smooth: true}
+	for _, tc := range []struct {
+		name string
+		edit func(d *CurveData)
+		want []string
+		not  []string
+	}{
+		{"plain", func(*CurveData) {}, []string{"anchored at the open gap by the measured 100 mH", "extrapolates above 0.2 A", "smooth spline"},
+			[]string{"closed-gap reading", "extrapolates below", "voltages"}},
+		{"one curve", func(d *CurveData) { d.Currents = []float64{0.2} }, []string{"linear at every current"}, nil},
+		{"piecewise linear", func(d *CurveData) { d.Smooth = false }, []string{"piecewise linear in the current"}, nil},
+		{"gaps short of the stroke", func(d *CurveData) { d.DataGapMin, d.DataGapMax = 0.2e-3, 0.8e-3 },
+			[]string{"extrapolates below 0.2 mm", "extrapolates above 0.8 mm"}, nil},
+		{"LCR well below", func(d *CurveData) { d.ClosedInductance, d.ClosedFrequency = 0.94, 1000 }, []string{"(LCR at 1 kHz)", "(-6 %)", "eddy currents"}, nil},
+		{"LCR within 5 %", func(d *CurveData) { d.ClosedInductance = 0.96 }, []string{"(-4 %)", "they agree"}, []string{"eddy"}},
+		{"LCR well above", func(d *CurveData) { d.ClosedInductance = 1.06 }, []string{"(+6 %)", "stroke origin"}, nil},
+		{"voltages", func(d *CurveData) { d.Voltages, d.Temperature = []float64{12, 24}, 343.15 }, []string{"V/R at the coil's 70 degC"}, nil},
+	} {
+		d := base
+		tc.edit(&d)
+		text := strings.Join(d.Notes(), "\n")
+		for _, w := range tc.want {
+			if !strings.Contains(text, w) {
+				t.Errorf("%s: notes lack %q:\n%s", tc.name, w, text)
+			}
+		}
+		for _, w := range tc.not {
+			if strings.Contains(text, w) {
+				t.Errorf("%s: notes have %q:\n%s", tc.name, w, text)
+			}
+		}
+	}
+}

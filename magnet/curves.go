@@ -63,14 +63,20 @@ type gapCurve struct {
 // piecewise cubic Hermite interpolant (shapeSlopes), held at its end
 // values outside its data, and integrated exactly: G_k(x) = ∫_x^x_o F_k ds,
 // so the co-energy at the curves' currents is y_k(x) = ½·L_o·i_k² + G_k(x).
-// In current, at each gap, λ = ∂W'/∂i is piecewise linear: through the
-// nodes (0, 0), (i_k, a_k) and one knot per interval between, of value the
-// interval's mean flux linkage m_k = (y_k+1 − y_k)/(i_k+1 − i_k), placed
-// so that λ's integral over the interval is y_k+1 − y_k. The node values
-// a_k interpolate the means linearly between the intervals' middles (and
-// extrapolate at the last curve), so a_k lies between m_k−1 and m_k: λ
-// rises wherever the means rise, which is the condition for W' to be
-// convex in i — for the curves to come from a passive magnet (NewCurveModel
+// In current, at each gap, λ = ∂W'/∂i is the C1 quadratic spline whose
+// integral takes the co-energy y_k at the curves' currents (the derivative
+// of the cubic spline through (i_k, y_k) with λ(0) = 0 and λ linear over
+// the last interval): smooth, and λ = L(x)·i exactly for curves that
+// scale with i². Where that spline's λ would not rise with the current at
+// some checked gap (curves far apart across a sharp knee), the model takes
+// instead a piecewise-linear λ through the nodes (0, 0), (i_k, a_k) and one
+// knot per interval between, of value the interval's mean flux linkage
+// m_k = (y_k+1 − y_k)/(i_k+1 − i_k), placed so that λ's integral over the
+// interval is y_k+1 − y_k; its node values a_k interpolate the means
+// linearly between the intervals' middles (and extrapolate at the last
+// curve), so a_k lies between m_k−1 and m_k and λ rises wherever the
+// means rise — which is the condition for W' to be convex in i, for the
+// curves to come from a passive magnet (NewCurveModel
 // refuses them otherwise). Curves that scale with i² (a linear magnet)
 // give λ = L(x)·i exactly; with a single curve the model is linear at
 // every current, L(x) = L_o + 2·G_1(x)/i_1². Above the highest curve λ
@@ -89,6 +95,11 @@ type CurveModel struct {
 	xMin, xMax float64 // m
 	curves     []gapCurve
 	cur        []float64 // A, the curves' currents
+	// smooth: λ is the C1 quadratic spline through the curves' co-energy
+	// (splineSub, splineCp, splineDen: its tridiagonal system factored);
+	// else piecewise linear through the mean flux linkages.
+	smooth                         bool
+	splineSub, splineCp, splineDen []float64
 }
 
 // NewCurveModel builds the model from the curves (ascending currents), the
@@ -126,6 +137,10 @@ func NewCurveModel(curves []ForceCurve, lOpen, xMin, xMax float64) (*CurveModel,
 		if err := m.checkRising(k, curves); err != nil {
 			return nil, err
 		}
+	}
+	if len(curves) > 1 {
+		m.factorSpline()
+		m.smooth = m.smoothMonotone()
 	}
 	if err := m.checkFlux(); err != nil {
 		return nil, err
@@ -290,6 +305,10 @@ func (m *CurveModel) profileAt(x float64) profile {
 		p.a[1] = p.m[0].scale(2)
 		return p
 	}
+	if m.smooth {
+		m.splineNodes(&p)
+		return p
+	}
 	mid := func(k int) float64 { return 0.5 * (m.node(k) + m.node(k+1)) }
 	for k := 1; k < n; k++ {
 		r := (m.node(k) - mid(k-1)) / (mid(k) - mid(k-1))
@@ -298,6 +317,54 @@ func (m *CurveModel) profileAt(x float64) profile {
 	r := (m.node(n) - mid(n-1)) / (mid(n-1) - mid(n-2))
 	p.a[n] = p.m[n-1].add(p.m[n-1].sub(p.m[n-2]).scale(r))
 	return p
+}
+
+// factorSpline sets up the tridiagonal system of the quadratic spline's
+// node values a_1 … a_n (a_0 = 0), rows k = 1 … n: at each inner node the
+// slopes of the two intervals' quadratics agree,
+//
+//	2·a_k−1/h_k−1 + 4·(1/h_k−1 + 1/h_k)·a_k + 2·a_k+1/h_k = 6·(m_k−1/h_k−1 + m_k/h_k),
+//
+// and the last interval's λ is linear, a_n−1 + a_n = 2·m_n−1, so that
+// curves scaling with i² give λ = L·i exactly. It stores the Thomas
+// algorithm's factors (the matrix is diagonally dominant in its inner
+// rows; any numerical analysis text).
+func (m *CurveModel) factorSpline() {
+	n := len(m.cur)
+	m.splineSub, m.splineCp, m.splineDen = make([]float64, n+1), make([]float64, n+1), make([]float64, n+1)
+	h := func(k int) float64 { return m.node(k+1) - m.node(k) }
+	for k := 1; k <= n; k++ {
+		var sub, diag, sup float64
+		if k < n {
+			sub, diag, sup = 2/h(k-1), 4/h(k-1)+4/h(k), 2/h(k)
+		} else {
+			sub, diag = 1, 1
+		}
+		if k == 1 {
+			sub = 0 // a_0 = 0
+		}
+		den := diag - sub*m.splineCp[k-1]
+		m.splineSub[k], m.splineDen[k], m.splineCp[k] = sub, den, sup/den
+	}
+}
+
+// splineNodes sets the node values a_k of the quadratic spline from the
+// means p.m (with their gap derivatives).
+func (m *CurveModel) splineNodes(p *profile) {
+	n := p.n
+	h := func(k int) float64 { return m.node(k+1) - m.node(k) }
+	var r [MaxForceCurves + 1]dual
+	for k := 1; k <= n; k++ {
+		rhs := p.m[n-1].scale(2)
+		if k < n {
+			rhs = p.m[k-1].scale(6 / h(k-1)).add(p.m[k].scale(6 / h(k)))
+		}
+		r[k] = rhs.sub(r[k-1].scale(m.splineSub[k])).scale(1 / m.splineDen[k])
+	}
+	p.a[n] = r[n]
+	for k := n - 1; k >= 1; k-- {
+		p.a[k] = r[k].sub(p.a[k+1].scale(m.splineCp[k]))
+	}
 }
 
 // state is the model at one current and gap: co-energy W' (J) and flux
@@ -331,6 +398,9 @@ func (m *CurveModel) at(p *profile, i float64) state {
 	}
 	h := m.node(k+1) - m.node(k)
 	a, b, c := p.a[k], p.m[k], p.a[k+1]
+	if m.smooth {
+		return quadState(p.y[k], a, b, c, h, (i-m.node(k))/h)
+	}
 	th := c.sub(b).div(c.sub(a)) // knot at θ·h
 	pk := th.scale(h)
 	s := dual{i - m.node(k), 0}
@@ -342,6 +412,16 @@ func (m *CurveModel) at(p *profile, i float64) state {
 	sl := c.sub(b).div(dual{h, 0}.sub(pk))
 	w := p.y[k].add(a.add(b).mul(pk).scale(0.5)).add(b.mul(q)).add(sl.mul(q).mul(q).scale(0.5))
 	return state{w: w, lam: b.add(sl.mul(q)), dlam: sl.v}
+}
+
+// quadState evaluates an interval of the quadratic spline at t ∈ [0, 1]:
+// λ(t) = a·(1−t) + c·t + q·t·(1−t) with q = 6·(m − (a+c)/2), whose mean
+// over the interval is m, and W' = y0 + h·∫0^t λ.
+func quadState(y0, a, m, c dual, h, t float64) state {
+	q := m.sub(a.add(c).scale(0.5)).scale(6)
+	lam := a.scale(1 - t).add(c.scale(t)).add(q.scale(t * (1 - t)))
+	w := y0.add(a.scale(h * t)).add(c.sub(a).scale(h * t * t / 2)).add(q.scale(h * (t*t/2 - t*t*t/3)))
+	return state{w: w, lam: lam, dlam: (c.v - a.v + q.v*(1-2*t)) / h}
 }
 
 // FluxLinkage returns λ = ∂W'/∂i (Wb).
@@ -377,6 +457,9 @@ func (m *CurveModel) current(p *profile, lam float64) float64 {
 	if n == 1 {
 		return lam / p.a[1].v * m.cur[0]
 	}
+	if m.smooth {
+		return m.smoothCurrent(p, lam)
+	}
 	// the pieces' corners (i, λ) in order: nodes and knots
 	i0, l0 := 0.0, 0.0
 	for k := range n {
@@ -392,6 +475,35 @@ func (m *CurveModel) current(p *profile, lam float64) float64 {
 		}
 	}
 	return m.cur[n-1] + (lam-p.a[n].v)/m.lo
+}
+
+// smoothCurrent inverts the quadratic spline: the interval whose node
+// values bracket lam, then the root of its quadratic in [0, 1].
+func (m *CurveModel) smoothCurrent(p *profile, lam float64) float64 {
+	n := p.n
+	if lam >= p.a[n].v {
+		return m.cur[n-1] + (lam-p.a[n].v)/m.lo
+	}
+	k := 0
+	for k < n-1 && lam > p.a[k+1].v {
+		k++
+	}
+	a, c := p.a[k].v, p.a[k+1].v
+	q := 6 * (p.m[k].v - (a+c)/2)
+	// λ(t) = a + (c − a + q)·t − q·t²: solve q·t² − B·t + (lam − a) = 0
+	bq, cq := c-a+q, lam-a
+	var t float64
+	if math.Abs(q) <= 1e-12*math.Abs(bq) {
+		t = cq / bq
+	} else {
+		// the root in [0, 1] of the increasing branch, in the form that
+		// does not cancel: t = 2·cq / (B + √(B² − 4·q·cq))
+		disc := math.Max(bq*bq-4*q*cq, 0)
+		t = 2 * cq / (bq + math.Sqrt(disc))
+	}
+	t = math.Min(math.Max(t, 0), 1)
+	h := m.node(k+1) - m.node(k)
+	return m.node(k) + t*h
 }
 
 // Partials returns ∂i/∂λ (1/H) and ∂i/∂x (A/m) at (λ, x) (0 outside
@@ -481,19 +593,10 @@ const convexTol = 1e-9
 // i in a passive magnet). It checks at every knot of every curve and
 // fluxCheckSub points between.
 func (m *CurveModel) checkFlux() *CurveError {
-	var gaps []float64
-	for _, g := range m.curves {
-		for _, s := range g.segs {
-			for q := 0; q < fluxCheckSub; q++ {
-				gaps = append(gaps, s.x0+s.h*float64(q)/fluxCheckSub)
-			}
-		}
-	}
-	gaps = append(gaps, m.xMax)
-	for _, x := range gaps {
-		if x < m.xMin || x > m.xMax {
-			continue
-		}
+	smooth := m.smooth
+	m.smooth = false // the means are those of either scheme
+	defer func() { m.smooth = smooth }()
+	for _, x := range m.checkGaps() {
 		p := m.profileAt(x)
 		for k := 1; k < p.n; k++ {
 			if lo, hi := p.m[k-1].v, p.m[k].v; !(hi > lo*(1+convexTol)) {
@@ -503,6 +606,53 @@ func (m *CurveModel) checkFlux() *CurveError {
 	}
 	return nil
 }
+
+// checkGaps lists the gaps at which NewCurveModel checks the model: every
+// knot of every curve and fluxCheckSub points between, within the stroke.
+func (m *CurveModel) checkGaps() []float64 {
+	var gaps []float64
+	for _, g := range m.curves {
+		for _, s := range g.segs {
+			for q := 0; q < fluxCheckSub; q++ {
+				if x := s.x0 + s.h*float64(q)/fluxCheckSub; x >= m.xMin && x <= m.xMax {
+					gaps = append(gaps, x)
+				}
+			}
+		}
+	}
+	return append(gaps, m.xMax)
+}
+
+// smoothMonotone reports whether the quadratic spline's λ rises with the
+// current at every checked gap: each interval's slope at both ends (λ is
+// quadratic in between, so its slope is linear) at least smoothMinSlope
+// of L_o.
+func (m *CurveModel) smoothMonotone() bool {
+	m.smooth = true
+	for _, x := range m.checkGaps() {
+		p := m.profileAt(x)
+		for k := range p.n {
+			h := m.node(k+1) - m.node(k)
+			a, c := p.a[k].v, p.a[k+1].v
+			q := 6 * (p.m[k].v - (a+c)/2)
+			if (c-a+q)/h < smoothMinSlope*m.lo || (c-a-q)/h < smoothMinSlope*m.lo {
+				return false
+			}
+		}
+	}
+	return true
+}
+
+// smoothMinSlope is the least incremental inductance, as a fraction of
+// L_o, the smooth λ must keep between the checked gaps and currents; below
+// it the piecewise-linear λ is used (common practice, no source).
+const smoothMinSlope = 0.01
+
+// Smooth reports whether λ between the curves' currents is the smooth
+// (C1) quadratic spline through their co-energy, or else piecewise linear
+// through the mean flux linkages (curves that saturate too sharply for
+// the spline to keep λ rising).
+func (m *CurveModel) Smooth() bool { return m.smooth }
 
 // String describes the model.
 func (m *CurveModel) String() string {

@@ -47,6 +47,49 @@ func saturatingCurves(t testing.TB) *CurveModel {
 	return m
 }
 
+// saturatingCurvesLinear is the saturating table's force at 0.1, 0.2, 2
+// and 3 A: the wide step from 0.2 to 2 A across the knee leaves the
+// quadratic spline without a rising λ at the seat, so the model takes the
+// piecewise-linear λ.
+func saturatingCurvesLinear(t testing.TB) *CurveModel {
+	t.Helper()
+	tb := saturatingTable(t)
+	lo := tb.FluxLinkage(1e-6, refXMax) / 1e-6
+	m, err := NewCurveModel(curvesOf(tb, []float64{0.1, 0.2, 2, 3}, geomspace(refXMin, refXMax, 30)), lo, refXMin, refXMax)
+	if err != nil {
+		t.Fatalf("NewCurveModel: %v", err)
+	}
+	return m
+}
+
+// TestCurveModelScheme: the smooth spline where it keeps λ rising, the
+// piecewise-linear λ where it would not (a passive magnet's flux linkage
+// rises with the current, any electromechanics text), and λ rises with i
+// at every gap either way.
+func TestCurveModelScheme(t *testing.T) {
+	t.Parallel()
+	if m := saturatingCurves(t); !m.Smooth() {
+		t.Errorf("%v: want the smooth spline", m)
+	}
+	m := saturatingCurvesLinear(t)
+	if m.Smooth() {
+		t.Errorf("%v: want the piecewise-linear λ (the spline's λ falls at the seat)", m)
+	}
+	for _, mm := range []*CurveModel{saturatingCurves(t), m} {
+		for _, x := range linspace(refXMin, refXMax, 23) {
+			prev := -1.0
+			for _, i := range linspace(0, 4, 400) {
+				l := mm.FluxLinkage(i, x)
+				if !(l > prev) && i > 0 {
+					t.Errorf("%v: λ(%g, %g) = %g does not rise from %g", mm, i, x, l, prev)
+					break
+				}
+				prev = l
+			}
+		}
+	}
+}
+
 // TestCurveModelGapLaw: curves generated from the gap law at three currents
 // rebuild the gap law: inductance λ/i and force within 1e-4 at currents up
 // to the highest curve's, between the curves' points too. Source: the gap
@@ -105,12 +148,15 @@ func TestCurveModelSingleCurveLinear(t *testing.T) {
 func TestCurveModelForceAtData(t *testing.T) {
 	t.Parallel()
 	tb := saturatingTable(t)
-	cs := curvesOf(tb, []float64{0.5, 1.5, 3}, geomspace(refXMin, refXMax, 30))
-	m := saturatingCurves(t)
-	for _, c := range cs {
-		for j, x := range c.Gaps {
-			if got := m.Force(c.Current, x); relErr(got, c.Forces[j]) > 1e-12 {
-				t.Errorf("Force(%g, %g) = %.15g, the curve's point is %.15g", c.Current, x, got, c.Forces[j])
+	for _, tc := range []struct {
+		currents []float64
+		m        *CurveModel
+	}{{[]float64{0.5, 1.5, 3}, saturatingCurves(t)}, {[]float64{0.1, 0.2, 2, 3}, saturatingCurvesLinear(t)}} {
+		for _, c := range curvesOf(tb, tc.currents, geomspace(refXMin, refXMax, 30)) {
+			for j, x := range c.Gaps {
+				if got := tc.m.Force(c.Current, x); relErr(got, c.Forces[j]) > 1e-12 {
+					t.Errorf("%v: Force(%g, %g) = %.15g, the curve's point is %.15g", tc.m, c.Current, x, got, c.Forces[j])
+				}
 			}
 		}
 	}
@@ -176,7 +222,7 @@ func simpson(f func(float64) float64, a, b float64, n int) float64 {
 // Kingsley ch. 3), within 1e-9 of the cycle's work, for saturating curves.
 func TestCurveModelClosedCycle(t *testing.T) {
 	t.Parallel()
-	for _, m := range []*CurveModel{saturatingCurves(t), gapLawCurves(t, refGapLaw(t), []float64{0.6, 1.5, 3})} {
+	for _, m := range []*CurveModel{saturatingCurves(t), saturatingCurvesLinear(t), gapLawCurves(t, refGapLaw(t), []float64{0.6, 1.5, 3})} {
 		const steps = 20000
 		i1 := refTestAmps
 		up := simpson(func(i float64) float64 { return m.FluxLinkage(i, refXMax) }, 0, i1, steps)

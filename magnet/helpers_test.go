@@ -120,6 +120,7 @@ func testModels(t testing.TB) []namedModel {
 		{"curves of gap law", gapLawCurves(t, g, []float64{0.6, 1.5, 3})},
 		{"one curve of gap law", gapLawCurves(t, g, []float64{1.2})},
 		{"curves of saturating table", saturatingCurves(t)},
+		{"piecewise-linear curves of saturating table", saturatingCurvesLinear(t)},
 	}
 }
 

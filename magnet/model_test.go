@@ -158,3 +158,28 @@ func TestHotPathsDoNotAllocate(t *testing.T) {
 		_ = sink
 	}
 }
+
+// TestModelFluxIsCoEnergyCurrentDerivative: λ = ∂W'/∂i at constant gap,
+// the definition of the co-energy W' = ∫0^i λ di' (Fitzgerald & Kingsley,
+// Electric Machinery, ch. 3); central difference of each model's own
+// CoEnergy.
+func TestModelFluxIsCoEnergyCurrentDerivative(t *testing.T) {
+	t.Parallel()
+	const tol = 1e-6 // relative; the difference step's error ~1e-9, kinks of λ aside
+	for _, nm := range testModels(t) {
+		t.Run(nm.name, func(t *testing.T) {
+			t.Parallel()
+			m := nm.m
+			lo, hi := m.GapRange()
+			for _, x := range linspace(lo, hi, 9) {
+				for _, i := range []float64{0.07, 0.33, 0.77, 1.23, refTestAmps, 3.7} {
+					h := 1e-7 * i
+					want := (m.CoEnergy(i+h, x) - m.CoEnergy(i-h, x)) / (2 * h)
+					if got := m.FluxLinkage(i, x); relErr(got, want) > tol {
+						t.Errorf("%v.FluxLinkage(%g, %g) = %.10g, ∂W'/∂i = %.10g", m, i, x, got, want)
+					}
+				}
+			}
+		})
+	}
+}
