@@ -6,12 +6,14 @@
 // enamelled diameters, turns, resistance, mass); the closed-form air-core
 // field and inductance of a coil; the plunger magnet from its dimensions
 // and a B–H law of its steel (a reluctance network, sampled into a
-// flux-linkage table by BuildTable); and the coil's lumped thermal
+// flux-linkage table by BuildTable); the magnet from force–gap curves and
+// an open-gap inductance (CurveModel); and the coil's lumped thermal
 // network.
 //
 // It is for: turning a description of the coil and its magnetic circuit —
 // two inductances and a gap law, a flux-linkage grid from a field solver or
-// a bench, or the dimensions and steel of the plunger magnet — into a Model
+// a bench, the dimensions and steel of the plunger magnet, or force–gap
+// curves from a data sheet or a pull test — into a Model
 // that an ODE integrator can use with λ as its electrical state, and the
 // coil's electrical and thermal figures alongside. Each model is built
 // from a single co-energy function W'(i, x), and its force is the exact
