@@ -121,9 +121,7 @@ func (md *Model) Assess(res *Result) Assessment {
 	}
 	md.driveNotes(m, note)
 	if c := md.Curves; c != nil {
-		if top := c.Currents[len(c.Currents)-1]; m.PeakCurrent > top*(1+LimitRelTol) {
-			note("peak current", "info", "the magnet comes from force curves up to %.3g A; this run reaches %.3g A, where the model extrapolates (flux rising at the open-gap inductance, as in saturated iron): the pull there is an estimate; add a curve at that current", top, m.PeakCurrent)
-		}
+		c.runNotes(m, note)
 	}
 	if d := m.DropOut; d.Happened {
 		note("stays seated while energized", "warning", "%s", md.dropOutText(d))

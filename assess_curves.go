@@ -77,6 +77,29 @@ func (d *CurveData) Notes() []string {
 	return notes
 }
 
+// curveRangeFactor is how far below the lowest curve's current a run's
+// peak current may stay before a warning asks for the curves' current
+// unit (common practice, no source: data sheets give curves near the
+// rated current, a factor of a few either way).
+const curveRangeFactor = 5
+
+// runNotes adds to a run's notes where it used the force-curve model
+// outside its data: currents above the highest curve, a peak current far
+// below the lowest (a unit mistake in the file?), gaps the curves do not
+// cover.
+func (d *CurveData) runNotes(m *Metrics, note func(fig, level, format string, args ...any)) {
+	low, top := d.Currents[0], d.Currents[len(d.Currents)-1]
+	switch {
+	case m.PeakCurrent > top*(1+LimitRelTol):
+		note("peak current", "info", "the magnet comes from force curves up to %.3g A; this run reaches %.3g A, where the model extrapolates (flux rising at the open-gap inductance, as in saturated iron): the pull there is an estimate; add a curve at that current", top, m.PeakCurrent)
+	case m.PeakCurrent*curveRangeFactor < low:
+		note("peak current", "warning", "this run's peak current %.3g A is below 1/%d of the lowest force curve's %.3g A: the pull comes from interpolating toward zero current; check the unit of the curves' current (or voltage) column", m.PeakCurrent, curveRangeFactor, low)
+	}
+	if d.DataGapMin > d.SeatedGap*(1+1e-9) || d.DataGapMax < d.RestGap*(1-1e-9) {
+		note("", "info", "the force curves cover gaps %.4g–%.4g mm of the stroke's %.4g–%.4g mm: outside them the force is held at the curves' end values", d.DataGapMin*1e3, d.DataGapMax*1e3, d.SeatedGap*1e3, d.RestGap*1e3)
+	}
+}
+
 // inductanceText is "95 mH (LCR at 1 kHz)".
 func inductanceText(l, f float64) string {
 	s := henry(l)

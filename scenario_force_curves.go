@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"regexp"
 	"strconv"
 	"strings"
 
@@ -51,7 +52,8 @@ type forceCurveFile struct {
 	header  int     // the header's line
 	voltage bool    // the second column gave voltages (V)
 	volts   []float64
-	stroke  bool // the first column gave the stroke from the seated gap
+	stroke  bool    // the first column gave the stroke from the seated gap
+	seated  float64 // m, the seated gap a stroke counts from
 }
 
 // curveColumns are the quantities of a force-curve file's three columns.
@@ -109,7 +111,7 @@ func readForceCurves(r io.Reader, name string, seated float64) (*forceCurveFile,
 	if err != nil {
 		return nil, err
 	}
-	f := &forceCurveFile{header: line, voltage: names[1] == "voltage", stroke: names[0] == "stroke"}
+	f := &forceCurveFile{header: line, voltage: names[1] == "voltage", stroke: names[0] == "stroke", seated: seated}
 	expect := fmt.Sprintf("%s, %s, %s", quoteCell(rec[0]), quoteCell(rec[1]), quoteCell(rec[2]))
 	for {
 		rec, line, err = rd.read(expect)
@@ -225,20 +227,42 @@ func buildForceCurves(s *Scenario, md *Model) (*magnet.CurveModel, *forceCurveFi
 	return cm, f, nil
 }
 
+// gapInMessage finds "at gap 0.35 mm" in a model error.
+var gapInMessage = regexp.MustCompile(`at gap ([0-9.e+-]+) mm`)
+
 // curveError names the file line of a model error.
 func (f *forceCurveFile) curveError(name string, err error) string {
 	ce, ok := err.(*magnet.CurveError)
 	if !ok {
 		return err.Error()
 	}
+	msg := ce.Msg
+	if f.stroke {
+		// the file counts the stroke: say it so, with the gap beside it
+		msg = gapInMessage.ReplaceAllStringFunc(msg, func(g string) string {
+			x, err := strconv.ParseFloat(gapInMessage.FindStringSubmatch(g)[1], 64)
+			if err != nil {
+				return g
+			}
+			return fmt.Sprintf("at stroke %.4g mm (gap %.4g mm)", x-f.seated*1e3, x)
+		})
+	}
 	switch {
 	case ce.Curve >= 0 && ce.Point >= 0 && ce.Point < len(f.lines[ce.Curve]):
-		return fmt.Sprintf("%s:%d: %s", name, f.lines[ce.Curve][ce.Point], ce.Msg)
+		line := f.lines[ce.Curve][ce.Point]
+		if k := ce.Curve - 1; k >= 0 && strings.Contains(msg, "at the lower current") {
+			for j, x := range f.curves[k].Gaps {
+				if x == f.curves[ce.Curve].Gaps[ce.Point] {
+					msg += fmt.Sprintf(" (the lower curve's point is line %d)", f.lines[k][j])
+				}
+			}
+		}
+		return fmt.Sprintf("%s:%d: %s", name, line, msg)
 	case ce.Curve >= 0 && ce.Curve < len(f.lines):
 		ls := f.lines[ce.Curve]
-		return fmt.Sprintf("%s:%d-%d (the curve at %s): %s", name, minInt(ls), maxInt(ls), f.curveLabel(ce.Curve), ce.Msg)
+		return fmt.Sprintf("%s:%d-%d (the curve at %s): %s", name, minInt(ls), maxInt(ls), f.curveLabel(ce.Curve), msg)
 	}
-	return fmt.Sprintf("%s: %s", name, ce.Msg)
+	return fmt.Sprintf("%s: %s", name, msg)
 }
 
 // curveLabel is "0.5 A" or "24 V (0.4 A at the curves' temperature)".

@@ -118,7 +118,7 @@ func TestForceCurvesBadFiles(t *testing.T) {
 		{"current falls", head + "0, 0.3, 8\n1.15, 0.3, 1\n0, 0.2, 6\n1.15, 0.2, 0.5\n", "", []string{"curves.csv:4:", "falls below the previous curve's 0.3"}},
 		{"one point", head + "0, 0.2, 8\n", "", []string{"curves.csv:2:", "has 1 point; a curve needs at least two"}},
 		{"pull falls as current rises", head + "0, 0.2, 8\n0.5, 0.2, 3\n1.15, 0.2, 1\n0, 0.3, 18\n0.5, 0.3, 2\n1.15, 0.3, 2.5\n", "",
-			[]string{"curves.csv:6:", "cannot fall when the current rises"}},
+			[]string{"curves.csv:6: at stroke 0.5 mm (gap 0.55 mm)", "cannot fall when the current rises", "(the lower curve's point is line 3)"}},
 		{"not a number", head + "0, 0.2, eight\n", "", []string{"curves.csv:2: column 3", `"eight" is not a finite number`}},
 		{"voltage without temperature", "stroke (mm), voltage (V), force (N)\n0, 24, 8\n1.15, 24, 1\n", "", []string{"magnet.force curves", "give coil temperature"}},
 		{"closed below open", good, "    closed inductance: 100 mH\n", []string{"magnet.force curves.closed inductance", "must be greater than"}},
@@ -200,6 +200,42 @@ func TestForceCurvesExtrapolationNote(t *testing.T) {
 		}
 		if got != tc.want {
 			t.Errorf("curves up to %g A, peak %g A: extrapolation note %v, want %v", tc.top, res.Metrics.PeakCurrent, got, tc.want)
+		}
+	}
+}
+
+// TestForceCurvesRunNotes: a run far below the lowest curve's current
+// warns of the current column's unit (curves at 2 and 3 A on a 0.333 A
+// run: a factor 6), and curves that do not cover the stroke say so.
+func TestForceCurvesRunNotes(t *testing.T) {
+	t.Parallel()
+	ref, err := LoadModel("scenarios/irrigation-valve.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	g := ref.Magnet.(*magnet.GapLaw)
+	short := "gap (mm), current (A), force (N)\n0.3, 0.2, 3\n1.0, 0.2, 0.5\n0.3, 0.35, 9\n1.0, 0.35, 1.6\n"
+	for _, tc := range []struct {
+		name, csv string
+		want      string
+	}{
+		{"far below the curves", gapLawCurveCSV(g, []float64{2, 3}, 40), "check the unit of the curves' current"},
+		{"short of the stroke", short, "the force curves cover gaps 0.3–1 mm of the stroke's 0.05–1.2 mm"},
+	} {
+		md, err := LoadModel(irrigationWithCurves(t, tc.csv, ""))
+		if err != nil {
+			t.Fatal(err)
+		}
+		res, err := Simulate(md, &Options{NoTrace: true})
+		if err != nil {
+			t.Fatal(err)
+		}
+		var text []string
+		for _, n := range md.Assess(res).Notes {
+			text = append(text, n.Text)
+		}
+		if !strings.Contains(strings.Join(text, "\n"), tc.want) {
+			t.Errorf("%s: notes %q lack %q", tc.name, text, tc.want)
 		}
 	}
 }
