@@ -591,6 +591,8 @@ func scenarioSummary(md *coilkick.Model, sc *coilkick.Scenario) []plot.Item {
 		magnet = "flux-linkage table " + filepath.Base(mg.TableFile)
 	case coilkick.MagnetGeom:
 		magnet = "plunger magnet from its dimensions (lumped magnetic circuit)"
+	case coilkick.MagnetCurves:
+		magnet = fmt.Sprintf("force curves %s (%d), anchored at %s measured at the rest gap", filepath.Base(mg.CurvesFile), len(md.Curves.Currents), si(mg.OpenInductance, "H"))
 	}
 	add("magnet", join(magnet, opt(mg.EddyResistance, "eddy currents as %s shorted turn", si(mg.EddyResistance, "Ω"))))
 	pl := sc.Plunger
