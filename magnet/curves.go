@@ -515,7 +515,10 @@ func (m *CurveModel) Partials(lam, x float64) (diDlam, diDx float64) {
 	if x < m.xMin || x > m.xMax {
 		diDx = 0
 	}
-	return 1 / st.dlam, math.Copysign(diDx, lam)
+	if lam < 0 { // i is odd in λ and even in x's effect: ∂i/∂x is odd in λ
+		diDx = -diDx
+	}
+	return 1 / st.dlam, diDx
 }
 
 // OpenInductance returns the measured inductance the model is anchored at

@@ -293,3 +293,23 @@ func BenchmarkCurveModelBuild3x20(b *testing.B) {
 		}
 	}
 }
+
+// TestCurveModelRoundTripAndPartials: Current inverts FluxLinkage, and
+// Partials are the derivatives of Current (central differences; the
+// implicit-function theorem for the inverse), for the smooth, the
+// piecewise-linear and the one-curve models.
+func TestCurveModelRoundTripAndPartials(t *testing.T) {
+	t.Parallel()
+	g := refGapLaw(t)
+	for _, m := range []*CurveModel{saturatingCurves(t), saturatingCurvesLinear(t), gapLawCurves(t, g, []float64{1.2}), gapLawCurves(t, g, []float64{0.6, 1.5, 3})} {
+		for _, x := range linspace(refXMin, refXMax, 9)[1:8] {
+			for _, i := range []float64{0.037, 0.41, 1.13, 2.71, 4.4} {
+				lam := m.FluxLinkage(i, x)
+				if got := m.Current(lam, x); relErr(got, i) > 1e-12 {
+					t.Errorf("%v: Current(FluxLinkage(%g, %g)) = %.15g", m, i, x, got)
+				}
+				checkPartials(t, m, lam, x)
+			}
+		}
+	}
+}
