@@ -1308,3 +1308,104 @@ func TestControlNoAllocs(t *testing.T) {
 		}
 	}
 }
+
+// Reference values of the brake tests.
+const (
+	refBrakeAt  = 4e-3   // s brake start after energize
+	refBrakeFor = 1.5e-3 // s brake length
+)
+
+// TestControllerBrake follows a constant drive with a brake interval
+// through its time events: on from Start, off at BrakeStart, on again at
+// BrakeEnd, no events after it; a restart brakes again; Stop in the middle
+// ends it.
+func TestControllerBrake(t *testing.T) {
+	t.Parallel()
+	for _, t0 := range []float64{0, refT0} {
+		t.Run(fmt.Sprintf("t0=%g", t0), func(t *testing.T) {
+			t.Parallel()
+			var c Controller
+			c.Control = Control{Mode: Constant, BrakeAt: refBrakeAt, BrakeFor: refBrakeFor}
+			d := makeDrive(refRs, refRon, refCoss, Suppressor{Kind: Freewheel, Voltage: refVf})
+			if err := c.Validate(&d); err != nil {
+				t.Fatalf("Validate() = %v", err)
+			}
+			// source: Control doc (BrakeAt, BrakeFor): the switch is off
+			// from t0 + BrakeAt for BrakeFor, on otherwise while energized.
+			for round, start := range []float64{t0, t0 + refT1} { // a restart brakes again
+				c.Start(start)
+				bs, be := start+refBrakeAt, start+refBrakeAt+refBrakeFor
+				if c.BrakeStart() != bs || c.BrakeEnd() != be {
+					t.Fatalf("round %d: BrakeStart, BrakeEnd = %g, %g, want %g, %g", round, c.BrakeStart(), c.BrakeEnd(), bs, be)
+				}
+				steps := []struct {
+					now      float64 // NextTime is asked from here
+					next     float64 // the event it must return (applied with AtTime)
+					onAfter  bool
+					brakeNow bool
+				}{
+					{start, bs, false, true},
+					{bs, be, true, false},
+				}
+				if !c.On() || c.Braking() {
+					t.Errorf("round %d: after Start On, Braking = %v, %v, want true, false", round, c.On(), c.Braking())
+				}
+				for _, st := range steps {
+					if got := c.NextTime(st.now); got != st.next {
+						t.Fatalf("round %d: NextTime(%g) = %g, want %g", round, st.now, got, st.next)
+					}
+					c.AtTime(st.next)
+					if c.On() != st.onAfter || c.Braking() != st.brakeNow {
+						t.Errorf("round %d: after AtTime(%g) On, Braking = %v, %v, want %v, %v", round, st.next, c.On(), c.Braking(), st.onAfter, st.brakeNow)
+					}
+				}
+				if got := c.NextTime(be); !math.IsInf(got, 1) {
+					t.Errorf("round %d: after the brake NextTime(%g) = %g, want +Inf", round, be, got)
+				}
+				// An event time that is not the brake's changes nothing.
+				c.AtTime(be + refBrakeFor)
+				if !c.On() || c.Braking() {
+					t.Errorf("round %d: a foreign AtTime switched the hold: On, Braking = %v, %v", round, c.On(), c.Braking())
+				}
+			}
+			c.Start(t0)
+			c.AtTime(c.BrakeStart())
+			c.Stop()
+			if c.On() || c.Braking() || !math.IsInf(c.NextTime(t0), 1) {
+				t.Errorf("Stop while braking: On, Braking, NextTime = %v, %v, %g, want false, false, +Inf", c.On(), c.Braking(), c.NextTime(t0))
+			}
+		})
+	}
+}
+
+// TestControlValidateBrake: a brake only with the constant drive, with a
+// start and a length > 0.
+func TestControlValidateBrake(t *testing.T) {
+	t.Parallel()
+	fw := makeDriveRC(refRs, refRon, refCoss, Suppressor{Kind: Freewheel, Voltage: refVf})
+	inf := math.Inf(1)
+	tests := []struct {
+		name    string
+		c       Control
+		wantErr bool
+	}{
+		// source: Control doc (BrakeAt, BrakeFor) and validateBrake doc.
+		{"good/constant brake", Control{Mode: Constant, BrakeAt: refBrakeAt, BrakeFor: refBrakeFor}, false},
+		{"good/no brake", Control{Mode: Constant}, false},
+		{"bad/pwm brake", Control{Mode: PWM, Frequency: refFPWM, Duty: refDuty, BrakeAt: refBrakeAt, BrakeFor: refBrakeFor}, true},
+		{"bad/boost brake", Control{Mode: BoostHold, BoostVoltage: refVboost, BoostTime: refTBoost, BrakeAt: refBrakeAt, BrakeFor: refBrakeFor}, true},
+		{"bad/start 0", Control{Mode: Constant, BrakeFor: refBrakeFor}, true},
+		{"bad/length 0", Control{Mode: Constant, BrakeAt: refBrakeAt}, true},
+		{"bad/negative length", Control{Mode: Constant, BrakeAt: refBrakeAt, BrakeFor: -refBrakeFor}, true},
+		{"bad/NaN start", Control{Mode: Constant, BrakeAt: math.NaN(), BrakeFor: refBrakeFor}, true},
+		{"bad/infinite length", Control{Mode: Constant, BrakeAt: refBrakeAt, BrakeFor: inf}, true},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			t.Parallel()
+			if err := tt.c.Validate(&fw); (err != nil) != tt.wantErr {
+				t.Errorf("Validate(%+v) = %v, want error %v", tt.c, err, tt.wantErr)
+			}
+		})
+	}
+}

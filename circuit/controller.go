@@ -62,6 +62,13 @@ type Control struct {
 	// long after the de-energize command (0: just let the diodes return
 	// the current).
 	ReversePulse float64
+
+	// BrakeAt, BrakeFor (s): a soft-landing brake of a constant drive. The
+	// switch turns off BrakeAt after the energize command and stays off for
+	// BrakeFor (the current decays through the turn-off path, the
+	// suppression part), then turns on again for the hold. BrakeFor 0: no
+	// brake.
+	BrakeAt, BrakeFor float64
 }
 
 // Validate reports a control law that cannot run with the drive d.
@@ -69,8 +76,28 @@ func (c *Control) Validate(d *Drive) error {
 	if err := c.validateMode(d.Supply.Voltage); err != nil {
 		return err
 	}
+	if err := c.validateBrake(); err != nil {
+		return err
+	}
 	return c.validateWith(d)
 }
+
+// validateBrake checks a soft-landing brake: constant drive only, a start
+// after the energize command and a length > 0 (both finite).
+func (c *Control) validateBrake() error {
+	switch {
+	case c.BrakeAt == 0 && c.BrakeFor == 0:
+		return nil
+	case c.Mode != Constant:
+		return errors.New("circuit: a brake interval needs the constant drive")
+	case !(c.BrakeAt > 0) || !(c.BrakeFor > 0) || math.IsInf(c.BrakeAt+c.BrakeFor, 0):
+		return errors.New("circuit: a brake needs a start > 0 and a length > 0 (both finite)")
+	}
+	return nil
+}
+
+// Brakes reports whether the control has a brake interval.
+func (c *Control) Brakes() bool { return c.BrakeFor > 0 }
 
 // validateMode checks the settings of the control mode; supply (V) is the
 // normal supply, which a boost must exceed.
@@ -154,11 +181,13 @@ type Controller struct {
 	// held: the peak or boost phase is over. It changes only at the
 	// phase-end time event, so that the guards are smooth between events.
 	held bool
+	// braking: inside the brake interval (the switch is held off).
+	braking bool
 }
 
 // Start begins the energized interval at time t: the switch turns on.
 func (c *Controller) Start(t float64) {
-	c.t0, c.active, c.on, c.period, c.held = t, true, true, 0, false
+	c.t0, c.active, c.on, c.period, c.held, c.braking = t, true, true, 0, false, false
 	c.edgeAt = math.Inf(1)
 	switch {
 	case c.Mode == PWM:
@@ -198,7 +227,29 @@ func (c *Controller) Skip(n int) float64 {
 }
 
 // Stop ends the energized interval.
-func (c *Controller) Stop() { c.active, c.on = false, false }
+func (c *Controller) Stop() { c.active, c.on, c.braking = false, false, false }
+
+// BrakeStart and BrakeEnd return the brake interval's start and end (s;
+// +Inf when the control has no brake). The times are computed the same
+// way wherever they are used, so that the run lands on them exactly.
+func (c *Controller) BrakeStart() float64 {
+	if !c.Brakes() {
+		return math.Inf(1)
+	}
+	return c.t0 + c.BrakeAt
+}
+
+// BrakeEnd returns the brake interval's end (s; +Inf without a brake); see
+// BrakeStart.
+func (c *Controller) BrakeEnd() float64 {
+	if !c.Brakes() {
+		return math.Inf(1)
+	}
+	return c.t0 + c.BrakeAt + c.BrakeFor
+}
+
+// Braking reports whether the brake interval is running (switch held off).
+func (c *Controller) Braking() bool { return c.braking }
 
 // On reports whether the switch is commanded on.
 func (c *Controller) On() bool { return c.on }
@@ -248,6 +299,11 @@ func (c *Controller) NextTime(t float64) float64 {
 	if pe := c.PhaseEnd(); !c.held && pe > t && pe < next {
 		next = pe
 	}
+	for _, b := range [...]float64{c.BrakeStart(), c.BrakeEnd()} {
+		if b > t && b < next {
+			next = b
+		}
+	}
 	return next
 }
 
@@ -258,6 +314,12 @@ func (c *Controller) AtTime(t float64) {
 	}
 	if t == c.PhaseEnd() {
 		c.held = true
+	}
+	switch t {
+	case c.BrakeStart():
+		c.braking, c.on = true, false
+	case c.BrakeEnd():
+		c.braking, c.on = false, true
 	}
 	if t != c.edgeAt {
 		return
