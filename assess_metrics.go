@@ -11,6 +11,23 @@ import (
 // of its value at turn-off.
 const DecayFraction = 0.01
 
+// BrakeMetrics describe the brake interval of a constant drive: the switch
+// held off while energized, the current decaying through the suppression
+// part (circuit.Control.BrakeAt).
+type BrakeMetrics struct {
+	// Happened: the brake began before the de-energize command.
+	Happened bool
+	// Start: energize → the switch turns off (s); End: energize → it turns
+	// on again (s), when Ended (false: de-energized first).
+	Start, End float64
+	Ended      bool
+	// CurrentAtStart, CurrentAtEnd: coil current at those instants (A).
+	CurrentAtStart, CurrentAtEnd float64
+	// GapAtStart (m) and SpeedAtStart (m/s, ≥ 0: toward the seat) of the
+	// plunger when the brake began.
+	GapAtStart, SpeedAtStart float64
+}
+
 // Interval is a duration measured from a command (s), or the fact that the
 // thing it measures did not happen before the run ended. In JSON it is a
 // number of seconds or null.
@@ -118,6 +135,9 @@ type Metrics struct {
 	FinalWindingTemperature, FinalHousingTemperature float64
 	// Hold: figures over the hold window.
 	Hold HoldMetrics
+	// Brake: the soft-landing brake interval of a constant drive
+	// (drive.brake at, drive.brake for); Happened false without one.
+	Brake BrakeMetrics
 
 	// Energy balance, J: SupplyEnergy = CoilLoss + SourceLoss + SwitchLoss
 	// + SuppressionLoss + DiodeLoss + MechanicalWork + EddyLoss + CoreLoss

@@ -37,7 +37,9 @@
 //     actuation (Simulate): the modes, the event handling, the metrics as
 //     they happen and the energy balance at the end; sim_ring.go retires
 //     the switch node's ring after turn-off; sim_periodic.go repeats a
-//     chopped hold's periodic steady state instead of integrating it.
+//     chopped hold's periodic steady state instead of integrating it;
+//     sim_brake.go records a constant drive's soft-landing brake interval
+//     (its events and Metrics.Brake).
 //   - ode*.go — the integrator, which knows nothing of solenoids: ode.go
 //     steps, controls the error, lands on time events and locates state
 //     events (guards) on the dense output; ode_methods.go holds the

@@ -230,6 +230,7 @@ type DriveSpec struct {
 	RecirculationResistance float64 // ohm
 	BoostVoltage            float64 // V
 	BoostTime               float64 // s
+	BrakeAt, BrakeFor       float64 // s, soft-landing brake of a constant drive (0: none)
 }
 
 // TimingSpec is when the drive is commanded on and off.

@@ -38,6 +38,10 @@ var driveSection = &sectionSpec{path: "drive", keys: []*keySpec{
 		doc: "> supply.voltage"},
 	{name: "boost time", rng: newRange(Time, "1 µs to 60 min", ""), example: "10 ms", only: []string{DriveBoostHold},
 		doc: "the supply is raised that long"},
+	{name: "brake at", rng: newRange(Time, "1 µs to 60 min", ""), need: whenGiven, example: "4 ms", only: []string{DriveConstant},
+		doc: "soft landing (with brake for): the switch turns off this long after energize; `coilkick land` finds it"},
+	{name: "brake for", rng: newRange(Time, "1 µs to 60 min", ""), need: needWhere, example: "2 ms", only: []string{DriveConstant},
+		doc: "soft landing (with brake at): the switch stays off this long (the current decays through the suppression part), then full voltage again; brake at + brake for before de-energize"},
 }}
 
 // loadDrive reads the optional drive section (default: constant drive).
@@ -60,6 +64,8 @@ func (l *scenarioLoader) loadDrive(sec *yamlSection) {
 		return fmt.Sprintf("does not apply to drive mode %q (its keys: %s)", mode, strings.Join(append([]string{"mode"}, applies...), ", "))
 	})
 	switch mode {
+	case DriveConstant:
+		l.loadBrake(sec)
 	case DrivePWM:
 		l.read(sec, "frequency", &d.Frequency)
 		l.read(sec, "duty", &d.Duty)
@@ -75,6 +81,33 @@ func (l *scenarioLoader) loadDrive(sec *yamlSection) {
 		l.read(sec, "boost voltage", &d.BoostVoltage)
 		l.read(sec, "boost time", &d.BoostTime)
 		l.exceed("drive.boost voltage", d.BoostVoltage, "supply.voltage", l.s.Supply.Voltage, false)
+	}
+}
+
+// loadBrake reads the soft-landing brake of a constant drive: both keys
+// or neither.
+func (l *scenarioLoader) loadBrake(sec *yamlSection) {
+	d := &l.s.Drive
+	if !sec.has("brake at") && !sec.has("brake for") {
+		return
+	}
+	l.read(sec, "brake at", &d.BrakeAt)
+	if !sec.has("brake at") {
+		l.errf("drive.brake for", "needs drive.brake at (the time after energize when the switch turns off), with a unit")
+		return
+	}
+	l.read(sec, "brake for", &d.BrakeFor)
+}
+
+// checkBrake checks that a brake ends before the de-energize command.
+func (l *scenarioLoader) checkBrake() {
+	d, t := &l.s.Drive, &l.s.Timing
+	if !l.ok["drive.brake at"] || !l.ok["drive.brake for"] || !l.ok["timing.energize at"] || !l.ok["timing.de-energize at"] {
+		return
+	}
+	if window := t.DeenergizeAt - t.EnergizeAt; !(d.BrakeAt+d.BrakeFor < window) {
+		l.errf("drive.brake for", "the brake (%s + %s) ends at or after de-energize (%.4g s after energize); expected brake at + brake for below it",
+			l.show("drive.brake at"), l.show("drive.brake for"), window)
 	}
 }
 

@@ -156,7 +156,7 @@ func TestLoadBad(t *testing.T) {
 		{"list_instead_of_map.yaml", 12, 3, []string{"plunger", "expected a section of keys (mass, rest gap", "got a list"}},
 		{"duplicate_key.yaml", 17, 3, []string{"plunger.mass", `duplicate key "mass" (first given at line 12)`}},
 		{"missing_required.yaml", 11, 1, []string{"plunger.spring rate", "missing (required)", `expected a spring rate (force per length), e.g. "0.8 N/mm"`}},
-		{"drive_key_not_for_mode.yaml", 25, 14, []string{"drive.frequency", `does not apply to drive mode "constant" (its keys: mode)`}},
+		{"drive_key_not_for_mode.yaml", 25, 14, []string{"drive.frequency", `does not apply to drive mode "constant" (its keys: mode, brake at, brake for)`}},
 		{"key_not_for_type.yaml", 23, 18, []string{"suppression.zener voltage", `does not apply to suppression type "freewheel diode"`, "type, forward drop, resistance"}},
 		{"unknown_suppression.yaml", 21, 9, []string{"suppression.type", `unknown suppression type "flyback diode"`, "none, freewheel diode, diode zener, tvs, rc snubber, switch clamp"}},
 		{"open_not_below_closed.yaml", 10, 22, []string{"magnet.gap law.open inductance", `"300 mH" must be less than magnet.gap law.closed inductance "250 mH" (line 9)`}},

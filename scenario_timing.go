@@ -8,7 +8,8 @@ var timingSection = &sectionSpec{path: "timing", keys: []*keySpec{
 }}
 
 // loadTiming reads the timing section, then checks the drive's frequency
-// against the energized time (checkFrequency).
+// against the energized time (checkFrequency) and that a brake ends before
+// de-energize (checkBrake).
 func (l *scenarioLoader) loadTiming(sec *yamlSection) {
 	t := &l.s.Timing
 	l.read(sec, "energize at", &t.EnergizeAt)
@@ -17,4 +18,5 @@ func (l *scenarioLoader) loadTiming(sec *yamlSection) {
 	l.exceed("timing.de-energize at", t.DeenergizeAt, "timing.energize at", t.EnergizeAt, false)
 	l.exceed("timing.end", t.End, "timing.de-energize at", t.DeenergizeAt, false)
 	l.checkFrequency()
+	l.checkBrake()
 }

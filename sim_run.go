@@ -309,6 +309,7 @@ func (r *run) event(t float64, y []float64, k int) (bool, error) {
 		if r.ctl.Active() {
 			r.ctl.AtTime(t)
 			r.applyCommand(t, y)
+			r.noteBrake(t, y)
 		}
 		if t == r.window.start {
 			r.window.begin(y, r.swEst, r.current(y))

@@ -174,6 +174,23 @@ func (s *summary) pullIn(m *coilkick.Metrics) {
 		s.row("current at seating", si(m.CurrentAtSeating, "A"))
 	}
 	s.row("peak current", si(m.PeakCurrent, "A"))
+	s.brake(m.Brake)
+}
+
+// brake prints the soft-landing brake interval (nothing without one).
+func (s *summary) brake(b coilkick.BrakeMetrics) {
+	if !b.Happened {
+		return
+	}
+	end := "de-energize (no end)"
+	if b.Ended {
+		end = si(b.End, "s")
+	}
+	s.row("brake (switch off)", fmt.Sprintf("%s to %s after energize", si(b.Start, "s"), end))
+	s.row("current at brake start", fmt.Sprintf("%s (gap %.3g mm, %.3g m/s toward the seat)", si(b.CurrentAtStart, "A"), 1e3*b.GapAtStart, b.SpeedAtStart))
+	if b.Ended {
+		s.row("current at brake end", si(b.CurrentAtEnd, "A"))
+	}
 }
 
 func (s *summary) hold(md *coilkick.Model, m *coilkick.Metrics) {
@@ -402,6 +419,17 @@ type jsonMetrics struct {
 	MinRailVoltage    float64           `json:"lowest_rail_voltage_V"`
 	MaxRailVoltage    float64           `json:"highest_rail_voltage_V"`
 	Hold              *jsonHold         `json:"hold"`
+	Brake             *jsonBrake        `json:"brake"`
+}
+
+// jsonBrake is the soft-landing brake interval (null without one).
+type jsonBrake struct {
+	Start          float64  `json:"start_after_energize_s"`
+	End            *float64 `json:"end_after_energize_s"` // null: de-energized first
+	CurrentAtStart float64  `json:"current_at_start_A"`
+	CurrentAtEnd   *float64 `json:"current_at_end_A"`
+	GapAtStart     float64  `json:"gap_at_start_m"`
+	SpeedAtStart   float64  `json:"speed_at_start_m_per_s"`
 }
 
 // jsonDropOut is the drop-out while energized (null when none).
@@ -476,6 +504,10 @@ func writeJSON(w io.Writer, md *coilkick.Model, res *coilkick.Result, as *coilki
 	doc.Metrics.PeakSupplyCurrent, doc.Metrics.MinRailVoltage, doc.Metrics.MaxRailVoltage = m.PeakSupplyCurrent, m.MinRailVoltage, m.MaxRailVoltage
 	if h := m.Hold; h.Measured {
 		doc.Metrics.Hold = newJSONHold(h)
+	}
+	if b := m.Brake; b.Happened {
+		doc.Metrics.Brake = &jsonBrake{Start: b.Start, End: optional(b.End, b.Ended), CurrentAtStart: b.CurrentAtStart,
+			CurrentAtEnd: optional(b.CurrentAtEnd, b.Ended), GapAtStart: b.GapAtStart, SpeedAtStart: b.SpeedAtStart}
 	}
 	if d := m.DropOut; d.Happened {
 		doc.Metrics.DropOut = &jsonDropOut{Time: d.Time, InHold: d.InHold, Current: d.Current, Pull: d.Pull, Passive: d.Passive}
