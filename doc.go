@@ -39,7 +39,8 @@
 //     the switch node's ring after turn-off; sim_periodic.go repeats a
 //     chopped hold's periodic steady state instead of integrating it;
 //     sim_brake.go records a constant drive's soft-landing brake interval
-//     (its events and Metrics.Brake).
+//     (its events and Metrics.Brake); the study that tunes the brake
+//     against the tolerance corners is study_land.go (Land).
 //   - ode*.go — the integrator, which knows nothing of solenoids: ode.go
 //     steps, controls the error, lands on time events and locates state
 //     events (guards) on the dense output; ode_methods.go holds the

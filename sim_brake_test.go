@@ -26,8 +26,7 @@ func TestBrakeRLClosedForm(t *testing.T) {
 		samplesPhase = 40
 	)
 	md := fixedModel(t, v0, r, l, circuit.Suppressor{Kind: circuit.Freewheel, Voltage: vf, Resistance: rd})
-	// As buildControl sets it for a constant drive with a brake.
-	md.Control = circuit.Control{Mode: circuit.Constant, BrakeAt: brakeAt, BrakeFor: brakeFor, FastDecay: true}
+	md.Control = circuit.Control{Mode: circuit.Constant}.WithBrake(brakeAt, brakeFor)
 	t1, t2 := md.Timing.EnergizeAt+brakeAt, md.Timing.EnergizeAt+brakeAt+brakeFor
 	var times []float64
 	for k := 1; k < samplesPhase; k++ {

@@ -283,12 +283,12 @@ func buildControl(s *Scenario, md *Model) error {
 	if !ok {
 		return s.Errorf("drive.mode", "unknown drive mode %q", dr.Mode)
 	}
-	// A constant drive's brake switches off into the turn-off path (the
-	// suppression part): it has no recirculation path, so it decays fast.
 	md.Control = circuit.Control{Mode: cm, Frequency: dr.Frequency, Duty: dr.Duty, PeakCurrent: dr.PeakCurrent,
-		PeakTime: dr.PeakTime, HoldCurrent: dr.HoldCurrent, Band: dr.Band, FastDecay: dr.Decay == "fast" || dr.BrakeFor > 0,
-		BoostVoltage: dr.BoostVoltage, BoostTime: dr.BoostTime, ReversePulse: s.Suppression.ReversePulse,
-		BrakeAt: dr.BrakeAt, BrakeFor: dr.BrakeFor}
+		PeakTime: dr.PeakTime, HoldCurrent: dr.HoldCurrent, Band: dr.Band, FastDecay: dr.Decay == "fast",
+		BoostVoltage: dr.BoostVoltage, BoostTime: dr.BoostTime, ReversePulse: s.Suppression.ReversePulse}
+	if dr.BrakeFor > 0 {
+		md.Control = md.Control.WithBrake(dr.BrakeAt, dr.BrakeFor)
+	}
 	if dr.Regulation == "fixed frequency" {
 		md.Control.Regulation = circuit.FixedFrequency
 	}

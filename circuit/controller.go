@@ -96,6 +96,18 @@ func (c *Control) validateBrake() error {
 	return nil
 }
 
+// WithBrake returns c with the brake interval: off at (s) after energize
+// for length (s); 0, 0: none. The constant drive has no recirculation
+// path, so its brake decays through the turn-off path (the suppression
+// part): FastDecay is set with a brake.
+func (c Control) WithBrake(at, length float64) Control {
+	c.BrakeAt, c.BrakeFor = at, length
+	if c.Mode == Constant {
+		c.FastDecay = length > 0
+	}
+	return c
+}
+
 // Brakes reports whether the control has a brake interval.
 func (c *Control) Brakes() bool { return c.BrakeFor > 0 }
 
