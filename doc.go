@@ -59,7 +59,10 @@
 //     Carlo yield), study_solve.go (the solve-for searches by bisection:
 //     lowest supply, hold setting and clamp voltage), study_clamps.go (the
 //     suppression options compared and one recommended), study_heat.go
-//     (the duty-cycle heating study).
+//     (the duty-cycle heating study), study_signature.go (the end-of-stroke
+//     signature: the current-sense chain, the dip, the runs at every corner
+//     with the plunger free and blocked) and study_signature_detect.go (the
+//     recommended detection settings and a chopped drive's signature).
 //   - fit*.go — calibration from a measured trace: fit_trace.go reads a
 //     scope CSV and finds its events (energize, the pull-in dip, the
 //     decay); fit.go fits the model's parameters to it.

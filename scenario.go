@@ -23,6 +23,7 @@ type Scenario struct {
 	Thermal     *ThermalSpec // nil: no thermal model
 	Duty        *DutySpec    // nil: no operating pattern
 	Tolerances  Tolerances   // zero: no spread
+	Sense       *SenseChain  // nil: no current-sense chain (coilkick signature)
 	Timing      TimingSpec
 	Limits      LimitsSpec
 	Solver      SolverSpec

@@ -194,6 +194,13 @@ func Load(path string) (*Scenario, error) {
 //	  load: 20 %                              # optional, default 0 %; ± of the load (pressure, constant force)
 //	  ambient: 10 K                           # optional, default 0 K; ± on the winding temperature, in K
 //	  hot winding: 100 degC                   # optional; the winding temperature of the hot corner, as it stands; default the run's temperature + ambient
+//	sense:                                    # optional; the driver's current-sense chain, for `coilkick signature`
+//	  bandwidth: 2 kHz                        # optional, default 0 Hz, no filter; −3 dB frequency of the first-order current-sense filter
+//	  sample rate: 10 kHz                     # the ADC's sampling rate
+//	  resolution: 0.49 mA                     # optional, default 0 A, none; the ADC's step (one LSB, in A): 12 bits over 2 A is 2 A/4096
+//	  noise: 3 mA                             # optional, default 0 A, none; rms of white Gaussian noise added to each reading before quantisation
+//	  seed: 1                                 # optional, default 1; of the noise (repeatable)
+//	  required margin: 5                      # optional; requirement: the dip depth ÷ the noise rms at every point, and a detection setting that works
 //	ratings:                                  # optional; each key optional; a missing one is not checked
 //	  switch voltage: 60 V                    # optional; the peak switch voltage must not exceed it
 //	  avalanche energy: 20 mJ                 # optional; single pulse
@@ -752,6 +759,8 @@ var topSection = &sectionSpec{path: "", keys: []*keySpec{
 		doc: "the coil's thermal network (the winding temperature becomes a state): the ambient and exactly one of a rating, a surface or a two-node network"},
 	{name: "duty", kind: keySection, sub: dutySection, need: whenGiven, doc: "the operating pattern for `coilkick heat`"},
 	{name: "tolerances", kind: keySection, sub: tolerancesSection, need: whenGiven, doc: "for `coilkick corners`"},
+	{name: "sense", kind: keySection, sub: senseSection, need: whenGiven,
+		doc: "the driver's current-sense chain, for `coilkick signature`"},
 	{name: "ratings", kind: keySection, sub: ratingsSection, need: whenGiven,
 		doc: "each key optional; a missing one is not checked"},
 	{name: "solver", kind: keySection, sub: solverSection, need: whenGiven},
@@ -790,7 +799,7 @@ func (l *scenarioLoader) load(root *yaml.Node) {
 	}{
 		{"supply", l.loadSupply}, {"coil", l.loadCoil}, {"magnet", l.loadMagnet}, {"plunger", l.loadPlunger},
 		{"switch", l.loadSwitch}, {"suppression", l.loadSuppression}, {"drive", l.loadDrive},
-		{"thermal", l.loadThermal}, {"tolerances", l.loadTolerances}, {"duty", l.loadDuty},
+		{"thermal", l.loadThermal}, {"tolerances", l.loadTolerances}, {"sense", l.loadSense}, {"duty", l.loadDuty},
 		{"timing", l.loadTiming}, {"ratings", l.loadRatings}, {"solver", l.loadSolver},
 	} {
 		step.load(secs[step.section])

@@ -46,6 +46,9 @@ type Model struct {
 	DiodeDrop float64
 	// Tolerances for worst-case corners (zero when not given).
 	Tolerances Tolerances
+	// Sense is the driver's current-sense chain (the scenario's sense
+	// section) for the end-of-stroke signature; nil when not given.
+	Sense *SenseChain
 	// Duty is the operating pattern from the scenario's duty section; nil
 	// when there is none.
 	Duty *DutyPattern
@@ -109,7 +112,7 @@ func (md *Model) scales() []float64 {
 func Build(s *Scenario) (*Model, error) {
 	md := &Model{Name: s.Name, Source: s.Source, Timing: s.Timing, Limits: s.Limits, Solver: s.Solver,
 		EddyResistance: s.Magnet.EddyResistance, CoreLossResistance: s.Coil.CoreLossResistance,
-		LowSupply: s.Supply.LowVoltage, Tolerances: s.Tolerances}
+		LowSupply: s.Supply.LowVoltage, Tolerances: s.Tolerances, Sense: s.Sense}
 	if d := s.Duty; d != nil {
 		md.Duty = &DutyPattern{OnTime: d.OnTime, Period: d.Period, Segments: d.Segments, Duration: d.Duration}
 	}

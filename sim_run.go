@@ -44,6 +44,17 @@ type Options struct {
 	// repeating its periodic steady state (sim_periodic.go): slower, the same
 	// figures.
 	FollowPeriods bool
+	// BlockPlunger holds the plunger at its rest stop for the whole run
+	// (a stuck valve, for the end-of-stroke signature study): its mode
+	// stays "at rest" whatever the pull, so it never moves and does no work.
+	BlockPlunger bool
+	// ImposedVelocity (m/s, negative: closing), when not 0, moves the
+	// plunger at this constant velocity from the rest gap from the energize
+	// command on, whatever the forces (the mechanics are off; the magnetic
+	// force's work is still booked): a test and study facility for the
+	// electrical side of a moving plunger (the back-EMF). It sticks at the
+	// stop it reaches.
+	ImposedVelocity float64
 }
 
 // Trace is the recorded time series, one sample per accepted step and one
@@ -474,6 +485,9 @@ func (r *run) energize(t float64, y []float64) {
 	r.ctl.Start(t)
 	r.v0 = r.ctl.SupplyVoltage(t, r.baseV0)
 	r.switchOn(t, y)
+	if r.imposed != 0 {
+		r.mmode, y[sVel] = mechFree, r.imposed
+	}
 	r.note(t, "energize (%v drive)", r.ctl.Mode)
 }
 
@@ -578,7 +592,7 @@ func (r *run) impact(t float64, y []float64) {
 		after, stick = 0, true
 	}
 	zeno := r.countBounce(atSeat, stick)
-	if zeno {
+	if zeno || r.imposed != 0 {
 		after, stick = 0, true
 	}
 	r.recordImpact(t, y, atSeat, stick, v)
@@ -826,7 +840,7 @@ func newRun(md *Model, opt *Options, tol float64) (*run, []float64) {
 	sys := &system{mag: md.Magnet, plunger: md.Plunger, drive: drive, r: md.Coil.ResistanceAt(tWinding), eddy: md.EddyResistance,
 		rp: md.CoreLossResistance,
 		v0: drive.Supply.Voltage, rs: drive.Supply.SourceResistance, bulkC: md.BulkCapacitance,
-		coil: md.Coil, ambient: md.Ambient}
+		coil: md.Coil, ambient: md.Ambient, blocked: opt.BlockPlunger, imposed: opt.ImposedVelocity}
 	if md.Thermal != nil && opt.FixedTemperature == 0 {
 		sys.thermal = md.Thermal
 	}

@@ -90,6 +90,11 @@ type system struct {
 	// the winding current plus the core-loss resistance's.
 	termCurrent float64
 	pt          circuit.Point // scratch
+	// blocked: the plunger never leaves the rest stop (Options.BlockPlunger);
+	// imposed (m/s): the plunger's constant velocity while it moves, the
+	// mechanics off (Options.ImposedVelocity; 0: none).
+	blocked bool
+	imposed float64
 }
 
 // outputs are the algebraic quantities at a state.
@@ -237,7 +242,10 @@ func (s *system) deriv(_ float64, y, dy []float64) {
 	}
 	if s.mmode == mechFree {
 		dy[sGap] = v
-		dy[sVel] = s.plunger.Acceleration(x, v, pull)
+		dy[sVel] = 0
+		if s.imposed == 0 {
+			dy[sVel] = s.plunger.Acceleration(x, v, pull)
+		}
 	} else {
 		dy[sGap], dy[sVel] = 0, 0
 	}
@@ -317,6 +325,9 @@ func (s *system) guardsAt(y, g []float64) (nc, n int) {
 		n++
 	case mechRest:
 		g[n] = s.mag.Force(im, s.plunger.GapMax) - s.plunger.PassiveForce(s.plunger.GapMax, 0)
+		if s.blocked {
+			g[n] = -1 // held at the rest stop whatever the pull
+		}
 		n++
 	}
 	return nc, n
