@@ -47,7 +47,7 @@ func ParseSenseValue(key, text string) (float64, error) {
 	k := senseSection.key(key)
 	v, err := ParseQuantity(text, k.rng.dim)
 	if err != nil {
-		return 0, fmt.Errorf("%q: %v; expected %s", text, err, k.rng.expected())
+		return 0, fmt.Errorf("%q: %v (range: %s)", text, err, k.rng.text)
 	}
 	if !k.rng.contains(v) {
 		return 0, errors.New(k.rng.problem(text, v))

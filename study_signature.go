@@ -197,6 +197,8 @@ type SenseRun struct {
 	Dip      Dip
 	// Margin is Dip.Depth ÷ Signature.NoiseRMS (0 when that is 0).
 	Margin float64
+	// Steps: the integrator's accepted steps of the run.
+	Steps int
 	// Detected, DetectTime (s after energize): what the recommended
 	// settings find (only when Signature.Detection.Found).
 	Detected   bool
@@ -278,6 +280,16 @@ type Signature struct {
 	// Failures: the requirement's failures (Sense.MinMargin); empty when it
 	// passes or there is none.
 	Failures []string
+}
+
+// Steps returns the integrator's accepted steps over every run of the
+// study (the window's nominal run not counted).
+func (s *Signature) Steps() int {
+	n := 0
+	for _, p := range s.Points {
+		n += p.Moving.Steps + p.Blocked.Steps
+	}
+	return n
 }
 
 // Failed reports whether the scenario's requirement failed.
@@ -429,7 +441,7 @@ func (s *Signature) senseRun(md *Model, opt *Options, stream uint64) (SenseRun, 
 		return SenseRun{}, nil, fmt.Errorf("coilkick: %d of %d current samples recorded", len(res.Samples), len(opt.SampleTimes))
 	}
 	r := SenseRun{Samples: s.Sense.Sense(res.Samples, stream)}
-	r.PulledIn, r.PullIn = res.Metrics.PullIn.Happened, res.Metrics.PullIn.Seconds
+	r.PulledIn, r.PullIn, r.Steps = res.Metrics.PullIn.Happened, res.Metrics.PullIn.Seconds, res.Stats.Steps
 	r.Dip = findDip(r.Samples, 1/s.Sense.SampleRate, 0, len(r.Samples)-1)
 	if s.NoiseRMS > 0 {
 		r.Margin = r.Dip.Depth / s.NoiseRMS

@@ -2,6 +2,9 @@ package coilkick
 
 import (
 	"math"
+	"os"
+	"path/filepath"
+	"strings"
 	"testing"
 
 	"coilkick/circuit"
@@ -177,4 +180,158 @@ func TestSenseNoiseRepeatable(t *testing.T) {
 	if math.Abs(sd/want-1) > 0.03 {
 		t.Errorf("noise rms %.4g A, want %.4g A", sd, want)
 	}
+}
+
+// signatureCornersModel is the door-strike demo with a hot winding of
+// 70 degC, so that every one of its 16 corners pulls in (demo data).
+func signatureCornersModel(t testing.TB) *Model {
+	t.Helper()
+	src, err := os.ReadFile("scenarios/door-strike-duty.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	text := strings.Replace(string(src), "hot winding: 100 degC", "hot winding: 70 degC", 1)
+	path := filepath.Join(t.TempDir(), "strike.yaml")
+	if err := os.WriteFile(path, []byte(text), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	md, err := LoadModel(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return md
+}
+
+// TestSignatureDetection: with the recommended settings the seat is
+// detected at every corner, within the stated window, and nothing on the
+// blocked plunger at any corner; the blocked plunger never moves; the dip's
+// minimum lies at the seat within the filter's delay (about τ) and one
+// reading: the current's fall ends where the back-EMF i·(dL/dx)·v ends
+// (Fitzgerald & Kingsley ch. 3).
+func TestSignatureDetection(t *testing.T) {
+	t.Parallel()
+	md := signatureCornersModel(t)
+	sig, err := EndOfStroke(md, *md.Sense)
+	if err != nil {
+		t.Fatal(err)
+	}
+	d := sig.Detection
+	if !d.Found || len(sig.Points) != 17 || sig.NominalOnly {
+		t.Fatalf("detection %+v over %d points", d, len(sig.Points))
+	}
+	dt := 1 / md.Sense.SampleRate
+	tau := 1 / (2 * math.Pi * md.Sense.Bandwidth)
+	for _, p := range sig.Points {
+		m, b := p.Moving, p.Blocked
+		if !m.Detected || m.DetectTime < d.From || m.DetectTime > d.To {
+			t.Errorf("%s: detected %v at %.4g ms, want within %.4g to %.4g ms", p.Corner.Label, m.Detected, 1e3*m.DetectTime, 1e3*d.From, 1e3*d.To)
+		}
+		// The detector applied again, independently of the study's flags.
+		if _, hit := Detect(b.Samples, dt, d.Threshold, d.From, d.To); hit || b.Detected || b.PulledIn {
+			t.Errorf("%s: blocked plunger detected %v (pulled in %v)", p.Corner.Label, hit, b.PulledIn)
+		}
+		if off := m.Dip.MinTime - m.PullIn; off < -dt || off > 3*tau+dt {
+			t.Errorf("%s: dip minimum %.4g ms against the seat %.4g ms", p.Corner.Label, 1e3*m.Dip.MinTime, 1e3*m.PullIn)
+		}
+		if !(m.Margin > 10) {
+			t.Errorf("%s: margin %.3g", p.Corner.Label, m.Margin)
+		}
+	}
+	if sig.Failed() {
+		t.Errorf("requirement failures without a requirement: %v", sig.Failures)
+	}
+}
+
+// TestSignatureChopped: the peak-and-hold demo's peak (1.5 A) comes after
+// the seat: not regulated, not masked. With a 1 A peak the regulation
+// starts before the seat, and the switch-on pulses' rise slope falls after
+// it: (V − R·i − i·(dL/dx)·v)/L(x) before against (V − R·i)/L(x_seated)
+// after, L rising as the gap closes (Faraday's law, Fitzgerald & Kingsley
+// ch. 3).
+func TestSignatureChopped(t *testing.T) {
+	t.Parallel()
+	sc := SenseChain{Bandwidth: 2000, SampleRate: 10e3, Resolution: 2.0 / 4096, Noise: 3e-3, Seed: 1}
+	md, err := LoadModel("scenarios/peak-hold-valve.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	sig, err := EndOfStroke(md, sc)
+	if err != nil {
+		t.Fatal(err)
+	}
+	nom := sig.Points[0].Moving
+	if cs := sig.Chop; cs == nil || cs.Regulated || cs.Masked || !(cs.FirstOff > nom.PullIn) || !sig.Detection.Found {
+		t.Errorf("1.5 A peak: chop %+v, seat %.4g ms, detection %v", cs, 1e3*nom.PullIn, sig.Detection.Found)
+	}
+	md.Control.PeakCurrent = 1
+	sig, err = EndOfStroke(md, sc)
+	if err != nil {
+		t.Fatal(err)
+	}
+	cs := sig.Chop
+	if cs == nil || !cs.Regulated || !(cs.FirstOff < sig.Points[0].Moving.PullIn) {
+		t.Fatalf("1 A peak: chop %+v, seat %.4g ms", cs, 1e3*sig.Points[0].Moving.PullIn)
+	}
+	if cs.Before.Cycles < 5 || cs.After.Cycles < 5 || !(cs.After.RiseSlope < 0.8*cs.Before.RiseSlope) {
+		t.Errorf("1 A peak: rise slope %.4g A/s before (%d pulses), %.4g A/s after (%d pulses)",
+			cs.Before.RiseSlope, cs.Before.Cycles, cs.After.RiseSlope, cs.After.Cycles)
+	}
+	// Seated (v = 0), a switch-on pulse rises at (V − (R + Ron)·i)/L_seated
+	// at the 1 A peak (Faraday's law; the 470 µF bulk capacitor sags a
+	// little, hence 3 %).
+	if want := (24 - (12+0.04)*1) / 0.06; math.Abs(cs.After.RiseSlope/want-1) > 0.03 {
+		t.Errorf("1 A peak: rise slope after the seat %.4g A/s, want %.4g A/s within 3 %%", cs.After.RiseSlope, want)
+	}
+	// The masking verdict follows its rule.
+	nomP := sig.Points[0]
+	if want := !(nomP.Moving.Dip.Depth-nomP.Blocked.Dip.Depth > 2*sig.Detection.NoiseAllowance); cs.Masked != want {
+		t.Errorf("masked %v, want %v (dip %.4g A, blocked fall %.4g A)", cs.Masked, want, nomP.Moving.Dip.Depth, nomP.Blocked.Dip.Depth)
+	}
+}
+
+// TestSignatureRequirement: a required margin above every point's fails
+// (exit status 2 in the CLI), one below passes; a noise-free chain
+// without quantisation has no margin.
+func TestSignatureRequirement(t *testing.T) {
+	t.Parallel()
+	md, err := LoadModel("scenarios/irrigation-valve.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	sc := SenseChain{Bandwidth: 2000, SampleRate: 10e3, Noise: 3e-3, Seed: 1, MinMargin: 1000}
+	sig, err := EndOfStroke(md, sc)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !sig.Failed() || !sig.NominalOnly {
+		t.Errorf("margin %.3g against 1000 required: failures %v", sig.Points[0].Moving.Margin, sig.Failures)
+	}
+	sc.MinMargin = 5
+	if sig, err = EndOfStroke(md, sc); err != nil || sig.Failed() {
+		t.Errorf("margin %.3g against 5 required: failures %v, %v", sig.Points[0].Moving.Margin, sig.Failures, err)
+	}
+	sc.Noise = 0
+	if sig, err = EndOfStroke(md, sc); err != nil || sig.NoiseRMS != 0 || sig.Points[0].Moving.Margin != 0 || !sig.Detection.Found {
+		t.Errorf("no noise: rms %g, margin %g, found %v, %v", sig.NoiseRMS, sig.Points[0].Moving.Margin, sig.Detection.Found, err)
+	}
+}
+
+// BenchmarkSignature32Corners: the door-strike demo with a load and five
+// tolerance axes, 32 corners (and the nominal point), free and blocked.
+func BenchmarkSignature32Corners(b *testing.B) {
+	md := signatureCornersModel(b)
+	md.Tolerances.Load = 0.2
+	md.Plunger.Load = mech.ConstantLoad(0.3)
+	if n := len(corners(md, md.Tolerances)); n != 32 {
+		b.Fatalf("%d corners", n)
+	}
+	steps := 0
+	for b.Loop() {
+		sig, err := EndOfStroke(md, *md.Sense)
+		if err != nil {
+			b.Fatal(err)
+		}
+		steps = sig.Steps()
+	}
+	b.ReportMetric(float64(steps), "steps")
 }

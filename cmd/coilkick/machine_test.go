@@ -34,6 +34,7 @@ func machineCommands() []struct {
 		{"corners", []string{"corners", "../../scenarios/door-strike-duty.yaml", "--samples", "4"}, exitFailing},
 		{"clamps", []string{"clamps", "../../scenarios/process-air-valve.yaml"}, exitOK},
 		{"solve", []string{"solve", "../../scenarios/process-air-valve.yaml"}, exitOK},
+		{"signature", []string{"signature", "../../scenarios/door-strike-duty.yaml"}, exitOK},
 	}
 }
 

@@ -272,6 +272,11 @@ func buildReport(sim *simulation) (*plot.Report, bool, error) {
 			rep.Verdict += "; the duty-cycle heating study FAILS"
 		}
 	}
+	if md.Sense != nil {
+		if err := signatureReport(rep, path, md); err != nil {
+			return nil, false, err
+		}
+	}
 	rep.Footer = reportFooter(doc.Solver)
 	return rep, rep.Failed, nil
 }

@@ -321,3 +321,36 @@ func scaledCopy(v []float64, f float64) []float64 {
 	}
 	return out
 }
+
+// signatureReport adds the end-of-stroke signature to the report (the
+// scenario has a sense section): the figure, with the detection settings
+// and the requirement's verdict as its caption.
+func signatureReport(rep *plot.Report, path string, md *coilkick.Model) error {
+	sig, err := coilkick.EndOfStroke(md, *md.Sense)
+	if err != nil {
+		return err
+	}
+	d := sig.Detection
+	caption := "Sense: " + senseText(sig) + ". "
+	if d.Found {
+		caption += fmt.Sprintf("Detection: a fall of at least %s mA below the running maximum, looked for from %s to %s ms after energize, detects the seat at the %d points where the plunger seats and nothing on the blocked plunger (shallowest dip %s mA at %s).",
+			mA(d.Threshold), ms(d.From), ms(d.To), len(sig.Points)-len(d.Unseated), mA(d.SmallestDip), d.SmallestAt)
+	} else {
+		caption += "Detection: no setting works: " + d.Why + "."
+	}
+	if len(d.Unseated) > 0 {
+		caption += " Not seated: " + strings.Join(d.Unseated, "; ") + "."
+	}
+	if sig.Chop != nil && sig.Chop.Masked {
+		caption += " The current regulation masks the dip."
+	}
+	if sig.Failed() {
+		rep.Failed = true
+		rep.Verdict += "; the end-of-stroke signature requirement FAILS"
+		caption += " Requirement FAILS: " + strings.Join(sig.Failures, "; ") + "."
+	}
+	rep.Figures = append(rep.Figures, plot.ReportFigure{ID: "signature", Heading: "End-of-stroke signature",
+		Caption: caption + " (coilkick signature " + path + " gives the table.)",
+		Figure:  plot.Signature("End-of-stroke signature — "+md.Name, signaturePlot(sig))})
+	return nil
+}

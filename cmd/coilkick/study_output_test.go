@@ -53,6 +53,11 @@ func studyCases() []studyCase {
 			exitOK, "answers", []string{"id", "what", "unit", "already_met", "blocked", "not_asked", "note", "error"}},
 		{"solve clamp", "solve", []string{"solve", "../../scenarios/process-air-valve.yaml"},
 			exitOK, "answers", []string{"id", "what", "unit", "already_met", "blocked", "not_asked", "note", "error"}},
+		// A corner that does not seat; a chopped drive from the flags.
+		{"signature", "signature", []string{"signature", "../../scenarios/door-strike-duty.yaml"},
+			exitOK, "points", []string{"label"}},
+		{"signature chopped", "signature", []string{"signature", "../../scenarios/peak-hold-valve.yaml", "--sample-rate", "10 kHz", "--noise", "3 mA"},
+			exitOK, "points", []string{"label"}},
 	}
 }
 
