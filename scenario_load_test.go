@@ -170,6 +170,8 @@ func TestLoadBad(t *testing.T) {
 		{"missing_section.yaml", 2, 1, []string{"timing: missing section (required)", "de-energize at"}},
 		{"snubber_without_resistance.yaml", 20, 1, []string{"suppression.resistance", "missing (required)", "expected a resistance"}},
 		{"clamp_above_breakdown.yaml", 22, 18, []string{"suppression.clamp voltage", `"70 V" must be less than switch.breakdown voltage "60 V" (line 19)`}},
+		{"sense_resolution_volts.yaml", 28, 15, []string{"sense.resolution", `"0.5 mV" is a voltage; expected a current`}},
+		{"sense_no_sample_rate.yaml", 26, 1, []string{"sense.sample rate", "missing (required)", "expected a frequency"}},
 		{"seal_travel_too_long.yaml", 20, 18, []string{"plunger.load.seal travel", `"2 mm" must not exceed`, "plunger.rest gap"}},
 		{"nan_value.yaml", 4, 12, []string{"supply.voltage", "not a finite number", "expected a voltage"}},
 		{"scalar_top.yaml", 2, 1, []string{"(top level)", "expected a section of keys"}},

@@ -296,7 +296,7 @@ func (s *Signature) Steps() int {
 func (s *Signature) Failed() bool { return len(s.Failures) > 0 }
 
 // maxSenseReadings bounds a run's ADC readings (memory and time).
-const maxSenseReadings = 200000
+const maxSenseReadings = 50000
 
 // EndOfStroke studies the end-of-stroke signature of the model through
 // the sense chain sc at the nominal point and every corner of the model's
