@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"runtime"
+	"strconv"
 	"sync"
 	"time"
 
@@ -431,4 +432,29 @@ func (lp *landProblem) runOne(p LandProfile, k int) (LandRun, error) {
 		lr.ImpactEnergy = 0.5 * md.Plunger.Mass * m.SeatImpactSpeed * m.SeatImpactSpeed
 	}
 	return lr, nil
+}
+
+// YAML returns the brake as the drive section's keys, ready to paste into
+// the scenario (times in ms to the nanosecond, trailing zeros dropped).
+func (p LandProfile) YAML() string {
+	ms := func(v float64) string { return strconv.FormatFloat(math.Round(v*1e9)/1e6, 'f', -1, 64) + " ms" }
+	return "drive:\n  mode: constant\n  brake at: " + ms(p.BrakeAt) + "\n  brake for: " + ms(p.BrakeFor) + "\n"
+}
+
+// LandTraces simulates the nominal point with the scenario's drive and
+// with the brake found (res.Before, res.After), keeping the traces (for
+// the landing figure); the runs end at de-energize.
+func LandTraces(md *Model, res *LandResult) (before, after *Result, err error) {
+	lp := &landProblem{md: md}
+	var out [2]*Result
+	for k, p := range [...]LandProfile{res.Before, res.After} {
+		v := *md
+		v.Control = v.Control.WithBrake(p.BrakeAt, p.BrakeFor)
+		opt := lp.options(md.Drive.Supply.Voltage, 0)
+		opt.NoTrace = false
+		if out[k], err = Simulate(&v, opt); err != nil {
+			return nil, nil, fmt.Errorf("coilkick: land: the nominal run with brake at %.4g ms for %.4g ms: %w", 1e3*p.BrakeAt, 1e3*p.BrakeFor, err)
+		}
+	}
+	return out[0], out[1], nil
 }
