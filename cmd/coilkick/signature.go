@@ -11,6 +11,7 @@ import (
 	"github.com/urfave/cli/v2"
 
 	"coilkick"
+	"coilkick/circuit"
 	"coilkick/cmd/coilkick/plot"
 )
 
@@ -148,7 +149,7 @@ func printSignature(w io.Writer, path string, md *coilkick.Model, sig *coilkick.
 	fmt.Fprintln(b)
 	printDetection(b, sig)
 	if sig.Chop != nil {
-		printChop(b, sig.Chop)
+		printChop(b, sig.Chop, sig.Points[0].Moving.PulledIn, md.Control.Mode == circuit.PeakHold)
 	}
 	if need := sig.Sense.MinMargin; need > 0 {
 		if sig.Failed() {
@@ -236,10 +237,14 @@ func printDetection(b io.Writer, sig *coilkick.Signature) {
 	fmt.Fprintf(b, "  Rule: window from the earliest to the latest minimum, widened by 10 %% of the latest and two readings; threshold halfway (common practice, no source).\n")
 }
 
-// printChop prints what a chopped drive leaves of the seat.
-func printChop(b io.Writer, cs *coilkick.ChopSignature) {
+// printChop prints what a chopped drive leaves of the seat (seated: the
+// nominal point seats in the window; peakHold: the drive regulates the
+// current, else it is a voltage PWM).
+func printChop(b io.Writer, cs *coilkick.ChopSignature, seated, peakHold bool) {
 	fmt.Fprintln(b)
 	switch {
+	case !seated:
+		fmt.Fprintln(b, "Chopped drive: the plunger does not seat at the nominal point within the readings' window; the pulses over the window:")
 	case cs.FirstOff == 0:
 		fmt.Fprintln(b, "Chopped drive: the switch does not chop within the readings' window; the dip is that of a constant voltage.")
 		return
@@ -247,8 +252,10 @@ func printChop(b io.Writer, cs *coilkick.ChopSignature) {
 		fmt.Fprintf(b, "Chopped drive: the current regulation starts at %s ms, before the seat: it holds the current at its threshold while the plunger moves, and MASKS the dip (not deeper than the blocked plunger's fall by 2 × 3 × the noise).\n", ms(cs.FirstOff))
 	case cs.Regulated:
 		fmt.Fprintf(b, "Chopped drive: the current regulation starts at %s ms, before the seat, but the back-EMF still pulls the sensed current down: the dip is not masked.\n", ms(cs.FirstOff))
+	case !peakHold:
+		fmt.Fprintln(b, "Chopped drive: a voltage PWM sets the mean voltage, not the current: the back-EMF dip stays in the mean current the filter passes (not masked).")
 	default:
-		fmt.Fprintf(b, "Chopped drive: the chopper first switches off at %s ms, after the seat: the dip is not masked.\n", ms(cs.FirstOff))
+		fmt.Fprintf(b, "Chopped drive: the current regulation first switches off at %s ms, after the seat: the dip is not masked.\n", ms(cs.FirstOff))
 	}
 	fmt.Fprintln(b, "  What the chopping shows (the simulated coil current; the rise slope falls at the seat, where the inductance rises):")
 	tw := tabwriter.NewWriter(b, 0, 0, 2, ' ', tabwriter.AlignRight)
@@ -257,6 +264,9 @@ func printChop(b io.Writer, cs *coilkick.ChopSignature) {
 		name string
 		f    coilkick.ChopFigures
 	}{{"before the seat", cs.Before}, {"after the seat", cs.After}} {
+		if !seated && r.name == "after the seat" {
+			continue
+		}
 		if r.f.Cycles == 0 {
 			fmt.Fprintf(tw, "  %s\t0\t-\t-\t-\t\n", r.name)
 			continue

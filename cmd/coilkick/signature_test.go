@@ -23,6 +23,11 @@ func TestSignatureCommandLine(t *testing.T) {
 	if err := os.WriteFile(strict, []byte(text), 0o600); err != nil {
 		t.Fatal(err)
 	}
+	pwm := filepath.Join(dir, "pwm.yaml")
+	text = strings.Replace(string(src), "\ntiming:", "\ndrive:\n  mode: pwm\n  frequency: 5 kHz\n  duty: 95 %\n  recirculation drop: 0.7 V\ntiming:", 1)
+	if err := os.WriteFile(pwm, []byte(text), 0o600); err != nil {
+		t.Fatal(err)
+	}
 	png := filepath.Join(dir, "sig.png")
 	irrigation := "../../scenarios/irrigation-valve.yaml"
 	for _, tc := range []struct {
@@ -38,6 +43,9 @@ func TestSignatureCommandLine(t *testing.T) {
 		{"out of range", []string{"signature", irrigation, "--sample-rate", "10 kHz", "--bandwidth", "1 GHz"}, exitError, nil, []string{"--bandwidth", "100 MHz"}},
 		{"too few readings", []string{"signature", irrigation, "--sample-rate", "10 Hz"}, exitError, nil, []string{"readings", "sample rate"}},
 		{"required margin fails", []string{"signature", strict}, exitFailing, []string{"margin", "FAIL", "below the required 1e+03"}, nil},
+		// A voltage PWM does not mask the dip; its pulses' rise slope falls at the seat.
+		{"pwm", []string{"signature", pwm, "--sample-rate", "10 kHz", "--noise", "3 mA"}, exitOK,
+			[]string{"voltage PWM", "not masked", "The rise slope falls to 0."}, nil},
 		{"plot", []string{"signature", irrigation, "--sample-rate", "10 kHz", "--noise", "3 mA", "--plot", png}, exitOK,
 			[]string{"nominal point only", "Detection: a fall of at least"}, nil},
 	} {
