@@ -304,3 +304,36 @@ func landPlot(md *coilkick.Model, res *coilkick.LandResult) (*plot.Figure, error
 		After:   run("after: brake "+landBrake(res.After)+fmt.Sprintf(", %.3g m/s", res.NominalAfter.ImpactSpeed), after),
 		BrakeAt: res.After.BrakeAt, BrakeFor: res.After.BrakeFor}), nil
 }
+
+// landingReportFigure is the report's soft-landing figure for a scenario
+// whose drive has a brake: the landing at the nominal point without the
+// brake and with it (the scenario's), as land --plot draws it.
+func landingReportFigure(md *coilkick.Model) (plot.ReportFigure, error) {
+	res := &coilkick.LandResult{After: coilkick.LandProfile{BrakeAt: md.Control.BrakeAt, BrakeFor: md.Control.BrakeFor}}
+	before, after, err := coilkick.LandTraces(md, res)
+	if err != nil {
+		return plot.ReportFigure{}, err
+	}
+	mb, ma := before.Metrics, after.Metrics
+	run := func(label string, r *coilkick.Result) plot.LandingRun {
+		return plot.LandingRun{Label: label, Time: r.Trace.Time, Gap: r.Trace.Gap, Velocity: r.Trace.Velocity}
+	}
+	end := math.Max(mb.PullIn.Seconds, ma.PullIn.Seconds)
+	if end == 0 {
+		end = md.Timing.DeenergizeAt - md.Timing.EnergizeAt
+	}
+	speed := func(m coilkick.Metrics) string {
+		if !m.PullIn.Happened {
+			return "does not seat"
+		}
+		return fmt.Sprintf("%.3g m/s", m.SeatImpactSpeed)
+	}
+	fig := plot.Landing(plot.LandingData{Title: md.Name + ": landing at the nominal point",
+		Energize: md.Timing.EnergizeAt, End: md.Timing.EnergizeAt + 1.6*end,
+		Before: run("without the brake, "+speed(mb), before), After: run("with the brake "+landBrake(res.After)+", "+speed(ma), after),
+		BrakeAt: res.After.BrakeAt, BrakeFor: res.After.BrakeFor})
+	caption := fmt.Sprintf("The drive's brake (drive.brake at, drive.brake for: the switch off %s) against the same drive without it: "+
+		"seat impact %s instead of %s, pull-in %s instead of %s. `coilkick land` searches the brake against the tolerance corners.",
+		landBrake(res.After), speed(ma), speed(mb), interval2(ma.PullIn), interval2(mb.PullIn))
+	return plot.ReportFigure{ID: "landing", Heading: "Soft landing", Caption: caption, Figure: fig}, nil
+}

@@ -100,3 +100,41 @@ func TestLandCommand(t *testing.T) {
 func formatSpeed(v float64) string {
 	return landSpeed(coilkick.LandRun{PullIn: coilkick.Interval{Happened: true}, ImpactSpeed: v})
 }
+
+// TestLandReport: a scenario whose drive has a brake gets the soft-landing
+// figure in its report, and the brake's figures named under Pull-in; one
+// without a brake gets neither (the demos' reports).
+func TestLandReport(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
+	data, err := os.ReadFile("../../scenarios/irrigation-valve-landing.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	braked := filepath.Join(dir, "braked.yaml")
+	text := strings.NewReplacer("  # brake at:", "  brake at:", "  # brake for:", "  brake for:").Replace(string(data))
+	if err := os.WriteFile(braked, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(dir, "report.html")
+	if code, _, stderr := runStudy(t, "report", braked, "-o", out); code != exitOK {
+		t.Fatalf("report: exit %d: %s", code, stderr)
+	}
+	html, err := os.ReadFile(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, w := range []string{"Soft landing", "with the brake at 6.137 ms for 1.494 ms", `data-key="brake.start_after_energize_s"><td>brake: switch off after energize`,
+		"gap at the brake&#39;s start</td><td class=\"v\">800 µm"} {
+		if !bytes.Contains(html, []byte(w)) {
+			t.Errorf("the report of a braked drive lacks %q", w)
+		}
+	}
+	plain := filepath.Join(dir, "plain.html")
+	if code, _, stderr := runStudy(t, "report", "../../scenarios/irrigation-valve-landing.yaml", "-o", plain); code != exitOK {
+		t.Fatalf("report: exit %d: %s", code, stderr)
+	}
+	if html, err := os.ReadFile(plain); err != nil || bytes.Contains(html, []byte("Soft landing")) || bytes.Contains(html, []byte("brake.")) {
+		t.Errorf("the report of a drive without a brake shows one (%v)", err)
+	}
+}

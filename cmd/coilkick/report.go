@@ -99,6 +99,9 @@ var reportGroups = []struct {
 		{"drop_out.time_after_energize_s", "drop-out after energize"}, {"drop_out.current_A", "current at drop-out"},
 		{"drop_out.pull_at_seat_N", "pull at the seat at drop-out"}, {"drop_out.spring_and_load_at_seat_N", "spring + load at the seat"},
 		{"drop_out.in_hold", "drop-out in the hold"},
+		{"brake.start_after_energize_s", "brake: switch off after energize"}, {"brake.end_after_energize_s", "brake: switch on again after energize"},
+		{"brake.current_at_start_A", "current at the brake's start"}, {"brake.current_at_end_A", "current at the brake's end"},
+		{"brake.gap_at_start_m", "gap at the brake's start"}, {"brake.speed_at_start_m_per_s", "speed at the brake's start"},
 	}},
 	{"Hold", []figureRow{
 		{"hold.window_start_s", "hold window start"}, {"hold.window_end_s", "hold window end"},
@@ -165,7 +168,7 @@ func absentWhenNull(key string) bool {
 
 // figureText formats a metric of the JSON summary for the report, by its
 // key's unit suffix, with si() as in the text summary: "_s" seconds, "_A",
-// "_V", "_J", "_W", "_Hz"; "_m_per_s" as %.3g m/s; a plain number with 3
+// "_V", "_J", "_W", "_Hz", "_N", "_m"; "_m_per_s" as %.3g m/s; a plain number with 3
 // significant digits (whole numbers in full); booleans yes/no; null (a time
 // that did not happen) as words.
 func figureText(key string, v any) string {
@@ -184,7 +187,7 @@ func figureText(key string, v any) string {
 		if strings.HasSuffix(key, "_m_per_s") {
 			return fmt.Sprintf("%.3g m/s", x)
 		}
-		for _, u := range []string{"s", "A", "V", "J", "W", "Hz", "N"} {
+		for _, u := range []string{"s", "A", "V", "J", "W", "Hz", "N", "m"} {
 			if strings.HasSuffix(key, "_"+u) {
 				return si(x, u)
 			}
@@ -271,6 +274,13 @@ func buildReport(sim *simulation) (*plot.Report, bool, error) {
 			rep.Failed = true
 			rep.Verdict += "; the duty-cycle heating study FAILS"
 		}
+	}
+	if md.Control.Brakes() {
+		fig, err := landingReportFigure(md)
+		if err != nil {
+			return nil, false, err
+		}
+		rep.Figures = append(rep.Figures, fig)
 	}
 	if md.Sense != nil {
 		if err := signatureReport(rep, path, md); err != nil {
