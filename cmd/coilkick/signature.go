@@ -235,6 +235,9 @@ func printDetection(b io.Writer, sig *coilkick.Signature) {
 	fmt.Fprintf(b, "  Shallowest dip %s mA (%s); deepest fall of a blocked plunger in the window %s mA (%s); 3 × the noise (%s mA) kept on each side.\n",
 		mA(d.SmallestDip), d.SmallestAt, mA(d.LargestFalse), d.LargestFalseAt, mA(d.NoiseAllowance))
 	fmt.Fprintf(b, "  Rule: window from the earliest to the latest minimum, widened by 10 %% of the latest and two readings; threshold halfway (common practice, no source).\n")
+	if sig.NominalOnly {
+		fmt.Fprintf(b, "  These hold for the nominal point only: a tolerances section gives a threshold and window that hold over the spread.\n")
+	}
 }
 
 // printChop prints what a chopped drive leaves of the seat (seated: the
