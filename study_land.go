@@ -88,7 +88,10 @@ type LandResult struct {
 	UnbrakedPullIn float64
 	// Bounds of BrakeAt and BrakeFor (s).
 	AtMin, AtMax, ForMin, ForMax float64
-	Before, After                LandProfile
+	// Before is the scenario's brake; After the brake found, which is
+	// Before when no brake met the constraints with a lower nominal impact
+	// speed (BrakeFor 0: no brake).
+	Before, After LandProfile
 	// Nominal point and corners (in Corners' order), before and after.
 	NominalBefore, NominalAfter LandRun
 	CornersBefore, CornersAfter []LandRun
@@ -145,6 +148,10 @@ func Land(md *Model, opt LandOptions) (*LandResult, error) {
 		return nil, err
 	}
 	res.BeforeFeasible = lp.feasible(res.NominalBefore, res.CornersBefore)
+	if res.BeforeFeasible {
+		// A brake must beat the scenario's drive as it is.
+		lp.best, lp.bestF, lp.found = res.Before, res.NominalBefore.ImpactSpeed, true
+	}
 	u0, err := lp.start(opt, res)
 	if err != nil {
 		return nil, err
@@ -173,6 +180,10 @@ const LandResolution = 1e-6
 func (lp *landProblem) settle(res *LandResult) error {
 	q := func(v float64, f func(float64) float64) float64 { return f(v/LandResolution) * LandResolution }
 	b := lp.best
+	if b.BrakeFor == 0 {
+		res.After, res.NominalAfter, res.CornersAfter, res.Feasible = b, res.NominalBefore, res.CornersBefore, true
+		return nil
+	}
 	for _, p := range []LandProfile{{q(b.BrakeAt, math.Round), q(b.BrakeFor, math.Round)},
 		{q(b.BrakeAt, math.Round), q(b.BrakeFor, math.Floor)}, b} {
 		nom, cs, err := lp.runAll(p)

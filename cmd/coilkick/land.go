@@ -150,7 +150,7 @@ func printLand(w io.Writer, path string, md *coilkick.Model, res *coilkick.LandR
 	}
 	fmt.Fprintf(tw, "  every run seated within the cap\t%s\t%s\n", yesNo(res.BeforeFeasible), yesNo(res.Feasible))
 	tw.Flush()
-	if nb.ImpactSpeed > 0 && na.ImpactSpeed > 0 {
+	if nb.ImpactSpeed > 0 && na.ImpactSpeed > 0 && res.After != res.Before {
 		fmt.Fprintf(b, "  impact speed %.3g times lower, impact energy %.3g times lower\n", nb.ImpactSpeed/na.ImpactSpeed,
 			nb.ImpactEnergy/na.ImpactEnergy)
 	}
@@ -197,6 +197,8 @@ func printLandCorners(b io.Writer, res *coilkick.LandResult) {
 // printLandVerdict prints the profile to paste, or why there is none.
 func printLandVerdict(b io.Writer, res *coilkick.LandResult) {
 	switch {
+	case res.Feasible && res.After == res.Before:
+		fmt.Fprintln(b, "\nNo brake found that lands the nominal point softer and keeps every run seated within the cap: keep the drive as it is.")
 	case res.Feasible:
 		fmt.Fprintf(b, "\nThe brake, in the scenario's keys (paste into the file):\n\n%s", indent(res.After.YAML(), "  "))
 		if res.After.BrakeFor > 0 && res.After.BrakeFor == res.ForMax {

@@ -52,7 +52,7 @@ func landJSON(h jsonHeader, res *coilkick.LandResult) landDoc {
 		after := newJSONLandProfile(res.After, res.Feasible)
 		doc.After = &after
 	}
-	if res.Feasible {
+	if res.Feasible && res.After.BrakeFor > 0 {
 		doc.YAML = text(res.After.YAML())
 	}
 	return doc
