@@ -44,6 +44,10 @@ type LandOptions struct {
 	MaxEvaluations int
 	// Workers run the corners in parallel (0: all cores).
 	Workers int
+	// TimingMargin (s): the constraints must also hold with either time
+	// of the brake moved by this much, earlier or later (4 more sets of
+	// runs for every profile that meets them); 0: at the profile only.
+	TimingMargin float64
 }
 
 // DefaultLandEvaluations is the optimiser's default budget of objective
@@ -77,6 +81,8 @@ type LandProfile struct{ BrakeAt, BrakeFor float64 }
 // LandResult is the outcome of the soft-landing study.
 type LandResult struct {
 	Cap float64 // s
+	// TimingMargin (s): LandOptions.TimingMargin.
+	TimingMargin float64
 	// CapFromRequirement: the cap is the scenario's ratings.pull-in time.
 	CapFromRequirement bool
 	// Corners of the tolerances; with none, NominalOnly and no corners
@@ -98,6 +104,8 @@ type LandResult struct {
 	// Feasible: the profile found meets the constraints everywhere;
 	// BeforeFeasible: the scenario's own drive does.
 	Feasible, BeforeFeasible bool
+	// Margins of the brake found (nil without one).
+	Margins                  *LandMargins
 	Mass                     float64 // kg, the plunger's
 	Method                   string
 	Evaluations, Simulations int
@@ -112,6 +120,7 @@ type landProblem struct {
 	lo, hi  [2]float64 // bounds of BrakeAt, BrakeFor (s)
 	workers int
 	vRef    float64 // m/s, the scale of the impact speed (the unbraked nominal)
+	margin  float64 // s, LandOptions.TimingMargin
 
 	sims, evals int
 	best        LandProfile
@@ -139,10 +148,14 @@ func Land(md *Model, opt LandOptions) (*LandResult, error) {
 	} else {
 		res.NominalOnly = true
 	}
+	if !(opt.TimingMargin >= 0) || math.IsInf(opt.TimingMargin, 0) {
+		return nil, errors.New("coilkick: land: the timing margin must be a finite time, 0 or more")
+	}
 	lp, err := newLandProblem(md, res)
 	if err != nil {
 		return nil, err
 	}
+	lp.margin, res.TimingMargin = opt.TimingMargin, opt.TimingMargin
 	res.Before = LandProfile{md.Control.BrakeAt, md.Control.BrakeFor}
 	if res.NominalBefore, res.CornersBefore, err = lp.runAll(res.Before); err != nil {
 		return nil, err
@@ -164,6 +177,11 @@ func Land(md *Model, opt LandOptions) (*LandResult, error) {
 			return nil, err
 		}
 	}
+	if res.Feasible && res.After.BrakeFor > 0 {
+		if res.Margins, err = lp.margins(res.After); err != nil {
+			return nil, err
+		}
+	}
 	res.Evaluations, res.Simulations, res.Elapsed = lp.evals, lp.sims, time.Since(began)
 	return res, nil
 }
@@ -178,7 +196,11 @@ const LandResolution = 1e-6
 // rounded profile still meets every constraint, else the optimum as found;
 // and its runs.
 func (lp *landProblem) settle(res *LandResult) error {
-	q := func(v float64, f func(float64) float64) float64 { return f(v/LandResolution) * LandResolution }
+	// Whole ticks over ticks per second: the nearest float to the decimal
+	// value (6.922 ms prints as 0.006922 s, not 0.006921999999999999).
+	q := func(v float64, f func(float64) float64) float64 {
+		return f(v/LandResolution) / math.Round(1/LandResolution)
+	}
 	b := lp.best
 	if b.BrakeFor == 0 {
 		res.After, res.NominalAfter, res.CornersAfter, res.Feasible = b, res.NominalBefore, res.CornersBefore, true
@@ -348,11 +370,40 @@ func (lp *landProblem) objective(p LandProfile) (float64, error) {
 	for _, c := range cs {
 		pen += lp.penalty(c)
 	}
+	if pen == 0 && lp.margin > 0 && p.BrakeFor > 0 {
+		if pen, err = lp.neighbours(p); err != nil {
+			return math.Inf(1), err
+		}
+	}
 	v := nom.ImpactSpeed
 	if pen == 0 && (!lp.found || v < lp.bestF) {
 		lp.best, lp.bestF, lp.found = p, v, true
 	}
 	return v/lp.vRef + pen, nil
+}
+
+// neighbours is the penalty of the brake p with either time moved by the
+// timing margin, earlier or later (a brake that cannot move that far
+// counts as one violation).
+func (lp *landProblem) neighbours(p LandProfile) (float64, error) {
+	window := lp.md.Timing.DeenergizeAt - lp.md.Timing.EnergizeAt
+	pen := 0.0
+	for _, d := range [4]LandProfile{{-1, 0}, {1, 0}, {0, -1}, {0, 1}} {
+		q := LandProfile{p.BrakeAt + lp.margin*d.BrakeAt, p.BrakeFor + lp.margin*d.BrakeFor}
+		if !(q.BrakeAt > 0 && q.BrakeFor > 0) || q.BrakeAt+q.BrakeFor >= window {
+			pen += landPenalty
+			continue
+		}
+		nom, cs, err := lp.runAll(q)
+		if err != nil {
+			return 0, err
+		}
+		pen += lp.penalty(nom)
+		for _, c := range cs {
+			pen += lp.penalty(c)
+		}
+	}
+	return pen, nil
 }
 
 // landPenalty weighs a constraint's violation against the objective (the
@@ -468,4 +519,71 @@ func LandTraces(md *Model, res *LandResult) (before, after *Result, err error) {
 		}
 	}
 	return out[0], out[1], nil
+}
+
+// LandMargins say how far each time of the brake may move, alone, before
+// some run misses the constraints: searched by doubling from
+// LandResolution, then four bisections (within about 6 %). Happened false:
+// no run failed with the brake moved as far as it can go (down to 0, or
+// up to de-energize), and Seconds is that distance.
+type LandMargins struct {
+	AtEarlier, AtLater, ForShorter, ForLonger Interval
+}
+
+// margins searches the four margins of the brake p.
+func (lp *landProblem) margins(p LandProfile) (*LandMargins, error) {
+	var out [4]Interval
+	for k, dir := range [4]LandProfile{{-1, 0}, {1, 0}, {0, -1}, {0, 1}} {
+		ok := func(d float64) (bool, error) {
+			q := LandProfile{p.BrakeAt + d*dir.BrakeAt, p.BrakeFor + d*dir.BrakeFor}
+			if !(q.BrakeAt > 0 && q.BrakeFor > 0) || q.BrakeAt+q.BrakeFor >= lp.md.Timing.DeenergizeAt-lp.md.Timing.EnergizeAt {
+				return false, nil
+			}
+			nom, cs, err := lp.runAll(q)
+			return err == nil && lp.feasible(nom, cs), err
+		}
+		room := lp.md.Timing.DeenergizeAt - lp.md.Timing.EnergizeAt - p.BrakeAt - p.BrakeFor
+		limit := [4]float64{p.BrakeAt, room, p.BrakeFor, room}[k] * (1 - 1e-9)
+		m, err := landMargin(ok, limit)
+		if err != nil {
+			return nil, err
+		}
+		out[k] = m
+	}
+	return &LandMargins{out[0], out[1], out[2], out[3]}, nil
+}
+
+// landMargin is the largest step d (s) with ok(d) true: doubling from
+// LandResolution up to limit (not Happened when ok holds there), then four
+// bisections.
+func landMargin(ok func(d float64) (bool, error), limit float64) (Interval, error) {
+	good, bad := 0.0, LandResolution
+	for {
+		d := math.Min(bad, limit)
+		fine, err := ok(d)
+		if err != nil {
+			return Interval{}, err
+		}
+		if !fine {
+			bad = d
+			break
+		}
+		if good = d; d >= limit {
+			return Interval{Seconds: good}, nil
+		}
+		bad *= 2
+	}
+	for range 4 {
+		mid := 0.5 * (good + bad)
+		fine, err := ok(mid)
+		if err != nil {
+			return Interval{}, err
+		}
+		if fine {
+			good = mid
+		} else {
+			bad = mid
+		}
+	}
+	return Interval{Happened: true, Seconds: good}, nil
 }

@@ -123,6 +123,32 @@ func TestLandCapBinds(t *testing.T) {
 	}
 }
 
+// TestLandTimingMargin: with a 20 µs timing margin every margin of the
+// brake found is at least 15 µs (the margin search doubles from 1 µs, so
+// it may stop at 16 µs and bisect from there; measured: 20 µs later,
+// none of the others fails), where the brake found without one fails
+// 1 µs later.
+func TestLandTimingMargin(t *testing.T) {
+	t.Parallel()
+	md := landTestModel(t)
+	res, err := Land(md, LandOptions{PullInCap: landTestCap, TimingMargin: 20e-6, MaxEvaluations: 60})
+	if err != nil {
+		t.Fatal(err)
+	}
+	m := res.Margins
+	if !res.Feasible || m == nil {
+		t.Fatalf("feasible %v, margins %v", res.Feasible, m)
+	}
+	for k, iv := range []Interval{m.AtEarlier, m.AtLater, m.ForShorter, m.ForLonger} {
+		if iv.Happened && iv.Seconds < 15e-6 {
+			t.Errorf("margin %d: %g s, want >= 15 µs (%+v)", k, iv.Seconds, *m)
+		}
+	}
+	if _, err := Land(md, LandOptions{PullInCap: landTestCap, TimingMargin: -1e-6}); err == nil {
+		t.Error("a negative timing margin: no error")
+	}
+}
+
 // TestLandErrors: no cap, and a drive that is not constant.
 func TestLandErrors(t *testing.T) {
 	t.Parallel()

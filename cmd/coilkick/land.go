@@ -28,6 +28,7 @@ func landCommand(stdout io.Writer) *cli.Command {
 		ArgsUsage: "SCENARIO.yaml",
 		Flags: []cli.Flag{
 			&cli.StringFlag{Name: "pull-in-cap", Usage: "the pull-in time no corner may exceed, with its unit (\"25 ms\")", DefaultText: "the scenario's ratings.pull-in time"},
+			&cli.StringFlag{Name: "timing-margin", Usage: "the constraints must also hold with either time of the brake moved this much earlier or later, with its unit (\"20 us\"); about 5 times the work", DefaultText: "0 s, at the brake only"},
 			&cli.IntFlag{Name: "evaluations", Value: coilkick.DefaultLandEvaluations, Usage: "the optimiser's budget of evaluations (each simulates every corner), 1 to 5000"},
 			&cli.StringFlag{Name: "plot", Usage: "plot gap and velocity versus time at the nominal point, before and after, to `FILE` (.png or .svg)"},
 			&cli.StringFlag{Name: "json", Usage: "write the profile, the runs before and after and the search to `FILE` (JSON; - for standard output instead of the table)"},
@@ -42,6 +43,14 @@ func landOptions(c *cli.Context) (coilkick.LandOptions, error) {
 	opt := coilkick.LandOptions{MaxEvaluations: c.Int("evaluations")}
 	if n := opt.MaxEvaluations; n < 1 || n > maxLandEvaluations {
 		return opt, fmt.Errorf("--evaluations %d: must be from 1 to %d", n, maxLandEvaluations)
+	}
+	if c.IsSet("timing-margin") {
+		s := c.String("timing-margin")
+		v, err := coilkick.ParseQuantity(s, coilkick.Time)
+		if err != nil || !(v >= 0) || v > 1 {
+			return opt, fmt.Errorf("--timing-margin %q: expected a time from 0 s to 1 s such as \"20 us\"", s)
+		}
+		opt.TimingMargin = v
 	}
 	if c.IsSet("pull-in-cap") {
 		s := c.String("pull-in-cap")
@@ -121,6 +130,9 @@ func printLand(w io.Writer, path string, md *coilkick.Model, res *coilkick.LandR
 		where = "the nominal point only (the scenario has no tolerances)"
 	}
 	fmt.Fprintf(b, "coilkick land: %s\nscenario: %s\npull-in cap %s (%s) at %s\n", md.Name, path, si(res.Cap, "s"), capFrom, where)
+	if res.TimingMargin > 0 {
+		fmt.Fprintf(b, "timing margin %s: every run must also meet the constraints with either time of the brake moved that much\n", si(res.TimingMargin, "s"))
+	}
 	through := "the " + md.Drive.Suppressor.Kind.String()
 	switch md.Drive.Suppressor.Kind {
 	case circuit.None:
@@ -204,8 +216,7 @@ func printLandVerdict(b io.Writer, res *coilkick.LandResult) {
 		if res.After.BrakeFor > 0 && res.After.BrakeFor == res.ForMax {
 			fmt.Fprintln(b, "\n  The brake's length is at its upper bound (the unbraked pull-in time).")
 		}
-		fmt.Fprintln(b, "\n  The optimum lies where a constraint starts to bind (a corner at the cap, or one that seats\n"+
-			"  before the brake and would drop out): check the margin on the bench before relying on it.")
+		printLandMargins(b, res.Margins)
 	case res.BeforeFeasible:
 		fmt.Fprintln(b, "\nFAIL: no brake found that keeps every run seated within the cap.")
 	default:
@@ -222,6 +233,37 @@ func printLandVerdict(b io.Writer, res *coilkick.LandResult) {
 			"raise the cap or the drive. For example %s.\n", len(failing), failing[0])
 	}
 }
+
+// printLandMargins prints how far each time may move before a run fails.
+func printLandMargins(b io.Writer, m *coilkick.LandMargins) {
+	if m == nil {
+		return
+	}
+	show := func(iv coilkick.Interval) string {
+		if !iv.Happened {
+			return "no limit (" + si(iv.Seconds, "s") + " searched)"
+		}
+		return si(iv.Seconds, "s")
+	}
+	fmt.Fprintf(b, "\n  Margins (each time moved alone until a run misses the cap, does not seat or drops out):\n"+
+		"    brake at: %s earlier, %s later; brake for: %s shorter, %s longer\n",
+		show(m.AtEarlier), show(m.AtLater), show(m.ForShorter), show(m.ForLonger))
+	small := false
+	for _, iv := range []coilkick.Interval{m.AtEarlier, m.AtLater, m.ForShorter, m.ForLonger} {
+		small = small || (iv.Happened && iv.Seconds < landSmallMargin)
+	}
+	if small {
+		fmt.Fprintf(b, "  CAUTION: a margin below %s: the optimum sits where a constraint starts to bind (a corner that\n"+
+			"  seats before the brake and drops out during it, or one at the cap); a driver's timer, its supply and\n"+
+			"  the part's spread move the brake more than that. Ask for room with --timing-margin (e.g. \"20 us\")\n"+
+			"  and confirm the brake on the bench.\n", si(landSmallMargin, "s"))
+	}
+}
+
+// landSmallMargin (s): a brake that moves less than this before a run
+// fails is flagged (a microcontroller timer and its interrupt latency
+// are of the order of 10 µs; common practice, no source).
+const landSmallMargin = 10e-6
 
 // indent prefixes every line of s.
 func indent(s, prefix string) string {

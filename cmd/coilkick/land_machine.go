@@ -9,6 +9,7 @@ type landDoc struct {
 	jsonHeader
 	PullInCap          float64          `json:"pull_in_cap_s"`
 	CapFromRequirement bool             `json:"cap_from_requirement"`
+	TimingMargin       float64          `json:"timing_margin_s"`
 	NominalOnly        bool             `json:"nominal_only"`
 	UnbrakedPullIn     float64          `json:"unbraked_pull_in_time_s"`
 	Bounds             jsonLandBounds   `json:"bounds"`
@@ -16,10 +17,20 @@ type landDoc struct {
 	After              *jsonLandProfile `json:"after"`
 	Feasible           bool             `json:"feasible"`
 	YAML               *string          `json:"yaml"`
+	Margins            *jsonLandMargins `json:"margins"`
 	Runs               []record         `json:"runs"`
 	Method             string           `json:"method"`
 	Evaluations        int              `json:"evaluations"`
 	Simulations        int              `json:"simulations"`
+}
+
+// jsonLandMargins are the brake's margins (null: no run failed as far as
+// the time could move).
+type jsonLandMargins struct {
+	AtEarlier  coilkick.Interval `json:"brake_at_earlier_s"`
+	AtLater    coilkick.Interval `json:"brake_at_later_s"`
+	ForShorter coilkick.Interval `json:"brake_for_shorter_s"`
+	ForLonger  coilkick.Interval `json:"brake_for_longer_s"`
 }
 
 // jsonLandBounds are the parameters' bounds.
@@ -44,13 +55,16 @@ func newJSONLandProfile(p coilkick.LandProfile, feasible bool) jsonLandProfile {
 
 // landJSON builds the document.
 func landJSON(h jsonHeader, res *coilkick.LandResult) landDoc {
-	doc := landDoc{jsonHeader: h, PullInCap: res.Cap, CapFromRequirement: res.CapFromRequirement, NominalOnly: res.NominalOnly,
+	doc := landDoc{jsonHeader: h, PullInCap: res.Cap, CapFromRequirement: res.CapFromRequirement, TimingMargin: res.TimingMargin, NominalOnly: res.NominalOnly,
 		UnbrakedPullIn: res.UnbrakedPullIn, Bounds: jsonLandBounds{res.AtMin, res.AtMax, res.ForMin, res.ForMax},
 		Before: newJSONLandProfile(res.Before, res.BeforeFeasible), Feasible: res.Feasible, Runs: landRecords(res),
 		Method: res.Method, Evaluations: res.Evaluations, Simulations: res.Simulations}
 	if res.CornersAfter != nil {
 		after := newJSONLandProfile(res.After, res.Feasible)
 		doc.After = &after
+	}
+	if m := res.Margins; m != nil {
+		doc.Margins = &jsonLandMargins{m.AtEarlier, m.AtLater, m.ForShorter, m.ForLonger}
 	}
 	if res.Feasible && res.After.BrakeFor > 0 {
 		doc.YAML = text(res.After.YAML())

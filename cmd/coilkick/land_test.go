@@ -34,6 +34,7 @@ func TestLandCommand(t *testing.T) {
 		{"cap without a unit", []string{"land", demo, "--pull-in-cap", "25"}, exitError, []string{"--pull-in-cap", "25 ms"}},
 		{"cap negative", []string{"land", demo, "--pull-in-cap", "-5 ms"}, exitError, []string{"--pull-in-cap"}},
 		{"evaluations 0", []string{"land", demo, "--evaluations", "0"}, exitError, []string{"--evaluations 0", "5000"}},
+		{"timing margin in volts", []string{"land", demo, "--timing-margin", "20 V"}, exitError, []string{"--timing-margin", "20 us"}},
 		{"no cap", []string{"land", noCap, "--evaluations", "3"}, exitError, []string{"no-cap.yaml", "--pull-in-cap", "ratings.pull-in time"}},
 		{"chopped drive", []string{"land", "../../scenarios/peak-hold-valve.yaml"}, exitError, []string{"constant drive", "peak and hold"}},
 	}

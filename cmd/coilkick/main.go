@@ -51,7 +51,8 @@ var errFailing = errors.New("a rating or requirement fails")
 var valueFlags = map[string]bool{"csv": true, "json": true, "tolerance": true, "curves": true, "currents": true,
 	"plot": true, "o": true, "output": true, "vary": true, "seed": true, "samples": true, "workers": true,
 	"trace": true, "params": true, "margin": true, "plot-window": true, "figure": true,
-	"bandwidth": true, "sample-rate": true, "resolution": true, "noise": true, "pull-in-cap": true, "evaluations": true}
+	"bandwidth": true, "sample-rate": true, "resolution": true, "noise": true, "pull-in-cap": true, "evaluations": true,
+	"timing-margin": true}
 
 // permute moves flags written after positional arguments in front of them,
 // so that "coilkick run valve.yaml --csv out.csv" works: the flag parser
