@@ -8,6 +8,9 @@ import (
 // driveModes are the values of drive.mode.
 var driveModes = []string{DriveConstant, DrivePWM, DrivePeakHold, DriveBoostHold}
 
+// Modes that take a soft-landing brake (drive.brake at, brake for).
+var brakeModes = []string{DriveConstant, DrivePWM}
+
 // Modes that chop (their off-times decay slowly or fast).
 var choppedModes = []string{DrivePWM, DrivePeakHold}
 
@@ -38,10 +41,10 @@ var driveSection = &sectionSpec{path: "drive", keys: []*keySpec{
 		doc: "> supply.voltage"},
 	{name: "boost time", rng: newRange(Time, "1 µs to 60 min", ""), example: "10 ms", only: []string{DriveBoostHold},
 		doc: "the supply is raised that long"},
-	{name: "brake at", rng: newRange(Time, "1 µs to 60 min", ""), need: whenGiven, example: "4 ms", only: []string{DriveConstant},
+	{name: "brake at", rng: newRange(Time, "1 µs to 60 min", ""), need: whenGiven, example: "4 ms", only: brakeModes,
 		doc: "soft landing (with brake for): the switch turns off this long after energize; `coilkick land` finds it"},
-	{name: "brake for", rng: newRange(Time, "1 µs to 60 min", ""), need: needWhere, example: "2 ms", only: []string{DriveConstant},
-		doc: "soft landing (with brake at): the switch stays off this long (the current decays through the suppression part), then full voltage again; brake at + brake for before de-energize"},
+	{name: "brake for", rng: newRange(Time, "1 µs to 60 min", ""), need: needWhere, example: "2 ms", only: brakeModes,
+		doc: "soft landing (with brake at): the switch stays off this long (constant: the current decays through the suppression part; pwm: as in its off-times), then the drive goes on; brake at + brake for before de-energize"},
 }}
 
 // loadDrive reads the optional drive section (default: constant drive).
@@ -70,6 +73,7 @@ func (l *scenarioLoader) loadDrive(sec *yamlSection) {
 		l.read(sec, "frequency", &d.Frequency)
 		l.read(sec, "duty", &d.Duty)
 		l.loadDecay(sec)
+		l.loadBrake(sec)
 	case DrivePeakHold:
 		l.read(sec, "peak current", &d.PeakCurrent)
 		l.read(sec, "peak time", &d.PeakTime)
@@ -84,8 +88,8 @@ func (l *scenarioLoader) loadDrive(sec *yamlSection) {
 	}
 }
 
-// loadBrake reads the soft-landing brake of a constant drive: both keys
-// or neither.
+// loadBrake reads the soft-landing brake of a constant or PWM drive: both
+// keys or neither.
 func (l *scenarioLoader) loadBrake(sec *yamlSection) {
 	d := &l.s.Drive
 	if !sec.has("brake at") && !sec.has("brake for") {

@@ -163,8 +163,8 @@ func Load(path string) (*Scenario, error) {
 //	  recirculation resistance: 0.1 ohm       # optional, default 0 ohm; for pwm, peak and hold; slow decay
 //	  boost voltage: 48 V                     # for boost then hold; > supply.voltage
 //	  boost time: 10 ms                       # for boost then hold; the supply is raised that long
-//	  brake at: 4 ms                          # optional; for constant; soft landing (with brake for): the switch turns off this long after energize; `coilkick land` finds it
-//	  brake for: 2 ms                         # for constant; soft landing (with brake at): the switch stays off this long (the current decays through the suppression part), then full voltage again; brake at + brake for before de-energize
+//	  brake at: 4 ms                          # optional; for constant, pwm; soft landing (with brake for): the switch turns off this long after energize; `coilkick land` finds it
+//	  brake for: 2 ms                         # for constant, pwm; soft landing (with brake at): the switch stays off this long (constant: the current decays through the suppression part; pwm: as in its off-times), then the drive goes on; brake at + brake for before de-energize
 //	timing:
 //	  energize at: 1 ms                       # optional, default 0 s
 //	  de-energize at: 150 ms                  # > energize at

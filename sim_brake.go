@@ -9,7 +9,7 @@ func (r *run) noteBrake(t float64, y []float64) {
 	switch t {
 	case r.ctl.BrakeStart():
 		i := r.current(y)
-		*b = BrakeMetrics{Happened: true, Start: t - r.tOn, CurrentAtStart: i, GapAtStart: y[sGap], SpeedAtStart: -y[sVel]}
+		*b = BrakeMetrics{Happened: true, Start: t - r.tOn, CurrentAtStart: i, GapAtStart: y[sGap], SpeedAtStart: 0 - y[sVel]} // 0 − v: no −0
 		r.note(t, "brake: switch off at %.4g A, gap %.4g mm", i, 1e3*y[sGap])
 	case r.ctl.BrakeEnd():
 		i := r.current(y)

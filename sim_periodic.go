@@ -69,6 +69,19 @@ func (r *run) periodicAllowed() bool {
 		r.mmode != mechFree && r.thermal == nil && len(r.sampleTimes) == 0 && r.cmode == circuit.On
 }
 
+// fastForwardStop is the last command after t that the repeated periods
+// may run up to: the de-energize command, the end, the hold window's
+// start, the end of the peak phase, a PWM brake's start and end.
+func (r *run) fastForwardStop(t float64) float64 {
+	stop := math.Min(r.tOff, r.tEnd)
+	for _, c := range [...]float64{r.window.start, r.ctl.PhaseEnd(), r.ctl.BrakeStart(), r.ctl.BrakeEnd()} {
+		if c > t {
+			stop = math.Min(stop, c)
+		}
+	}
+	return stop
+}
+
 // fastForward is called by the integrator after each event; after a
 // turn-on edge of a settled chopped hold it repeats whole periods, changing
 // y, and returns the new time (t when it repeats nothing).
@@ -115,16 +128,7 @@ func (r *run) fastForward(t float64, y []float64) float64 {
 			return t
 		}
 	}
-	// The last command the periods may run up to: the de-energize
-	// command, the end, the hold window's start, the end of the peak phase.
-	stop := math.Min(r.tOff, r.tEnd)
-	if r.window.start > t {
-		stop = math.Min(stop, r.window.start)
-	}
-	if pe := r.ctl.PhaseEnd(); pe > t {
-		stop = math.Min(stop, pe)
-	}
-	n := int(math.Floor((stop-t)/T)) - 2
+	n := int(math.Floor((r.fastForwardStop(t)-t)/T)) - 2
 	if n < periodMinSkip {
 		return t
 	}

@@ -54,9 +54,9 @@ type LandOptions struct {
 // evaluations.
 const DefaultLandEvaluations = 300
 
-// ErrLandNotConstant is returned for a drive that is not constant (the
-// brake profile applies to the constant drive).
-var ErrLandNotConstant = errors.New("coilkick: land: the brake profile applies to the constant drive")
+// ErrLandDriveMode is returned for a drive that takes no brake (the brake
+// applies to the constant and the pwm drive).
+var ErrLandDriveMode = errors.New("coilkick: land: the brake applies to the constant and the pwm drive")
 
 // LandRun is one simulated actuation of the study: at a corner or the
 // nominal point, with a drive profile.
@@ -81,6 +81,8 @@ type LandProfile struct{ BrakeAt, BrakeFor float64 }
 // LandResult is the outcome of the soft-landing study.
 type LandResult struct {
 	Cap float64 // s
+	// Mode is the drive's (constant or pwm).
+	Mode circuit.ControlMode
 	// TimingMargin (s): LandOptions.TimingMargin.
 	TimingMargin float64
 	// CapFromRequirement: the cap is the scenario's ratings.pull-in time.
@@ -132,10 +134,10 @@ type landProblem struct {
 // top of study_land.go).
 func Land(md *Model, opt LandOptions) (*LandResult, error) {
 	began := time.Now()
-	if md.Control.Mode != circuit.Constant {
-		return nil, fmt.Errorf("%w; drive.mode is %q", ErrLandNotConstant, md.Control.Mode)
+	if md.Control.Mode != circuit.Constant && md.Control.Mode != circuit.PWM {
+		return nil, fmt.Errorf("%w; drive.mode is %q", ErrLandDriveMode, md.Control.Mode)
 	}
-	res := &LandResult{Cap: opt.PullInCap, Mass: md.Plunger.Mass,
+	res := &LandResult{Cap: opt.PullInCap, Mass: md.Plunger.Mass, Mode: md.Control.Mode,
 		Method: "Nelder–Mead (gonum/optimize) on logistic-mapped parameters, exact penalty for the corners"}
 	if res.Cap == 0 {
 		res.Cap, res.CapFromRequirement = md.Limits.MaxPullIn, true
@@ -497,10 +499,15 @@ func (lp *landProblem) runOne(p LandProfile, k int) (LandRun, error) {
 }
 
 // YAML returns the brake as the drive section's keys, ready to paste into
-// the scenario (times in ms to the nanosecond, trailing zeros dropped).
-func (p LandProfile) YAML() string {
+// the scenario (times in ms to the nanosecond, trailing zeros dropped): the
+// whole section for a constant drive, the two keys to add for a PWM.
+func (p LandProfile) YAML(mode circuit.ControlMode) string {
 	ms := func(v float64) string { return strconv.FormatFloat(math.Round(v*1e9)/1e6, 'f', -1, 64) + " ms" }
-	return "drive:\n  mode: constant\n  brake at: " + ms(p.BrakeAt) + "\n  brake for: " + ms(p.BrakeFor) + "\n"
+	head := "drive:\n  mode: constant\n"
+	if mode != circuit.Constant {
+		head = "drive:   # with the section's other keys (mode: " + mode.String() + ", frequency, duty...)\n"
+	}
+	return head + "  brake at: " + ms(p.BrakeAt) + "\n  brake for: " + ms(p.BrakeFor) + "\n"
 }
 
 // LandTraces simulates the nominal point with the scenario's drive and

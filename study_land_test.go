@@ -6,6 +6,8 @@ import (
 	"os"
 	"strings"
 	"testing"
+
+	"coilkick/circuit"
 )
 
 // landTestModel is the irrigation valve demo (invented data) with supply
@@ -149,7 +151,7 @@ func TestLandTimingMargin(t *testing.T) {
 	}
 }
 
-// TestLandErrors: no cap, and a drive that is not constant.
+// TestLandErrors: no cap, and a drive that takes no brake.
 func TestLandErrors(t *testing.T) {
 	t.Parallel()
 	md := landTestModel(t)
@@ -158,9 +160,9 @@ func TestLandErrors(t *testing.T) {
 		t.Errorf("no cap: error %v, want one naming --pull-in-cap", err)
 	}
 	md = landTestModel(t)
-	md.Control.Mode = 1 // pwm
-	if _, err := Land(md, LandOptions{MaxEvaluations: 1}); !errors.Is(err, ErrLandNotConstant) {
-		t.Errorf("pwm drive: error %v, want ErrLandNotConstant", err)
+	md.Control.Mode = circuit.BoostHold
+	if _, err := Land(md, LandOptions{MaxEvaluations: 1}); !errors.Is(err, ErrLandDriveMode) {
+		t.Errorf("boost then hold drive: error %v, want ErrLandDriveMode", err)
 	}
 }
 

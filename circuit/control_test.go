@@ -1378,8 +1378,8 @@ func TestControllerBrake(t *testing.T) {
 	}
 }
 
-// TestControlValidateBrake: a brake only with the constant drive, with a
-// start and a length > 0.
+// TestControlValidateBrake: a brake only with the constant or PWM drive,
+// with a start and a length > 0.
 func TestControlValidateBrake(t *testing.T) {
 	t.Parallel()
 	fw := makeDriveRC(refRs, refRon, refCoss, Suppressor{Kind: Freewheel, Voltage: refVf})
@@ -1392,7 +1392,12 @@ func TestControlValidateBrake(t *testing.T) {
 		// source: Control doc (BrakeAt, BrakeFor) and validateBrake doc.
 		{"good/constant brake", Control{Mode: Constant, BrakeAt: refBrakeAt, BrakeFor: refBrakeFor}, false},
 		{"good/no brake", Control{Mode: Constant}, false},
-		{"bad/pwm brake", Control{Mode: PWM, Frequency: refFPWM, Duty: refDuty, BrakeAt: refBrakeAt, BrakeFor: refBrakeFor}, true},
+		{"good/pwm brake", Control{Mode: PWM, Frequency: refFPWM, Duty: refDuty, BrakeAt: refBrakeAt, BrakeFor: refBrakeFor}, false},
+		{"bad/peak and hold brake", func() Control {
+			c := peakHoldControl(Hysteresis)
+			c.BrakeAt, c.BrakeFor = refBrakeAt, refBrakeFor
+			return c
+		}(), true},
 		{"bad/boost brake", Control{Mode: BoostHold, BoostVoltage: refVboost, BoostTime: refTBoost, BrakeAt: refBrakeAt, BrakeFor: refBrakeFor}, true},
 		{"bad/start 0", Control{Mode: Constant, BrakeFor: refBrakeFor}, true},
 		{"bad/length 0", Control{Mode: Constant, BrakeAt: refBrakeAt}, true},
@@ -1407,5 +1412,42 @@ func TestControlValidateBrake(t *testing.T) {
 				t.Errorf("Validate(%+v) = %v, want error %v", tt.c, err, tt.wantErr)
 			}
 		})
+	}
+}
+
+// TestControllerBrakePWM: a PWM's edges run on beneath the brake (the
+// same edges as without it), the switch is off throughout the brake, and
+// after it the switch follows the PWM again.
+func TestControllerBrakePWM(t *testing.T) {
+	t.Parallel()
+	var plain, braked Controller
+	plain.Control = Control{Mode: PWM, Frequency: refFPWM, Duty: refDuty}
+	braked.Control = plain.Control.WithBrake(refBrakeAt, refBrakeFor)
+	if braked.FastDecay {
+		t.Error("WithBrake set FastDecay on a PWM (it keeps its own decay)")
+	}
+	plain.Start(refT0)
+	braked.Start(refT0)
+	bs, be := braked.BrakeStart(), braked.BrakeEnd()
+	now := refT0
+	for k := 0; k < 40; k++ {
+		next := braked.NextTime(now)
+		// source: Control doc (BrakeAt, BrakeFor): the brake's start and end
+		// are events besides the PWM edges; the edges do not move.
+		if pn := plain.NextTime(now); next != pn && next != bs && next != be {
+			t.Fatalf("event %d: NextTime(%g) = %g, want the PWM edge %g or the brake's %g, %g", k, now, next, pn, bs, be)
+		}
+		if next == plain.NextTime(now) {
+			plain.AtTime(next)
+		}
+		braked.AtTime(next)
+		inBrake := next >= bs && next < be
+		if want := plain.On() && !inBrake; braked.On() != want {
+			t.Errorf("at %g: On() = %v, want %v (PWM %v, in the brake %v)", next, braked.On(), want, plain.On(), inBrake)
+		}
+		now = next
+	}
+	if !(now > be) {
+		t.Errorf("followed the events to %g only, before the brake's end %g", now, be)
 	}
 }

@@ -63,11 +63,12 @@ type Control struct {
 	// the current).
 	ReversePulse float64
 
-	// BrakeAt, BrakeFor (s): a soft-landing brake of a constant drive. The
-	// switch turns off BrakeAt after the energize command and stays off for
-	// BrakeFor (the current decays through the turn-off path, the
-	// suppression part), then turns on again for the hold. BrakeFor 0: no
-	// brake.
+	// BrakeAt, BrakeFor (s): a soft-landing brake of a constant or PWM
+	// drive. The switch turns off BrakeAt after the energize command and
+	// stays off for BrakeFor (a constant drive's current decays through the
+	// turn-off path, the suppression part; a PWM's as in its off-times),
+	// then the drive goes on (a PWM's edges run on beneath the brake, by
+	// their period index). BrakeFor 0: no brake.
 	BrakeAt, BrakeFor float64
 }
 
@@ -82,14 +83,14 @@ func (c *Control) Validate(d *Drive) error {
 	return c.validateWith(d)
 }
 
-// validateBrake checks a soft-landing brake: constant drive only, a start
-// after the energize command and a length > 0 (both finite).
+// validateBrake checks a soft-landing brake: constant or PWM drive, a
+// start after the energize command and a length > 0 (both finite).
 func (c *Control) validateBrake() error {
 	switch {
 	case c.BrakeAt == 0 && c.BrakeFor == 0:
 		return nil
-	case c.Mode != Constant:
-		return errors.New("circuit: a brake interval needs the constant drive")
+	case c.Mode != Constant && c.Mode != PWM:
+		return errors.New("circuit: a brake interval needs the constant or the pwm drive")
 	case !(c.BrakeAt > 0) || !(c.BrakeFor > 0) || math.IsInf(c.BrakeAt+c.BrakeFor, 0):
 		return errors.New("circuit: a brake needs a start > 0 and a length > 0 (both finite)")
 	}
@@ -99,7 +100,7 @@ func (c *Control) validateBrake() error {
 // WithBrake returns c with the brake interval: off at (s) after energize
 // for length (s); 0, 0: none. The constant drive has no recirculation
 // path, so its brake decays through the turn-off path (the suppression
-// part): FastDecay is set with a brake.
+// part): FastDecay is set with a brake. A PWM keeps its own decay.
 func (c Control) WithBrake(at, length float64) Control {
 	c.BrakeAt, c.BrakeFor = at, length
 	if c.Mode == Constant {
@@ -263,8 +264,9 @@ func (c *Controller) BrakeEnd() float64 {
 // Braking reports whether the brake interval is running (switch held off).
 func (c *Controller) Braking() bool { return c.braking }
 
-// On reports whether the switch is commanded on.
-func (c *Controller) On() bool { return c.on }
+// On reports whether the switch is commanded on: the control's own
+// command, off throughout the brake interval.
+func (c *Controller) On() bool { return c.on && !c.braking }
 
 // Active reports whether the interval is running.
 func (c *Controller) Active() bool { return c.active }
@@ -327,11 +329,12 @@ func (c *Controller) AtTime(t float64) {
 	if t == c.PhaseEnd() {
 		c.held = true
 	}
+	// The brake overrides the command (On); a PWM's edges go on beneath it.
 	switch t {
 	case c.BrakeStart():
-		c.braking, c.on = true, false
+		c.braking = true
 	case c.BrakeEnd():
-		c.braking, c.on = false, true
+		c.braking = false
 	}
 	if t != c.edgeAt {
 		return

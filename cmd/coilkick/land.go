@@ -140,7 +140,11 @@ func printLand(w io.Writer, path string, md *coilkick.Model, res *coilkick.LandR
 	case circuit.Bridge:
 		through = "the bridge's diodes, back to the supply"
 	}
-	fmt.Fprintf(b, "brake: full voltage from energize, the switch off at 'brake at' for 'brake for' (the current through %s), then full voltage\n\n", through)
+	if md.Control.Mode == circuit.PWM {
+		fmt.Fprintf(b, "brake: the PWM from energize, the switch held off at 'brake at' for 'brake for' (the current decays as in the PWM's off-times), then the PWM again\n\n")
+	} else {
+		fmt.Fprintf(b, "brake: full voltage from energize, the switch off at 'brake at' for 'brake for' (the current through %s), then full voltage\n\n", through)
+	}
 	if res.CornersAfter == nil {
 		fmt.Fprintf(b, "Nominal point (the scenario's drive): brake %s, seat impact %s, pull-in %s, every run seated within the cap: %s\n",
 			landBrake(res.Before), landSpeed(res.NominalBefore), landPullIn(res.NominalBefore), yesNo(res.BeforeFeasible))
@@ -212,7 +216,7 @@ func printLandVerdict(b io.Writer, res *coilkick.LandResult) {
 	case res.Feasible && res.After == res.Before:
 		fmt.Fprintln(b, "\nNo brake found that lands the nominal point softer and keeps every run seated within the cap: keep the drive as it is.")
 	case res.Feasible:
-		fmt.Fprintf(b, "\nThe brake, in the scenario's keys (paste into the file):\n\n%s", indent(res.After.YAML(), "  "))
+		fmt.Fprintf(b, "\nThe brake, in the scenario's keys (paste into the file):\n\n%s", indent(res.After.YAML(res.Mode), "  "))
 		if res.After.BrakeFor > 0 && res.After.BrakeFor == res.ForMax {
 			fmt.Fprintln(b, "\n  The brake's length is at its upper bound (the unbraked pull-in time).")
 		}

@@ -67,7 +67,7 @@ func landJSON(h jsonHeader, res *coilkick.LandResult) landDoc {
 		doc.Margins = &jsonLandMargins{m.AtEarlier, m.AtLater, m.ForShorter, m.ForLonger}
 	}
 	if res.Feasible && res.After.BrakeFor > 0 {
-		doc.YAML = text(res.After.YAML())
+		doc.YAML = text(res.After.YAML(res.Mode))
 	}
 	return doc
 }

@@ -36,7 +36,7 @@ func TestLandCommand(t *testing.T) {
 		{"evaluations 0", []string{"land", demo, "--evaluations", "0"}, exitError, []string{"--evaluations 0", "5000"}},
 		{"timing margin in volts", []string{"land", demo, "--timing-margin", "20 V"}, exitError, []string{"--timing-margin", "20 us"}},
 		{"no cap", []string{"land", noCap, "--evaluations", "3"}, exitError, []string{"no-cap.yaml", "--pull-in-cap", "ratings.pull-in time"}},
-		{"chopped drive", []string{"land", "../../scenarios/peak-hold-valve.yaml"}, exitError, []string{"constant drive", "peak and hold"}},
+		{"chopped drive", []string{"land", "../../scenarios/peak-hold-valve.yaml"}, exitError, []string{"constant and the pwm drive", "peak and hold"}},
 	}
 	for _, tc := range cases {
 		code, _, stderr := runStudy(t, tc.args...)
