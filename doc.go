@@ -38,7 +38,7 @@
 //     they happen and the energy balance at the end; sim_ring.go retires
 //     the switch node's ring after turn-off; sim_periodic.go repeats a
 //     chopped hold's periodic steady state instead of integrating it;
-//     sim_brake.go records a constant drive's soft-landing brake interval
+//     sim_brake.go records a constant or PWM drive's soft-landing brake interval
 //     (its events and Metrics.Brake); the study that tunes the brake
 //     against the tolerance corners is study_land.go (Land).
 //   - ode*.go — the integrator, which knows nothing of solenoids: ode.go
