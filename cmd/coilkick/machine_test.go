@@ -26,7 +26,7 @@ func machineCommands() []struct {
 		code int
 	}{
 		{"run", []string{"run", "../../scenarios/irrigation-valve.yaml"}, exitOK},
-		{"land", []string{"land", "../../scenarios/irrigation-valve-landing.yaml", "--evaluations", "30"}, exitOK},
+		{"land", []string{"land", "../../scenarios/irrigation-valve.yaml", "--evaluations", "30"}, exitOK},
 		{"magnet", []string{"magnet", "../../scenarios/dosing-valve-geometry.yaml"}, exitOK},
 		{"heat", []string{"heat", "../../scenarios/door-strike-duty.yaml"}, exitOK},
 		{"check", []string{"check", "../../scenarios/process-air-valve.yaml"}, exitOK},
