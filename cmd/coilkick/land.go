@@ -77,7 +77,7 @@ func cmdLand(c *cli.Context, w io.Writer) error {
 	}
 	res, err := coilkick.Land(md, opt)
 	if err != nil {
-		return fmt.Errorf("%s: %w", path, err)
+		return fmt.Errorf("%s: %s", path, strings.TrimPrefix(err.Error(), "coilkick: "))
 	}
 	outs := newOutputs(w)
 	if f := c.String("json"); f != "" {
