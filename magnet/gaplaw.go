@@ -29,6 +29,9 @@ type GapLaw struct {
 	b          float64 // 1/(H·m)
 	xMin, xMax float64 // m
 	turns      float64 // 0 when unknown
+	// iMag (A) is the permanent magnet's MMF over the turns, F_m/N: the
+	// constant current of the equivalent winding; 0 without a magnet.
+	iMag float64
 }
 
 // NewGapLaw builds the model from the inductances (H) at the seated gap xMin
@@ -144,29 +147,117 @@ func (g *GapLaw) InductanceSlope(x float64) float64 {
 	return -g.b / (d * d)
 }
 
-// FluxLinkage returns λ = L(x)·i (Wb).
-func (g *GapLaw) FluxLinkage(i, x float64) float64 { return g.Inductance(x) * i }
+// FluxLinkage returns λ = L(x)·i (Wb); with a permanent magnet
+// λ = L_leak·i + (i + i_m)/(a + b·x) (see WithMagnet).
+func (g *GapLaw) FluxLinkage(i, x float64) float64 {
+	if g.iMag == 0 {
+		return g.Inductance(x) * i
+	}
+	return g.Inductance(x)*i + g.iMag*g.gapInductance(x)
+}
 
-// Current returns i = λ/L(x) (A).
-func (g *GapLaw) Current(lam, x float64) float64 { return lam / g.Inductance(x) }
+// Current returns i = λ/L(x) (A); with a permanent magnet
+// i = (λ − i_m·L_g(x))/L(x), L_g = 1/(a + b·x).
+func (g *GapLaw) Current(lam, x float64) float64 {
+	if g.iMag == 0 {
+		return lam / g.Inductance(x)
+	}
+	return (lam - g.iMag*g.gapInductance(x)) / g.Inductance(x)
+}
 
 // Partials returns ∂i/∂λ = 1/L (1/H) and ∂i/∂x = −λ·L'/L² (A/m); ∂i/∂x is 0
-// outside GapRange, where L is held constant.
+// outside GapRange, where L is held constant. With a permanent magnet
+// (λ_g = λ − i_m·L_g, and dL_g/dx = dL/dx) ∂i/∂x = −(i_m·L + λ_g)·L'/L².
 func (g *GapLaw) Partials(lam, x float64) (diDlam, diDx float64) {
 	l := g.Inductance(x)
 	diDlam = 1 / l
 	if x < g.xMin || x > g.xMax {
 		return diDlam, 0
 	}
-	return diDlam, -lam * g.InductanceSlope(x) / (l * l)
+	if g.iMag == 0 {
+		return diDlam, -lam * g.InductanceSlope(x) / (l * l)
+	}
+	lg := lam - g.iMag*g.gapInductance(x)
+	return diDlam, -(g.iMag*l + lg) * g.InductanceSlope(x) / (l * l)
 }
 
-// CoEnergy returns W' = ½·L(x)·i² (J).
-func (g *GapLaw) CoEnergy(i, x float64) float64 { return 0.5 * g.Inductance(x) * i * i }
+// CoEnergy returns W' = ½·L(x)·i² (J); with a permanent magnet
+// W' = ½·L_leak·i² + ½·(i + i_m)²/(a + b·x) (see WithMagnet).
+func (g *GapLaw) CoEnergy(i, x float64) float64 {
+	if g.iMag == 0 {
+		return 0.5 * g.Inductance(x) * i * i
+	}
+	im := i + g.iMag
+	return 0.5*g.lLeak*i*i + 0.5*g.gapInductance(x)*im*im
+}
 
 // Force returns F = −½·i²·dL/dx = ½·i²·b/(a + b·x)² (N), the co-energy
-// force at constant current.
-func (g *GapLaw) Force(i, x float64) float64 { return -0.5 * i * i * g.InductanceSlope(x) }
+// force at constant current; with a permanent magnet
+// F = ½·(i + i_m)²·b/(a + b·x)², which at i = 0 is Maxwell's pull
+// Φ_pm²/(2·µ0·A) on the magnet's own gap flux Φ_pm = F_m/ℜ_total(x).
+func (g *GapLaw) Force(i, x float64) float64 {
+	im := i + g.iMag
+	return -0.5 * im * im * g.InductanceSlope(x)
+}
+
+// gapInductance returns L_g(x) = 1/(a + b·x) (H), the inductance through
+// the gap (L minus the leakage), at the clamped gap.
+func (g *GapLaw) gapInductance(x float64) float64 {
+	x = clamp(x, g.xMin, g.xMax)
+	return 1 / (g.a + g.b*x)
+}
+
+// WithMagnet returns a copy of the gap law with a permanent magnet of MMF
+// mmf (A, ampere-turns; > 0 aids a positive coil current) in its magnetic
+// circuit. The magnet is the equivalent winding of Fitzgerald & Kingsley,
+// Electric Machinery (6th ed., ch. 3, §3.7 "Forces and torques in systems
+// with permanent magnets"; section title from memory): a
+// winding of constant current whose MMF F_m drives flux through the
+// magnet's own (recoil) reluctance ℜ_m in series with the iron and the gap.
+// The inductances the gap law was made from are those measured with the
+// magnet fitted, so ℜ_m is already part of the solved iron reluctance
+// a·N²; the magnet adds only its MMF, as i_m = F_m/N:
+//
+//	Φ = (F_m + N·i)/ℜ_total(x),  ℜ_total = N²·(a + b·x),
+//	W'(i, x) = ½·L_leak·i² + ½·(F_m + N·i)²/ℜ_total(x),
+//	λ = ∂W'/∂i = L_leak·i + N·Φ,  F = −∂W'/∂x = ½·(i + i_m)²·b/(a + b·x)².
+//
+// The co-energy is that of both windings at the magnet's constant current
+// (defined up to an x-independent constant, which changes neither λ nor
+// F): W'(0, x) = ½·i_m²·L_g(x) is not zero, and FieldEnergy's W = λ·i − W'
+// is the stored energy referred to the same datum, so its change over a
+// run is exact. The model is no longer odd in i. It needs the turn count
+// (NewGapLawTurns); mmf must be finite and not zero.
+func (g *GapLaw) WithMagnet(mmf float64) (*GapLaw, error) {
+	if g.turns == 0 {
+		return nil, fmt.Errorf("magnet: gap law: a permanent magnet needs the turns and pole area")
+	}
+	if mmf == 0 || math.IsNaN(mmf) || math.IsInf(mmf, 0) {
+		return nil, fmt.Errorf("magnet: gap law: magnet MMF must be finite and not zero, got %g A", mmf)
+	}
+	c := *g
+	c.iMag = mmf / g.turns
+	return &c, nil
+}
+
+// MagnetMMF returns the permanent magnet's MMF F_m (A, ampere-turns); 0
+// without a magnet.
+func (g *GapLaw) MagnetMMF() float64 { return g.iMag * g.turns }
+
+// MMFForHoldingForce returns the magnet MMF F_m (A) that makes the
+// zero-current pull at gap x (m) equal force (N): from
+// F = ½·i_m²·b/(a + b·x)², i_m = (a + b·x)·√(2F/b), F_m = N·i_m. It needs
+// the turn count; force must be positive and finite.
+func (g *GapLaw) MMFForHoldingForce(force, x float64) (float64, error) {
+	if g.turns == 0 {
+		return 0, fmt.Errorf("magnet: gap law: a holding force needs the turns and pole area")
+	}
+	if !(force > 0) || math.IsInf(force, 0) {
+		return 0, fmt.Errorf("magnet: gap law: holding force must be positive and finite, got %g N", force)
+	}
+	x = clamp(x, g.xMin, g.xMax)
+	return g.turns * (g.a + g.b*x) * math.Sqrt(2*force/g.b), nil
+}
 
 // GapRange returns the seated and rest gaps (m).
 func (g *GapLaw) GapRange() (min, max float64) { return g.xMin, g.xMax }

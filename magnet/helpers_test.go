@@ -104,24 +104,42 @@ func relErr(got, want float64) float64 {
 	return math.Abs(got-want) / math.Abs(want)
 }
 
-// namedModel pairs a model with a test name.
+// namedModel pairs a model with a test name; pm marks a model with a
+// permanent magnet (λ(0, x) ≠ 0, not odd in i), which the generic tests
+// check about its own zero-flux current and at negative currents.
 type namedModel struct {
 	name string
 	m    Model
+	pm   bool
 }
 
 func testModels(t testing.TB) []namedModel {
 	g := refGapLaw(t)
 	return []namedModel{
-		{"gap law", g},
-		{"gap law no leakage", mustGapLaw(t)},
-		{"table of gap law", gapLawTable(t, g, 30, 25)},
-		{"saturating table", saturatingTable(t)},
-		{"curves of gap law", gapLawCurves(t, g, []float64{0.6, 1.5, 3})},
-		{"one curve of gap law", gapLawCurves(t, g, []float64{1.2})},
-		{"curves of saturating table", saturatingCurves(t)},
-		{"piecewise-linear curves of saturating table", saturatingCurvesLinear(t)},
+		{"gap law", g, false},
+		{"gap law no leakage", mustGapLaw(t), false},
+		{"table of gap law", gapLawTable(t, g, 30, 25), false},
+		{"saturating table", saturatingTable(t), false},
+		{"curves of gap law", gapLawCurves(t, g, []float64{0.6, 1.5, 3}), false},
+		{"one curve of gap law", gapLawCurves(t, g, []float64{1.2}), false},
+		{"curves of saturating table", saturatingCurves(t), false},
+		{"piecewise-linear curves of saturating table", saturatingCurvesLinear(t), false},
+		{"gap law with magnet", refLatchLaw(t), true},
 	}
+}
+
+// refMagnetMMF is the reference magnet's MMF (A, ampere-turns; chosen):
+// 0.8 A over the reference turns.
+const refMagnetMMF = 800.0
+
+// refLatchLaw is the reference gap law with the reference magnet.
+func refLatchLaw(t testing.TB) *GapLaw {
+	t.Helper()
+	g, err := refGapLaw(t).WithMagnet(refMagnetMMF)
+	if err != nil {
+		t.Fatalf("WithMagnet: %v", err)
+	}
+	return g
 }
 
 func mustGapLaw(t testing.TB) *GapLaw {

@@ -5,7 +5,9 @@ package magnet
 // Pulling in reduces x.
 //
 // Every model here is odd in i (λ(−i, x) = −λ(i, x)), so the co-energy and
-// the force are even in i. Each model derives FluxLinkage, CoEnergy and
+// the force are even in i, except a gap law with a permanent magnet
+// (GapLaw.WithMagnet), whose λ(0, x) is the magnet's flux linkage. Each
+// model derives FluxLinkage, CoEnergy and
 // Force from one co-energy function W'(i, x), so that Force is exactly
 // −∂W'/∂x inside GapRange. Gaps outside GapRange (an integrator overshooting
 // a stop by a hair) are clamped to the range: λ, W' and the force hold their
@@ -19,7 +21,11 @@ type Model interface {
 	// Partials returns ∂i/∂λ (1/H) and ∂i/∂x (A/m) at (λ, x); used for
 	// Jacobians.
 	Partials(lam, x float64) (diDlam, diDx float64)
-	// CoEnergy returns W'(i, x) = ∫0^i λ(i', x) di' (J).
+	// CoEnergy returns the co-energy W'(i, x) (J), with λ = ∂W'/∂i: for a
+	// model without a permanent magnet W' = ∫0^i λ(i', x) di'; with one,
+	// the co-energy of the coil and the magnet's equivalent winding at its
+	// constant current (GapLaw.WithMagnet), so W'(0, x) ≠ 0 and its gap
+	// derivative is the magnet's own pull.
 	CoEnergy(i, x float64) float64
 	// Force returns the pull toward smaller gap (N): F = −∂W'/∂x at
 	// constant i, ≥ 0 for a normal magnet.
