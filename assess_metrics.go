@@ -138,6 +138,9 @@ type Metrics struct {
 	// Brake: the soft-landing brake interval of a constant drive
 	// (drive.brake at, drive.brake for); Happened false without one.
 	Brake BrakeMetrics
+	// Storage: the storage capacitor of a capacitor-discharge drive
+	// (supply.storage capacitor); Fitted false without one.
+	Storage StorageMetrics
 
 	// Energy balance, J: SupplyEnergy = CoilLoss + SourceLoss + SwitchLoss
 	// + SuppressionLoss + DiodeLoss + MechanicalWork + EddyLoss + CoreLoss
@@ -321,3 +324,33 @@ func CompactEvents(evs []Event) []Event {
 
 // formatMillis writes a time in ms with 4 decimals, as the event list.
 func formatMillis(t float64) string { return fmt.Sprintf("%.4f ms", t*1e3) }
+
+// StorageMetrics are the figures of a capacitor-discharge drive's storage
+// capacitor (sim_storage.go). Voltages are the capacitor's own (behind its
+// ESR), V; energies J.
+type StorageMetrics struct {
+	Fitted bool
+	// ChargeVoltage: the capacitor's voltage at the start of the run.
+	ChargeVoltage float64
+	// VoltageAtTurnOff: at the de-energize command (the residual after the
+	// pulse); the charge voltage when the run never de-energized.
+	VoltageAtTurnOff float64
+	// FinalVoltage: at the end of the run.
+	FinalVoltage float64
+	// MinVoltage: the lowest over the run (sampled like the peaks: at
+	// events and three points of each step).
+	MinVoltage float64
+	// PulseEnergy: ½·C·(V0² − V_off²), taken from the capacitor up to the
+	// de-energize command; RunEnergy: ½·C·(V0² − V_end²) over the whole
+	// run (the net of what the charging resistor put back). Negative:
+	// the capacitor gained energy.
+	PulseEnergy, RunEnergy float64
+	// RechargeTarget: (1 − recharge fraction) · ChargeVoltage.
+	RechargeTarget float64
+	// Recharge: from the end of the run, the time the charging resistor
+	// takes to bring the capacitor from FinalVoltage back to
+	// RechargeTarget with the coil drawing nothing (0 when it is there
+	// already). Not Happened: it cannot (NoRecharge says why).
+	Recharge   Interval
+	NoRecharge string
+}

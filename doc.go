@@ -40,7 +40,10 @@
 //     chopped hold's periodic steady state instead of integrating it;
 //     sim_brake.go records a constant or PWM drive's soft-landing brake interval
 //     (its events and Metrics.Brake); the study that tunes the brake
-//     against the tolerance corners is study_land.go (Land).
+//     against the tolerance corners is study_land.go (Land); sim_storage.go
+//     is a capacitor-discharge drive's storage capacitor (StorageCapacitor:
+//     the bus capacitor behind its ESR, its charging path, its figures and
+//     the recharge time's closed form, RechargeTime).
 //   - ode*.go — the integrator, which knows nothing of solenoids: ode.go
 //     steps, controls the error, lands on time events and locates state
 //     events (guards) on the dense output; ode_methods.go holds the

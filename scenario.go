@@ -44,6 +44,19 @@ type SupplySpec struct {
 	SourceResistance float64 // ohm, 0 for a stiff supply
 	BulkCapacitance  float64 // F at the drive's terminals, behind the source resistance; 0 for none
 	LowVoltage       float64 // V, lowest supply in tolerance (hot-coil check); 0 when not given
+	// Storage is a capacitor-discharge drive's storage capacitor; nil for
+	// none (the supply then feeds the drive directly).
+	Storage *StorageSpec
+}
+
+// StorageSpec is the storage capacitor of a capacitor-discharge drive
+// (supply.storage capacitor).
+type StorageSpec struct {
+	Capacitance        float64 // F
+	ESR                float64 // ohm, equivalent series resistance
+	ChargeVoltage      float64 // V at the start; 0: the supply voltage
+	ChargingResistance float64 // ohm from the supply; 0: no charging path
+	RechargeFraction   float64 // recharged: within this fraction of the charge voltage
 }
 
 // ThermalSpec is the coil's thermal network.

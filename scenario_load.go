@@ -63,6 +63,12 @@ func Load(path string) (*Scenario, error) {
 //	  source resistance: 0.5 ohm              # optional, default 0 ohm
 //	  bulk capacitance: 470 uF                # optional; a capacitor at the drive's terminals behind the source resistance, which must then be > 0
 //	  low voltage: 21.6 V                     # optional; the lowest supply in tolerance (hot-coil check), at most voltage
+//	  storage capacitor:                      # optional; capacitor-discharge drive: a charged capacitor feeds the drive (instead of bulk capacitance)
+//	    capacitance: 2200 uF
+//	    esr: 0.1 ohm                          # optional, default 0 ohm; equivalent series resistance, in series with the drive
+//	    charge voltage: 9 V                   # optional; the voltage it starts at, at most supply.voltage; default supply.voltage
+//	    charging resistance: 100 ohm          # optional; from supply.voltage (in series with its source resistance), during and after the pulse; without it the capacitor has no charging path (the battery disconnected)
+//	    recharge fraction: 1 %                # optional, default 1 %; recharged means back within this fraction of the charge voltage
 //	coil:
 //	  resistance: 72 ohm                      # at the reference temperature; or instead build
 //	  reference temperature: 20 degC          # optional, default 20 degC

@@ -57,6 +57,9 @@ type Model struct {
 	// BulkCapacitance (F) at the drive's supply terminals, fed through the
 	// source resistance; 0 for none.
 	BulkCapacitance float64
+	// Storage is a capacitor-discharge drive's storage capacitor
+	// (sim_storage.go); nil for none.
+	Storage *StorageCapacitor
 	// RiseTime, FallTime (s) of the switch's edges, for the switching-loss
 	// estimate; 0 for ideal edges.
 	RiseTime, FallTime float64
@@ -79,6 +82,10 @@ func (md *Model) scales() []float64 {
 	rt := md.CoilResistance() + md.Drive.Supply.SourceResistance + md.Drive.Switch.OnResistance
 	lOpen := md.Magnet.FluxLinkage(1, md.Plunger.GapMax)
 	iScale := math.Min(v0/rt, v0*(md.Timing.DeenergizeAt-md.Timing.EnergizeAt)/lOpen)
+	if st := md.Storage; st != nil {
+		// A storage capacitor's energy bounds the coil's: ½·L·i² ≤ ½·C·V².
+		iScale = math.Min(iScale, st.startVoltage(v0)*math.Sqrt(st.Capacitance/lOpen))
+	}
 	stroke := md.Plunger.GapMax - md.Plunger.GapMin
 	lam := md.Magnet.FluxLinkage(iScale, md.Plunger.GapMin)
 	tau := lOpen / rt
@@ -267,6 +274,10 @@ func buildDrive(s *Scenario, md *Model) error {
 		return s.Errorf("suppression", "%v", err)
 	}
 	md.BulkCapacitance = s.Supply.BulkCapacitance
+	if st := s.Supply.Storage; st != nil {
+		md.Storage = &StorageCapacitor{Capacitance: st.Capacitance, ESR: st.ESR, ChargeVoltage: st.ChargeVoltage,
+			ChargingResistance: st.ChargingResistance, RechargeFraction: st.RechargeFraction}
+	}
 	md.RiseTime, md.FallTime = s.Switch.RiseTime, s.Switch.FallTime
 	dr := s.Drive
 	md.Drive.Recirc = circuit.Recirculation{Drop: dr.RecirculationDrop, Resistance: dr.RecirculationResistance}

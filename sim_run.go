@@ -737,6 +737,7 @@ func (r *run) peaks(o outputs) {
 	if r.cmode != circuit.On {
 		m.PeakClampCurrent = math.Max(m.PeakClampCurrent, o.ClampCurrent)
 	}
+	r.storageTrack(o)
 }
 
 func (r *run) accepted(s *stepView) {
@@ -844,6 +845,9 @@ func newRun(md *Model, opt *Options, tol float64) (*run, []float64) {
 	if md.Thermal != nil && opt.FixedTemperature == 0 {
 		sys.thermal = md.Thermal
 	}
+	if md.Storage != nil {
+		sys.storage, sys.bulkC = md.Storage, md.Storage.Capacitance
+	}
 	res := &Result{}
 	if len(opt.SampleTimes) > 0 {
 		res.Samples = make([]float64, 0, len(opt.SampleTimes))
@@ -860,6 +864,10 @@ func newRun(md *Model, opt *Options, tol float64) (*run, []float64) {
 	y[sGap] = md.Plunger.GapMax
 	y[sSwitchC] = drive.Supply.Voltage // at rest the switch node sits at the rail
 	y[sBus] = drive.Supply.Voltage
+	if sys.storage != nil {
+		y[sBus] = sys.storage.startVoltage(drive.Supply.Voltage)
+		y[sSwitchC] = y[sBus]
+	}
 	y[sWinding] = tWinding
 	y[sHousing] = tWinding
 	if md.Thermal != nil {
@@ -882,6 +890,7 @@ func (r *run) start(y []float64) error {
 	}
 	r.capE0 = r.storedCapEnergy(y)
 	r.wf0 = r.fieldEnergy(y)
+	r.storageStart(y)
 	if !r.noTrace {
 		r.res.Trace.add(0, r.out(y))
 	}
@@ -1033,6 +1042,7 @@ func (r *run) finish(y []float64) {
 	m.FinalWindingTemperature = y[sWinding]
 	m.FinalHousingTemperature = y[sHousing]
 	m.StoredChange = r.fieldEnergy(y) - r.wf0 + r.storedCapEnergy(y) - r.capE0
+	r.storageFinish(y)
 	m.EnergyResidual = m.SupplyEnergy - (m.CoilLoss + m.SourceLoss + m.SwitchLoss + m.SuppressionLoss + m.DiodeLoss + m.MechanicalWork + m.EddyLoss + m.CoreLoss + m.StoredChange)
 }
 
@@ -1151,7 +1161,7 @@ func (r *run) closeWindow(t float64, y []float64) {
 		if r.drive.Suppressor.Kind == circuit.Bridge {
 			ron *= 2
 		}
-		h.SteadyCurrent = r.baseV0 / (r.resistance(y) + ron + r.rs)
+		h.SteadyCurrent = r.baseV0 / (r.resistance(y) + ron + r.steadyResistance())
 		h.Settled = math.Abs(h.EndCurrent-h.SteadyCurrent) <= SettleFraction*math.Abs(h.SteadyCurrent)
 	}
 	h.CoilPower = (y[qCoilR] - w.at[qCoilR]) / T

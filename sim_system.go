@@ -76,6 +76,10 @@ type system struct {
 	v0    float64 // V, present source voltage (the boost voltage while boosting)
 	rs    float64 // ohm, source resistance
 	bulkC float64 // F, bulk capacitor at the rail behind rs (0: none)
+	// storage: the bulk capacitor is a capacitor-discharge drive's storage
+	// capacitor (sim_storage.go), charged through its charging path; nil
+	// for none.
+	storage *StorageCapacitor
 
 	cmode circuit.Mode
 	mmode mechMode
@@ -102,6 +106,7 @@ type outputs struct {
 	Current, CoilVoltage, SwitchVoltage, SupplyCurrent, ClampCurrent float64
 	Gap, Velocity, MagneticForce, PassiveForce                       float64
 	RailVoltage                                                      float64 // V at the drive's supply terminals
+	StorageVoltage                                                   float64 // V of the bus (storage) capacitor
 	WindingTemperature                                               float64 // K
 }
 
@@ -114,8 +119,12 @@ func (s *system) resistance(y []float64) float64 {
 }
 
 // rail returns the voltage and resistance the drive sees at its supply
-// terminals: the source behind its resistance, or the bulk capacitor.
+// terminals: the source behind its resistance, the bulk capacitor, or the
+// storage capacitor behind its ESR.
 func (s *system) rail(y []float64) (v0, rs float64) {
+	if s.storage != nil {
+		return y[sBus], s.storage.ESR
+	}
 	if s.bulkC > 0 {
 		return y[sBus], 0
 	}
@@ -255,11 +264,14 @@ func (s *system) deriv(_ float64, y, dy []float64) {
 	}
 	dy[sSnubberC] = pt.DSnubberCap
 	if s.bulkC > 0 {
-		// Source behind rs charging the bulk capacitor, which feeds the drive.
-		iin := (s.v0 - y[sBus]) / s.rs
+		// Source behind rs (a storage capacitor: its charging path, if
+		// any) charging the bulk capacitor, which feeds the drive; a
+		// storage capacitor's ESR is the drive's source resistance
+		// (pt.PSource; 0 for a bulk capacitor).
+		iin, rin := s.charging(y)
 		dy[sBus] = (iin - pt.SupplyCurrent) / s.bulkC
 		dy[qSupply] = s.v0 * iin
-		dy[qSource] = s.rs * iin * iin
+		dy[qSource] = rin*iin*iin + pt.PSource
 	} else {
 		dy[sBus] = 0
 		dy[qSupply] = pt.PSupply
@@ -303,7 +315,7 @@ func (s *system) out(y []float64) outputs {
 		Current: i, CoilVoltage: s.pt.CoilVoltage, SwitchVoltage: s.pt.SwitchVoltage,
 		SupplyCurrent: s.pt.SupplyCurrent, ClampCurrent: math.Abs(s.pt.ClampCurrent),
 		Gap: x, Velocity: v, MagneticForce: s.mag.Force(im, x), PassiveForce: s.plunger.PassiveForce(x, v),
-		RailVoltage: s.railVoltage(y), WindingTemperature: y[sWinding],
+		RailVoltage: s.railVoltage(y), StorageVoltage: y[sBus], WindingTemperature: y[sWinding],
 	}
 }
 

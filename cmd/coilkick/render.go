@@ -124,6 +124,7 @@ func printSummary(w io.Writer, path string, md *coilkick.Model, res *coilkick.Re
 	s.pullIn(m)
 	s.hold(md, m)
 	s.supply(m)
+	s.storage(m.Storage)
 	s.release(m)
 	s.stress(m)
 	s.balance(m)
@@ -208,7 +209,11 @@ func (s *summary) hold(md *coilkick.Model, m *coilkick.Metrics) {
 		s.row("chopping frequency", si(h.ChoppingFrequency, "Hz"))
 	} else {
 		text := fmt.Sprintf("%s, settled (within %g %% of V/R = %s)", si(h.EndCurrent, "A"), 100*coilkick.SettleFraction, si(h.SteadyCurrent, "A"))
-		if !h.Settled {
+		switch {
+		case m.Storage.Fitted:
+			// V/R through the charging path: no useful reference.
+			text = si(h.EndCurrent, "A") + " (from the storage capacitor)"
+		case !h.Settled:
 			text = fmt.Sprintf("%s, not settled (%.3g %% of V/R = %s)", si(h.EndCurrent, "A"), 100*h.EndCurrent/h.SteadyCurrent, si(h.SteadyCurrent, "A"))
 		}
 		s.row("hold current at end", text)
@@ -256,6 +261,26 @@ func (s *summary) supply(m *coilkick.Metrics) {
 	}
 }
 
+// storage prints a capacitor-discharge drive's storage capacitor figures.
+func (s *summary) storage(st coilkick.StorageMetrics) {
+	if !st.Fitted {
+		return
+	}
+	fmt.Fprintln(s.b, "Storage capacitor")
+	s.row("charge voltage", si(st.ChargeVoltage, "V"))
+	s.row("voltage at turn-off", si(st.VoltageAtTurnOff, "V"))
+	s.row("voltage at end of run", si(st.FinalVoltage, "V"))
+	s.row("lowest capacitor voltage", si(st.MinVoltage, "V"))
+	s.row("energy taken in the pulse", si(st.PulseEnergy, "J"))
+	s.row("energy taken over the run", si(st.RunEnergy, "J"))
+	if st.Recharge.Happened {
+		s.row("recharge after the run", fmt.Sprintf("%s to %s (within %.3g %% of the charge voltage)",
+			si(st.Recharge.Seconds, "s"), si(st.RechargeTarget, "V"), 100*(1-st.RechargeTarget/st.ChargeVoltage)))
+	} else {
+		s.row("recharge after the run", st.NoRecharge)
+	}
+}
+
 func (s *summary) release(m *coilkick.Metrics) {
 	fmt.Fprintln(s.b, "Release")
 	s.row("current at turn-off", si(m.CurrentAtTurnOff, "A"))
@@ -296,7 +321,10 @@ func (s *summary) balance(m *coilkick.Metrics) {
 	fmt.Fprintln(s.b, "Energy balance (whole run)")
 	s.row("supply", si(m.SupplyEnergy, "J"))
 	s.row("coil resistance", si(m.CoilLoss, "J"))
-	if m.SourceLoss > 0 {
+	switch {
+	case m.Storage.Fitted:
+		s.row("source, charging, ESR", si(m.SourceLoss, "J"))
+	case m.SourceLoss > 0:
 		s.row("source resistance", si(m.SourceLoss, "J"))
 	}
 	s.row("switch", si(m.SwitchLoss, "J"))
@@ -312,7 +340,11 @@ func (s *summary) balance(m *coilkick.Metrics) {
 		s.row("core loss", si(m.CoreLoss, "J"))
 	}
 	s.row("stored change", si(m.StoredChange, "J"))
-	s.row("energy residual", fmt.Sprintf("%.2g of supply", m.EnergyResidualRel()))
+	if m.Storage.Fitted {
+		s.row("energy residual", fmt.Sprintf("%.2g of the largest flow", m.EnergyResidualRel()))
+	} else {
+		s.row("energy residual", fmt.Sprintf("%.2g of supply", m.EnergyResidualRel()))
+	}
 	if m.SwitchingLossEstimate > 0 {
 		s.row("switching loss (estimate)", si(m.SwitchingLossEstimate, "J")+", from edge times, outside the balance")
 	}
@@ -420,6 +452,36 @@ type jsonMetrics struct {
 	MaxRailVoltage    float64           `json:"highest_rail_voltage_V"`
 	Hold              *jsonHold         `json:"hold"`
 	Brake             *jsonBrake        `json:"brake"`
+	Storage           *jsonStorage      `json:"storage_capacitor"`
+}
+
+// jsonStorage is a capacitor-discharge drive's storage capacitor (null
+// without one).
+type jsonStorage struct {
+	ChargeVoltage    float64  `json:"charge_voltage_V"`
+	VoltageAtTurnOff float64  `json:"voltage_at_turn_off_V"`
+	FinalVoltage     float64  `json:"final_voltage_V"`
+	MinVoltage       float64  `json:"lowest_voltage_V"`
+	PulseEnergy      float64  `json:"pulse_energy_J"`
+	RunEnergy        float64  `json:"run_energy_J"`
+	RechargeTarget   float64  `json:"recharge_target_V"`
+	RechargeTime     *float64 `json:"recharge_time_s"`       // null: cannot recharge
+	NoRecharge       *string  `json:"recharge_not_possible"` // why, else null
+}
+
+// newJSONStorage returns the storage capacitor's figures (nil without one).
+func newJSONStorage(st coilkick.StorageMetrics) *jsonStorage {
+	if !st.Fitted {
+		return nil
+	}
+	j := &jsonStorage{ChargeVoltage: st.ChargeVoltage, VoltageAtTurnOff: st.VoltageAtTurnOff, FinalVoltage: st.FinalVoltage,
+		MinVoltage: st.MinVoltage, PulseEnergy: st.PulseEnergy, RunEnergy: st.RunEnergy, RechargeTarget: st.RechargeTarget,
+		RechargeTime: optional(st.Recharge.Seconds, st.Recharge.Happened)}
+	if !st.Recharge.Happened {
+		why := st.NoRecharge
+		j.NoRecharge = &why
+	}
+	return j
 }
 
 // jsonBrake is the soft-landing brake interval (null without one).
@@ -509,6 +571,7 @@ func writeJSON(w io.Writer, md *coilkick.Model, res *coilkick.Result, as *coilki
 		doc.Metrics.Brake = &jsonBrake{Start: b.Start, End: optional(b.End, b.Ended), CurrentAtStart: b.CurrentAtStart,
 			CurrentAtEnd: optional(b.CurrentAtEnd, b.Ended), GapAtStart: b.GapAtStart, SpeedAtStart: b.SpeedAtStart}
 	}
+	doc.Metrics.Storage = newJSONStorage(m.Storage)
 	if d := m.DropOut; d.Happened {
 		doc.Metrics.DropOut = &jsonDropOut{Time: d.Time, InHold: d.InHold, Current: d.Current, Pull: d.Pull, Passive: d.Passive}
 	}
