@@ -26,6 +26,13 @@ type MagnetSummary struct {
 	// SaturationSearch × the rated current (the model does not saturate
 	// there).
 	SaturationSeated, SaturationRest float64
+	// PermanentMagnetMMF (A, ampere-turns) is the gap law's permanent
+	// magnet (magnet.GapLaw.WithMagnet); 0 without one. HoldingSeated and
+	// HoldingAtRest (N) are then its pull with no coil current at the two
+	// stops (Maxwell's pull on the magnet's own gap flux), to set against
+	// SpringSeated and SpringAtRest; 0 without a permanent magnet.
+	PermanentMagnetMMF           float64
+	HoldingSeated, HoldingAtRest float64
 }
 
 // Saturation-onset definition.
@@ -49,7 +56,7 @@ func (md *Model) MagnetSummary() MagnetSummary {
 	r := md.CoilResistance()
 	s.RatedCurrent = md.Drive.Supply.Voltage / r
 	small := 0.01 * s.RatedCurrent
-	ind := func(i, x float64) float64 { return mg.FluxLinkage(i, x) / i }
+	ind := func(i, x float64) float64 { return chordInductance(mg, i, x) }
 	s.ClosedInductance = ind(small, p.GapMin)
 	s.OpenInductance = ind(small, p.GapMax)
 	s.ClosedInductanceRated = ind(s.RatedCurrent, p.GapMin)
@@ -62,6 +69,10 @@ func (md *Model) MagnetSummary() MagnetSummary {
 	s.TimeConstantOpen = s.OpenInductance / r
 	s.SaturationSeated = saturationOnset(md, p.GapMin, s.RatedCurrent)
 	s.SaturationRest = saturationOnset(md, p.GapMax, s.RatedCurrent)
+	if gl, ok := mg.(*magnet.GapLaw); ok && gl.MagnetMMF() != 0 {
+		s.PermanentMagnetMMF = gl.MagnetMMF()
+		s.HoldingSeated, s.HoldingAtRest = gl.Force(0, p.GapMin), gl.Force(0, p.GapMax)
+	}
 	return s
 }
 

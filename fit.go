@@ -143,6 +143,9 @@ func setFit(md *Model, p FitParam, v float64) error {
 		if !ok {
 			return fmt.Errorf("coilkick: fitting %s needs a gap-law magnet", p)
 		}
+		if gl.MagnetMMF() != 0 {
+			return fmt.Errorf("coilkick: fitting %s of a gap law with a permanent magnet (magnet.gap law.magnet mmf or holding force) is not yet supported", p)
+		}
 		lc, lo := gl.Inductance(md.Plunger.GapMin), gl.Inductance(md.Plunger.GapMax)
 		if p == FitClosedInductance {
 			lc = v

@@ -136,6 +136,10 @@ type MagnetSpec struct {
 	ClosedInductance float64 // H at the seated gap
 	OpenInductance   float64 // H at the rest gap
 	PoleArea         float64 // m², 0 when not given (then leakage is taken as zero)
+	// MagnetMMF (A, ampere-turns) or HoldingForce (N, the zero-current
+	// pull at the seated gap): a permanent magnet in the gap law's
+	// circuit; 0 when not given (at most one is).
+	MagnetMMF, HoldingForce float64
 
 	// table
 	TableFile    string  // path as written, resolved against the scenario's folder

@@ -163,6 +163,8 @@ func TestLoadBad(t *testing.T) {
 		{"breakdown_below_supply.yaml", 19, 22, []string{"switch.breakdown voltage", `"20 V" must be greater than supply.voltage "24 V" (line 4)`}},
 		{"timing_order.yaml", 25, 8, []string{"timing.end", `"50 ms" must be greater than timing.de-energize at "100 ms" (line 24)`}},
 		{"pole_area_without_turns.yaml", 11, 16, []string{"magnet.gap law.pole area", "needs coil.turns"}},
+		{"magnet_without_pole_area.yaml", 12, 20, []string{"magnet.gap law.holding force", "needs magnet.gap law.pole area"}},
+		{"magnet_mmf_and_holding.yaml", 14, 20, []string{"magnet.gap law.holding force", `give only one of "magnet mmf" and "holding force"`}},
 		{"missing_table_file.yaml", 9, 11, []string{"magnet.table.file", `"no_such_table.csv" not found`, filepath.Join("testdata", "bad", "no_such_table.csv")}},
 		{"table_unit_wrong.yaml", 10, 19, []string{"magnet.table.current unit", `"mm" is a unit of length; expected a unit of current, e.g. "A"`}},
 		{"two_documents.yaml", 26, 0, []string{"second YAML document"}},

@@ -29,6 +29,10 @@ var gapLawSection = &sectionSpec{path: "magnet.gap law", keys: []*keySpec{
 		doc: "at the rest gap, < closed inductance"},
 	{name: "pole area", rng: newRange(Area, "0.01 mm2 to 0.1 m2", ""), need: whenGiven, example: "50 mm2",
 		doc: "needs coil.turns; fixes b = 1/(µ0·A·N²) and solves the leakage"},
+	{name: "magnet mmf", rng: newRange(Current, "0.1 A to 1 MA", ""), need: whenGiven, example: "300 A",
+		doc: "a permanent magnet in the circuit (latching): its MMF in ampere-turns, aiding a positive coil current; needs pole area; or give holding force"},
+	{name: "holding force", rng: newRange(Force, "1 mN to 100 kN", ""), need: whenGiven, example: "12 N",
+		doc: "a permanent magnet given by its pull at the seated gap with no current (measured); needs pole area; instead of magnet mmf"},
 }}
 
 // tableSection is magnet.table: a flux-linkage table file and its units.
@@ -80,6 +84,19 @@ func (l *scenarioLoader) loadGapLaw(sec *yamlSection) {
 	l.exceed("magnet.gap law.closed inductance", m.ClosedInductance, "magnet.gap law.open inductance", m.OpenInductance, false)
 	if l.read(sec, "pole area", &m.PoleArea) && !l.ok["coil.turns"] {
 		l.errf("magnet.gap law.pole area", "needs coil.turns, which is not given")
+	}
+	mmf := l.read(sec, "magnet mmf", &m.MagnetMMF)
+	hold := l.read(sec, "holding force", &m.HoldingForce)
+	for _, k := range []struct {
+		given bool
+		key   string
+	}{{mmf, "magnet mmf"}, {hold, "holding force"}} {
+		if k.given && !l.ok["magnet.gap law.pole area"] {
+			l.errf("magnet.gap law."+k.key, "a permanent magnet needs magnet.gap law.pole area (and coil.turns), which is not given")
+		}
+	}
+	if mmf && hold {
+		l.errf("magnet.gap law.holding force", "give only one of \"magnet mmf\" and \"holding force\"")
 	}
 }
 

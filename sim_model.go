@@ -180,6 +180,45 @@ func buildPlunger(s *Scenario, md *Model) error {
 	return nil
 }
 
+// withPermanentMagnet adds the scenario's permanent magnet (magnet mmf, or
+// the holding force at the seated gap) to gap law gl; gl itself when none
+// is given.
+func withPermanentMagnet(s *Scenario, gl *magnet.GapLaw) (*magnet.GapLaw, error) {
+	g := s.Magnet
+	key, mmf := "magnet.gap law.magnet mmf", g.MagnetMMF
+	if g.HoldingForce > 0 {
+		var err error
+		key = "magnet.gap law.holding force"
+		if mmf, err = gl.MMFForHoldingForce(g.HoldingForce, s.Plunger.SeatedGap); err != nil {
+			return nil, s.Errorf(key, "%v", err)
+		}
+	}
+	if mmf == 0 {
+		return gl, nil
+	}
+	pm, err := gl.WithMagnet(mmf)
+	if err != nil {
+		return nil, s.Errorf(key, "%v", err)
+	}
+	return pm, nil
+}
+
+// zeroCurrentFlux returns the flux linkage λ(0, x) (Wb) of magnetic model
+// m at gap x (m): a permanent magnet's (GapLaw.WithMagnet), exactly 0 for
+// every other model (a table's rounding at zero current is not taken).
+func zeroCurrentFlux(m magnet.Model, x float64) float64 {
+	if gl, ok := m.(*magnet.GapLaw); ok && gl.MagnetMMF() != 0 {
+		return gl.FluxLinkage(0, x)
+	}
+	return 0
+}
+
+// chordInductance returns (λ(i, x) − λ(0, x))/i (H): the chord inductance
+// of the coil's own current, λ/i without a permanent magnet.
+func chordInductance(m magnet.Model, i, x float64) float64 {
+	return (m.FluxLinkage(i, x) - zeroCurrentFlux(m, x)) / i
+}
+
 // buildMagnet sets the magnetic model: the gap law, a flux-linkage table
 // that must cover the stroke, or the magnet from geometry (which needs the
 // coil's build, so the coil comes first).
@@ -197,6 +236,9 @@ func buildMagnet(s *Scenario, md *Model) error {
 		}
 		if err != nil {
 			return s.Errorf("magnet.gap law", "%v", err)
+		}
+		if gl, err = withPermanentMagnet(s, gl); err != nil {
+			return err
 		}
 		md.Magnet = gl
 	case MagnetTable:

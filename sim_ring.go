@@ -69,9 +69,10 @@ var ringCheckMargin = 0.01
 
 // ringModel reports whether the run's drive can ring and have the ring
 // retired: a node capacitance, no snubber and no eddy-current turn (whose
-// quasi-static flux decay is not a ring).
+// quasi-static flux decay is not a ring) and no permanent magnet (the
+// retired ring's small-signal pull assumes none: its ring is integrated).
 func (s *system) ringModel() bool {
-	return s.drive.HasSwitchCap() && s.drive.Suppressor.Kind != circuit.Snubber && s.eddy == 0
+	return s.drive.HasSwitchCap() && s.drive.Suppressor.Kind != circuit.Snubber && s.eddy == 0 && !s.pm
 }
 
 // smallSignal returns the coil's incremental inductance at zero current
@@ -201,7 +202,7 @@ func (r *run) tryRetireRing(t float64, y []float64) {
 	r.drive.Switch.OutputCapacitance = 0
 	r.drive.CoilCapacitance = 0
 	r.ringRetired = true
-	y[sFlux] = 0 // no coil current (no permanent magnet: zero flux)
+	y[sFlux] = 0 // no coil current (ringModel: no permanent magnet, zero flux)
 	y[sSwitchC] = rail
 	y[qSupply] += rail * coss * vcoil
 	y[qSupplyQ] += coss * vcoil

@@ -540,9 +540,9 @@ func (r *run) circuitChange(t float64, y []float64, to circuit.Mode) {
 		if r.drive.Suppressor.Kind != circuit.Snubber && r.eddy == 0 && r.rp == 0 {
 			// The coil current itself reached zero (located to within
 			// ~1e-13 s): make it exactly zero, so that the pinned voltage
-			// the capacitor keeps is consistent. No permanent magnet:
-			// zero current is zero flux linkage.
-			y[sFlux] = 0
+			// the capacitor keeps is consistent. Zero current is the flux
+			// linkage λ(0, x): 0 without a permanent magnet.
+			y[sFlux] = zeroCurrentFlux(r.mag, y[sGap])
 			r.solve(y)
 			y[sSwitchC] = r.pt.SwitchVoltage
 		}
@@ -685,6 +685,12 @@ func (r *run) leaveRest(t float64, y []float64) {
 	y[sVel] = 0
 	if r.energized && !m.MotionDelay.Happened {
 		m.MotionDelay = Interval{true, t - r.tOn}
+	}
+	if r.pm && !r.energized && r.current(y) == 0 {
+		p := &r.plunger
+		r.note(t, "leaves the rest stop with no current: the permanent magnet's pull %.4g N beats the spring and load %.4g N",
+			r.mag.Force(0, p.GapMax), p.PassiveForce(p.GapMax, 0))
+		return
 	}
 	r.note(t, "leaves the rest stop")
 }
@@ -839,7 +845,7 @@ func runConditions(md *Model, opt *Options) (drive circuit.Drive, timing TimingS
 func newRun(md *Model, opt *Options, tol float64) (*run, []float64) {
 	drive, timing, tWinding := runConditions(md, opt)
 	sys := &system{mag: md.Magnet, plunger: md.Plunger, drive: drive, r: md.Coil.ResistanceAt(tWinding), eddy: md.EddyResistance,
-		rp: md.CoreLossResistance,
+		rp: md.CoreLossResistance, pm: zeroCurrentFlux(md.Magnet, md.Plunger.GapMax) != 0,
 		v0: drive.Supply.Voltage, rs: drive.Supply.SourceResistance, bulkC: md.BulkCapacitance,
 		coil: md.Coil, ambient: md.Ambient, blocked: opt.BlockPlunger, imposed: opt.ImposedVelocity}
 	if md.Thermal != nil && opt.FixedTemperature == 0 {
@@ -862,6 +868,8 @@ func newRun(md *Model, opt *Options, tol float64) (*run, []float64) {
 
 	y := make([]float64, nState)
 	y[sGap] = md.Plunger.GapMax
+	// No current: a permanent magnet's flux linkage only.
+	y[sFlux] = zeroCurrentFlux(md.Magnet, md.Plunger.GapMax)
 	y[sSwitchC] = drive.Supply.Voltage // at rest the switch node sits at the rail
 	y[sBus] = drive.Supply.Voltage
 	if sys.storage != nil {

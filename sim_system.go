@@ -66,6 +66,9 @@ type system struct {
 	// rp (ohm) is the coil's core-loss resistance, across its terminals; 0
 	// for none.
 	rp float64
+	// pm: the magnet has a permanent magnet, λ(0, x) ≠ 0 (zeroCurrentFlux);
+	// an open coil's flux linkage then follows the gap.
+	pm bool
 
 	// thermal, when not nil, makes the winding temperature a state: the
 	// coil resistance follows it and the coil's losses heat it.
@@ -241,6 +244,11 @@ func (s *system) deriv(_ float64, y, dy []float64) {
 		dy[sFlux] = pt.CoilVoltage - s.resistance(y)*i
 	case s.eddy > 0:
 		dy[sFlux] = -s.eddy * im // open coil: the flux decays through the eddy path
+	case s.pm:
+		// Open coil, no current: λ = λ(0, x) follows the gap,
+		// dλ/dt = ∂λ/∂x|_i·v = −(∂i/∂x)/(∂i/∂λ)·v.
+		dl, dx := s.mag.Partials(y[sFlux], x)
+		dy[sFlux] = -dx / dl * v
 	default:
 		dy[sFlux] = 0
 	}

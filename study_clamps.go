@@ -151,7 +151,7 @@ func CompareClamps(md *Model) (*ClampComparison, error) {
 		cmp.DropOut = dropOutText(&base.Metrics)
 	}
 	i0 := math.Abs(base.Metrics.CurrentAtTurnOff)
-	lSeat := md.Magnet.FluxLinkage(math.Max(i0, 1e-3), md.Plunger.GapMin) / math.Max(i0, 1e-3)
+	lSeat := chordInductance(md.Magnet, math.Max(i0, 1e-3), md.Plunger.GapMin)
 
 	opts := clampOptions(md, allow, i0, lSeat)
 	for k := range opts {

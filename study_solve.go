@@ -162,6 +162,9 @@ func seatHoldingCurrent(md *Model, margin float64) (float64, bool) {
 	// turn it over), so the top of the range is not a safe bracket.
 	rated := md.Drive.Supply.Voltage / md.CoilResistance()
 	holds := func(i float64) (bool, error) { return md.Magnet.Force(i, p.GapMin) >= need, nil }
+	if ok, _ := holds(0); ok {
+		return 0, true // a permanent magnet holds it with no current
+	}
 	lo := 0.0
 	for i := rated / 64; i <= 10*rated*(1+1e-12); i *= math.Pow(2, 0.25) {
 		if ok, _ := holds(i); ok {

@@ -178,6 +178,11 @@ func printMagnet(w io.Writer, path string, md *coilkick.Model, figs *magnetFigs)
 	row("time constant L/R, seated / rest", si(s.TimeConstantClosed, "s")+" / "+si(s.TimeConstantOpen, "s"))
 	row("pull at rest gap, rated current", fmt.Sprintf("%s against %s spring + load", si(s.ForceAtRest, "N"), si(s.SpringAtRest, "N")))
 	row("pull at seated gap, rated current", fmt.Sprintf("%s against %s spring + load", si(s.ForceSeated, "N"), si(s.SpringSeated, "N")))
+	if s.PermanentMagnetMMF != 0 {
+		row("permanent magnet MMF", si(s.PermanentMagnetMMF, "A"))
+		row("pull at seated gap, no current", fmt.Sprintf("%s against %s spring + load", si(s.HoldingSeated, "N"), si(s.SpringSeated, "N")))
+		row("pull at rest gap, no current", fmt.Sprintf("%s against %s spring + load", si(s.HoldingAtRest, "N"), si(s.SpringAtRest, "N")))
+	}
 	sat := func(v float64) string {
 		if v == 0 {
 			return fmt.Sprintf("none below %g × rated", coilkick.SaturationSearch)
@@ -201,6 +206,22 @@ func printMagnet(w io.Writer, path string, md *coilkick.Model, figs *magnetFigs)
 	printCoilField(b, figs.field)
 	if s.ForceAtRest <= s.SpringAtRest {
 		fmt.Fprintln(b, "\n  WARNING: at rated current the pull at the rest gap does not exceed the spring and load: it will not pull in")
+	}
+	printMagnetHolding(b, s)
+}
+
+// printMagnetHolding warns when a permanent magnet does not hold the
+// plunger seated without current, or pulls it in by itself; nothing
+// without a permanent magnet.
+func printMagnetHolding(b io.Writer, s *coilkick.MagnetSummary) {
+	if s.PermanentMagnetMMF == 0 {
+		return
+	}
+	if s.HoldingSeated <= s.SpringSeated {
+		fmt.Fprintln(b, "\n  WARNING: with no current the magnet's pull at the seated gap does not exceed the spring and load: it will not latch")
+	}
+	if s.HoldingAtRest > s.SpringAtRest {
+		fmt.Fprintln(b, "\n  WARNING: with no current the magnet's pull at the rest gap exceeds the spring and load: it pulls in by itself")
 	}
 }
 
@@ -402,6 +423,11 @@ type magnetFigures struct {
 	PullSeated            float64  `json:"pull_at_seated_gap_N"`
 	PassiveSeated         float64  `json:"spring_and_load_at_seated_gap_N"`
 	PullsIn               bool     `json:"pulls_in_at_rated_current"`
+	MagnetMMF             *float64 `json:"permanent_magnet_mmf_A"` // a permanent magnet's figures: null without one
+	HoldingSeated         *float64 `json:"holding_force_seated_gap_N"`
+	HoldingRest           *float64 `json:"holding_force_rest_gap_N"`
+	Latches               *bool    `json:"holds_seated_without_current"`
+	PullsInAlone          *bool    `json:"pulls_in_without_current"`
 	SaturationSeated      *float64 `json:"saturation_onset_seated_A"`
 	SaturationRest        *float64 `json:"saturation_onset_rest_A"`
 	SaturationFraction    float64  `json:"saturation_fraction"`
@@ -445,6 +471,11 @@ func newMagnetDoc(path string, md *coilkick.Model, s *coilkick.MagnetSummary, cu
 		SaturationSeated:   optional(s.SaturationSeated, s.SaturationSeated > 0),
 		SaturationRest:     optional(s.SaturationRest, s.SaturationRest > 0),
 		SaturationFraction: coilkick.SaturationFraction, SaturationSearch: coilkick.SaturationSearch}
+	if s.PermanentMagnetMMF != 0 {
+		latches, alone := s.HoldingSeated > s.SpringSeated, s.HoldingAtRest > s.SpringAtRest
+		d.Magnet.MagnetMMF, d.Magnet.HoldingSeated, d.Magnet.HoldingRest = &s.PermanentMagnetMMF, &s.HoldingSeated, &s.HoldingAtRest
+		d.Magnet.Latches, d.Magnet.PullsInAlone = &latches, &alone
+	}
 	if g := md.Geometry; g != nil {
 		if b, part, err := g.SteelFluxDensity(s.RatedCurrent, p.GapMin); err == nil {
 			d.Magnet.SteelFluxSeated, d.Magnet.SteelFluxSeatedPart = &b, &part
@@ -472,6 +503,12 @@ func newMagnetDoc(path string, md *coilkick.Model, s *coilkick.MagnetSummary, cu
 // saturation definition.
 func writeMagnetCSV(w io.Writer, d *magnetDoc) error {
 	c, m, f := &d.Coil, &d.Magnet, &d.Field
+	boolPtr := func(v *bool) string {
+		if v == nil {
+			return ""
+		}
+		return strconv.FormatBool(*v)
+	}
 	intPtr := func(v *int) string {
 		if v == nil {
 			return ""
@@ -491,6 +528,9 @@ func writeMagnetCSV(w io.Writer, d *magnetDoc) error {
 		{"pull_at_rest_gap_N", num(m.PullRest)}, {"spring_and_load_at_rest_gap_N", num(m.PassiveRest)},
 		{"pull_at_seated_gap_N", num(m.PullSeated)}, {"spring_and_load_at_seated_gap_N", num(m.PassiveSeated)},
 		{"pulls_in_at_rated_current", strconv.FormatBool(m.PullsIn)},
+		{"permanent_magnet_mmf_A", numPtr(m.MagnetMMF)}, {"holding_force_seated_gap_N", numPtr(m.HoldingSeated)},
+		{"holding_force_rest_gap_N", numPtr(m.HoldingRest)}, {"holds_seated_without_current", boolPtr(m.Latches)},
+		{"pulls_in_without_current", boolPtr(m.PullsInAlone)},
 		{"saturation_onset_seated_A", numPtr(m.SaturationSeated)}, {"saturation_onset_rest_A", numPtr(m.SaturationRest)},
 		{"steel_flux_density_seated_T", numPtr(m.SteelFluxSeated)}, {"steel_flux_density_rest_T", numPtr(m.SteelFluxRest)},
 		{"air_core_centre_flux_density_T", numPtr(f.CentreField)}, {"air_core_centre_flux_density_thin_T", numPtr(f.CentreFieldThin)},
