@@ -120,6 +120,7 @@ func (md *Model) Assess(res *Result) Assessment {
 		a.Notes = append(a.Notes, Note{Figure: fig, Level: level, Text: fmt.Sprintf(format, args...)})
 	}
 	md.driveNotes(m, note)
+	storageNotes(m.Storage, note)
 	if c := md.Curves; c != nil {
 		c.runNotes(m, note)
 	}

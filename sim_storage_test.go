@@ -12,12 +12,13 @@ import (
 // storageModel returns the fixed RL load of fixedModel (inductance l, H;
 // total loop resistance rt, ohm, split between the coil, the switch's on
 // resistance and the ESR) fed from a storage capacitor of capacitance c
-// (F) charged to v0 (V) with no charging path, switched on at 0 for the
-// pulse tOff and run to tEnd (s). Reference data, not a product.
+// (F) charged to v0 (V) with no charging path (the supply, at 4/3·v0,
+// feeds nothing), switched on at 0 for the pulse tOff and run to tEnd (s).
+// Reference data, not a product.
 func storageModel(t *testing.T, v0, rt, l, c, tOff, tEnd float64) *Model {
 	t.Helper()
 	const ron, esr = 0.05, 0.15
-	md := fixedModel(t, v0, rt-ron-esr, l, circuit.Suppressor{Kind: circuit.Freewheel, Voltage: 0.7})
+	md := fixedModel(t, 4*v0/3, rt-ron-esr, l, circuit.Suppressor{Kind: circuit.Freewheel, Voltage: 0.7})
 	md.Drive.Switch.OnResistance = ron
 	md.Storage = &StorageCapacitor{Capacitance: c, ESR: esr, ChargeVoltage: v0, RechargeFraction: 0.01}
 	md.Timing = TimingSpec{EnergizeAt: 0, DeenergizeAt: tOff, End: tEnd}
@@ -69,6 +70,16 @@ func TestStorageSeriesRLC(t *testing.T) {
 				t.Fatal(err)
 			}
 			checkSeriesRLC(t, res, v0, tc.r, l, c, tOff)
+			// Only the under-damped discharge swings below zero, and
+			// only it carries the caution.
+			as := md.Assess(res)
+			caution := false
+			for _, n := range as.Notes {
+				caution = caution || (n.Figure == "lowest capacitor voltage" && n.Level == "caution")
+			}
+			if below := res.Metrics.Storage.MinVoltage < 0; caution != below || below != (tc.r < 10) {
+				t.Errorf("lowest voltage %.4g V, caution %v", res.Metrics.Storage.MinVoltage, caution)
+			}
 		})
 	}
 }
@@ -133,7 +144,7 @@ func TestStorageRecharge(t *testing.T) {
 	// Over-damped discharge (ζ = 4) through a 100 ohm charging resistor; the
 	// coil current has decayed through the freewheel diode well before the
 	// run's end, so the capacitor then charges from the supply alone.
-	const v0, l, c, tOff, tEnd, rch = 9.0, 0.05, 2e-3, 0.1, 0.3, 100.0
+	const v0, l, c, tOff, tEnd, rch = 9.0, 0.05, 2e-3, 0.1, 0.2, 100.0
 	md := storageModel(t, v0, 40, l, c, tOff, tEnd)
 	md.Storage.ChargingResistance = rch
 	res, err := Simulate(md, &Options{BlockPlunger: true})
@@ -144,7 +155,9 @@ func TestStorageRecharge(t *testing.T) {
 	target := 0.99 * v0
 	// source: first-order RC charging, v(t) = Vs − (Vs − V0)·e^(−t/RC),
 	// Hayt & Kemmerly, Engineering Circuit Analysis, ch. 8.
-	want := rch * c * math.Log((v0-st.FinalVoltage)/(v0-target))
+	// The supply (12 V) is above the charge voltage (9 V).
+	vs := md.Drive.Supply.Voltage
+	want := rch * c * math.Log((vs-st.FinalVoltage)/(vs-target))
 	if !st.Recharge.Happened || math.Abs(st.Recharge.Seconds-want) > 1e-12*want || st.RechargeTarget != target {
 		t.Fatalf("recharge %+v to %g V, want %.9g s to %g V", st.Recharge, st.RechargeTarget, want, target)
 	}
@@ -154,6 +167,8 @@ func TestStorageRecharge(t *testing.T) {
 		t.Fatal(err)
 	}
 	lst := long.Metrics.Storage
+	t.Logf("recharge from %.6g V: %.9g s (closed form %.9g s); carried on: %.9g V", st.FinalVoltage, st.Recharge.Seconds, want,
+		lst.FinalVoltage)
 	if math.Abs(lst.FinalVoltage-target) > 1e-6*v0 || lst.Recharge.Seconds > 1e-6*want {
 		t.Errorf("after the recharge time: %.9g V (want %.9g V), recharge left %.3g s", lst.FinalVoltage, target,
 			lst.Recharge.Seconds)
@@ -165,8 +180,10 @@ func TestStorageRecharge(t *testing.T) {
 	}
 	// The closed form's edges: at the target already, no charging path,
 	// a supply below the target.
-	if d, ok := RechargeTime(rch, c, v0, target, target); d != 0 || !ok {
-		t.Errorf("RechargeTime at the target: %g, %v", d, ok)
+	for _, at := range []float64{target, 0.5 * (target + v0)} {
+		if d, ok := RechargeTime(rch, c, v0, at, target); d != 0 || !ok {
+			t.Errorf("RechargeTime from %g V, at or above the target: %g, %v", at, d, ok)
+		}
 	}
 	if _, ok := RechargeTime(0, c, v0, 1, target); ok {
 		t.Error("RechargeTime with no charging path: recharged")
