@@ -120,7 +120,7 @@ func (md *Model) Assess(res *Result) Assessment {
 		a.Notes = append(a.Notes, Note{Figure: fig, Level: level, Text: fmt.Sprintf(format, args...)})
 	}
 	md.driveNotes(m, note)
-	storageNotes(m.Storage, note)
+	storageNotes(m, note)
 	if c := md.Curves; c != nil {
 		c.runNotes(m, note)
 	}
@@ -193,7 +193,7 @@ func (md *Model) driveNotes(m *Metrics, note func(fig, level, format string, arg
 	if m.AvalancheEnergy > 0 {
 		note("avalanche energy", "caution", "the switch reached its breakdown voltage (%.0f V) and absorbed %s in avalanche: check its single-pulse and repetitive avalanche ratings at the operating rate and temperature", sw.BreakdownVoltage, formatEnergy(m.AvalancheEnergy))
 	}
-	if m.EnergyReturned > 0 {
+	if m.EnergyReturned > 0 && !m.Storage.Fitted {
 		note("energy returned to supply", "caution", "the reverse drive returns %s to the supply at each turn-off (rail peak %.1f V): a supply that cannot sink current, or a small bulk capacitor, will rise; check what else hangs on that rail", formatEnergy(m.EnergyReturned), m.MaxRailVoltage)
 	}
 	if md.Drive.HasSwitchCap() && md.CoreLossResistance == 0 && md.EddyResistance == 0 && md.Drive.Suppressor.Kind != circuit.Snubber {

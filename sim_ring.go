@@ -204,10 +204,17 @@ func (r *run) tryRetireRing(t float64, y []float64) {
 	r.ringRetired = true
 	y[sFlux] = 0 // no coil current (ringModel: no permanent magnet, zero flux)
 	y[sSwitchC] = rail
-	y[qSupply] += rail * coss * vcoil
-	y[qSupplyQ] += coss * vcoil
+	source := rail * coss * vcoil
+	if r.storage != nil {
+		// A storage capacitor gives that charge: no ideal source behind it
+		// (its stored energy falls instead).
+		source = r.fromRail(y, coss*vcoil)
+	} else {
+		y[qSupply] += source
+		y[qSupplyQ] += coss * vcoil
+	}
 	after := r.fieldEnergy(y) + r.storedCapEnergy(y)
-	y[sRing] = before + rail*coss*vcoil - after
+	y[sRing] = before + source - after
 	r.tRing = math.Inf(1)
 	r.ringBandAt = band
 	m.RingRetired = Interval{true, t - r.tOff}

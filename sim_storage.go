@@ -124,10 +124,14 @@ func (s *system) steadyResistance() float64 {
 	return s.rs + s.storage.ChargingResistance + s.storage.ESR
 }
 
-// storageNotes writes the storage capacitor's cautions: a capacitor that
-// swung below zero (an under-damped discharge ringing on while the switch
-// is on).
-func storageNotes(st StorageMetrics, note func(fig, level, format string, args ...any)) {
+// storageNotes writes the storage capacitor's notes: the energy a bridge
+// returned into it, and a capacitor that swung below zero (an under-damped
+// discharge ringing on while the switch is on).
+func storageNotes(m *Metrics, note func(fig, level, format string, args ...any)) {
+	st := m.Storage
+	if st.Fitted && m.EnergyReturned > 0 {
+		note("energy returned to supply", "info", "the bridge returns %s into the storage capacitor at turn-off (recovered for the next pulse)", formatEnergy(m.EnergyReturned))
+	}
 	if st.Fitted && st.MinVoltage < 0 {
 		note("lowest capacitor voltage", "caution", "the storage capacitor swings to %.3g V: the discharge is under-damped and rings on while the switch is on; a polarised (electrolytic) capacitor is then reverse-biased, and a freewheel diode across the coil would conduct, which the model does not follow while the switch is on: end the pulse before the capacitor reaches zero, or damp the discharge", st.MinVoltage)
 	}
