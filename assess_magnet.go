@@ -33,6 +33,10 @@ type MagnetSummary struct {
 	// SpringSeated and SpringAtRest; 0 without a permanent magnet.
 	PermanentMagnetMMF           float64
 	HoldingSeated, HoldingAtRest float64
+	// PermanentMagnet: the model has a permanent magnet (a gap law's, or
+	// a flux-linkage table's offset, whose MMF is not known: 0 above);
+	// the holding forces are then set.
+	PermanentMagnet bool
 }
 
 // Saturation-onset definition.
@@ -69,9 +73,12 @@ func (md *Model) MagnetSummary() MagnetSummary {
 	s.TimeConstantOpen = s.OpenInductance / r
 	s.SaturationSeated = saturationOnset(md, p.GapMin, s.RatedCurrent)
 	s.SaturationRest = saturationOnset(md, p.GapMax, s.RatedCurrent)
-	if gl, ok := mg.(*magnet.GapLaw); ok && gl.MagnetMMF() != 0 {
-		s.PermanentMagnetMMF = gl.MagnetMMF()
-		s.HoldingSeated, s.HoldingAtRest = gl.Force(0, p.GapMin), gl.Force(0, p.GapMax)
+	if pm, ok := mg.(magnet.Magnetized); ok && pm.HasPermanentMagnet() {
+		s.PermanentMagnet = true
+		s.HoldingSeated, s.HoldingAtRest = mg.Force(0, p.GapMin), mg.Force(0, p.GapMax)
+		if gl, ok := mg.(*magnet.GapLaw); ok {
+			s.PermanentMagnetMMF = gl.MagnetMMF()
+		}
 	}
 	return s
 }

@@ -204,11 +204,11 @@ func withPermanentMagnet(s *Scenario, gl *magnet.GapLaw) (*magnet.GapLaw, error)
 }
 
 // zeroCurrentFlux returns the flux linkage λ(0, x) (Wb) of magnetic model
-// m at gap x (m): a permanent magnet's (GapLaw.WithMagnet), exactly 0 for
+// m at gap x (m): a permanent magnet's (magnet.Magnetized), exactly 0 for
 // every other model (a table's rounding at zero current is not taken).
 func zeroCurrentFlux(m magnet.Model, x float64) float64 {
-	if gl, ok := m.(*magnet.GapLaw); ok && gl.MagnetMMF() != 0 {
-		return gl.FluxLinkage(0, x)
+	if pm, ok := m.(magnet.Magnetized); ok && pm.HasPermanentMagnet() {
+		return m.FluxLinkage(0, x)
 	}
 	return 0
 }

@@ -22,10 +22,10 @@
 //
 // It is not for: circuits, switches, suppression parts, mechanics, stops or
 // integration (other packages do those); eddy currents, hysteresis, iron
-// losses, or permanent magnets beyond the gap law's linear one (every
-// model here is lossless; all but the gap law with a magnet,
-// GapLaw.WithMagnet, are odd in i and have λ(0, x) = 0; a flux-linkage
-// table must still start at zero flux); or numerical field solution (finite elements): the
+// losses, or permanent magnets beyond the gap law's linear one and a
+// flux-linkage table's offset (every model here is lossless; all but
+// those two, Magnetized, are odd in i and have λ(0, x) = 0); or numerical
+// field solution (finite elements): the
 // fields it computes are closed forms (an air-core coil) and a lumped
 // reluctance network, and a Table takes a field solver's output.
 //

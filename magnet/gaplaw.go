@@ -240,6 +240,10 @@ func (g *GapLaw) WithMagnet(mmf float64) (*GapLaw, error) {
 	return &c, nil
 }
 
+// HasPermanentMagnet reports whether the gap law has a permanent magnet
+// (Magnetized).
+func (g *GapLaw) HasPermanentMagnet() bool { return g.iMag != 0 }
+
 // MagnetMMF returns the permanent magnet's MMF F_m (A, ampere-turns); 0
 // without a magnet.
 func (g *GapLaw) MagnetMMF() float64 { return g.iMag * g.turns }

@@ -125,7 +125,16 @@ func testModels(t testing.TB) []namedModel {
 		{"curves of saturating table", saturatingCurves(t), false},
 		{"piecewise-linear curves of saturating table", saturatingCurvesLinear(t), false},
 		{"gap law with magnet", refLatchLaw(t), true},
+		{"table of gap law with magnet", latchTable(t, refLatchLaw(t), 41, 25), true},
 	}
+}
+
+// latchTable samples gap law g (with a magnet) on nI currents from
+// −refMaxAmps to refMaxAmps × nX geometrically spaced gaps: a signed table
+// with the magnet's offset.
+func latchTable(t testing.TB, g *GapLaw, nI, nX int) *Table {
+	t.Helper()
+	return sampleTable(t, linspace(-refMaxAmps, refMaxAmps, nI), geomspace(refXMin, refXMax, nX), g.FluxLinkage)
 }
 
 // refMagnetMMF is the reference magnet's MMF (A, ampere-turns; chosen):

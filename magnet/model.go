@@ -5,8 +5,9 @@ package magnet
 // Pulling in reduces x.
 //
 // Every model here is odd in i (λ(−i, x) = −λ(i, x)), so the co-energy and
-// the force are even in i, except a gap law with a permanent magnet
-// (GapLaw.WithMagnet), whose λ(0, x) is the magnet's flux linkage. Each
+// the force are even in i, except a model with a permanent magnet
+// (Magnetized: GapLaw.WithMagnet, a Table with a magnet offset), whose
+// λ(0, x) is the magnet's flux linkage. Each
 // model derives FluxLinkage, CoEnergy and
 // Force from one co-energy function W'(i, x), so that Force is exactly
 // −∂W'/∂x inside GapRange. Gaps outside GapRange (an integrator overshooting
@@ -24,7 +25,8 @@ type Model interface {
 	// CoEnergy returns the co-energy W'(i, x) (J), with λ = ∂W'/∂i: for a
 	// model without a permanent magnet W' = ∫0^i λ(i', x) di'; with one,
 	// the co-energy of the coil and the magnet's equivalent winding at its
-	// constant current (GapLaw.WithMagnet), so W'(0, x) ≠ 0 and its gap
+	// constant current (GapLaw.WithMagnet; a Table counts it from the
+	// zero-flux current, NewTable), so W'(0, x) ≠ 0 and its gap
 	// derivative is the magnet's own pull.
 	CoEnergy(i, x float64) float64
 	// Force returns the pull toward smaller gap (N): F = −∂W'/∂x at
@@ -32,6 +34,14 @@ type Model interface {
 	Force(i, x float64) float64
 	// GapRange returns the gaps (m) where the model is valid.
 	GapRange() (min, max float64)
+}
+
+// Magnetized is implemented by the models that can hold a permanent magnet
+// (GapLaw.WithMagnet, a Table with a magnet offset): HasPermanentMagnet
+// reports whether this one does, that is whether λ(0, x) may differ from
+// 0 and the model is not odd in i.
+type Magnetized interface {
+	HasPermanentMagnet() bool
 }
 
 // FieldEnergy returns the stored magnetic energy W = λ·i − W' (J) of model m

@@ -47,10 +47,13 @@ func TestModelSymmetry(t *testing.T) {
 
 // checkMagnetNotOdd is TestModelSymmetry's check of a model with a
 // permanent magnet, which is not odd in i: λ(0, x) is not zero at any gap
-// (the flag is true), and Current inverts FluxLinkage at currents of both
-// signs, including the release direction.
+// (the flag is true), Current inverts FluxLinkage at currents of both
+// signs, including the release direction, and Partials are the central
+// differences of Current (the odd models' Partials symmetry has no
+// counterpart here).
 func checkMagnetNotOdd(t *testing.T, m Model) {
 	t.Helper()
+	const partialsTol = 1e-5 // relative; difference step 1e-7, kinks of a table aside
 	lo, hi := m.GapRange()
 	for _, x := range linspace(lo, hi, 7) {
 		if lam0 := m.FluxLinkage(0, x); lam0 == 0 {
@@ -60,6 +63,16 @@ func checkMagnetNotOdd(t *testing.T, m Model) {
 			lam := m.FluxLinkage(i, x)
 			if a := m.Current(lam, x); math.Abs(a-i) > 1e-13*math.Max(1, math.Abs(i)) {
 				t.Errorf("%v.Current(%g, %g) = %g, want %g", m, lam, x, a, i)
+			}
+			if x == lo || x == hi {
+				continue
+			}
+			dl, dx := m.Partials(lam, x)
+			hl, hx := 1e-7*math.Max(math.Abs(lam), 1e-3), 1e-7*x
+			wl := (m.Current(lam+hl, x) - m.Current(lam-hl, x)) / (2 * hl)
+			wx := (m.Current(lam, x+hx) - m.Current(lam, x-hx)) / (2 * hx)
+			if relErr(dl, wl) > partialsTol || math.Abs(dx-wx) > partialsTol*math.Max(math.Abs(wx), 1) {
+				t.Errorf("%v.Partials(%g, %g) = %g, %g; central differences %g, %g", m, lam, x, dl, dx, wl, wx)
 			}
 		}
 	}

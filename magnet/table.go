@@ -10,7 +10,8 @@ import (
 )
 
 // zeroFluxTol is how close λ(0, x) must be to 0, relative to the largest
-// |λ| of its gap column: the models have no permanent magnet.
+// |λ| of its gap column, for a table without a permanent magnet (beyond
+// it the table is a magnet's: signed, see NewTable).
 const zeroFluxTol = 1e-6
 
 // checkSub is the number of check points per grid cell, in each direction,
@@ -33,7 +34,8 @@ const tailStride = 3
 // continued above the last tabulated current by a straight line with the
 // last slope (the last differential inductance), and odd in i. Its
 // co-energy W'_j(i) = ∫0^i λ_j di is the exact integral of those
-// polynomials.
+// polynomials. A table with a permanent magnet's offset is not odd and
+// counts its co-energy from the zero-flux current (see NewTable).
 //
 // In gap, the columns are blended by cubic Hermite interpolation whose node
 // slopes are the three-point (parabola) derivatives of the column data —
@@ -53,6 +55,11 @@ type Table struct {
 	ws   []int     // per gap cell: first column of the blend window
 	wp   []float64 // per gap cell: 4 window columns × 4 cubic coefficients in t
 	nw   int       // blend window width, min(4, len(gap))
+	// signed: a table with a permanent magnet's offset (λ(0, x) ≠ 0) or
+	// negative currents; not odd in i (see NewTable). head holds per column
+	// λ, dλ/di and W' at the first current, continued linearly below it.
+	signed bool
+	head   []float64
 }
 
 // gapPoint holds the blend weights at one gap.
@@ -88,7 +95,22 @@ func (g *gridErr) at(cell int) *gridErr {
 // gaps (m) ascend from a non-negative first gap, and flux[k][j] =
 // λ(currents[k], gaps[j]) (Wb) is strictly increasing in current at each
 // gap, with λ(0, x) = 0 within 1e-6 of the column's largest value (no
-// permanent magnet; it is then taken as exactly 0). At least two currents
+// permanent magnet; it is then taken as exactly 0).
+//
+// A permanent magnet's table (signed) has a flux linkage at 0 A beyond
+// that (the magnet's, of either sign) or currents from a negative first
+// one (a release current); it is not odd in i: each column is
+// interpolated over its own currents and continued linearly below the
+// first with its first slope. Its co-energy counts from the current
+// i0_j at which the column's flux linkage vanishes,
+// W'_j(i) = ∫ from i0_j to i of λ_j di': the magnet as an equivalent
+// winding of constant current (Fitzgerald & Kingsley, Electric
+// Machinery, ch. 3, systems with permanent magnets; from memory), where
+// with no flux linked there is no flux in the gap, no stored energy and
+// no pull. That is exact when all the coil's flux crosses the gap; with
+// leakage the table cannot tell its share and the magnet's pull differs
+// by about L_leak/L (1 % at the seat of the latching test valve). The
+// force stays the exact −∂W'/∂x of that co-energy. At least two currents
 // and two gaps are needed. NewTable also returns an error when the gap
 // blend would make λ non-increasing in current somewhere (checked at 8
 // points per cell in each direction): the gap grid must then be refined.
@@ -105,6 +127,7 @@ func newTable(currents, gaps []float64, flux [][]float64) (*Table, *gridErr) {
 		return nil, ge
 	}
 	nI, nX := len(currents), len(gaps)
+	signed := tableSigned(currents, flux)
 	t := &Table{
 		cur:  append([]float64(nil), currents...),
 		gap:  append([]float64(nil), gaps...),
@@ -114,13 +137,18 @@ func newTable(currents, gaps []float64, flux [][]float64) (*Table, *gridErr) {
 		wp:   make([]float64, (nX-1)*16),
 		nw:   min(4, nX),
 	}
+	if signed {
+		t.signed, t.head = true, make([]float64, nX*tailStride)
+	}
 	col := make([]float64, nI)
 	d := make([]float64, nI)
 	for j := range nX {
 		for k := range nI {
 			col[k] = flux[k][j]
 		}
-		col[0] = 0
+		if !signed {
+			col[0] = 0
+		}
 		pchipSlopes(t.cur, col, d)
 		w := 0.0
 		for k := 0; k < nI-1; k++ {
@@ -133,6 +161,13 @@ func newTable(currents, gaps []float64, flux [][]float64) (*Table, *gridErr) {
 		}
 		q := t.tail[j*tailStride:][:tailStride]
 		q[0], q[1], q[2] = col[nI-1], d[nI-1], w
+		if signed {
+			q = t.head[j*tailStride:][:tailStride]
+			q[0], q[1], q[2] = col[0], d[0], 0
+			if ge := t.zeroFluxDatum(j, gaps[j]); ge != nil {
+				return nil, ge
+			}
+		}
 	}
 	t.buildGapWeights()
 	if ge := t.checkMonotone(); ge != nil {
@@ -176,8 +211,9 @@ func checkGrid(currents, gaps []float64, flux [][]float64) *gridErr {
 	if ge := checkCurrents(currents, gaps, flux); ge != nil {
 		return ge
 	}
+	signed := tableSigned(currents, flux)
 	for j := range nX {
-		if ge := checkFluxColumn(currents, gaps, flux, j); ge != nil {
+		if ge := checkFluxColumn(currents, gaps, flux, j, signed); ge != nil {
 			return ge
 		}
 	}
@@ -219,8 +255,8 @@ func checkCurrents(currents, gaps []float64, flux [][]float64) *gridErr {
 		if !isFinite(c) {
 			return newGridErr(k, "current is not finite: %g A", c).at(0)
 		}
-		if k == 0 && c != 0 {
-			return newGridErr(k, "first current must be 0 A (no permanent magnet), got %g A", c).at(0)
+		if k == 0 && c > 0 {
+			return newGridErr(k, "first current must be 0 A or negative (a release current, with a permanent magnet), got %g A", c).at(0)
 		}
 		if k > 0 && !(c > currents[k-1]) {
 			return newGridErr(k, "currents must be strictly ascending: %g A after %g A", c, currents[k-1]).at(0)
@@ -245,10 +281,30 @@ func checkCurrents(currents, gaps []float64, flux [][]float64) *gridErr {
 	return nil
 }
 
+// tableSigned reports whether a valid grid is a permanent magnet's: its
+// currents start below 0, or a column's flux linkage at 0 A is not 0
+// (beyond zeroFluxTol of the column's largest).
+func tableSigned(currents []float64, flux [][]float64) bool {
+	if currents[0] < 0 {
+		return true
+	}
+	for j := range flux[0] {
+		big := 0.0
+		for k := range currents {
+			big = math.Max(big, math.Abs(flux[k][j]))
+		}
+		if math.Abs(flux[0][j]) > zeroFluxTol*big {
+			return true
+		}
+	}
+	return false
+}
+
 // checkFluxColumn validates the flux linkages (Wb) at gap j: the largest
-// within the table's bounds, zero at zero current, strictly increasing in
-// current by steps of at least minFluxStep of the largest.
-func checkFluxColumn(currents, gaps []float64, flux [][]float64, j int) *gridErr {
+// within the table's bounds, zero at zero current unless signed,
+// strictly increasing in current by steps of at least minFluxStep of the
+// largest.
+func checkFluxColumn(currents, gaps []float64, flux [][]float64, j int, signed bool) *gridErr {
 	big, kBig := 0.0, 0
 	for k := range currents {
 		if a := math.Abs(flux[k][j]); a > big {
@@ -258,12 +314,12 @@ func checkFluxColumn(currents, gaps []float64, flux [][]float64, j int) *gridErr
 	if big < minTableFlux || big > maxTableFlux {
 		return newGridErr(kBig, "the largest flux linkage at gap %g m, %g Wb, is outside %g Wb to %g Wb: check the flux linkage unit", gaps[j], big, minTableFlux, maxTableFlux).at(j + 1)
 	}
-	if math.Abs(flux[0][j]) > zeroFluxTol*big {
+	if !signed && math.Abs(flux[0][j]) > zeroFluxTol*big {
 		return newGridErr(0, "flux linkage at 0 A must be 0 (no permanent magnet), got %g Wb at gap %g m", flux[0][j], gaps[j]).at(j + 1)
 	}
 	for k := 1; k < len(currents); k++ {
 		prev := flux[k-1][j]
-		if k == 1 {
+		if k == 1 && !signed {
 			prev = 0
 		}
 		if !(flux[k][j] > prev) {
@@ -396,8 +452,58 @@ func (t *Table) curAt(ai float64) (k int, s float64) {
 	return lo, ai - t.cur[lo]
 }
 
+// curAtSigned is curAt for a signed table and a current i of either sign:
+// k = −1 below the first current (the head), s = i − cur[0] < 0 there.
+func (t *Table) curAtSigned(i float64) (k int, s float64) {
+	if i < t.cur[0] {
+		return -1, i - t.cur[0]
+	}
+	return t.curAt(i)
+}
+
+// zeroFluxDatum makes column j's co-energy W'_j(i) = ∫ from i0_j to i of
+// λ_j di', i0_j the current at which the column's flux linkage vanishes
+// (the magnet cancelled): it finds i0_j in the head, an interval or the
+// tail, and subtracts the co-energy accumulated from the first current up
+// to it from the column's stored co-energies. gap is for the message.
+func (t *Table) zeroFluxDatum(j int, gap float64) *gridErr {
+	nI, nX := len(t.cur), len(t.gap)
+	head, tail := t.head[j*tailStride:][:tailStride], t.tail[j*tailStride:][:tailStride]
+	k, s := -1, 0.0
+	switch {
+	case head[0] >= 0:
+		if !(head[1] > 0) && head[0] > 0 {
+			return newGridErr(0, "flux linkage at gap %g m does not vanish at any current: extend the table to the current that cancels the magnet", gap)
+		}
+		if head[0] > 0 {
+			s = -head[0] / head[1]
+		}
+	case tail[0] <= 0:
+		if !(tail[1] > 0) {
+			return newGridErr(nI-1, "flux linkage at gap %g m does not vanish at any current: extend the table to the current that cancels the magnet", gap)
+		}
+		k, s = nI-1, -tail[0]/tail[1]
+	default:
+		for k = 0; k < nI-2 && t.seg[((k+1)*nX+j)*segStride] <= 0; k++ {
+		}
+		p := t.seg[(k*nX+j)*segStride:][:4]
+		s = solveCubic(p[0], p[1], p[2], p[3], 0, t.cur[k+1]-t.cur[k], t.cur[k])
+	}
+	w0 := t.colCoEnergy(j, k, s)
+	head[2] -= w0
+	tail[2] -= w0
+	for k := 0; k < nI-1; k++ {
+		t.seg[(k*nX+j)*segStride+4] -= w0
+	}
+	return nil
+}
+
 // colFlux returns λ_j and dλ_j/di of column j at interval k, offset s.
 func (t *Table) colFlux(j, k int, s float64) (lam, dlam float64) {
+	if k < 0 {
+		q := t.head[j*tailStride:][:tailStride]
+		return q[0] + q[1]*s, q[1]
+	}
 	if k == len(t.cur)-1 {
 		q := t.tail[j*tailStride:][:tailStride]
 		return q[0] + q[1]*s, q[1]
@@ -408,6 +514,10 @@ func (t *Table) colFlux(j, k int, s float64) (lam, dlam float64) {
 
 // colCoEnergy returns W'_j of column j at interval k, offset s.
 func (t *Table) colCoEnergy(j, k int, s float64) float64 {
+	if k < 0 {
+		q := t.head[j*tailStride:][:tailStride]
+		return q[2] + s*(q[0]+0.5*s*q[1])
+	}
 	if k == len(t.cur)-1 {
 		q := t.tail[j*tailStride:][:tailStride]
 		return q[2] + s*(q[0]+0.5*s*q[1])
@@ -445,6 +555,10 @@ func (t *Table) checkMonotone() *gridErr {
 	return nil
 }
 
+// HasPermanentMagnet reports whether the table has a magnet offset or
+// negative currents (Magnetized; see NewTable).
+func (t *Table) HasPermanentMagnet() bool { return t.signed }
+
 // String describes the model for messages.
 func (t *Table) String() string {
 	return fmt.Sprintf("Table{%d currents 0..%g A × %d gaps %g..%g m}",
@@ -457,6 +571,15 @@ func (t *Table) GapRange() (min, max float64) { return t.gap[0], t.gap[len(t.gap
 // FluxLinkage returns λ(i, x) (Wb); odd in i.
 func (t *Table) FluxLinkage(i, x float64) float64 {
 	g := t.gapAt(x)
+	if t.signed {
+		k, s := t.curAtSigned(i)
+		lam := 0.0
+		for c := range t.nw {
+			l, _ := t.colFlux(g.ws+c, k, s)
+			lam += g.phi[c] * l
+		}
+		return lam
+	}
 	k, s := t.curAt(math.Abs(i))
 	lam := 0.0
 	for c := range t.nw {
@@ -470,6 +593,9 @@ func (t *Table) FluxLinkage(i, x float64) float64 {
 func (t *Table) CoEnergy(i, x float64) float64 {
 	g := t.gapAt(x)
 	k, s := t.curAt(math.Abs(i))
+	if t.signed {
+		k, s = t.curAtSigned(i)
+	}
 	w := 0.0
 	for c := range t.nw {
 		w += g.phi[c] * t.colCoEnergy(g.ws+c, k, s)
@@ -483,6 +609,9 @@ func (t *Table) CoEnergy(i, x float64) float64 {
 func (t *Table) Force(i, x float64) float64 {
 	g := t.gapAt(x)
 	k, s := t.curAt(math.Abs(i))
+	if t.signed {
+		k, s = t.curAtSigned(i)
+	}
 	f := 0.0
 	for c := range t.nw {
 		f -= g.dphi[c] * t.colCoEnergy(g.ws+c, k, s)
@@ -496,6 +625,9 @@ func (t *Table) Force(i, x float64) float64 {
 // it inverts the linear continuation; odd in lam.
 func (t *Table) Current(lam, x float64) float64 {
 	g := t.gapAt(x)
+	if t.signed {
+		return t.currentSigned(&g, lam)
+	}
 	return math.Copysign(t.current(&g, math.Abs(lam)), lam)
 }
 
@@ -503,6 +635,31 @@ func (t *Table) current(g *gapPoint, al float64) float64 {
 	if !(al > 0) {
 		return 0
 	}
+	return t.invert(g, al)
+}
+
+// currentSigned inverts a signed table's λ at any sign, below the first
+// current by the head's linear continuation.
+func (t *Table) currentSigned(g *gapPoint, lam float64) float64 {
+	lamStart, slopeStart := 0.0, 0.0
+	for c := range t.nw {
+		q := t.head[(g.ws+c)*tailStride:][:tailStride]
+		lamStart += g.phi[c] * q[0]
+		slopeStart += g.phi[c] * q[1]
+	}
+	if lam < lamStart {
+		if !(slopeStart > 0) {
+			return t.cur[0]
+		}
+		return t.cur[0] + (lam-lamStart)/slopeStart
+	}
+	return t.invert(g, lam)
+}
+
+// invert returns the current at flux linkage al (Wb) at or above the
+// first current's: in the tail, or by a search over the intervals and a
+// cubic solve.
+func (t *Table) invert(g *gapPoint, al float64) float64 {
 	nI := len(t.cur)
 	// Tail: λ above the last tabulated current.
 	lamEnd, slopeEnd := 0.0, 0.0
@@ -549,8 +706,13 @@ func (t *Table) current(g *gapPoint, al float64) float64 {
 // GapRange, where λ is held constant in x.
 func (t *Table) Partials(lam, x float64) (diDlam, diDx float64) {
 	g := t.gapAt(x)
-	ai := t.current(&g, math.Abs(lam))
-	k, s := t.curAt(ai)
+	var k int
+	var s float64
+	if t.signed {
+		k, s = t.curAtSigned(t.currentSigned(&g, lam))
+	} else {
+		k, s = t.curAt(t.current(&g, math.Abs(lam)))
+	}
 	dldi, dldx := 0.0, 0.0
 	for c := range t.nw {
 		l, d := t.colFlux(g.ws+c, k, s)
@@ -560,7 +722,7 @@ func (t *Table) Partials(lam, x float64) (diDlam, diDx float64) {
 	if !g.inside {
 		dldx = 0
 	}
-	if lam < 0 { // ∂λ/∂x is odd in i, ∂λ/∂i even
+	if lam < 0 && !t.signed { // ∂λ/∂x is odd in i, ∂λ/∂i even
 		dldx = -dldx
 	}
 	return 1 / dldi, -dldx / dldi

@@ -145,7 +145,7 @@ func TestNewTableErrors(t *testing.T) {
 		{"flux rows", cur, gaps, ok[:2], "flux has 2 rows"},
 		{"ragged flux", cur, gaps, [][]float64{{0, 0, 0}, {0.2, 0.1}, {0.3, 0.15, 0.08}}, "flux row has 2 values"},
 		{"NaN flux", cur, gaps, [][]float64{{0, 0, 0}, {0.2, math.NaN(), 0.05}, {0.3, 0.15, 0.08}}, "not finite"},
-		{"remanence", cur, gaps, [][]float64{{0.01, 0, 0}, {0.2, 0.1, 0.05}, {0.3, 0.15, 0.08}}, "flux linkage at 0 A must be 0"},
+		{"magnet offset not increasing", cur, gaps, [][]float64{{0.3, 0, 0}, {0.2, 0.1, 0.05}, {0.3, 0.15, 0.08}}, "strictly increasing in current"},
 		{"flux not increasing", cur, gaps, [][]float64{{0, 0, 0}, {0.2, 0.1, 0.05}, {0.3, 0.1, 0.08}}, "strictly increasing in current"},
 		{"blend overshoots", cur, []float64{1e-4, 2e-4, 3e-4, 4e-4}, spiky, "refine the gap grid"},
 	}
@@ -202,7 +202,7 @@ func TestReadTableCSVErrors(t *testing.T) {
 		{"gaps not ascending", "# units A, mm, Wb\ni,2,1\n0,0,0\n1,0.5,0.6\n", "mem.csv:2:5: gaps must be strictly ascending"},
 		{"current not from 0", "i,1,2\n0.5,0.1,0.1\n1,0.5,0.4\n", "mem.csv:2:1: first current must be 0"},
 		{"flux not increasing", "i,1,2\n0,0,0\n1,0.5,0.4\n2,0.7,0.3\n", "mem.csv:4:7: flux linkage must be strictly increasing"},
-		{"flux at 0 A", "i,1,2\n0,0,0.1\n1,0.5,0.4\n", "mem.csv:2:5: flux linkage at 0 A must be 0"},
+		{"flux at 0 A above the next", "i,1,2\n0,0,0.5\n1,0.5,0.4\n", "mem.csv:3:7: flux linkage must be strictly increasing"},
 		{"one current row", "i,1,2\n0,0,0\n", "mem.csv: need at least 2 currents"},
 		{"header too short", "i,1\n0,0\n", "mem.csv:1:1: header needs"},
 		{"bad quote", "i,1,2\n0,0,0\n1,\"0.5,0.4\n", "mem.csv:3:"},

@@ -178,8 +178,10 @@ func printMagnet(w io.Writer, path string, md *coilkick.Model, figs *magnetFigs)
 	row("time constant L/R, seated / rest", si(s.TimeConstantClosed, "s")+" / "+si(s.TimeConstantOpen, "s"))
 	row("pull at rest gap, rated current", fmt.Sprintf("%s against %s spring + load", si(s.ForceAtRest, "N"), si(s.SpringAtRest, "N")))
 	row("pull at seated gap, rated current", fmt.Sprintf("%s against %s spring + load", si(s.ForceSeated, "N"), si(s.SpringSeated, "N")))
-	if s.PermanentMagnetMMF != 0 {
-		row("permanent magnet MMF", si(s.PermanentMagnetMMF, "A"))
+	if s.PermanentMagnet {
+		if s.PermanentMagnetMMF != 0 {
+			row("permanent magnet MMF", si(s.PermanentMagnetMMF, "A"))
+		}
 		row("pull at seated gap, no current", fmt.Sprintf("%s against %s spring + load", si(s.HoldingSeated, "N"), si(s.SpringSeated, "N")))
 		row("pull at rest gap, no current", fmt.Sprintf("%s against %s spring + load", si(s.HoldingAtRest, "N"), si(s.SpringAtRest, "N")))
 	}
@@ -214,7 +216,7 @@ func printMagnet(w io.Writer, path string, md *coilkick.Model, figs *magnetFigs)
 // plunger seated without current, or pulls it in by itself; nothing
 // without a permanent magnet.
 func printMagnetHolding(b io.Writer, s *coilkick.MagnetSummary) {
-	if s.PermanentMagnetMMF == 0 {
+	if !s.PermanentMagnet {
 		return
 	}
 	if s.HoldingSeated <= s.SpringSeated {
@@ -471,9 +473,10 @@ func newMagnetDoc(path string, md *coilkick.Model, s *coilkick.MagnetSummary, cu
 		SaturationSeated:   optional(s.SaturationSeated, s.SaturationSeated > 0),
 		SaturationRest:     optional(s.SaturationRest, s.SaturationRest > 0),
 		SaturationFraction: coilkick.SaturationFraction, SaturationSearch: coilkick.SaturationSearch}
-	if s.PermanentMagnetMMF != 0 {
+	if s.PermanentMagnet {
 		latches, alone := s.HoldingSeated > s.SpringSeated, s.HoldingAtRest > s.SpringAtRest
-		d.Magnet.MagnetMMF, d.Magnet.HoldingSeated, d.Magnet.HoldingRest = &s.PermanentMagnetMMF, &s.HoldingSeated, &s.HoldingAtRest
+		d.Magnet.MagnetMMF = optional(s.PermanentMagnetMMF, s.PermanentMagnetMMF != 0)
+		d.Magnet.HoldingSeated, d.Magnet.HoldingRest = &s.HoldingSeated, &s.HoldingAtRest
 		d.Magnet.Latches, d.Magnet.PullsInAlone = &latches, &alone
 	}
 	if g := md.Geometry; g != nil {
