@@ -120,6 +120,13 @@ var reportGroups = []struct {
 		{"peak_supply_current_A", "peak supply current"}, {"lowest_rail_voltage_V", "lowest rail voltage"}, {"highest_rail_voltage_V", "highest rail voltage"},
 		{"energy_returned_J", "energy returned to supply"},
 	}},
+	{"Storage capacitor", []figureRow{
+		{"storage_capacitor.charge_voltage_V", "charge voltage"}, {"storage_capacitor.voltage_at_turn_off_V", "voltage at turn-off"},
+		{"storage_capacitor.final_voltage_V", "voltage at end of run"}, {"storage_capacitor.lowest_voltage_V", "lowest capacitor voltage"},
+		{"storage_capacitor.pulse_energy_J", "energy taken in the pulse"}, {"storage_capacitor.run_energy_J", "energy taken over the run"},
+		{"storage_capacitor.recharge_target_V", "recharge target"}, {"storage_capacitor.recharge_time_s", "recharge after the run"},
+		{"storage_capacitor.recharge_not_possible", "recharge after the run"},
+	}},
 	{"Release", []figureRow{
 		{"current_at_turn_off_A", "current at turn-off"}, {"seated_at_turn_off", "seated at turn-off"},
 		{"release_time_s", "release time"}, {"drop_time_s", "drop time"},
@@ -564,6 +571,22 @@ func heatSection(r *coilkick.HeatResult) (*plot.HeatSection, bool) {
 	}}, failed
 }
 
+// storageText describes a capacitor-discharge drive's storage capacitor
+// ("" for none).
+func storageText(st *coilkick.StorageSpec) string {
+	if st == nil {
+		return ""
+	}
+	text := fmt.Sprintf("storage capacitor %s, ESR %s", si(st.Capacitance, "F"), si(st.ESR, "Ω"))
+	if st.ChargeVoltage > 0 {
+		text += ", charged to " + si(st.ChargeVoltage, "V")
+	}
+	if st.ChargingResistance > 0 {
+		return text + ", charging resistor " + si(st.ChargingResistance, "Ω")
+	}
+	return text + ", no charging path"
+}
+
 // scenarioSummary describes the scenario in a few labelled lines.
 func scenarioSummary(md *coilkick.Model, sc *coilkick.Scenario) []plot.Item {
 	var out []plot.Item
@@ -585,7 +608,8 @@ func scenarioSummary(md *coilkick.Model, sc *coilkick.Scenario) []plot.Item {
 	}
 	sp := sc.Supply
 	add("supply", join(si(sp.Voltage, "V"), opt(sp.SourceResistance, "source resistance %s", si(sp.SourceResistance, "Ω")),
-		opt(sp.BulkCapacitance, "bulk capacitor %s", si(sp.BulkCapacitance, "F")), opt(sp.LowVoltage, "lowest in tolerance %s", si(sp.LowVoltage, "V"))))
+		opt(sp.BulkCapacitance, "bulk capacitor %s", si(sp.BulkCapacitance, "F")), storageText(sp.Storage),
+		opt(sp.LowVoltage, "lowest in tolerance %s", si(sp.LowVoltage, "V"))))
 	coil := fmt.Sprintf("%s at %.0f °C", si(md.CoilResistance(), "Ω"), md.Temperature-273.15)
 	if md.Temperature != 293.15 {
 		coil += fmt.Sprintf(" (%s at 20 °C)", si(md.Coil.ResistanceAt(293.15), "Ω"))

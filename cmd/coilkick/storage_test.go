@@ -77,4 +77,19 @@ func TestRunStorageCapacitor(t *testing.T) {
 	if code != exitOK || !strings.Contains(out, "  recharge after the run        not recharged (no charging path)\n") {
 		t.Errorf("without a charging resistor: exit %d, %s\n%s", code, stderr, out)
 	}
+	// The report: the capacitor in the scenario's summary and its figures
+	// under their own heading.
+	html := filepath.Join(t.TempDir(), "cap.html")
+	if code, _, stderr := runCLI("report", file, "-o", html); code != exitOK {
+		t.Fatalf("report: exit %d: %s", code, stderr)
+	}
+	page, err := os.ReadFile(html)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{"2.2 mF, ESR 100 mΩ", ">Storage capacitor<", "not recharged (no charging path)", ">voltage at turn-off<"} {
+		if !strings.Contains(string(page), want) {
+			t.Errorf("report lacks %q", want)
+		}
+	}
 }
