@@ -177,6 +177,20 @@ func (md *Model) checks(m *Metrics) []Check {
 	return checks
 }
 
+// releaseHolder says what holds a plunger that did not release: a
+// permanent magnet whose pull at the seat with no current beats the spring
+// and load, else residual flux or a weak spring.
+func (md *Model) releaseHolder() string {
+	p := md.Plunger
+	if zeroCurrentFlux(md.Magnet, p.GapMin) != 0 {
+		if hold, passive := md.Magnet.Force(0, p.GapMin), p.PassiveForce(p.GapMin, 0); hold > passive {
+			return fmt.Sprintf("the permanent magnet holds it seated with no current, %.3g N against %.3g N spring + load: "+
+				"a latching magnet releases only with a reverse pulse", hold, passive)
+		}
+	}
+	return "residual flux or a weak spring holds it"
+}
+
 // driveNotes writes the notes on the motion, the turn-off, the
 // suppression and the chopping.
 func (md *Model) driveNotes(m *Metrics, note func(fig, level, format string, args ...any)) {
@@ -184,7 +198,7 @@ func (md *Model) driveNotes(m *Metrics, note func(fig, level, format string, arg
 	if !m.PullIn.Happened {
 		note("pull-in time", "warning", "the plunger did not pull in: the magnetic force never overcame the spring and load before the run ended")
 	} else if m.ReleaseNotApplicable() == "" && !m.Release.Happened {
-		note("release time", "warning", "the plunger did not release before the run ended (residual flux or a weak spring holds it)")
+		note("release time", "warning", "the plunger did not release before the run ended (%s)", md.releaseHolder())
 	}
 	if m.PeakSwitchVoltage > KickCautionVoltage {
 		note("peak switch voltage", "caution", "the switch node kicks to %.0f V at turn-off: above %.0f V, treat the coil terminals and switch node as hazardous to touch, and use probes and insulation rated for it", m.PeakSwitchVoltage, KickCautionVoltage)

@@ -99,6 +99,14 @@ func TestLatchingRunStaysSeated(t *testing.T) {
 	if r := m.EnergyResidualRel(); !(r < balanceTol) {
 		t.Errorf("energy residual %.3g of supply (residual %g J of %g J), want < %g", r, m.EnergyResidual, m.SupplyEnergy, balanceTol)
 	}
+	// The release note names the magnet as what holds it.
+	var named bool
+	for _, n := range md.Assess(res).Notes {
+		named = named || (n.Figure == "release time" && strings.Contains(n.Text, "the permanent magnet holds it seated"))
+	}
+	if !named {
+		t.Errorf("notes %+v: no release-time note naming the permanent magnet", md.Assess(res).Notes)
+	}
 	t.Logf("pull-in %.4g ms, residual %.3g, stored change %.4g J, mechanical work %.4g J",
 		m.PullIn.Seconds*1e3, m.EnergyResidualRel(), m.StoredChange, m.MechanicalWork)
 }
