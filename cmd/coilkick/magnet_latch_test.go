@@ -2,11 +2,14 @@ package main
 
 import (
 	"encoding/json"
+	"fmt"
 	"math"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"coilkick"
 )
 
 // latchScenario is a latching valve (invented test data): a gap law with a
@@ -100,5 +103,87 @@ func TestMagnetLatchingHoldingForce(t *testing.T) {
 	if m["holds_seated_without_current"] != true || m["pulls_in_without_current"] != false {
 		t.Errorf("holds_seated_without_current = %v, pulls_in_without_current = %v; want true, false",
 			m["holds_seated_without_current"], m["pulls_in_without_current"])
+	}
+}
+
+// TestMagnetLatchingTable: the same valve with its magnet as a flux-linkage
+// table carrying the magnet's offset (sampled from the scenario's gap law
+// with the magnet, −1 A to 1 A): magnet reports the table's pull with no
+// current at both stops (the MMF is not known: null), and run latches.
+// The table's zero-current pull is checked against the library's
+// (Table.Force(0, x)) to the printing precision of the CSV, not against a
+// closed form (magnet/table_magnet_test.go does that).
+func TestMagnetLatchingTable(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
+	gapLaw := filepath.Join(dir, "latch.yaml")
+	if err := os.WriteFile(gapLaw, []byte(latchScenario), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	md, err := coilkick.LoadModel(gapLaw)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var csv strings.Builder
+	csv.WriteString("i_A\\gap_mm")
+	gaps := make([]float64, 30)
+	for j := range gaps {
+		gaps[j] = 0.05e-3 * math.Pow(20, float64(j)/29)
+		fmt.Fprintf(&csv, ",%.9g", gaps[j]*1e3)
+	}
+	gaps[29] = 1e-3
+	csv.WriteString("\n")
+	for k := 0; k <= 20; k++ {
+		i := -1 + 0.1*float64(k)
+		fmt.Fprintf(&csv, "%.9g", i)
+		for _, x := range gaps {
+			fmt.Fprintf(&csv, ",%.12g", md.Magnet.FluxLinkage(i, x)*1e3)
+		}
+		csv.WriteString("\n")
+	}
+	if err := os.WriteFile(filepath.Join(dir, "latch_flux.csv"), []byte(csv.String()), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	table := strings.Replace(latchScenario, `  gap law:
+    closed inductance: 200 mH
+    open inductance: 60 mH
+    pole area: 10 mm2
+    holding force: 6 N
+`, `  table:
+    file: latch_flux.csv
+    current unit: A
+    gap unit: mm
+    flux linkage unit: mWb
+`, 1)
+	path := filepath.Join(dir, "latch-table.yaml")
+	if err := os.WriteFile(path, []byte(table), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	code, out, errs := runCLI("magnet", path, "--json", "-")
+	if code != exitOK {
+		t.Fatalf("magnet --json: exit %d: %s", code, errs)
+	}
+	var doc struct {
+		Magnet map[string]any `json:"magnet"`
+	}
+	if err := json.Unmarshal([]byte(out), &doc); err != nil {
+		t.Fatal(err)
+	}
+	tm, err := coilkick.LoadModel(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	m := doc.Magnet
+	for key, x := range map[string]float64{"holding_force_seated_gap_N": 0.05e-3, "holding_force_rest_gap_N": 1e-3} {
+		if got, _ := m[key].(float64); math.Abs(got-tm.Magnet.Force(0, x)) > 1e-9*math.Abs(got) || got == 0 {
+			t.Errorf("%s = %v, want the table's %g N", key, m[key], tm.Magnet.Force(0, x))
+		}
+	}
+	if m["permanent_magnet_mmf_A"] != nil || m["holds_seated_without_current"] != true {
+		t.Errorf("permanent_magnet_mmf_A = %v, holds_seated_without_current = %v; want null, true",
+			m["permanent_magnet_mmf_A"], m["holds_seated_without_current"])
+	}
+	if code, out, errs := runCLI("run", path); code != exitOK || !strings.Contains(out, "the permanent magnet holds it seated") {
+		t.Errorf("run: exit %d, %s\n%s", code, errs, out)
 	}
 }
