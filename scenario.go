@@ -223,6 +223,7 @@ type SuppressionSpec struct {
 	Resistance   float64 // ohm: dynamic resistance of diode/zener/tvs, or the snubber resistor
 	Capacitance  float64 // F (rc snubber)
 	ReversePulse float64 // s (reverse drive): drive the coil in reverse this long after turn-off
+	ReverseDelay float64 // s (reverse drive): start that reverse pulse this long after turn-off (0: at once)
 }
 
 // Drive modes.

@@ -157,6 +157,7 @@ func Load(path string) (*Scenario, error) {
 //	  resistance: 0.1 ohm                     # optional, default 0 ohm; for freewheel diode, diode zener, tvs, rc snubber, switch clamp, reverse drive; dynamic resistance of the diode, zener or tvs; rc snubber: the resistor, required, with a range of its own
 //	  capacitance: 100 nF                     # for rc snubber
 //	  reverse pulse: 2 ms                     # optional, default 0 s; for reverse drive; H-bridge: at turn-off the coil sees −(supply + 2 drops) and returns its energy to the supply; drive it in reverse this long first
+//	  reverse pulse delay: 200 ms             # optional, default 0 s; for reverse drive; H-bridge: start the reverse pulse this long after turn-off, the bridge diodes returning the coil current meanwhile (a latching magnet holds at zero current, then the pulse releases it)
 //	drive:                                    # optional; default constant (switch on while energized)
 //	  mode: peak and hold                     # constant | pwm | peak and hold | boost then hold
 //	  frequency: 20 kHz                       # for pwm, peak and hold; peak and hold: with fixed-frequency regulation only

@@ -27,6 +27,9 @@ var suppressionSection = &sectionSpec{path: "suppression", keys: []*keySpec{
 	{name: "reverse pulse", rng: newRange(Time, "0 s to 10 s", ""), need: optional, defText: "0 s", example: "2 ms",
 		only: []string{SuppressBridge},
 		doc:  "H-bridge: at turn-off the coil sees −(supply + 2 drops) and returns its energy to the supply; drive it in reverse this long first"},
+	{name: "reverse pulse delay", rng: newRange(Time, "0 s to 60 min", ""), need: optional, defText: "0 s", example: "200 ms",
+		only: []string{SuppressBridge},
+		doc:  "H-bridge: start the reverse pulse this long after turn-off, the bridge diodes returning the coil current meanwhile (a latching magnet holds at zero current, then the pulse releases it)"},
 }, variants: []*keySpec{snubberResistance}}
 
 // snubberResistance is suppression.resistance of an RC snubber: the
@@ -63,12 +66,16 @@ func (l *scenarioLoader) loadSuppression(sec *yamlSection) {
 	dst := map[string]*float64{
 		"forward drop": &sp.ForwardDrop, "zener voltage": &sp.ZenerVoltage, "clamp voltage": &sp.ClampVoltage,
 		"resistance": &sp.Resistance, "capacitance": &sp.Capacitance, "reverse pulse": &sp.ReversePulse,
+		"reverse pulse delay": &sp.ReverseDelay,
 	}
 	for _, k := range sec.spec.keysFor(kind) {
 		l.readSpec(sec, sec.spec.variant(k, kind), dst[k])
 	}
 	if kind == SuppressTVS || kind == SuppressSwitchClamp {
 		l.exceed("suppression.clamp voltage", sp.ClampVoltage, "supply.voltage", l.s.Supply.Voltage, false)
+	}
+	if kind == SuppressBridge && sp.ReverseDelay > 0 && !(sp.ReversePulse > 0) {
+		l.errf("suppression.reverse pulse delay", "a reverse pulse delay needs suppression.reverse pulse (a length above 0 s)")
 	}
 	if kind == SuppressSwitchClamp {
 		l.exceed("switch.breakdown voltage", l.s.Switch.BreakdownVoltage, "suppression.clamp voltage", sp.ClampVoltage, false)

@@ -341,7 +341,8 @@ func buildControl(s *Scenario, md *Model) error {
 	}
 	md.Control = circuit.Control{Mode: cm, Frequency: dr.Frequency, Duty: dr.Duty, PeakCurrent: dr.PeakCurrent,
 		PeakTime: dr.PeakTime, HoldCurrent: dr.HoldCurrent, Band: dr.Band, FastDecay: dr.Decay == "fast",
-		BoostVoltage: dr.BoostVoltage, BoostTime: dr.BoostTime, ReversePulse: s.Suppression.ReversePulse}
+		BoostVoltage: dr.BoostVoltage, BoostTime: dr.BoostTime, ReversePulse: s.Suppression.ReversePulse,
+		ReverseDelay: s.Suppression.ReverseDelay}
 	if dr.BrakeFor > 0 {
 		md.Control = md.Control.WithBrake(dr.BrakeAt, dr.BrakeFor)
 	}

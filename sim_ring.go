@@ -153,8 +153,8 @@ func (s *system) ringAmplitude(y []float64) float64 {
 func (r *run) scheduleRingCheck(t float64, y []float64) {
 	r.tRing = math.Inf(1)
 	if r.noRetire || r.ringRetired || !r.ringModel() || !r.offDone || r.energized || r.cmode != circuit.Off ||
-		!r.res.Metrics.ClampConduction.Happened {
-		return
+		!r.res.Metrics.ClampConduction.Happened || t < r.tRevStart && !math.IsInf(r.tRevStart, 1) {
+		return // (a delayed reverse pulse is still to come: follow the ring)
 	}
 	l, _ := r.smallSignal(y[sGap])
 	r.tRing = t + 2*math.Pi*math.Sqrt(l*r.drive.NodeCapacitance())

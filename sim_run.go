@@ -196,6 +196,7 @@ type run struct {
 	ctl           circuit.Controller
 	baseV0        float64         // V, the normal supply voltage
 	tRevEnd       float64         // end of a timed reverse pulse (+Inf: none)
+	tRevStart     float64         // start of a delayed reverse pulse (+Inf: none)
 	tRing         float64         // next ring-retirement check (+Inf: none)
 	bounceRun     int             // consecutive bounces at one stop (the Zeno guard)
 	bounceAtSeat  bool            // bounceRun counts at the seat
@@ -247,7 +248,7 @@ func (r *run) noteConduction(t float64, part string, start bool) {
 
 func (r *run) nextTimeEvent(t float64) float64 {
 	next := math.Inf(1)
-	for _, te := range [...]float64{r.tOn, r.window.start, r.tOff, r.tRevEnd, r.tEnd, r.tRing, r.ctl.NextTime(t)} {
+	for _, te := range [...]float64{r.tOn, r.window.start, r.tOff, r.tRevStart, r.tRevEnd, r.tEnd, r.tRing, r.ctl.NextTime(t)} {
 		if te > t && te < next {
 			next = te
 		}
@@ -327,6 +328,9 @@ func (r *run) event(t float64, y []float64, k int) (bool, error) {
 		}
 		if t == r.tOff {
 			r.deenergize(t, y)
+		}
+		if t == r.tRevStart {
+			r.startReverse(t, y)
 		}
 		if t == r.tRevEnd && r.cmode == circuit.BridgeReverse {
 			i := r.current(y)
@@ -504,7 +508,10 @@ func (r *run) deenergize(t float64, y []float64) {
 	r.v0 = r.baseV0
 	r.energized = false
 	r.offDone = true
-	if r.drive.Suppressor.Kind == circuit.Bridge && r.ctl.ReversePulse > 0 {
+	if r.drive.Suppressor.Kind == circuit.Bridge && r.ctl.ReversePulse > 0 && r.ctl.ReverseDelay > 0 {
+		r.cmode = r.turnOffMode(i)
+		r.tRevStart = t + r.ctl.ReverseDelay
+	} else if r.drive.Suppressor.Kind == circuit.Bridge && r.ctl.ReversePulse > 0 {
 		r.cmode = circuit.BridgeReverse
 		r.tRevEnd = t + r.ctl.ReversePulse
 	} else {
@@ -529,6 +536,20 @@ func (r *run) deenergize(t float64, y []float64) {
 		r.noteConduction(t, r.drive.ClampName(r.cmode), true)
 	}
 	r.scheduleRingCheck(t, y)
+}
+
+// startReverse starts a delayed reverse pulse (Control.ReverseDelay): the
+// bridge, off since the de-energize command (its diodes returning the coil
+// current, or the coil open), drives the coil in reverse until tRevEnd.
+func (r *run) startReverse(t float64, y []float64) {
+	if r.cmode != circuit.Off {
+		r.noteConduction(t, r.drive.ClampName(r.cmode), false)
+	}
+	r.cmode = circuit.BridgeReverse
+	r.tRevEnd = t + r.ctl.ReversePulse
+	r.tRing = math.Inf(1)
+	r.note(t, "reverse pulse starts at %.4g A", r.current(y))
+	r.noteConduction(t, r.drive.ClampName(r.cmode), true)
 }
 
 // circuitChange moves the drive to mode to, keeping the state consistent.
@@ -860,7 +881,7 @@ func newRun(md *Model, opt *Options, tol float64) (*run, []float64) {
 	}
 	r := &run{system: sys, tOn: timing.EnergizeAt, tOff: timing.DeenergizeAt, tEnd: timing.End, tRing: math.Inf(1),
 		noRetire: opt.FollowRing, cols: make([]int, 0, stateJac), noFastForward: opt.FollowPeriods, tol: tol,
-		res: res, noTrace: opt.NoTrace, baseV0: drive.Supply.Voltage, tRevEnd: math.Inf(1),
+		res: res, noTrace: opt.NoTrace, baseV0: drive.Supply.Voltage, tRevEnd: math.Inf(1), tRevStart: math.Inf(1),
 		riseTime: md.RiseTime, fallTime: md.FallTime, sampleTimes: opt.SampleTimes}
 	r.ctl.Control = md.Control
 	r.window = newHoldWindow(r.tOn, r.tOff, md.Control.PhaseTime())

@@ -62,6 +62,10 @@ type Control struct {
 	// long after the de-energize command (0: just let the diodes return
 	// the current).
 	ReversePulse float64
+	// ReverseDelay (s): start that reverse pulse this long after the
+	// de-energize command; meanwhile the bridge is off (its diodes return
+	// the coil current, then the coil is open). 0: at once.
+	ReverseDelay float64
 
 	// BrakeAt, BrakeFor (s): a soft-landing brake of a constant or PWM
 	// drive. The switch turns off BrakeAt after the energize command and
@@ -156,6 +160,9 @@ func (c *Control) validatePeakHold() error {
 func (c *Control) validateWith(d *Drive) error {
 	if !(c.ReversePulse >= 0) {
 		return errors.New("circuit: reverse pulse must not be negative")
+	}
+	if !(c.ReverseDelay >= 0) {
+		return errors.New("circuit: reverse pulse delay must not be negative")
 	}
 	if c.ReversePulse > 0 && d.Suppressor.Kind != Bridge {
 		return errors.New("circuit: a reverse pulse needs the reverse drive (H-bridge)")
