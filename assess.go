@@ -120,6 +120,7 @@ func (md *Model) Assess(res *Result) Assessment {
 		a.Notes = append(a.Notes, Note{Figure: fig, Level: level, Text: fmt.Sprintf(format, args...)})
 	}
 	md.driveNotes(m, note)
+	md.reverseNotes(m, note)
 	storageNotes(m, note)
 	if c := md.Curves; c != nil {
 		c.runNotes(m, note)
@@ -221,6 +222,21 @@ func (md *Model) driveNotes(m *Metrics, note func(fig, level, format string, arg
 	}
 	if h := m.Hold; h.Measured && h.Chopped && h.ChoppingFrequency > 0 && !AtLeast(h.ChoppingFrequency, AudibleLimit) {
 		note("chopping frequency", "warning", "the driver chops at %.3g kHz, inside the audible range (below %.0f kHz, common practice, no source): the coil may whine", h.ChoppingFrequency/1e3, AudibleLimit/1e3)
+	}
+}
+
+// reverseNotes warns of what a reverse pulse does to a latching magnet: a
+// reverse current beyond the magnet's stated demagnetising current (its
+// knee), and a re-latch in the other direction during the pulse.
+func (md *Model) reverseNotes(m *Metrics, note func(fig, level, format string, args ...any)) {
+	if k := md.DemagCurrent; k > 0 && !WithinMax(-m.LowestCurrent, k) {
+		note("lowest current", "warning", "the coil current reaches %s, beyond the magnet's demagnetising current −%s (magnet.gap law.demagnetising current): "+
+			"the reverse field passes the magnet's knee and may weaken it for good; shorten the reverse pulse or lower its voltage", formatCurrent(m.LowestCurrent), formatCurrent(k))
+	}
+	if rl := m.Relatch; rl.Happened {
+		note("release time", "warning", "the plunger released during the reverse pulse but seated again at %s, with %s in the coil while the pulse was still on: "+
+			"past the magnet's equivalent current i_m the pull grows again as (i + i_m)² and latches it the other way; shorten the reverse pulse (or lower its voltage) so that it ends before the plunger can return",
+			formatDuration(rl.Time), formatCurrent(rl.Current))
 	}
 }
 

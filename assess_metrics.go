@@ -61,6 +61,13 @@ type Metrics struct {
 	CurrentAtSeating float64
 	// PeakCurrent: largest |coil current| in the run, A.
 	PeakCurrent float64
+	// LowestCurrent: the most negative coil current in the run (a reverse
+	// pulse's), A; 0 when the current never reverses.
+	LowestCurrent float64
+	// Relatch: the plunger, released during a reverse pulse, seated again
+	// while that pulse was still on (the reverse current beyond the
+	// magnet's equivalent current pulls it in the other direction).
+	Relatch Relatch
 	// CurrentAtTurnOff: coil current at the de-energize command, A.
 	CurrentAtTurnOff float64
 	// Release: de-energize → the plunger leaves the energized stop (the
@@ -353,4 +360,11 @@ type StorageMetrics struct {
 	// already). Not Happened: it cannot (NoRecharge says why).
 	Recharge   Interval
 	NoRecharge string
+}
+
+// Relatch is a re-latch during a reverse pulse: Time (s, run time) of the
+// seat impact and Current (A) in the coil then.
+type Relatch struct {
+	Happened      bool
+	Time, Current float64
 }

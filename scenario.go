@@ -140,6 +140,9 @@ type MagnetSpec struct {
 	// pull at the seated gap): a permanent magnet in the gap law's
 	// circuit; 0 when not given (at most one is).
 	MagnetMMF, HoldingForce float64
+	// DemagCurrent (A): the reverse coil current at which the magnet
+	// reaches its knee (stated from its data); 0 when not given.
+	DemagCurrent float64
 
 	// table
 	TableFile    string  // path as written, resolved against the scenario's folder

@@ -94,6 +94,7 @@ func Load(path string) (*Scenario, error) {
 //	    pole area: 50 mm2                     # optional; needs coil.turns; fixes b = 1/(µ0·A·N²) and solves the leakage
 //	    magnet mmf: 300 A                     # optional; a permanent magnet in the circuit (latching): its MMF in ampere-turns, aiding a positive coil current; needs pole area; or give holding force
 //	    holding force: 12 N                   # optional; a permanent magnet given by its pull at the seated gap with no current (measured); needs pole area; instead of magnet mmf
+//	    demagnetising current: 2 A            # optional; the reverse coil current at which the magnet reaches its knee (its knee field as a coil current, from the magnet's data); a run whose current goes further negative is warned of; needs a magnet
 //	  table:                                  # flux linkage versus current and gap, from a field solver or bench
 //	    file: valve_flux.csv                  # relative to the scenario file's folder (see "Flux-linkage table")
 //	    current unit: A                       # unit of the table's currents

@@ -170,6 +170,7 @@ func TestLoadBad(t *testing.T) {
 		{"two_documents.yaml", 26, 0, []string{"second YAML document"}},
 		{"tab_indent.yaml", 4, 0, []string{"not valid YAML"}},
 		{"missing_section.yaml", 2, 1, []string{"timing: missing section (required)", "de-energize at"}},
+		{"demag_without_magnet.yaml", 20, 28, []string{"magnet.gap law.demagnetising current", "needs a permanent magnet"}},
 		{"reverse_delay_without_pulse.yaml", 29, 24, []string{"suppression.reverse pulse delay", "needs suppression.reverse pulse"}},
 		{"snubber_without_resistance.yaml", 20, 1, []string{"suppression.resistance", "missing (required)", "expected a resistance"}},
 		{"clamp_above_breakdown.yaml", 22, 18, []string{"suppression.clamp voltage", `"70 V" must be less than switch.breakdown voltage "60 V" (line 19)`}},

@@ -33,6 +33,8 @@ var gapLawSection = &sectionSpec{path: "magnet.gap law", keys: []*keySpec{
 		doc: "a permanent magnet in the circuit (latching): its MMF in ampere-turns, aiding a positive coil current; needs pole area; or give holding force"},
 	{name: "holding force", rng: newRange(Force, "1 mN to 100 kN", ""), need: whenGiven, example: "12 N",
 		doc: "a permanent magnet given by its pull at the seated gap with no current (measured); needs pole area; instead of magnet mmf"},
+	{name: "demagnetising current", rng: newRange(Current, "1 µA to 1 MA", ""), need: whenGiven, example: "2 A",
+		doc: "the reverse coil current at which the magnet reaches its knee (its knee field as a coil current, from the magnet's data); a run whose current goes further negative is warned of; needs a magnet"},
 }}
 
 // tableSection is magnet.table: a flux-linkage table file and its units.
@@ -94,6 +96,9 @@ func (l *scenarioLoader) loadGapLaw(sec *yamlSection) {
 		if k.given && !l.ok["magnet.gap law.pole area"] {
 			l.errf("magnet.gap law."+k.key, "a permanent magnet needs magnet.gap law.pole area (and coil.turns), which is not given")
 		}
+	}
+	if l.read(sec, "demagnetising current", &m.DemagCurrent) && !mmf && !hold {
+		l.errf("magnet.gap law.demagnetising current", "needs a permanent magnet (magnet mmf or holding force), which is not given")
 	}
 	if mmf && hold {
 		l.errf("magnet.gap law.holding force", "give only one of \"magnet mmf\" and \"holding force\"")

@@ -66,6 +66,10 @@ type Model struct {
 	Timing             TimingSpec
 	Limits             LimitsSpec
 	Solver             SolverSpec
+	// DemagCurrent (A): the reverse coil current at which the permanent
+	// magnet reaches its knee (magnet.gap law.demagnetising current); 0
+	// when not given.
+	DemagCurrent float64
 }
 
 // CoilResistance returns the coil resistance at the run's winding
@@ -117,7 +121,7 @@ func (md *Model) scales() []float64 {
 // drive, control, thermal, timing: the magnet from geometry needs the coil,
 // the control the drive) and the first error is returned.
 func Build(s *Scenario) (*Model, error) {
-	md := &Model{Name: s.Name, Source: s.Source, Timing: s.Timing, Limits: s.Limits, Solver: s.Solver,
+	md := &Model{Name: s.Name, Source: s.Source, Timing: s.Timing, Limits: s.Limits, Solver: s.Solver, DemagCurrent: s.Magnet.DemagCurrent,
 		EddyResistance: s.Magnet.EddyResistance, CoreLossResistance: s.Coil.CoreLossResistance,
 		LowSupply: s.Supply.LowVoltage, Tolerances: s.Tolerances, Sense: s.Sense}
 	if d := s.Duty; d != nil {

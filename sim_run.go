@@ -668,6 +668,9 @@ func (r *run) recordImpact(t float64, y []float64, atSeat, stick bool, v float64
 		if r.energized && !stick {
 			m.Bounces++
 		}
+		if r.cmode == circuit.BridgeReverse && m.Release.Happened && !m.Relatch.Happened {
+			m.Relatch = Relatch{true, t, i}
+		}
 		r.noteImpact(t, "seat", math.Abs(v))
 		return
 	}
@@ -755,6 +758,7 @@ func (r *run) settle(t float64, y []float64) error {
 func (r *run) peaks(o outputs) {
 	m := &r.res.Metrics
 	m.PeakCurrent = math.Max(m.PeakCurrent, math.Abs(o.Current))
+	m.LowestCurrent = math.Min(m.LowestCurrent, o.Current)
 	m.PeakSupplyCurrent = math.Max(m.PeakSupplyCurrent, o.SupplyCurrent)
 	m.MinRailVoltage = math.Min(m.MinRailVoltage, o.RailVoltage)
 	m.MaxRailVoltage = math.Max(m.MaxRailVoltage, o.RailVoltage)
