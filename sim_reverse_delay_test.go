@@ -62,6 +62,14 @@ func TestReversePulseDelay(t *testing.T) {
 			t.Errorf("%s at %.15g s, want %.15g s", c.what, got, c.want)
 		}
 	}
+	// The switch node's ring is followed through the delay (never retired
+	// to its energy before the pulse), and the balance closes.
+	if res.Metrics.RingRetired.Happened && res.Metrics.RingRetired.Seconds < delay {
+		t.Errorf("the ring was retired %.4g s after de-energize, before the reverse pulse", res.Metrics.RingRetired.Seconds)
+	}
+	if r := res.Metrics.EnergyResidualRel(); !(r < 1e-6) {
+		t.Errorf("energy residual %.3g of the largest flow, want < 1e-6", r)
+	}
 	// Before the delay the bridge diodes return the turn-off current.
 	if got := eventTime(res, "conduction through the bridge diodes ends"); !(got > tOff && got < tOff+delay) {
 		t.Errorf("the bridge diodes stop conducting at %.6g s, want within the delay", got)
