@@ -2,50 +2,24 @@ package coilkick
 
 import (
 	"math"
+	"os"
 	"strings"
 	"testing"
 
 	"coilkick/magnet"
 )
 
-// latchYAML is a latching valve (invented test data): a gap law with a
-// permanent magnet given by its holding force at the seat. %s is replaced
-// by the magnet key (magnet mmf or holding force).
-const latchYAML = `name: latching test valve (invented)
-supply:
-  voltage: 12 V
-coil:
-  resistance: 40 ohm
-  turns: 2000
-magnet:
-  gap law:
-    closed inductance: 200 mH
-    open inductance: 60 mH
-    pole area: 10 mm2
-    MAGNET
-plunger:
-  mass: 5 g
-  rest gap: 1 mm
-  seated gap: 0.05 mm
-  spring preload: 2 N
-  spring rate: 0.5 N/mm
-  damping: 0.5 N*s/m
-  restitution: 0.2
-switch:
-  on resistance: 40 mohm
-  breakdown voltage: 60 V
-suppression:
-  type: freewheel diode
-  forward drop: 0.8 V
-timing:
-  energize at: 1 ms
-  de-energize at: 30 ms
-  end: 80 ms
-`
+// latchFile is a latching valve (invented test data): a gap law with a
+// permanent magnet given by its holding force at the seat.
+const latchFile = "testdata/good/latching.yaml"
 
 func latchModel(t *testing.T, magnetKey string) *Model {
 	t.Helper()
-	s, err := Parse([]byte(strings.Replace(latchYAML, "MAGNET", magnetKey, 1)), "latch.yaml")
+	src, err := os.ReadFile(latchFile)
+	if err != nil {
+		t.Fatal(err)
+	}
+	s, err := Parse([]byte(strings.Replace(string(src), "    holding force: 6 N\n", "    "+magnetKey+"\n", 1)), "latch.yaml")
 	if err != nil {
 		t.Fatalf("Parse: %v", err)
 	}

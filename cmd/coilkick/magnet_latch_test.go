@@ -12,37 +12,16 @@ import (
 	"coilkick"
 )
 
-// latchScenario is a latching valve (invented test data): a gap law with a
-// permanent magnet given by its holding force at the seated gap.
-const latchScenario = `name: latching test valve (invented)
-supply:
-  voltage: 12 V
-coil:
-  resistance: 40 ohm
-  turns: 2000
-magnet:
-  gap law:
-    closed inductance: 200 mH
-    open inductance: 60 mH
-    pole area: 10 mm2
-    holding force: 6 N
-plunger:
-  mass: 5 g
-  rest gap: 1 mm
-  seated gap: 0.05 mm
-  spring preload: 2 N
-  spring rate: 0.5 N/mm
-switch:
-  on resistance: 40 mohm
-  breakdown voltage: 60 V
-suppression:
-  type: freewheel diode
-  forward drop: 0.8 V
-timing:
-  energize at: 1 ms
-  de-energize at: 30 ms
-  end: 80 ms
-`
+// latchScenario is the latching valve of the root package's tests
+// (invented test data): a gap law with a permanent magnet given by its
+// holding force at the seated gap.
+var latchScenario = func() string {
+	b, err := os.ReadFile("../../testdata/good/latching.yaml")
+	if err != nil {
+		panic(err)
+	}
+	return string(b)
+}()
 
 // TestMagnetLatchingHoldingForce: magnet reports the zero-current pull at
 // both stops of a gap law with a permanent magnet, in the text and the
