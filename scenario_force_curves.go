@@ -5,6 +5,7 @@ import (
 	"io"
 	"math"
 	"regexp"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -157,7 +158,11 @@ func (f *forceCurveFile) addRow(name string, line int, rec []string, scales [3]f
 			return fmt.Errorf("%s:%d: more than %d curves", name, line, magnet.MaxForceCurves)
 		}
 		if n > 0 && v[1] < f.level(n-1) {
-			return fmt.Errorf("%s:%d: column 2: %s falls below the previous curve's %g; give the curves in order of rising %s, each as one run of rows", name, line, quoteCell(rec[1]), f.level(n-1)/scales[1], strings.ToLower([]string{"current", "voltage"}[boolIndex(f.voltage)]))
+			what := "current"
+			if f.voltage {
+				what = "voltage"
+			}
+			return fmt.Errorf("%s:%d: column 2: %s falls below the previous curve's %g; give the curves in order of rising %s, each as one run of rows", name, line, quoteCell(rec[1]), f.level(n-1)/scales[1], what)
 		}
 		f.curves = append(f.curves, magnet.ForceCurve{Current: v[1]})
 		f.volts = append(f.volts, v[1])
@@ -175,13 +180,6 @@ func (f *forceCurveFile) addRow(name string, line int, rec []string, scales [3]f
 
 // level is curve k's current or voltage as read.
 func (f *forceCurveFile) level(k int) float64 { return f.volts[k] }
-
-func boolIndex(b bool) int {
-	if b {
-		return 1
-	}
-	return 0
-}
 
 // ascending reverses each curve given from the largest gap down.
 func (f *forceCurveFile) ascending() {
@@ -260,7 +258,7 @@ func (f *forceCurveFile) curveError(name string, err error) string {
 		return fmt.Sprintf("%s:%d: %s", name, line, msg)
 	case ce.Curve >= 0 && ce.Curve < len(f.lines):
 		ls := f.lines[ce.Curve]
-		return fmt.Sprintf("%s:%d-%d (the curve at %s): %s", name, minInt(ls), maxInt(ls), f.curveLabel(ce.Curve), msg)
+		return fmt.Sprintf("%s:%d-%d (the curve at %s): %s", name, slices.Min(ls), slices.Max(ls), f.curveLabel(ce.Curve), msg)
 	}
 	return fmt.Sprintf("%s: %s", name, msg)
 }
@@ -271,20 +269,4 @@ func (f *forceCurveFile) curveLabel(k int) string {
 		return fmt.Sprintf("%.4g V, %.4g A", f.volts[k], f.curves[k].Current)
 	}
 	return fmt.Sprintf("%.4g A", f.curves[k].Current)
-}
-
-func minInt(v []int) int {
-	m := v[0]
-	for _, x := range v {
-		m = min(m, x)
-	}
-	return m
-}
-
-func maxInt(v []int) int {
-	m := v[0]
-	for _, x := range v {
-		m = max(m, x)
-	}
-	return m
 }
