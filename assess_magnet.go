@@ -39,6 +39,12 @@ type MagnetSummary struct {
 	PermanentMagnet bool
 }
 
+// SteelSaturationCaution (T) is the gap flux density above which a linear
+// gap law's pull cannot be real: soft magnetic steels saturate at about
+// 1.5 to 2.1 T (common practice, no source). The magnet figures caution
+// above it.
+const SteelSaturationCaution = 2.0
+
 // Saturation-onset definition.
 const (
 	SaturationFraction = 0.8

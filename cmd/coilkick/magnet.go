@@ -282,8 +282,8 @@ func printCoilField(b io.Writer, f *coilkick.CoilField) {
 		fmt.Fprintf(b, "  (gap flux density between the %s pole faces, from the reluctance network, fringing flux not in it)\n", area(f.PoleArea))
 	case coilkick.GapFromPull:
 		fmt.Fprintf(b, "  (gap flux density from the pull by Maxwell's formula B = √(2·µ0·F/A), pole area %s)\n", area(f.PoleArea))
-		if bmax := math.Max(f.GapFieldSeated, f.GapFieldRest); bmax > steelSaturationCaution {
-			fmt.Fprintf(b, "  CAUTION: %.3g T is above the about %.0f T at which magnet steel saturates: the linear gap law overstates the pull there; a flux-linkage table or the geometry model saturates\n", bmax, steelSaturationCaution)
+		if bmax := math.Max(f.GapFieldSeated, f.GapFieldRest); bmax > coilkick.SteelSaturationCaution {
+			fmt.Fprintf(b, "  CAUTION: %.3g T is above the about %.0f T at which magnet steel saturates: the linear gap law overstates the pull there; a flux-linkage table or the geometry model saturates\n", bmax, coilkick.SteelSaturationCaution)
 		}
 	}
 	if f.HasBuild {
@@ -292,11 +292,6 @@ func printCoilField(b io.Writer, f *coilkick.CoilField) {
 		fmt.Fprintln(b, "  (the air-core field needs coil.build)")
 	}
 }
-
-// steelSaturationCaution (T) is the gap flux density above which a linear
-// gap law's pull cannot be real: soft magnetic steels saturate at about
-// 1.5 to 2.1 T (common practice, no source).
-const steelSaturationCaution = 2.0
 
 // sig3 formats a positive ratio with three significant digits, without
 // an exponent.
