@@ -7,6 +7,7 @@ import (
 	"math"
 	"regexp"
 	"runtime"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -63,6 +64,13 @@ func ParseVary(spec string) (Vary, error) {
 		return bad(err)
 	}
 	v := Vary{Key: k, Spec: spec}
+	if want := keyExpects(k); want != "" {
+		// A value's error names what the key takes: "supply.voltage takes a
+		// voltage, e.g. \"24 V\"".
+		bad = func(err error) (Vary, error) {
+			return Vary{}, fmt.Errorf("--vary %q: %v; %s; expected %s", spec, err, want, VarySyntax)
+		}
+	}
 	if strings.TrimSpace(rng) == "" {
 		return bad(errors.New("no values after \"=\""))
 	}
@@ -179,8 +187,13 @@ func splitValue(s string) (float64, string, error) {
 // SweepFigures are the key figures of one run (NaN-free: a time that did
 // not happen is an Interval without Happened).
 type SweepFigures struct {
-	PullIn, Release, Drop        Interval
-	PeakCurrent, HoldCurrent     float64 // A
+	PullIn, Release, Drop Interval
+	PeakCurrent           float64 // A
+	// HoldCurrent: the mean coil current over the hold window (A), when
+	// HoldMeasured; a run without a hold window (a peak or boost phase
+	// that outlasts the energized time) has none, and HoldCurrent is 0.
+	HoldCurrent                  float64
+	HoldMeasured                 bool
 	PeakSwitchVoltage            float64 // V
 	ClampEnergy, AvalancheEnergy float64 // J
 	Failed                       bool    // a rating or requirement fails
@@ -291,6 +304,88 @@ func (sw *Sweeper) Check(vs []Vary) error {
 	for _, v := range vs {
 		if err := checkKey(v, sections); err != nil {
 			return err
+		}
+	}
+	for _, v := range vs {
+		if err := checkValues(v); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// keyDims returns the dimensions a scenario key's value may have when the
+// loader reads it as a quantity (its spec and the variants of the same
+// name, from the key specifications), and whether it is a unit alone
+// (keyUnit, such as a table's "current unit"); none for a key that is not
+// a quantity (text, a file, a section) or not a key of the scenario.
+func keyDims(key string) (dims []Dim, unit bool) {
+	walkSpecs(topSection, func(sec *sectionSpec) {
+		for _, k := range slices.Concat(sec.keys, sec.variants) {
+			if fieldPath(sec.path, k.name) != key {
+				continue
+			}
+			switch {
+			case k.kind == keyQuantity && k.rng.text != "":
+			case k.kind == keyUnit:
+				unit = true
+			default:
+				continue
+			}
+			if !slices.Contains(dims, k.rng.dim) {
+				dims = append(dims, k.rng.dim)
+			}
+		}
+	})
+	return dims, unit
+}
+
+// keyExpects says what a quantity key takes, for messages: "supply.voltage
+// takes a voltage, e.g. \"24 V\""; "" for a key that is not a quantity.
+func keyExpects(key string) string {
+	dims, unit := keyDims(key)
+	if len(dims) == 0 {
+		return ""
+	}
+	d := dims[0]
+	if unit {
+		return fmt.Sprintf("%s takes a unit of %s alone, e.g. %q", key, d.Name(), strings.TrimLeft(d.Example(), "0123456789.+-e "))
+	}
+	return fmt.Sprintf("%s takes %s, e.g. %q", key, d.Name(), d.Example())
+}
+
+// checkValues tells whether every value of v is a quantity of its key's
+// dimension, read as the loader reads it (a unit alone for a keyUnit key).
+// A value that is not (an unknown unit, a unit of another kind, no unit, no
+// number) is an error of the --vary flag, found before any point runs; a
+// quantity of the right kind that breaks a rule of the scenario (its range,
+// the low voltage) is the point's question: the point is marked invalid.
+func checkValues(v Vary) error {
+	dims, unit := keyDims(v.Key)
+	if len(dims) == 0 {
+		return nil
+	}
+	for _, s := range v.Values {
+		var first error
+		for _, d := range dims {
+			var err error
+			if unit {
+				if _, e := ParseQuantity("1 "+s, d); e != nil {
+					err = fmt.Errorf("%q is not a unit of %s; expected a unit such as %q", s, d.Name(), strings.TrimLeft(d.Example(), "0123456789.+-e "))
+				}
+			} else {
+				_, err = ParseQuantity(s, d)
+			}
+			if err == nil {
+				first = nil
+				break
+			}
+			if first == nil {
+				first = err
+			}
+		}
+		if first != nil {
+			return fmt.Errorf("--vary %q: %s: %v", v.spec(), v.Key, first)
 		}
 	}
 	return nil
@@ -657,7 +752,7 @@ func Figures(md *Model) (SweepFigures, error) {
 	m := &res.Metrics
 	as := md.Assess(res)
 	return SweepFigures{PullIn: m.PullIn, Release: m.Release, Drop: m.Drop, PeakCurrent: m.PeakCurrent,
-		HoldCurrent: m.Hold.MeanCurrent, PeakSwitchVoltage: m.PeakSwitchVoltage, ClampEnergy: m.ClampEnergy,
+		HoldCurrent: m.Hold.MeanCurrent, HoldMeasured: m.Hold.Measured, PeakSwitchVoltage: m.PeakSwitchVoltage, ClampEnergy: m.ClampEnergy,
 		AvalancheEnergy: m.AvalancheEnergy, Failed: as.Failed(), DroppedOut: m.DropOut.Happened}, nil
 }
 

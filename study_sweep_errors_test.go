@@ -5,6 +5,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
@@ -67,7 +68,7 @@ func TestSweepCheckUnknownKey(t *testing.T) {
 		if k.kind == keySection {
 			continue // a section (supply.storage capacitor) is not a value
 		}
-		ok = append(ok, mustVary(t, "supply."+k.name+"=1"))
+		ok = append(ok, mustVary(t, "supply."+k.name+"="+k.example))
 	}
 	ok = append(ok, mustVary(t, "plunger.load.constant force=1 N"), mustVary(t, "ratings.pull-in time=20 ms"))
 	if err := sw.Check(ok); err != nil {
@@ -76,6 +77,88 @@ func TestSweepCheckUnknownKey(t *testing.T) {
 	if err := sw.Check([]Vary{mustVary(t, "supply.voltage=20 V"), mustVary(t, "supply.voltage=22 V")}); err == nil ||
 		!strings.Contains(err.Error(), "varied twice") {
 		t.Errorf("a key varied twice: %v", err)
+	}
+}
+
+// A value that is not a quantity of its key's kind (an unknown unit, a
+// unit of another kind, no unit, no number) is an error of the flag that
+// names the key and what it takes, found before any point runs; it used to
+// become an invalid row of the sweep. A quantity of the right kind out of
+// the key's range stays the point's question (an invalid row).
+func TestSweepCheckValueUnits(t *testing.T) {
+	t.Parallel()
+	sw, err := NewSweeper("scenarios/irrigation-valve.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	cases := []struct {
+		spec string
+		want []string // substrings of the error
+	}{
+		{"supply.voltage=10 V,12 Ohm", []string{`--vary "supply.voltage=10 V,12 Ohm"`, "supply.voltage", `unknown unit "Ohm"`, `did you mean "ohm"?`, `expected a voltage, e.g. "24 V"`}},
+		{"supply.voltage=10 V,12 ohm", []string{`"12 ohm" is a resistance; expected a voltage`}},
+		{"supply.voltage=10:14:3", []string{`"10" has no unit; expected a voltage`}},
+		{"plunger.mass=5 g,8 N", []string{"plunger.mass", `"8 N" is a force; expected a mass`}},
+		{"magnet.gap law.closed inductance=60 mH,abc", []string{`"abc" is not a quantity`, "expected an inductance"}},
+		{"plunger.load.pressure=3 bar,2 V", []string{"plunger.load.pressure", `"2 V" is a voltage; expected a pressure`}},
+	}
+	for _, c := range cases {
+		err := sw.Check([]Vary{mustVary(t, c.spec)})
+		if err == nil {
+			t.Errorf("%s: Check accepted the values", c.spec)
+			continue
+		}
+		for _, s := range c.want {
+			if !strings.Contains(err.Error(), s) {
+				t.Errorf("%s: error lacks %q:\n%v", c.spec, s, err)
+			}
+		}
+		if strings.Contains(err.Error(), ".yaml:") {
+			t.Errorf("%s: a flag error must not point into the file:\n%v", c.spec, err)
+		}
+	}
+	// Right kind, out of the key's range or below the scenario's rule: the
+	// flag is fine, the point will be invalid.
+	for _, spec := range []string{"supply.voltage=10 V,1e9 V", "supply.voltage=24 V,0.1 kV", "tolerances.supply=5 %,10 %"} {
+		if err := sw.Check([]Vary{mustVary(t, spec)}); err != nil {
+			t.Errorf("%s: %v", spec, err)
+		}
+	}
+	// A range whose TO has another unit names what the key takes.
+	if _, err := ParseVary("supply.voltage=10 V:14 m:5"); err == nil || !strings.Contains(err.Error(), `supply.voltage takes a voltage, e.g. "24 V"`) ||
+		!strings.Contains(err.Error(), "KEY=FROM:TO:STEPS") {
+		t.Errorf("10 V:14 m:5: %v", err)
+	}
+}
+
+// Every quantity key of the scenario's specifications accepts the example
+// value of its own spec (so the value check knows each key's dimension
+// and rejects no value the loader reads), and a unit key accepts its
+// example unit.
+func TestSweepValueCheckKnowsEveryKey(t *testing.T) {
+	t.Parallel()
+	n := 0
+	walkSpecs(topSection, func(sec *sectionSpec) {
+		for _, k := range slices.Concat(sec.keys, sec.variants) {
+			if (k.kind != keyQuantity && k.kind != keyUnit) || k.example == "" {
+				continue
+			}
+			key := fieldPath(sec.path, k.name)
+			if dims, _ := keyDims(key); len(dims) == 0 {
+				t.Errorf("%s: no dimension found", key)
+			}
+			if err := checkValues(Vary{Key: key, Values: []string{k.example}}); err != nil {
+				t.Errorf("%s: its example %q refused: %v", key, k.example, err)
+			}
+			n++
+		}
+	})
+	if n < 50 {
+		t.Errorf("only %d quantity keys checked", n)
+	}
+	if err := checkValues(Vary{Key: "magnet.table.current unit", Values: []string{"mA", "V"}}); err == nil ||
+		!strings.Contains(err.Error(), `"V" is not a unit of a current`) {
+		t.Errorf("a unit key with a voltage unit: %v", err)
 	}
 }
 

@@ -188,8 +188,12 @@ func writeSweepTable(w io.Writer, vs []coilkick.Vary, pts []coilkick.SweepPoint)
 					release, drop = "n/a", "n/a"
 				}
 			}
+			hold := "n/a" // no hold window: the peak phase outlasts the energized time
+			if f.HoldMeasured {
+				hold = si(f.HoldCurrent, "A")
+			}
 			row = append(row, interval2(f.PullIn), release, drop, si(f.PeakCurrent, "A"),
-				si(f.HoldCurrent, "A"), si(f.PeakSwitchVoltage, "V"), si(f.ClampEnergy, "J"), si(f.AvalancheEnergy, "J"), verdict)
+				hold, si(f.PeakSwitchVoltage, "V"), si(f.ClampEnergy, "J"), si(f.AvalancheEnergy, "J"), verdict)
 		} else {
 			for range figures {
 				row = append(row, "-")
@@ -237,6 +241,9 @@ func sweepFigure(name string, f coilkick.SweepFigures) (float64, string, bool) {
 	case "peak current":
 		return f.PeakCurrent, "peak current (A)", true
 	case "hold current":
+		if !f.HoldMeasured {
+			return math.NaN(), "hold current (A)", true // a gap in the line: not measured
+		}
 		return f.HoldCurrent, "hold current (A)", true
 	case "switch voltage":
 		return f.PeakSwitchVoltage, "peak switch voltage (V)", true
@@ -491,7 +498,7 @@ func sweepRecords(cols []sweepColumn, pts []coilkick.SweepPoint) []record {
 		var pullIn, release, drop, peak, hold, vsw, clamp, avalanche, droppedOut any
 		if f := p.Figures; f != nil {
 			pullIn, release, drop = seconds(f.PullIn), seconds(f.Release), seconds(f.Drop)
-			peak, hold, vsw = f.PeakCurrent, f.HoldCurrent, f.PeakSwitchVoltage
+			peak, hold, vsw = f.PeakCurrent, optional(f.HoldCurrent, f.HoldMeasured), f.PeakSwitchVoltage
 			clamp, avalanche, droppedOut = f.ClampEnergy, f.AvalancheEnergy, f.DroppedOut
 		}
 		r = append(r, field{"pull_in_time_s", pullIn}, field{"release_time_s", release}, field{"drop_time_s", drop},

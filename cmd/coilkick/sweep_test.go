@@ -6,6 +6,7 @@ import (
 	"encoding/json"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 
@@ -52,6 +53,11 @@ func TestSweepExitStatus(t *testing.T) {
 		{"missing STEPS", []string{"../../scenarios/peak-hold-valve.yaml", "--vary", "supply.voltage=10 V:14 V"}, exitError, nil,
 			[]string{`--vary "supply.voltage=10 V:14 V"`, "no STEPS", "KEY=FROM:TO:STEPS", `"supply.voltage=18 V:30 V:13"`, "KEY=V1,V2,..."}},
 		{"no --vary", []string{"../../scenarios/irrigation-valve.yaml"}, exitError, nil, []string{"--vary KEY=FROM:TO:STEPS"}},
+		// A wrong unit inside the values is the flag's error, not a row.
+		{"wrong unit in a list", []string{"../../scenarios/irrigation-valve.yaml", "--vary", "supply.voltage=10 V,12 Ohm"}, exitError, nil,
+			[]string{`--vary "supply.voltage=10 V,12 Ohm": supply.voltage: "12 Ohm": unknown unit "Ohm"`, `expected a voltage, e.g. "24 V"`}},
+		{"unit of another kind in a range", []string{"../../scenarios/irrigation-valve.yaml", "--vary", "supply.voltage=10 V:14 m:5"}, exitError, nil,
+			[]string{`--vary "supply.voltage=10 V:14 m:5"`, `supply.voltage takes a voltage, e.g. "24 V"`, "KEY=FROM:TO:STEPS"}},
 		{"unknown figure", []string{"../../scenarios/irrigation-valve.yaml", "--vary", "supply.voltage=22 V,26 V", "--plot", filepath.Join(t.TempDir(), "p.svg"), "--figure", "colour"}, exitError, nil,
 			[]string{`--figure "colour"`, "pull-in, release"}},
 	}
@@ -71,9 +77,13 @@ func TestSweepExitStatus(t *testing.T) {
 				t.Errorf("%s: stderr lacks %q:\n%s", c.name, s, errs)
 			}
 		}
-		// A flag error is the flag's, not a position in the scenario file.
+		// A flag error is the flag's, not a position in the scenario file,
+		// and comes before any point runs: no table.
 		if code == exitError && strings.Contains(errs, ".yaml:") {
 			t.Errorf("%s: error points into the file:\n%s", c.name, errs)
+		}
+		if c.stdout == nil && out != "" {
+			t.Errorf("%s: a flag error printed a table:\n%s", c.name, out)
 		}
 	}
 }
@@ -217,5 +227,48 @@ func TestSweepFigureNames(t *testing.T) {
 	}
 	if _, _, ok := sweepFigure("colour", coilkick.SweepFigures{}); ok {
 		t.Error("unknown figure accepted")
+	}
+}
+
+// A point without a hold window (the peak phase outlasts the energized
+// time) has no hold current: null in the JSON, an empty CSV cell, "n/a" in
+// the table; it used to be 0 A, a number that was never measured.
+func TestSweepHoldNotMeasured(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
+	path := variant(t, dir, "peak-hold-valve.yaml", "de-energize at: 1000 ms", "de-energize at: 60 ms", "end: 1050 ms", "end: 100 ms")
+	args := []string{path, "--vary", "drive.peak time=30 ms,80 ms"}
+	code, out, errs := runSweep(t, append(args, "--json", "-")...)
+	if code == exitError {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var doc struct {
+		Points []struct {
+			Hold *float64 `json:"hold_current_A"`
+		} `json:"points"`
+	}
+	if err := json.Unmarshal([]byte(out), &doc); err != nil || len(doc.Points) != 2 {
+		t.Fatalf("JSON (%v): %s", err, out)
+	}
+	if h := doc.Points[0].Hold; h == nil || !(*h > 0.3 && *h < 0.5) {
+		t.Errorf("30 ms peak: hold_current_A %v, want about 0.4 A", h)
+	}
+	if h := doc.Points[1].Hold; h != nil {
+		t.Errorf("80 ms peak (energized 59 ms): hold_current_A %v, want null", *h)
+	}
+	_, out, _ = runSweep(t, append(args, "--csv", "-")...)
+	recs, err := csv.NewReader(strings.NewReader(out)).ReadAll()
+	if err != nil || len(recs) != 3 {
+		t.Fatalf("CSV (%v): %s", err, out)
+	}
+	col := slices.Index(recs[0], "hold_current_A")
+	if col < 0 || recs[1][col] == "" || recs[2][col] != "" {
+		t.Errorf("CSV hold_current_A cells %q, %q; want a number, empty", recs[1][col], recs[2][col])
+	}
+	_, out, _ = runSweep(t, args...)
+	lines := strings.Split(out, "\n")
+	at := strings.Index(lines[0], "hold current")
+	if at < 0 || len(lines) < 3 || !strings.HasPrefix(lines[2][at:], "n/a ") || strings.HasPrefix(lines[1][at:], "n/a") {
+		t.Errorf("table:\n%s", out)
 	}
 }
