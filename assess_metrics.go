@@ -112,6 +112,8 @@ type Metrics struct {
 	OffDiodeLoss float64
 	// DropOut: the plunger left the energized stop while still energized.
 	DropOut DropOut
+	// FinalGap: the working gap at the end of the run, m.
+	FinalGap float64
 	// SeatedAtTurnOff: the plunger was held at the energized stop at the
 	// de-energize command. Release and drop are measured only then.
 	SeatedAtTurnOff bool

@@ -64,8 +64,10 @@
 //     suppression options compared and one recommended), study_heat.go
 //     (the duty-cycle heating study), study_signature.go (the end-of-stroke
 //     signature: the current-sense chain, the dip, the runs at every corner
-//     with the plunger free and blocked) and study_signature_detect.go (the
-//     recommended detection settings and a chopped drive's signature).
+//     with the plunger free and blocked), study_signature_detect.go (the
+//     recommended detection settings and a chopped drive's signature) and
+//     study_storage.go (StorageSize: a capacitor-discharge drive's smallest
+//     IEC 60063 capacitance and shortest reliable pulses at every corner).
 //   - fit*.go — calibration from a measured trace: fit_trace.go reads a
 //     scope CSV and finds its events (energize, the pull-in dip, the
 //     decay); fit.go fits the model's parameters to it.

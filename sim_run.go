@@ -1074,6 +1074,7 @@ func (r *run) finish(y []float64) {
 	m.FinalRingEnergy = y[sRing]
 	m.FinalWindingTemperature = y[sWinding]
 	m.FinalHousingTemperature = y[sHousing]
+	m.FinalGap = y[sGap]
 	m.StoredChange = r.fieldEnergy(y) - r.wf0 + r.storedCapEnergy(y) - r.capE0
 	r.storageFinish(y)
 	m.EnergyResidual = m.SupplyEnergy - (m.CoilLoss + m.SourceLoss + m.SwitchLoss + m.SuppressionLoss + m.DiodeLoss + m.MechanicalWork + m.EddyLoss + m.CoreLoss + m.StoredChange)

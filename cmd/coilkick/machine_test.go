@@ -36,6 +36,7 @@ func machineCommands() []struct {
 		{"clamps", []string{"clamps", "../../scenarios/process-air-valve.yaml"}, exitOK},
 		{"solve", []string{"solve", "../../scenarios/process-air-valve.yaml"}, exitOK},
 		{"signature", []string{"signature", "../../scenarios/door-strike-duty.yaml"}, exitOK},
+		{"storage", []string{"storage", "../../scenarios/latching-valve-9v-release.yaml"}, exitOK},
 	}
 }
 

@@ -52,7 +52,7 @@ var valueFlags = map[string]bool{"csv": true, "json": true, "tolerance": true, "
 	"plot": true, "o": true, "output": true, "vary": true, "seed": true, "samples": true, "workers": true,
 	"trace": true, "params": true, "margin": true, "plot-window": true, "figure": true,
 	"bandwidth": true, "sample-rate": true, "resolution": true, "noise": true, "pull-in-cap": true, "evaluations": true,
-	"timing-margin": true}
+	"timing-margin": true, "series": true, "pulse-margin": true}
 
 // permute moves flags written after positional arguments in front of them,
 // so that "coilkick run valve.yaml --csv out.csv" works: the flag parser
@@ -287,7 +287,7 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 				},
 				Action: func(c *cli.Context) error { return cmdCheck(c, stdout) },
 			},
-		}, append(append(studyCommands(stdout), signatureCommand(stdout), landCommand(stdout)), reportCommands(stdout)...)...),
+		}, append(append(studyCommands(stdout), signatureCommand(stdout), landCommand(stdout), storageCommand(stdout)), reportCommands(stdout)...)...),
 	}
 	ownHelp(app)
 	for _, cmd := range app.Commands {
