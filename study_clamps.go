@@ -46,6 +46,10 @@ const (
 type ClampOption struct {
 	Name       string // e.g. "diode + 33 V Zener"
 	Suppressor circuit.Suppressor
+	// ZenerVoltage: the nominal Zener voltage of a diode + Zener option
+	// (V, the E24 value it was defined with; 0 for other kinds). Its
+	// Suppressor.Voltage adds the diode's drop.
+	ZenerVoltage float64
 	// Figures of the actuation with this option.
 	Release, Drop, Decay Interval
 	PeakSwitchVoltage    float64 // V
@@ -78,12 +82,16 @@ type ClampOption struct {
 	// Impractical, when not empty, says why the part is not a practical
 	// choice (a snubber capacitor above MaxSnubberCapacitance).
 	Impractical string
-	Err         string
+	// NoFit, when not empty, is a finding rather than an error: no part of
+	// this kind fits the drive, and why ("no TVS fits: ... because ...");
+	// the option is not simulated.
+	NoFit string
+	Err   string // the option could not be simulated
 }
 
 // candidate reports whether an option may be recommended.
 func (o ClampOption) candidate() bool {
-	return o.Err == "" && o.DropOut == "" && o.Impractical == "" && o.MeetsRelease && o.WithinRating &&
+	return o.Err == "" && o.NoFit == "" && o.DropOut == "" && o.Impractical == "" && o.MeetsRelease && o.WithinRating &&
 		o.Suppressor.Kind != circuit.Bridge
 }
 
@@ -155,7 +163,7 @@ func CompareClamps(md *Model) (*ClampComparison, error) {
 
 	opts := clampOptions(md, allow, i0, lSeat)
 	for k := range opts {
-		if opts[k].Err == "" {
+		if opts[k].Err == "" && opts[k].NoFit == "" {
 			evaluateClamp(md, &opts[k], cmp, allow, i0)
 		}
 	}
@@ -185,14 +193,17 @@ func clampOptions(md *Model, allow, i0, lSeat float64) []ClampOption {
 	// practice, no source).
 	zeners := E24Values(5.1, allow-v0-AssumedDiodeDrop)
 	for _, vz := range zeners {
-		add(fmt.Sprintf("diode + %g V Zener", vz), circuit.Suppressor{Kind: circuit.DiodeZener, Voltage: AssumedDiodeDrop + vz})
+		// The conduction voltage rounded to 9 digits: 0.8 + 5.1 is
+		// 5.8999999999999995 in binary floating point, the part 5.9 V.
+		add(fmt.Sprintf("diode + %g V Zener", vz), circuit.Suppressor{Kind: circuit.DiodeZener, Voltage: roundSignificant(AssumedDiodeDrop+vz, 9)})
+		opts[len(opts)-1].ZenerVoltage = vz
 	}
 	if tvs := E24Values(v0*1.05, allow-v0); len(tvs) > 0 {
 		v := tvs[len(tvs)-1]
 		add(fmt.Sprintf("%g V TVS across the coil", v), circuit.Suppressor{Kind: circuit.TVS, Voltage: v})
 	} else {
 		opts = append(opts, ClampOption{Name: "TVS across the coil", Suppressor: circuit.Suppressor{Kind: circuit.TVS},
-			Err: fmt.Sprintf("no TVS fits: it must clamp above the %g V supply and keep the switch within %g V", v0, allow)})
+			NoFit: noTVSFits(v0, allow)})
 	}
 	if sc := E24Values(v0*1.05, math.Min(allow, md.Drive.Switch.BreakdownVoltage*0.95)); len(sc) > 0 {
 		v := sc[len(sc)-1]
@@ -209,6 +220,19 @@ func clampOptions(md *Model, allow, i0, lSeat float64) []ClampOption {
 	}
 	add("reverse drive (H-bridge)", circuit.Suppressor{Kind: circuit.Bridge, Voltage: AssumedDiodeDrop})
 	return opts
+}
+
+// noTVSFits says why no E24 TVS across the coil fits a supply of v0 with
+// the switch derated to allow (V): it must stand off the supply (at least
+// 5 % above it) while the switch sees the supply plus its clamp voltage.
+func noTVSFits(v0, allow float64) string {
+	lo, hi := v0*1.05, allow-v0
+	if lo > hi {
+		return fmt.Sprintf("no TVS fits: it must clamp above the %.4g V supply (at least %.4g V), and the switch would then see the supply plus the clamp, at least %.4g V, above the derated %.4g V",
+			v0, lo, v0+lo, allow)
+	}
+	return fmt.Sprintf("no TVS fits: its clamp voltage must lie between %.4g V (above the %.4g V supply) and %.4g V (the derated %.4g V less the supply), and no E24 value does",
+		lo, v0, hi, allow)
 }
 
 // evaluateClamp simulates the actuation with option o and fills its figures.

@@ -25,6 +25,10 @@ type Solution struct {
 	// as it stands, and why (the plunger drops out during the hold, say).
 	Blocked string
 	Note    string // the criterion, and a rounding hint
+	// NextE24: for a clamp voltage found, the next E24 value (IEC 60063)
+	// at or above it (V), the part to choose; 0 when there is none, or it
+	// would reach the switch's breakdown (the Note says so).
+	NextE24 float64
 }
 
 // bisect finds the boundary in [lo, hi] between failing (at lo) and
@@ -245,8 +249,13 @@ func LowestClamp(md *Model) (Solution, error) {
 		return sol, err
 	}
 	sol.Value, sol.Found = x, true
-	if e := E24Values(x, 1e5); len(e) > 0 {
+	switch e := E24Values(x, 1e5); {
+	case len(e) == 0:
+	case e[0] <= top:
+		sol.NextE24 = e[0]
 		sol.Note = fmt.Sprintf("next E24 value (IEC 60063): %g V", e[0])
+	default:
+		sol.Note = fmt.Sprintf("the next E24 value (IEC 60063), %g V, is above the highest clamp below the switch breakdown, %.4g V", e[0], top)
 	}
 	return sol, nil
 }

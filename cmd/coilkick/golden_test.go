@@ -27,6 +27,7 @@ func TestGoldenSummaries(t *testing.T) {
 		{"irrigation-run", []string{"run", "../../scenarios/irrigation-valve.yaml"}, exitOK},
 		{"door-latch-run", []string{"run", "../../scenarios/door-latch.yaml"}, exitFailing},
 		{"dosing-magnet", []string{"magnet", "../../scenarios/dosing-valve-geometry.yaml"}, exitOK},
+		{"irrigation-clamps", []string{"clamps", "../../scenarios/irrigation-valve.yaml"}, exitOK},
 		{"bad-unit-check", []string{"check", "../../testdata/bad/wrong_unit.yaml"}, exitError},
 	}
 	for _, c := range cases {

@@ -11,6 +11,7 @@ import (
 	"strconv"
 	"strings"
 	"text/tabwriter"
+	"unicode/utf8"
 
 	"github.com/urfave/cli/v2"
 
@@ -199,6 +200,10 @@ func cmdClamps(c *cli.Context, w io.Writer) error {
 	return nil
 }
 
+// clampsWidth is the width the clamps text keeps within: its tables and
+// the wrapped notes below them.
+const clampsWidth = 120
+
 // printClamps prints the comparison, the recommendation and the part
 // ratings.
 func printClamps(w io.Writer, path string, md *coilkick.Model, cmp *coilkick.ClampComparison) {
@@ -210,58 +215,55 @@ func printClamps(w io.Writer, path string, md *coilkick.Model, cmp *coilkick.Cla
 		fmt.Fprintf(b, "operating pattern: %.3g operations/s, relative on-time %.3g %%\n", cmp.Rate, 100*cmp.OnFraction)
 	}
 	fmt.Fprintln(b)
-	printClampTable(b, md, cmp)
+	printClampTables(b, md, cmp)
 	if cmp.DropOut != "" {
-		fmt.Fprintf(b, "\nNo recommendation: %s whatever the clamp. Fix the hold (coilkick solve) before choosing a clamp.\n", cmp.DropOut)
+		wrapLine(b, fmt.Sprintf("No recommendation: %s whatever the clamp. Fix the hold (coilkick solve) before choosing a clamp.", cmp.DropOut))
 		return
 	}
 	if cmp.Recommended < 0 {
-		fmt.Fprintln(b, "\nNo practical option meets the release requirement within the derated switch rating.")
+		fmt.Fprintln(b, "No practical option meets the release requirement within the derated switch rating.")
 		return
 	}
 	r := cmp.Options[cmp.Recommended]
-	fmt.Fprintf(b, "\nRecommended: %s (least switch stress that meets the requirement; within %.0f %% of the least, the lower energy per operation wins; reverse drive needs an H-bridge and is shown for comparison only).\n", r.Name, 100*coilkick.ClampStressBand)
-	fmt.Fprintf(b, "Part ratings needed: peak current %s, energy per turn-off pulse %s", si(cmp.PartPeakCurrent, "A"), si(cmp.PartEnergy, "J"))
+	wrapLine(b, fmt.Sprintf("Recommended: %s (least switch stress that meets the requirement; within %.0f %% of the least, the lower energy per operation wins; reverse drive needs an H-bridge and is shown for comparison only).", r.Name, 100*coilkick.ClampStressBand))
+	parts := fmt.Sprintf("Part ratings needed: peak current %s, energy per turn-off pulse %s", si(cmp.PartPeakCurrent, "A"), si(cmp.PartEnergy, "J"))
 	if cmp.PartChopPower > 0 {
-		fmt.Fprintf(b, ", %s while held chopping", si(cmp.PartChopPower, "W"))
+		parts += fmt.Sprintf(", %s while held chopping", si(cmp.PartChopPower, "W"))
 	}
 	if cmp.Rate > 0 {
-		fmt.Fprintf(b, ", average power %s at the operating pattern", si(cmp.PartPower, "W"))
+		parts += fmt.Sprintf(", average power %s at the operating pattern", si(cmp.PartPower, "W"))
 	}
-	fmt.Fprintln(b, "; choose parts with margin over these (derating per your practice).")
-	fmt.Fprintf(b, "Assumptions: added diodes drop %.1f V; RC snubber sized so I0·√(L/C) stays within the derated rating, R = √(L/C), capacitor at most %.3g µF (common practice, no source).\n",
-		coilkick.AssumedDiodeDrop, coilkick.MaxSnubberCapacitance*1e6)
+	wrapLine(b, parts+"; choose parts with margin over these (derating per your practice).")
+	wrapLine(b, fmt.Sprintf("Assumptions: added diodes drop %.1f V; RC snubber sized so I0·√(L/C) stays within the derated rating, R = √(L/C), capacitor at most %.3g µF (common practice, no source).",
+		coilkick.AssumedDiodeDrop, coilkick.MaxSnubberCapacitance*1e6))
 }
 
-// printClampTable prints one row per option; every row has every cell.
-// The chopping-power column appears only when some part dissipates while
-// chopping, the average-power column only with an operating pattern.
-func printClampTable(b io.Writer, md *coilkick.Model, cmp *coilkick.ClampComparison) {
-	chop := false
-	for _, o := range cmp.Options {
-		chop = chop || o.ChopPower > 0
-	}
+// printClampTables prints the options in two tables that each fit in
+// clampsWidth columns: release and switch stress with the verdicts and a
+// short remark, then what each part must take (peak current, turn-off
+// energy, chopping and average power, energy per operation). A remark's
+// full text (impractical, no part fits, error) is a numbered note below
+// the first table. Every row has every cell ("-" where an option has no
+// figures).
+func printClampTables(b io.Writer, md *coilkick.Model, cmp *coilkick.ClampComparison) {
 	req := "meets release"
 	if md.Limits.MaxRelease > 0 {
 		req = "release <= " + si(md.Limits.MaxRelease, "s")
 	}
-	head := []string{"option", "release time", "drop time", "peak switch V", "turn-off energy"}
-	if chop {
-		head = append(head, "chopping power")
+	rows := [][]string{{"option", "release", "drop", "switch peak", req, "within " + si(coilkick.ClampDerating*cmp.SwitchRating, "V"), "remark"}}
+	var notes []string
+	note := func(what, text string) string {
+		notes = append(notes, text)
+		return fmt.Sprintf("%s, note %d", what, len(notes))
 	}
-	if cmp.Rate > 0 {
-		head = append(head, "average power")
-	}
-	head = append(head, req, "within "+si(coilkick.ClampDerating*cmp.SwitchRating, "V"), "remark")
-	rows := [][]string{head}
 	yes := map[bool]string{true: "yes", false: "no"}
 	for k, o := range cmp.Options {
-		if o.Err != "" {
-			row := []string{o.Name}
-			for len(row) < len(head)-1 {
-				row = append(row, "-")
-			}
-			rows = append(rows, append(row, "error: "+o.Err))
+		switch {
+		case o.NoFit != "":
+			rows = append(rows, dashRow(o.Name, len(rows[0]), note("no part fits", o.Name+": "+o.NoFit)))
+			continue
+		case o.Err != "":
+			rows = append(rows, dashRow(o.Name, len(rows[0]), note("error", o.Name+": error: "+o.Err)))
 			continue
 		}
 		release, drop := interval2(o.Release), interval2(o.Drop)
@@ -270,25 +272,89 @@ func printClampTable(b io.Writer, md *coilkick.Model, cmp *coilkick.ClampCompari
 		case o.DropOut != "":
 			release, drop, remark = "n/a", "n/a", "drops out while energized"
 		case o.Impractical != "":
-			remark = "impractical: " + o.Impractical
+			remark = note("impractical", o.Name+": impractical: "+o.Impractical)
 		case o.Suppressor.Kind == circuit.Bridge:
-			remark = "needs an H-bridge (comparison only)"
+			remark = "needs an H-bridge"
 		}
 		if k == cmp.Recommended {
 			remark = "<- recommended"
 		}
-		row := []string{o.Name, release, drop, si(o.PeakSwitchVoltage, "V"), si(o.ClampEnergy, "J")}
-		if chop {
+		rows = append(rows, []string{o.Name, release, drop, si(o.PeakSwitchVoltage, "V"), yes[o.MeetsRelease], yes[o.WithinRating], remark})
+	}
+	fmt.Fprintln(b, "Release and switch stress (switch peak: the peak switch voltage at turn-off)")
+	writeTable(b, rows)
+	for k, n := range notes {
+		wrapLine(b, fmt.Sprintf("note %d: %s", k+1, n))
+	}
+	if !md.Control.FastDecay && md.Control.Chops() {
+		wrapLine(b, "Slow decay: the chopping off-times recirculate through the driver's own path, not through these parts; if a freewheel diode across the coil is that path, it also carries the hold's recirculation power (see coilkick run).")
+	}
+	fmt.Fprintln(b)
+	fmt.Fprintln(b, "What each part must take (turn-off energy: from de-energize to the end of its conduction, per operation)")
+	writeTable(b, clampPartRows(cmp, md.Control.Chops()))
+	fmt.Fprintln(b)
+}
+
+// clampPartRows are the second clamps table: per option its peak current,
+// turn-off energy, chopping power (chopped drives only), average power at
+// the operating pattern (with a duty section only) and energy per
+// operation (the turn-off pulse and chopping of one actuation: the
+// recommendation's tie-break).
+func clampPartRows(cmp *coilkick.ClampComparison, chops bool) [][]string {
+	head := []string{"option", "peak current", "turn-off energy"}
+	if chops {
+		head = append(head, "chopping power")
+	}
+	if cmp.Rate > 0 {
+		head = append(head, "average power")
+	}
+	head = append(head, "energy/operation")
+	rows := [][]string{head}
+	for _, o := range cmp.Options {
+		if o.NoFit != "" || o.Err != "" {
+			rows = append(rows, dashRow(o.Name, len(head), "-"))
+			continue
+		}
+		row := []string{o.Name, si(o.PeakClampCurrent, "A"), si(o.ClampEnergy, "J")}
+		if chops {
 			row = append(row, si(o.ChopPower, "W"))
 		}
 		if cmp.Rate > 0 {
 			row = append(row, si(o.ClampPower, "W"))
 		}
-		rows = append(rows, append(row, yes[o.MeetsRelease], yes[o.WithinRating], remark))
+		rows = append(rows, append(row, si(o.OperationEnergy, "J")))
 	}
-	writeTable(b, rows)
-	if !md.Control.FastDecay && md.Control.Chops() {
-		fmt.Fprintln(b, "Slow decay: the chopping off-times recirculate through the driver's own path, not through these parts; if a freewheel diode across the coil is that path, it also carries the hold's recirculation power (see coilkick run).")
+	return rows
+}
+
+// dashRow is a row of n cells for an option without figures: its name,
+// "-" in every figure cell, and last in the last cell.
+func dashRow(name string, n int, last string) []string {
+	row := []string{name}
+	for len(row) < n-1 {
+		row = append(row, "-")
+	}
+	return append(row, last)
+}
+
+// wrapLine prints text wrapped at word boundaries to lines of at most
+// clampsWidth columns (a word longer than that stays whole), continued
+// lines indented by two spaces.
+func wrapLine(w io.Writer, text string) {
+	line := ""
+	for _, word := range strings.Fields(text) {
+		switch {
+		case line == "":
+			line = word
+		case utf8.RuneCountInString(line)+1+utf8.RuneCountInString(word) > clampsWidth:
+			fmt.Fprintln(w, line)
+			line = "  " + word
+		default:
+			line += " " + word
+		}
+	}
+	if line != "" {
+		fmt.Fprintln(w, line)
 	}
 }
 
@@ -315,35 +381,21 @@ func clampsPlot(md *coilkick.Model, cmp *coilkick.ClampComparison) *plot.Figure 
 	var pts []plot.ScatterPoint
 	var zeners []int
 	for k, o := range cmp.Options {
-		if o.Err == "" && o.Suppressor.Kind == circuit.DiodeZener {
+		if o.Err == "" && o.NoFit == "" && o.Suppressor.Kind == circuit.DiodeZener {
 			zeners = append(zeners, k)
 		}
 	}
 	var notes []string
 	for k, o := range cmp.Options {
-		if o.Err != "" {
+		switch {
+		case o.NoFit != "":
+			notes = append(notes, o.NoFit)
+			continue
+		case o.Err != "":
 			notes = append(notes, "not simulated: "+o.Name)
 			continue
 		}
-		label := o.Name
-		switch o.Suppressor.Kind {
-		case circuit.DiodeZener:
-			// Label the first, the last and every sixth Zener only.
-			label = ""
-			for n, z := range zeners {
-				if z == k && (n == 0 || n == len(zeners)-1 || n%6 == 0) {
-					label = strings.TrimPrefix(o.Name, "diode + ")
-				}
-			}
-		case circuit.Snubber:
-			label = "RC snubber"
-			if o.Impractical != "" {
-				label += " (impractical)"
-			}
-		}
-		if k == cmp.Recommended {
-			label = strings.TrimPrefix(o.Name, "diode + ") + " (recommended)"
-		}
+		label := clampPointLabel(o, k, zeners, k == cmp.Recommended)
 		y := math.NaN()
 		if o.Release.Happened && o.DropOut == "" {
 			y = o.Release.Seconds * 1e3
@@ -364,6 +416,31 @@ func clampsPlot(md *coilkick.Model, cmp *coilkick.ClampComparison) *plot.Figure 
 		FailedLabel:  "misses the release requirement or the derated rating",
 		MissingLabel: "no release (drops out while energized, or never releases)",
 		Notes:        notes})
+}
+
+// clampPointLabel is the label of option o (index k) on the clamps plot:
+// its name, except that only the first, the last and every sixth Zener
+// (zeners: their indices) are labelled, a snubber is "RC snubber" (marked
+// when impractical), and the recommended option says so.
+func clampPointLabel(o coilkick.ClampOption, k int, zeners []int, recommended bool) string {
+	if recommended {
+		return strings.TrimPrefix(o.Name, "diode + ") + " (recommended)"
+	}
+	switch o.Suppressor.Kind {
+	case circuit.DiodeZener:
+		for n, z := range zeners {
+			if z == k && (n == 0 || n == len(zeners)-1 || n%6 == 0) {
+				return strings.TrimPrefix(o.Name, "diode + ")
+			}
+		}
+		return ""
+	case circuit.Snubber:
+		if o.Impractical != "" {
+			return "RC snubber (impractical)"
+		}
+		return "RC snubber"
+	}
+	return o.Name
 }
 
 // solveAnswer is one answer of solve: its identifier for scripts, the
@@ -802,9 +879,9 @@ func clampRecords(md *coilkick.Model, cmp *coilkick.ClampComparison) []record {
 
 // clampRecord is option k: the part (kind, conduction voltage, Zener
 // voltage, snubber R and C: null where they do not apply), its figures
-// (null when it could not be simulated; release and drop null when they
-// did not happen or do not apply after a drop-out), the verdicts and the
-// reasons.
+// (null when it could not be simulated or no part of its kind fits;
+// release and drop null when they did not happen or do not apply after a
+// drop-out), the verdicts and the reasons.
 func clampRecord(md *coilkick.Model, cmp *coilkick.ClampComparison, k int, o coilkick.ClampOption) record {
 	sup := o.Suppressor
 	var vCond, vZener, rSnub, cSnub any
@@ -812,7 +889,7 @@ func clampRecord(md *coilkick.Model, cmp *coilkick.ClampComparison, k int, o coi
 	case circuit.Snubber:
 		rSnub, cSnub = sup.Resistance, sup.Capacitance
 	case circuit.DiodeZener:
-		vCond, vZener = sup.Voltage, sup.Voltage-coilkick.AssumedDiodeDrop
+		vCond, vZener = sup.Voltage, o.ZenerVoltage
 	default:
 		if sup.Voltage > 0 {
 			vCond = sup.Voltage
@@ -824,7 +901,7 @@ func clampRecord(md *coilkick.Model, cmp *coilkick.ClampComparison, k int, o coi
 		"turn_off_energy_J", "avalanche_energy_J", "chopping_power_W", "operation_energy_J", "average_power_W",
 		"meets_release", "within_rating"}
 	vals := make([]any, len(figures))
-	if o.Err == "" && o.Name != "" {
+	if o.Err == "" && o.NoFit == "" && o.Name != "" {
 		vals = []any{seconds(o.Release), seconds(o.Drop), seconds(o.Decay), o.PeakSwitchVoltage, o.PeakClampCurrent,
 			o.ClampEnergy, o.AvalancheEnergy, optional(o.ChopPower, md.Control.Chops()), o.OperationEnergy, optional(o.ClampPower, cmp.Rate > 0),
 			o.MeetsRelease, o.WithinRating}
@@ -836,7 +913,7 @@ func clampRecord(md *coilkick.Model, cmp *coilkick.ClampComparison, k int, o coi
 		r = append(r, field{key, vals[j]})
 	}
 	return append(r, field{"recommended", k >= 0 && k == cmp.Recommended}, field{"impractical", text(o.Impractical)},
-		field{"drop_out", text(o.DropOut)}, field{"error", text(o.Err)})
+		field{"drop_out", text(o.DropOut)}, field{"no_fit", text(o.NoFit)}, field{"error", text(o.Err)})
 }
 
 // solveDoc is the solve --json document.
@@ -854,7 +931,9 @@ type solveDoc struct {
 // its value and search range ("" for a plain number such as a duty), the
 // value (null when none was found, the answer is blocked, not asked or
 // failed), whether it was found, the range searched, and the texts: the
-// requirement already met, blocked, not asked, the note, the error.
+// requirement already met, blocked, not asked, the note, the error; then
+// whether it is met and, for a clamp voltage found, the next E24 value
+// (null otherwise).
 func solveRecord(a solveAnswer) record {
 	s := a.sol
 	var value, lo, hi any
@@ -875,5 +954,6 @@ func solveRecord(a solveAnswer) record {
 	return record{{"id", a.id}, {"what", s.What}, {"unit", s.Unit}, {"value", value}, {"found", a.err == nil && a.notAsked == "" && s.Found},
 		{"search_low", lo}, {"search_high", hi}, {"winding_degC", optional(toDegC(a.winding), a.winding > 0)},
 		{"already_met", text(s.AlreadyMet)}, {"blocked", text(s.Blocked)}, {"not_asked", text(a.notAsked)},
-		{"note", text(s.Note)}, {"error", errText}, {"met", met}}
+		{"note", text(s.Note)}, {"error", errText}, {"met", met},
+		{"next_e24_voltage_V", optional(s.NextE24, a.err == nil && s.NextE24 > 0)}}
 }
