@@ -1,7 +1,6 @@
 package coilkick
 
 import (
-	"bufio"
 	"encoding/csv"
 	"errors"
 	"fmt"
@@ -12,6 +11,8 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+
+	"coilkick/magnet"
 )
 
 // MeasuredTrace is a bench recording of one actuation: coil current (and
@@ -121,10 +122,6 @@ func quoteCell(s string) string {
 	return strconv.Quote(s)
 }
 
-// utf8BOM is the byte-order mark some programs write at the start of a
-// UTF-8 file.
-const utf8BOM = "\uFEFF"
-
 // ReadTraceCSV reads a trace from CSV. A UTF-8 byte-order mark at the
 // start is skipped; lines starting with '#' are comments. The first row
 // names the columns with their units: "time (ms)", "current [mA]" or
@@ -179,31 +176,25 @@ func ReadTraceCSV(r io.Reader, name string) (*MeasuredTrace, error) {
 
 // traceReader reads a trace's CSV records with their file lines.
 type traceReader struct {
-	cr       *csv.Reader
+	cr       *magnet.CSVReader
 	name     string
 	lastLine int // the file line of the last record read
 }
 
 // newTraceReader reads at most MaxTableBytes from r, skipping a UTF-8
-// byte-order mark and '#' comments.
+// byte-order mark and '#' comments (magnet.CSVReader: a syntax error's
+// column counts characters, not bytes).
 func newTraceReader(r io.Reader, name string) *traceReader {
-	br := bufio.NewReader(&limitedReader{r: r, n: MaxTableBytes})
-	if b, err := br.Peek(len(utf8BOM)); err == nil && string(b) == utf8BOM {
-		br.Discard(len(utf8BOM))
-	}
-	cr := csv.NewReader(br)
-	cr.Comment = '#'
-	cr.FieldsPerRecord = -1
-	cr.TrimLeadingSpace = true
-	cr.ReuseRecord = true
-	cr.LazyQuotes = true // a stray quote stays in its cell, which is then not a number (named by column)
+	cr := magnet.NewCSVReader(&limitedReader{r: r, n: MaxTableBytes})
+	cr.CSV.ReuseRecord = true
+	cr.CSV.LazyQuotes = true // a stray quote stays in its cell, which is then not a number (named by column)
 	return &traceReader{cr: cr, name: name}
 }
 
 // read returns the next record and its file line, or io.EOF; an error
 // says what was expected.
 func (rd *traceReader) read(expect string) ([]string, int, error) {
-	rec, err := rd.cr.Read()
+	rec, line, err := rd.cr.Read()
 	if err == io.EOF {
 		return nil, 0, err
 	}
@@ -214,8 +205,8 @@ func (rd *traceReader) read(expect string) ([]string, int, error) {
 		}
 		return nil, 0, fmt.Errorf("%s:%d: %v", rd.name, rd.lastLine+1, err)
 	}
-	rd.lastLine, _ = rd.cr.FieldPos(0)
-	return rec, rd.lastLine, nil
+	rd.lastLine = line
+	return rec, line, nil
 }
 
 // traceHeader reads the header's columns into a new trace: time and

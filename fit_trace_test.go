@@ -141,14 +141,14 @@ func TestReadTraceBOM(t *testing.T) {
 	for k := 0; k < 12; k++ {
 		body += fmt.Sprintf("%d, %d\n", k, k)
 	}
-	for _, text := range []string{utf8BOM + body, utf8BOM + "# scope export\n" + body} {
+	for _, text := range []string{"\uFEFF" + body, "\uFEFF# scope export\n" + body} {
 		tr, err := ReadTraceCSV(strings.NewReader(text), "bom.csv")
 		if err != nil || len(tr.Time) != 12 || tr.Columns[0].Header != "time (ms)" {
 			t.Errorf("trace with a BOM: %v", err)
 		}
 	}
 	// Only at the start: a BOM in a later cell is a bad cell.
-	if _, err := ReadTraceCSV(strings.NewReader(body+utf8BOM+"12, 12\n"), "bom.csv"); err == nil || !strings.Contains(err.Error(), `bom.csv:14: column 1 "time (ms)"`) {
+	if _, err := ReadTraceCSV(strings.NewReader(body+"\uFEFF12, 12\n"), "bom.csv"); err == nil || !strings.Contains(err.Error(), `bom.csv:14: column 1 "time (ms)"`) {
 		t.Errorf("BOM inside the file: error %v", err)
 	}
 	// The committed BOM file reads to the same samples as every second

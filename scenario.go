@@ -150,6 +150,9 @@ type MagnetSpec struct {
 	GapScale     float64 // SI value of one table gap unit (m)
 	FluxScale    float64 // SI value of one table flux-linkage unit (Wb)
 	TableUnits   string  // the table's units as written, for messages
+	// the table's units as written ("mA", "mm", "mWb"), for the values
+	// its messages quote
+	CurrentUnit, GapUnit, FluxUnit string
 
 	// geometry
 	Geometry GeometrySpec
@@ -174,6 +177,7 @@ type GeometrySpec struct {
 	SteelCurveFile                 string  // B–H table instead of the analytic law ("" for none)
 	HScale, BScale                 float64 // SI value of one file unit (A/m, T)
 	CurveUnits                     string  // the curve file's units as written, for messages
+	HUnit, BUnit                   string  // the curve file's units as written ("kA/m", "T")
 	TableCurrents, TableGaps       int     // grid size of the built table
 	MaxCurrent                     float64 // A, top of the table's current range; 0: 3 × rated
 }

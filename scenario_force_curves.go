@@ -55,6 +55,10 @@ type forceCurveFile struct {
 	volts   []float64
 	stroke  bool    // the first column gave the stroke from the seated gap
 	seated  float64 // m, the seated gap a stroke counts from
+	// the columns' headers as written and units (as written, with their
+	// SI values), for messages in the file's units
+	headers [3]string
+	units   [3]magnet.Unit
 }
 
 // curveColumns are the quantities of a force-curve file's three columns.
@@ -65,34 +69,34 @@ var curveColumns = [3]map[string]Dim{
 }
 
 // readCurveHeader parses the header cells into the columns' names and
-// scales.
-func readCurveHeader(name string, line int, rec []string) (names [3]string, scales [3]float64, err error) {
+// units.
+func readCurveHeader(name string, line int, rec []string) (names [3]string, units [3]magnet.Unit, err error) {
 	const want = `three columns with units, e.g. "stroke (mm), current (A), force (N)" or "gap (mm), voltage (V), force (N)"`
 	if len(rec) != 3 {
-		return names, scales, fmt.Errorf("%s:%d: the header has %d columns; expected %s", name, line, len(rec), want)
+		return names, units, fmt.Errorf("%s:%d: the header has %d columns; expected %s", name, line, len(rec), want)
 	}
 	for k, h := range rec {
 		where := fmt.Sprintf("%s:%d: column %d %s", name, line, k+1, quoteCell(h))
 		m := columnRE.FindStringSubmatch(h)
 		if len(h) > maxHeaderCell || m == nil {
-			return names, scales, fmt.Errorf("%s: expected a name and a unit; the header needs %s", where, want)
+			return names, units, fmt.Errorf("%s: expected a name and a unit; the header needs %s", where, want)
 		}
 		n := strings.ToLower(strings.Join(strings.Fields(strings.ReplaceAll(m[1], "_", " ")), " "))
 		dim, ok := curveColumns[k][n]
 		if !ok {
-			return names, scales, fmt.Errorf("%s: unknown quantity; the header needs %s", where, want)
+			return names, units, fmt.Errorf("%s: unknown quantity; the header needs %s", where, want)
 		}
 		unit := strings.TrimSpace(m[2] + m[3])
 		if unit == "" {
-			return names, scales, fmt.Errorf("%s has no unit; expected %s, e.g. %q", where, dim.Name(), n+" ("+strings.Fields(dim.Example())[1]+")")
+			return names, units, fmt.Errorf("%s has no unit; expected %s, e.g. %q", where, dim.Name(), n+" ("+strings.Fields(dim.Example())[1]+")")
 		}
 		v, err := ParseQuantity("1 "+unit, dim)
 		if err != nil || !(v > 0) || math.IsInf(v, 0) {
-			return names, scales, fmt.Errorf("%s: unit %s is not %s, e.g. %q", where, quoteCell(unit), dim.Name(), n+" ("+strings.Fields(dim.Example())[1]+")")
+			return names, units, fmt.Errorf("%s: unit %s is not %s, e.g. %q", where, quoteCell(unit), dim.Name(), n+" ("+strings.Fields(dim.Example())[1]+")")
 		}
-		names[k], scales[k] = n, v
+		names[k], units[k] = n, magnet.Unit{Name: unit, Scale: v}
 	}
-	return names, scales, nil
+	return names, units, nil
 }
 
 // readForceCurves reads a force-curve CSV: a header, then rows of gap (or
@@ -108,11 +112,14 @@ func readForceCurves(r io.Reader, name string, seated float64) (*forceCurveFile,
 	if err != nil {
 		return nil, err
 	}
-	names, scales, err := readCurveHeader(name, line, rec)
+	names, units, err := readCurveHeader(name, line, rec)
 	if err != nil {
 		return nil, err
 	}
-	f := &forceCurveFile{header: line, voltage: names[1] == "voltage", stroke: names[0] == "stroke", seated: seated}
+	f := &forceCurveFile{header: line, voltage: names[1] == "voltage", stroke: names[0] == "stroke", seated: seated, units: units}
+	for k := range f.headers {
+		f.headers[k] = strings.TrimSpace(rec[k])
+	}
 	expect := fmt.Sprintf("%s, %s, %s", quoteCell(rec[0]), quoteCell(rec[1]), quoteCell(rec[2]))
 	for {
 		rec, line, err = rd.read(expect)
@@ -122,7 +129,7 @@ func readForceCurves(r io.Reader, name string, seated float64) (*forceCurveFile,
 		if err != nil {
 			return nil, err
 		}
-		if err := f.addRow(name, line, rec, scales, seated, expect); err != nil {
+		if err := f.addRow(name, line, rec, expect); err != nil {
 			return nil, err
 		}
 	}
@@ -133,8 +140,14 @@ func readForceCurves(r io.Reader, name string, seated float64) (*forceCurveFile,
 	return f, nil
 }
 
-// addRow adds one row to the curves.
-func (f *forceCurveFile) addRow(name string, line int, rec []string, scales [3]float64, seated float64, expect string) error {
+// column names column k (from 0) for messages: column 2 "current (mA)".
+func (f *forceCurveFile) column(k int) string {
+	return fmt.Sprintf("column %d %s", k+1, quoteCell(f.headers[k]))
+}
+
+// addRow adds one row (at line) to the curves. Its messages name the
+// column by its header and give values in the file's units.
+func (f *forceCurveFile) addRow(name string, line int, rec []string, expect string) error {
 	if len(rec) != 3 {
 		return fmt.Errorf("%s:%d: %d cells; expected 3 (%s)", name, line, len(rec), expect)
 	}
@@ -142,15 +155,15 @@ func (f *forceCurveFile) addRow(name string, line int, rec []string, scales [3]f
 	for k := range v {
 		x, err := strconv.ParseFloat(strings.TrimSpace(rec[k]), 64)
 		if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
-			return fmt.Errorf("%s:%d: column %d: %s is not a finite number (%s)", name, line, k+1, quoteCell(rec[k]), expect)
+			return fmt.Errorf("%s:%d: %s: %s is not a finite number (%s)", name, line, f.column(k), quoteCell(rec[k]), expect)
 		}
-		v[k] = x * scales[k]
+		v[k] = x * f.units[k].Scale
+	}
+	if err := f.checkCells(v); err != "" {
+		return fmt.Errorf("%s:%d: %s", name, line, err)
 	}
 	if f.stroke {
-		if v[0] < 0 {
-			return fmt.Errorf("%s:%d: column 1: stroke %s is negative; the stroke counts from the seated position", name, line, quoteCell(rec[0]))
-		}
-		v[0] += seated
+		v[0] += f.seated
 	}
 	n := len(f.curves)
 	if n == 0 || v[1] != f.level(n-1) {
@@ -162,7 +175,8 @@ func (f *forceCurveFile) addRow(name string, line int, rec []string, scales [3]f
 			if f.voltage {
 				what = "voltage"
 			}
-			return fmt.Errorf("%s:%d: column 2: %s falls below the previous curve's %g; give the curves in order of rising %s, each as one run of rows", name, line, quoteCell(rec[1]), f.level(n-1)/scales[1], what)
+			u := f.units[1]
+			return fmt.Errorf("%s:%d: %s: %s falls below the previous curve's %s; give the curves in order of rising %s, each as one run of rows", name, line, f.column(1), u.Format(v[1]), u.Format(f.level(n-1)), what)
 		}
 		f.curves = append(f.curves, magnet.ForceCurve{Current: v[1]})
 		f.volts = append(f.volts, v[1])
@@ -173,9 +187,56 @@ func (f *forceCurveFile) addRow(name string, line int, rec []string, scales [3]f
 	if len(c.Gaps) >= magnet.MaxCurvePoints {
 		return fmt.Errorf("%s:%d: more than %d points in one curve", name, line, magnet.MaxCurvePoints)
 	}
+	if err := f.checkOrder(c, v[0]); err != "" {
+		return fmt.Errorf("%s:%d: %s", name, line, err)
+	}
 	c.Gaps, c.Forces = append(c.Gaps, v[0]), append(c.Forces, v[2])
 	f.lines[n-1] = append(f.lines[n-1], line)
 	return nil
+}
+
+// checkCells returns what is wrong with a row's values v (SI, the stroke
+// not yet turned into a gap), or "": a negative gap or stroke, a current
+// or voltage not above zero, a negative force.
+func (f *forceCurveFile) checkCells(v [3]float64) string {
+	switch {
+	case v[0] < 0 && f.stroke:
+		return fmt.Sprintf("%s: stroke %s is negative; the stroke counts from the seated position", f.column(0), f.units[0].Format(v[0]))
+	case v[0] < 0:
+		return fmt.Sprintf("%s: gap %s is negative; expected a gap ≥ 0", f.column(0), f.units[0].Format(v[0]))
+	case !(v[1] > 0):
+		return fmt.Sprintf("%s: %s must be positive, got %s (a curve without current has no pull)", f.column(1), map[bool]string{false: "current", true: "voltage"}[f.voltage], f.units[1].Format(v[1]))
+	case v[2] < 0:
+		return fmt.Sprintf("%s: force %s is negative; force must be ≥ 0 (a pull)", f.column(2), f.units[2].Format(v[2]))
+	}
+	return ""
+}
+
+// checkOrder returns what is wrong with gap x (m) as the next point of
+// curve c, or "": a curve's gaps (or strokes) rise or fall strictly, the
+// way its first two points go. The message gives the values as the file
+// does (a stroke as the stroke).
+func (f *forceCurveFile) checkOrder(c *magnet.ForceCurve, x float64) string {
+	n := len(c.Gaps)
+	if n == 0 {
+		return ""
+	}
+	what, show := "gap", f.units[0].Format
+	if f.stroke {
+		what, show = "stroke", f.strokeOf
+	}
+	prev := c.Gaps[n-1]
+	rising := n < 2 || c.Gaps[1] > c.Gaps[0]
+	if x == prev || (n >= 2 && (x > prev) != rising) {
+		return fmt.Sprintf("%s: %s %s does not follow %s of the previous row (line %d) in the curve's direction: a curve's %ss must rise (or fall) strictly",
+			f.column(0), what, show(x), show(prev), f.lines[len(f.lines)-1][n-1], what)
+	}
+	return ""
+}
+
+// strokeOf returns gap x (m) as the stroke in the file's unit: "0.3 mm".
+func (f *forceCurveFile) strokeOf(x float64) string {
+	return strconv.FormatFloat((x-f.seated)/f.units[0].Scale, 'g', 6, 64) + " " + f.units[0].Name
 }
 
 // level is curve k's current or voltage as read.
@@ -225,26 +286,100 @@ func buildForceCurves(s *Scenario, md *Model) (*magnet.CurveModel, *forceCurveFi
 	return cm, f, nil
 }
 
-// gapInMessage finds "at gap 0.35 mm" in a model error.
-var gapInMessage = regexp.MustCompile(`at gap ([0-9.e+-]+) mm`)
+// valueInMessage finds a value of a force-curve model's message (in mm,
+// A or N, as magnet.NewCurveModel writes them), or a range of them
+// ("0.1–1.2 mm"), with the word before it that says what it is.
+var valueInMessage = regexp.MustCompile(`(gaps? |the stroke )?(-?[0-9.]+(?:e[+-]?[0-9]+)?)(?:–(-?[0-9.]+(?:e[+-]?[0-9]+)?))? (mm|A|N)\b`)
 
-// curveError names the file line of a model error.
+// fileUnits rewrites the values of a model message in the file's units:
+// a current as the file gives its curve (the current or the voltage as
+// written), a force in the force column's unit, a gap in the gap
+// column's unit or, when the file counts the stroke, as the stroke with
+// the gap beside it.
+func (f *forceCurveFile) fileUnits(msg string) string {
+	return valueInMessage.ReplaceAllStringFunc(msg, func(m string) string {
+		sub := valueInMessage.FindStringSubmatch(m)
+		word, unit := sub[1], sub[4]
+		var xs []float64
+		for _, t := range sub[2:4] {
+			if t == "" {
+				continue
+			}
+			x, err := strconv.ParseFloat(t, 64)
+			if err != nil {
+				return m
+			}
+			xs = append(xs, x)
+		}
+		switch unit {
+		case "A":
+			return word + f.currentText(sub[2], xs[0])
+		case "N":
+			return word + f.rangeText(xs, 1, f.units[2])
+		}
+		for k := range xs {
+			xs[k] *= 1e-3 // mm
+		}
+		if !f.stroke {
+			if word == "the stroke " {
+				word = "the stroke's gaps "
+			}
+			return word + f.rangeText(xs, 1, f.units[0])
+		}
+		gaps := word
+		switch word {
+		case "the stroke ":
+			gaps = "gaps "
+		case "":
+			word = "stroke "
+		default:
+			word = strings.Replace(word, "gap", "stroke", 1)
+		}
+		for k := range xs {
+			xs[k] -= f.seated
+		}
+		strokes := f.rangeText(xs, 1, f.units[0])
+		return fmt.Sprintf("%s%s (%s%s)", word, strokes, gaps, sub[0][len(sub[1]):])
+	})
+}
+
+// rangeText is "x u" or "x1–x2 u" of the SI values xs in unit u, to 4
+// digits; scale multiplies them first.
+func (f *forceCurveFile) rangeText(xs []float64, scale float64, u magnet.Unit) string {
+	var parts []string
+	for _, x := range xs {
+		parts = append(parts, strconv.FormatFloat(x*scale/u.Scale, 'g', 4, 64))
+	}
+	return strings.Join(parts, "–") + " " + u.Name
+}
+
+// currentText is a model message's current x (A, written as text) as the
+// file gives it: the current or voltage of the curve it is, as written
+// ("300 mA", "24 V (0.4 A)"); another current in the current column's
+// unit.
+func (f *forceCurveFile) currentText(text string, x float64) string {
+	for k, c := range f.curves {
+		if strconv.FormatFloat(c.Current, 'g', 4, 64) == text {
+			if f.voltage {
+				return fmt.Sprintf("%s (%s A)", f.units[1].Format(f.volts[k]), text)
+			}
+			return f.units[1].Format(f.volts[k])
+		}
+	}
+	if f.voltage || x == 0 {
+		return text + " A"
+	}
+	return f.units[1].Approx(x)
+}
+
+// curveError names the file line of a model error and gives its values in
+// the file's units.
 func (f *forceCurveFile) curveError(name string, err error) string {
 	ce, ok := err.(*magnet.CurveError)
 	if !ok {
 		return err.Error()
 	}
-	msg := ce.Msg
-	if f.stroke {
-		// the file counts the stroke: say it so, with the gap beside it
-		msg = gapInMessage.ReplaceAllStringFunc(msg, func(g string) string {
-			x, err := strconv.ParseFloat(gapInMessage.FindStringSubmatch(g)[1], 64)
-			if err != nil {
-				return g
-			}
-			return fmt.Sprintf("at stroke %.4g mm (gap %.4g mm)", x-f.seated*1e3, x)
-		})
-	}
+	msg := f.fileUnits(ce.Msg)
 	switch {
 	case ce.Curve >= 0 && ce.Point >= 0 && ce.Point < len(f.lines[ce.Curve]):
 		line := f.lines[ce.Curve][ce.Point]
@@ -263,10 +398,11 @@ func (f *forceCurveFile) curveError(name string, err error) string {
 	return fmt.Sprintf("%s: %s", name, msg)
 }
 
-// curveLabel is "0.5 A" or "24 V (0.4 A at the curves' temperature)".
+// curveLabel is the curve's current or voltage as the file gives it:
+// "500 mA" or "24 V, 0.4 A" (the current at the curves' temperature).
 func (f *forceCurveFile) curveLabel(k int) string {
 	if f.voltage {
-		return fmt.Sprintf("%.4g V, %.4g A", f.volts[k], f.curves[k].Current)
+		return fmt.Sprintf("%s, %.4g A", f.units[1].Format(f.volts[k]), f.curves[k].Current)
 	}
-	return fmt.Sprintf("%.4g A", f.curves[k].Current)
+	return f.units[1].Format(f.volts[k])
 }

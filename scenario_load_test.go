@@ -210,14 +210,14 @@ func TestLoadBad(t *testing.T) {
 		{"table_file_control.yaml", 9, 11, []string{`magnet.table.file: "table\x1b[31m.csv": a file name with the control character or invalid byte U+001B is refused`}},
 		{"curve_device.yaml", 31, 13, []string{`magnet.geometry.steel curve.file: "/dev/zero" is not a regular file (a device): refused`}},
 		// CSV inputs (read by Build): the scenario's field, the CSV's line and column, the units.
-		{"table_bad_cell.yaml", 9, 11, []string{"magnet.table.file: testdata/bad/table_bad_cell.csv:9:32: flux linkage (cell 5): not a finite number: \"abc\"",
+		{"table_bad_cell.yaml", 9, 11, []string{"magnet.table.file: testdata/bad/table_bad_cell.csv:9:32: flux linkage at gap 0.3 mm (cell 5), in mWb: not a finite number: \"abc\"",
 			"the table's units: current in mA, gap in mm, flux linkage in mWb"}},
 		{"table_bom_bad.yaml", 9, 11, []string{"magnet.table.file: testdata/bad/table_bom_bad.csv:9:14: flux linkage must be strictly increasing in current",
 			"the table's units: current in mA, gap in mm, flux linkage in mWb"}},
 		{"table_too_many_gaps.yaml", 9, 11, []string{"magnet.table.file: testdata/bad/table_too_many_gaps.csv:2:3342: header has 501 gaps, more than the 500 a table may have"}},
-		{"curve_bad_cell.yaml", 31, 13, []string{"magnet.geometry.steel curve.file: testdata/bad/curve_bad_cell.csv:8:6: B (cell 2): not a finite number: \"1.2x\"",
+		{"curve_bad_cell.yaml", 31, 13, []string{"magnet.geometry.steel curve.file: testdata/bad/curve_bad_cell.csv:8:6: B (cell 2), in T: not a finite number: \"1.2x\"",
 			"the curve's units: field strength in kA/m, flux density in T"}},
-		{"curve_bom_bad.yaml", 31, 13, []string{"magnet.geometry.steel curve.file: testdata/bad/curve_bom_bad.csv:9:6: flux density must be strictly increasing: 0.85 T after 0.9 T"}},
+		{"curve_bom_bad.yaml", 31, 13, []string{"magnet.geometry.steel curve.file: testdata/bad/curve_bom_bad.csv:9:6: flux density must be strictly increasing: 0.85 T is not above the previous point's 0.9 T"}},
 		// Geometry: plain words, no Go field names.
 		{"geometry_pole_too_fat.yaml", 19, 3, []string{"magnet.geometry: plunger geometry: pole diameter 12 mm must fit in the coil bore, the winding's inner diameter 10 mm"}},
 		{"geometry_plunger_too_fat.yaml", 19, 3, []string{"magnet.geometry: plunger geometry: the plunger with its sliding gap (plunger diameter + 2 × sliding gap = 11 mm) must fit in the coil bore"}},

@@ -115,9 +115,10 @@ func (l *scenarioLoader) loadTable(sec *yamlSection) {
 	l.unit(sec, "current unit", &m.CurrentScale)
 	l.unit(sec, "gap unit", &m.GapScale)
 	l.unit(sec, "flux linkage unit", &m.FluxScale)
-	m.TableUnits = fmt.Sprintf("current in %s, gap in %s, flux linkage in %s (magnet.table)",
-		strings.TrimSpace(l.text["magnet.table.current unit"]), strings.TrimSpace(l.text["magnet.table.gap unit"]),
-		strings.TrimSpace(l.text["magnet.table.flux linkage unit"]))
+	m.CurrentUnit = strings.TrimSpace(l.text["magnet.table.current unit"])
+	m.GapUnit = strings.TrimSpace(l.text["magnet.table.gap unit"])
+	m.FluxUnit = strings.TrimSpace(l.text["magnet.table.flux linkage unit"])
+	m.TableUnits = fmt.Sprintf("current in %s, gap in %s, flux linkage in %s (magnet.table)", m.CurrentUnit, m.GapUnit, m.FluxUnit)
 }
 
 // file reads the key "file" of sec, a file name checked by inputFile (kind
@@ -141,7 +142,8 @@ func readFluxTable(s *Scenario) (*magnet.Table, error) {
 		return nil, s.Errorf("magnet.table.file", "%v", err)
 	}
 	defer f.Close()
-	tb, err := magnet.ReadTableCSV(f, m.TableFile, m.CurrentScale, m.GapScale, m.FluxScale)
+	tb, err := magnet.ReadTableCSV(f, m.TableFile, magnet.Unit{Name: m.CurrentUnit, Scale: m.CurrentScale},
+		magnet.Unit{Name: m.GapUnit, Scale: m.GapScale}, magnet.Unit{Name: m.FluxUnit, Scale: m.FluxScale})
 	if err != nil {
 		return nil, s.Errorf("magnet.table.file", "%s; the table's units: %s", inputDetail(err), m.TableUnits)
 	}
@@ -158,7 +160,7 @@ func readSteelCurve(s *Scenario) (*magnet.BHTable, error) {
 		return nil, s.Errorf(field, "%v", err)
 	}
 	defer f.Close()
-	bh, err := magnet.ReadBHCSV(f, gs.SteelCurveFile, gs.HScale, gs.BScale)
+	bh, err := magnet.ReadBHCSV(f, gs.SteelCurveFile, magnet.Unit{Name: gs.HUnit, Scale: gs.HScale}, magnet.Unit{Name: gs.BUnit, Scale: gs.BScale})
 	if err != nil {
 		return nil, s.Errorf(field, "%s; the curve's units: %s", inputDetail(err), gs.CurveUnits)
 	}

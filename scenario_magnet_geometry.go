@@ -99,6 +99,7 @@ func (l *scenarioLoader) loadSteelCurve(sc *yamlSection) {
 	gs.SteelCurveFile = l.file(sc, "steel curve")
 	l.unit(sc, "field unit", &gs.HScale)
 	l.unit(sc, "flux density unit", &gs.BScale)
-	gs.CurveUnits = fmt.Sprintf("field strength in %s, flux density in %s (magnet.geometry.steel curve)",
-		strings.TrimSpace(l.text["magnet.geometry.steel curve.field unit"]), strings.TrimSpace(l.text["magnet.geometry.steel curve.flux density unit"]))
+	gs.HUnit = strings.TrimSpace(l.text["magnet.geometry.steel curve.field unit"])
+	gs.BUnit = strings.TrimSpace(l.text["magnet.geometry.steel curve.flux density unit"])
+	gs.CurveUnits = fmt.Sprintf("field strength in %s, flux density in %s (magnet.geometry.steel curve)", gs.HUnit, gs.BUnit)
 }

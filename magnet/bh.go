@@ -133,7 +133,7 @@ const (
 // points, of equal count, all finite, starting at exactly (0, 0), with h
 // and b both strictly increasing.
 func NewBHTable(h, b []float64) (*BHTable, error) {
-	t, idx, msg := newBHTable(h, b)
+	t, idx, msg := newBHTable(h, b, siBHUnits)
 	if msg != "" {
 		if idx >= 0 {
 			return nil, fmt.Errorf("magnet: B–H table: point %d: %s", idx+1, msg)
@@ -143,10 +143,17 @@ func NewBHTable(h, b []float64) (*BHTable, error) {
 	return t, nil
 }
 
+// bhUnits are the units a B–H curve's messages give its values in: the
+// file's for ReadBHCSV, SI for NewBHTable.
+type bhUnits struct{ h, b Unit }
+
+// siBHUnits are the SI units of NewBHTable.
+var siBHUnits = bhUnits{h: Unit{"A/m", 1}, b: Unit{"T", 1}}
+
 // newBHTable returns the table, or the 0-based point index (−1 for none)
-// and a message.
-func newBHTable(h, b []float64) (*BHTable, int, string) {
-	if idx, msg := checkBH(h, b); msg != "" {
+// and a message with values in units u.
+func newBHTable(h, b []float64, u bhUnits) (*BHTable, int, string) {
+	if idx, msg := checkBH(h, b, u); msg != "" {
 		return nil, idx, msg
 	}
 	n := len(h)
@@ -166,9 +173,9 @@ func newBHTable(h, b []float64) (*BHTable, int, string) {
 }
 
 // checkBH validates a curve's points (see NewBHTable); it returns the
-// 0-based index of the offending point (−1 for none) and a message, or ""
-// for a good curve.
-func checkBH(h, b []float64) (int, string) {
+// 0-based index of the offending point (−1 for none) and a message with
+// values in units u, or "" for a good curve.
+func checkBH(h, b []float64, u bhUnits) (int, string) {
 	if len(h) != len(b) {
 		return -1, fmt.Sprintf("need one flux density per field strength, got %d H and %d B values", len(h), len(b))
 	}
@@ -182,25 +189,26 @@ func checkBH(h, b []float64) (int, string) {
 	for k := range h {
 		switch {
 		case !isFinite(h[k]):
-			return k, fmt.Sprintf("field strength is not finite: %g A/m", h[k])
+			return k, "field strength is not finite: " + u.h.Format(h[k])
 		case !isFinite(b[k]):
-			return k, fmt.Sprintf("flux density is not finite: %g T", b[k])
+			return k, "flux density is not finite: " + u.b.Format(b[k])
 		case h[k] > maxBHField:
-			return k, fmt.Sprintf("field strength %g A/m is above %g A/m, beyond any measured steel curve: check the field unit", h[k], maxBHField)
+			return k, fmt.Sprintf("field strength %s is above %g A/m, beyond any measured steel curve: check the field unit (%s)", u.h.WithSI(h[k], "A/m"), maxBHField, u.h.Name)
 		case b[k] > maxBHFluxDensity:
-			return k, fmt.Sprintf("flux density %g T is above %g T, beyond any steel: check the flux density unit", b[k], maxBHFluxDensity)
+			return k, fmt.Sprintf("flux density %s is above %g T, beyond any steel: check the flux density unit (%s)", u.b.WithSI(b[k], "T"), maxBHFluxDensity, u.b.Name)
 		case k == 0 && (h[0] != 0 || b[0] != 0):
-			return k, fmt.Sprintf("the curve must start at H = 0 A/m, B = 0 T (no remanence), got (%g A/m, %g T)", h[0], b[0])
+			return k, fmt.Sprintf("the curve must start at H = 0, B = 0 (no remanence), got (%s, %s)", u.h.Format(h[0]), u.b.Format(b[0]))
 		case k > 0 && !(h[k] > h[k-1]):
-			return k, fmt.Sprintf("field strength must be strictly increasing: %g A/m after %g A/m", h[k], h[k-1])
+			return k, fmt.Sprintf("field strength must be strictly increasing: %s is not above the previous point's %s", u.h.Format(h[k]), u.h.Format(h[k-1]))
 		case k > 0 && !(b[k] > b[k-1]):
-			return k, fmt.Sprintf("flux density must be strictly increasing: %g T after %g T", b[k], b[k-1])
+			return k, fmt.Sprintf("flux density must be strictly increasing: %s is not above the previous point's %s", u.b.Format(b[k]), u.b.Format(b[k-1]))
 		}
 	}
 	if h[n-1] < minBHFieldTop || b[n-1] < minBHFluxDensityTop {
-		return n - 1, fmt.Sprintf("the curve ends at %g A/m, %g T: a steel curve reaches at least %g A/m and %g T; check the units", h[n-1], b[n-1], minBHFieldTop, minBHFluxDensityTop)
+		return n - 1, fmt.Sprintf("the curve ends at %s, %s: a steel curve reaches at least %g A/m and %g T; check the units (%s, %s)",
+			u.h.WithSI(h[n-1], "A/m"), u.b.WithSI(b[n-1], "T"), minBHFieldTop, minBHFluxDensityTop, u.h.Name, u.b.Name)
 	}
-	return checkBHSpacing(h, b)
+	return checkBHSpacing(h, b, u)
 }
 
 // Points returns copies of the table's field strengths (A/m) and flux
@@ -254,14 +262,14 @@ func searchNodes(v []float64, x float64) int {
 // checkBHSpacing returns the first point closer than minBHSpacing of the
 // curve's span in H or B to the previous one (such points give slopes that
 // overflow between them), as checkBH does.
-func checkBHSpacing(h, b []float64) (int, string) {
+func checkBHSpacing(h, b []float64, u bhUnits) (int, string) {
 	n := len(h)
 	for k := 1; k < n; k++ {
 		switch {
 		case h[k]-h[k-1] < minBHSpacing*h[n-1]:
-			return k, fmt.Sprintf("field strength %g A/m is too close to the previous point's %g A/m (less than %g of the curve's span)", h[k], h[k-1], minBHSpacing)
+			return k, fmt.Sprintf("field strength %s is too close to the previous point's %s (less than %g of the curve's span)", u.h.Format(h[k]), u.h.Format(h[k-1]), minBHSpacing)
 		case b[k]-b[k-1] < minBHSpacing*b[n-1]:
-			return k, fmt.Sprintf("flux density %g T is too close to the previous point's %g T (less than %g of the curve's span)", b[k], b[k-1], minBHSpacing)
+			return k, fmt.Sprintf("flux density %s is too close to the previous point's %s (less than %g of the curve's span)", u.b.Format(b[k]), u.b.Format(b[k-1]), minBHSpacing)
 		}
 	}
 	return -1, ""
@@ -270,13 +278,14 @@ func checkBHSpacing(h, b []float64) (int, string) {
 // ReadBHCSV reads a B–H curve from CSV and builds a BHTable. Lines starting
 // with '#' are comments and a UTF-8 byte-order mark is skipped. Each row
 // holds H then B; a first row whose first cell is not a number is taken as
-// a header and skipped. Values are multiplied by hScale (A/m per file unit,
-// e.g. 1000 for kA/m) and bScale (T per file unit, e.g. 1e-4 for gauss).
-// The first point must be (0, 0); at most MaxBHPoints are read. Errors are
-// *InputError naming the file, line and column: "magnet: name:LINE:COLUMN:
-// ...".
-func ReadBHCSV(r io.Reader, name string, hScale, bScale float64) (*BHTable, error) {
-	if err := checkScales(name, csvScale{"H", hScale}, csvScale{"B", bScale}); err != nil {
+// a header and skipped. Values are in the file's units h (of A/m, e.g.
+// {"kA/m", 1000}) and b (of T, e.g. {"G", 1e-4}), each cell multiplied by
+// its unit's Scale. The first point must be (0, 0); at most MaxBHPoints
+// are read. Errors are *InputError naming the file, line and column (in
+// characters) and the cell, with values in the file's units as written:
+// "magnet: name:LINE:COLUMN: ...".
+func ReadBHCSV(r io.Reader, name string, h, b Unit) (*BHTable, error) {
+	if err := checkScales(name, []string{"H", "B"}, h, b); err != nil {
 		return nil, err
 	}
 	in := newCSVInput(r, name)
@@ -306,17 +315,17 @@ func ReadBHCSV(r io.Reader, name string, hScale, bScale float64) (*BHTable, erro
 			return nil, inputErr(name, line, 1, "more than %d points: a B–H curve may have at most %d", MaxBHPoints, MaxBHPoints)
 		}
 		p := in.pos(line, 2)
-		h, err := in.value(rec, p, 0, hScale, "H (cell 1)")
+		hv, err := in.value(rec, p, 0, h, "H (cell 1), in "+h.Name)
 		if err != nil {
 			return nil, err
 		}
-		b, err := in.value(rec, p, 1, bScale, "B (cell 2)")
+		bv, err := in.value(rec, p, 1, b, "B (cell 2), in "+b.Name)
 		if err != nil {
 			return nil, err
 		}
-		hs, bs, points = append(hs, h), append(bs, b), append(points, p)
+		hs, bs, points = append(hs, hv), append(bs, bv), append(points, p)
 	}
-	t, idx, msg := newBHTable(hs, bs)
+	t, idx, msg := newBHTable(hs, bs, bhUnits{h: h, b: b})
 	if msg != "" {
 		if idx >= 0 && idx < len(points) {
 			cell := 0 // the H cell, or B for a flux density's error

@@ -203,7 +203,7 @@ func TestReadBHCSV(t *testing.T) {
 		t.Fatal(err)
 	}
 	defer f.Close()
-	tb, err := ReadBHCSV(f, "steel_bh.csv", 1000, 1)
+	tb, err := ReadBHCSV(f, "steel_bh.csv", Unit{"kA/m", 1000}, Unit{"T", 1})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -217,29 +217,29 @@ func TestReadBHCSV(t *testing.T) {
 	bad := []struct {
 		text, want string
 	}{
-		{"H,B\n0,0\n1,x\n", `bad.csv:3:3: B (cell 2): not a finite number: "x"`},
-		{"H,B\n0,0\nx,1\n", `bad.csv:3:1: H (cell 1): not a finite number: "x"`},
+		{"H,B\n0,0\n1,x\n", `bad.csv:3:3: B (cell 2), in T: not a finite number: "x"`},
+		{"H,B\n0,0\nx,1\n", `bad.csv:3:1: H (cell 1), in kA/m: not a finite number: "x"`},
 		{"# c\n0,0\n1\n", "bad.csv:3:1: row has 1 cells"},
-		{"0,0\n0.1,1\n0.05,1.2\n", "bad.csv:3:1: field strength must be strictly increasing"},
-		{"0,0\n0.1,1\n0.2, 0.9\n", "bad.csv:3:6: flux density must be strictly increasing"},
+		{"0,0\n0.1,1\n0.05,1.2\n", "bad.csv:3:1: field strength must be strictly increasing: 0.05 kA/m is not above the previous point's 0.1 kA/m"},
+		{"0,0\n0.1,1\n0.2, 0.9\n", "bad.csv:3:6: flux density must be strictly increasing: 0.9 T is not above the previous point's 1 T"},
 		{"0.1,0\n0.2,1\n", "bad.csv:1:1: the curve must start"},
 		{"H,B\n", "bad.csv: need at least 2 points"},
 		{"0,0\n\"1,2\n", "bad.csv:2:"},
 		{"\ufeff# steel, kA/m and T\n0,0\n0.1,1\n0.05,1.2\n", "bad.csv:4:1: field strength must be strictly increasing"},
-		{"0,0\n1e6,2\n", "bad.csv:2:1: field strength 1e+09 A/m is above 1e+08 A/m"},
+		{"0,0\n1e6,2\n", "bad.csv:2:1: field strength 1e+06 kA/m (1e+09 A/m) is above 1e+08 A/m"},
 		{"0,0\n1,200\n", "bad.csv:2:3: flux density 200 T is above 100 T"},
-		{"0,0\n1,1e-200\n", "bad.csv:2:1: the curve ends at 1000 A/m, 1e-200 T"},
-		{"0,0\n1,1\n1.0000000000001,2\n", "bad.csv:3:1: field strength 1000.0000000000999 A/m is too close to the previous point"},
+		{"0,0\n1,1e-200\n", "bad.csv:2:1: the curve ends at 1 kA/m (1000 A/m), 1e-200 T"},
+		{"0,0\n1,1\n1.0000000000001,2\n", "bad.csv:3:1: field strength 1.0000000000001 kA/m is too close to the previous point's 1 kA/m"},
 		{"0,0\n" + strings.Repeat("1,1\n", MaxBHPoints), fmt.Sprintf("bad.csv:%d:1: more than %d points", MaxBHPoints+1, MaxBHPoints)},
 	}
 	for _, c := range bad {
-		_, err := ReadBHCSV(strings.NewReader(c.text), "bad.csv", 1000, 1)
+		_, err := ReadBHCSV(strings.NewReader(c.text), "bad.csv", Unit{"kA/m", 1000}, Unit{"T", 1})
 		var ie *InputError
 		if err == nil || !strings.HasPrefix(err.Error(), "magnet: "+c.want) || !errors.As(err, &ie) || ie.File != "bad.csv" {
 			t.Errorf("ReadBHCSV(%q): err = %v, want %q", c.text, err, c.want)
 		}
 	}
-	if _, err := ReadBHCSV(strings.NewReader("0,0\n1,1\n"), "s.csv", 0, 1); err == nil {
+	if _, err := ReadBHCSV(strings.NewReader("0,0\n1,1\n"), "s.csv", Unit{"kA/m", 0}, Unit{"T", 1}); err == nil {
 		t.Error("zero H scale: want an error")
 	}
 }

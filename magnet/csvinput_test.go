@@ -2,6 +2,7 @@ package magnet
 
 import (
 	"errors"
+	"fmt"
 	"math"
 	"os"
 	"strings"
@@ -97,7 +98,7 @@ func FuzzReadTableCSV(f *testing.F) {
 		var tb *Table
 		var err error
 		within(t, func() {
-			tb, err = ReadTableCSV(strings.NewReader(string(data)), "fuzz.csv", 1, 1e-3, 1e-3)
+			tb, err = ReadTableCSV(strings.NewReader(string(data)), "fuzz.csv", Unit{"A", 1}, Unit{"mm", 1e-3}, Unit{"mWb", 1e-3})
 			if tb != nil {
 				checkTable(t, tb)
 			}
@@ -130,7 +131,9 @@ func FuzzReadBHCSV(f *testing.F) {
 	f.Fuzz(func(t *testing.T, data []byte) {
 		var bh *BHTable
 		var err error
-		within(t, func() { bh, err = ReadBHCSV(strings.NewReader(string(data)), "fuzz.csv", 1000, 1) })
+		within(t, func() {
+			bh, err = ReadBHCSV(strings.NewReader(string(data)), "fuzz.csv", Unit{"kA/m", 1000}, Unit{"T", 1})
+		})
 		if (bh == nil) == (err == nil) {
 			t.Fatalf("curve %v and error %v", bh, err)
 		}
@@ -157,4 +160,88 @@ func FuzzReadBHCSV(f *testing.F) {
 			prevH = h
 		}
 	})
+}
+
+// TestCSVMessagesInFileUnits: the readers' messages quote values in the
+// file's own units as written (an engineer who wrote mm, mA and mWb reads
+// "0.5 mm", not "0.0005 m"), and give the SI value beside a value beyond
+// an SI bound (a unit mistake).
+func TestCSVMessagesInFileUnits(t *testing.T) {
+	t.Parallel()
+	mA, mm, mWb := Unit{"mA", 1e-3}, Unit{"mm", 1e-3}, Unit{"mWb", 1e-3}
+	const good = "i,0.5,1\n0,0,0\n200,10,8\n400,18,15\n"
+	if _, err := ReadTableCSV(strings.NewReader(good), "t.csv", mA, mm, mWb); err != nil {
+		t.Fatalf("good table: %v", err)
+	}
+	tables := []struct{ name, in, want string }{
+		{"equal gaps", "i,0.5,0.5\n0,0,0\n200,10,8\n", "t.csv:1:7: gaps must be strictly ascending: gap 2, 0.5 mm, is not above gap 1, 0.5 mm"},
+		{"gaps too close", "i,0.5,0.5000000001,1\n0,0,0,0\n200,10,8,6\n", "t.csv:1:7: gap 2 (0.5000000001 mm) is too close to gap 1 (0.5 mm)"},
+		{"gap in m by mistake", "i,0.5,20000\n0,0,0\n200,10,8\n", "t.csv:1:7: the last gap, 20000 mm (20 m), is outside 1e-09 m to 10 m: check the gap unit (mm)"},
+		{"currents not ascending", "i,0.5,1\n0,0,0\n400,18,15\n200,10,8\n", "t.csv:4:1: currents must be strictly ascending: 200 mA is not above the previous row's 400 mA"},
+		{"first current", "i,0.5,1\n100,0,0\n200,10,8\n", "t.csv:2:1: first current must be 0 or negative (a release current, with a permanent magnet), got 100 mA"},
+		{"flux falls", "i,0.5,1\n0,0,0\n200,10,8\n400,9.5,15\n", "t.csv:4:5: flux linkage must be strictly increasing in current: at gap 0.5 mm, 9.5 mWb at 400 mA after 10 mWb at 200 mA"},
+		{"flux in Wb by mistake", "i,0.5,1\n0,0,0\n200,1e-14,8\n", "t.csv:3:5: the largest flux linkage at gap 0.5 mm, 1e-14 mWb (1e-17 Wb), is outside 1e-15 Wb to 1e+06 Wb: check the flux linkage unit (mWb)"},
+		{"cell named by its gap", "i,0.5,1\n0,0,0\n200,10,x\n", `t.csv:3:8: flux linkage at gap 1 mm (cell 3), in mWb: not a finite number: "x"`},
+	}
+	for _, tt := range tables {
+		_, err := ReadTableCSV(strings.NewReader(tt.in), "t.csv", mA, mm, mWb)
+		if err == nil || !strings.HasPrefix(err.Error(), "magnet: "+tt.want) {
+			t.Errorf("%s: error = %v, want it to start %q", tt.name, err, "magnet: "+tt.want)
+		}
+	}
+	kAm, gauss := Unit{"kA/m", 1e3}, Unit{"G", 1e-4}
+	curves := []struct{ name, in, want string }{
+		{"B falls", "H,B\n0,0\n1,10000\n2,9000\n", "s.csv:4:3: flux density must be strictly increasing: 9000 G is not above the previous point's 10000 G"},
+		{"H falls", "H,B\n0,0\n1,10000\n0.5,12000\n", "s.csv:4:1: field strength must be strictly increasing: 0.5 kA/m is not above the previous point's 1 kA/m"},
+		{"not from 0", "H,B\n0.1,0\n1,10000\n", "s.csv:2:1: the curve must start at H = 0, B = 0 (no remanence), got (0.1 kA/m, 0 G)"},
+		{"B in T by mistake", "H,B\n0,0\n1,2e6\n", "s.csv:3:3: flux density 2e+06 G (200 T) is above 100 T, beyond any steel: check the flux density unit (G)"},
+	}
+	for _, tt := range curves {
+		_, err := ReadBHCSV(strings.NewReader(tt.in), "s.csv", kAm, gauss)
+		if err == nil || !strings.HasPrefix(err.Error(), "magnet: "+tt.want) {
+			t.Errorf("%s: error = %v, want it to start %q", tt.name, err, "magnet: "+tt.want)
+		}
+	}
+}
+
+// TestCSVColumnsInCharacters: an error's column counts characters, not
+// bytes (encoding/csv counts bytes), so that a cell after a "µ" or "Ω" is
+// where an editor shows it; also on a line far into a long file, after
+// the reader has dropped the lines it no longer needs.
+func TestCSVColumnsInCharacters(t *testing.T) {
+	t.Parallel()
+	A, mm, Wb := Unit{"A", 1}, Unit{"mm", 1e-3}, Unit{"Wb", 1}
+	var long strings.Builder
+	long.WriteString("i/A \\ x/mm,1,2\n")
+	for k := range 3000 {
+		fmt.Fprintf(&long, "# row %d: Ω°µ\n", k)
+	}
+	long.WriteString("0,0,0\n1,Ω\"5,0.4\n")
+	tables := []struct{ name, in, want string }{
+		// "µ" and "Ω" are two bytes each: byte columns would be 10 and 12
+		{"header after µ", "I/µA,1,x2\n0,0,0\n", "t.csv:1:8: gap 2 (cell 3 of the header), in mm"},
+		{"bare quote after Ω", "i,1,2\n0,0,0\n1,Ω\"5,0.4\n", "t.csv:3:4: not valid CSV"},
+		{"cell after a quoted Ω", "\"Ω, label\",1,x\n0,0,0\n", "t.csv:1:14: gap 2 (cell 3 of the header), in mm"},
+		{"3000 lines on", long.String(), "t.csv:3003:4: not valid CSV"},
+	}
+	for _, tt := range tables {
+		_, err := ReadTableCSV(strings.NewReader(tt.in), "t.csv", A, mm, Wb)
+		if err == nil || !strings.HasPrefix(err.Error(), "magnet: "+tt.want) {
+			t.Errorf("%s: error = %v, want it to start %q", tt.name, err, "magnet: "+tt.want)
+		}
+	}
+	_, err := ReadBHCSV(strings.NewReader("H (kA/m) µ,B\n0,0\n1°,2\"\n"), "s.csv", Unit{"kA/m", 1e3}, Unit{"T", 1})
+	if want := "magnet: s.csv:3:5: not valid CSV"; err == nil || !strings.HasPrefix(err.Error(), want) {
+		t.Errorf("bare quote after °: error = %v, want it to start %q", err, want)
+	}
+	// The reader's own columns, on a record that spans two lines.
+	rd := NewCSVReader(strings.NewReader("\ufeffµ,\"a\nµb\",Ω,c\n"))
+	if _, line, err := rd.Read(); err != nil || line != 1 {
+		t.Fatalf("Read: line %d, %v", line, err)
+	}
+	for k, want := range []int{1, 3, 5, 7} { // fields 2 and 3 on line 2: "µb",Ω,c
+		if got := rd.Column(k); got != want {
+			t.Errorf("Column(%d) = %d, want %d (characters)", k, got, want)
+		}
+	}
 }

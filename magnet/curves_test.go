@@ -176,7 +176,7 @@ func TestCurveModelDoorLatchTable(t *testing.T) {
 		t.Fatal(err)
 	}
 	defer f.Close()
-	tb, err := ReadTableCSV(f, "door-latch-flux.csv", 1, 1e-3, 1e-3)
+	tb, err := ReadTableCSV(f, "door-latch-flux.csv", Unit{"A", 1}, Unit{"mm", 1e-3}, Unit{"mWb", 1e-3})
 	if err != nil {
 		t.Fatal(err)
 	}

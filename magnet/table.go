@@ -81,6 +81,13 @@ type gridErr struct {
 
 const noRow = -2
 
+// tableUnits are the units a table's messages give its values in: the
+// file's for ReadTableCSV, SI for NewTable.
+type tableUnits struct{ cur, gap, flux Unit }
+
+// siTableUnits are the SI units of NewTable.
+var siTableUnits = tableUnits{cur: Unit{"A", 1}, gap: Unit{"m", 1}, flux: Unit{"Wb", 1}}
+
 func newGridErr(row int, format string, args ...any) *gridErr {
 	return &gridErr{row: row, cell: -1, msg: fmt.Sprintf(format, args...)}
 }
@@ -115,15 +122,16 @@ func (g *gridErr) at(cell int) *gridErr {
 // blend would make λ non-increasing in current somewhere (checked at 8
 // points per cell in each direction): the gap grid must then be refined.
 func NewTable(currents, gaps []float64, flux [][]float64) (*Table, error) {
-	t, ge := newTable(currents, gaps, flux)
+	t, ge := newTable(currents, gaps, flux, siTableUnits)
 	if ge != nil {
 		return nil, errors.New("magnet: table: " + ge.msg)
 	}
 	return t, nil
 }
 
-func newTable(currents, gaps []float64, flux [][]float64) (*Table, *gridErr) {
-	if ge := checkGrid(currents, gaps, flux); ge != nil {
+// newTable is NewTable with its messages in units u.
+func newTable(currents, gaps []float64, flux [][]float64, u tableUnits) (*Table, *gridErr) {
+	if ge := checkGrid(currents, gaps, flux, u); ge != nil {
 		return nil, ge
 	}
 	nI, nX := len(currents), len(gaps)
@@ -164,13 +172,13 @@ func newTable(currents, gaps []float64, flux [][]float64) (*Table, *gridErr) {
 		if signed {
 			q = t.head[j*tailStride:][:tailStride]
 			q[0], q[1], q[2] = col[0], d[0], 0
-			if ge := t.zeroFluxDatum(j, gaps[j]); ge != nil {
+			if ge := t.zeroFluxDatum(j, u.gap.Format(gaps[j])); ge != nil {
 				return nil, ge
 			}
 		}
 	}
 	t.buildGapWeights()
-	if ge := t.checkMonotone(); ge != nil {
+	if ge := t.checkMonotone(u); ge != nil {
 		return nil, ge
 	}
 	return t, nil
@@ -190,8 +198,9 @@ const (
 	minFluxStep                      = 1e-12      // of the column's largest flux linkage
 )
 
-// checkGrid validates the shape and values of the grid.
-func checkGrid(currents, gaps []float64, flux [][]float64) *gridErr {
+// checkGrid validates the shape and values of the grid; its messages give
+// values in units u.
+func checkGrid(currents, gaps []float64, flux [][]float64, u tableUnits) *gridErr {
 	nI, nX := len(currents), len(gaps)
 	if nX < 2 {
 		return newGridErr(-1, "need at least 2 gaps, got %d", nX)
@@ -202,18 +211,18 @@ func checkGrid(currents, gaps []float64, flux [][]float64) *gridErr {
 	if nX > MaxTableGaps || nI > MaxTableCurrents {
 		return newGridErr(noRow, "%d currents × %d gaps is larger than a table may be (at most %d currents and %d gaps)", nI, nX, MaxTableCurrents, MaxTableGaps)
 	}
-	if ge := checkGaps(gaps); ge != nil {
+	if ge := checkGaps(gaps, u.gap); ge != nil {
 		return ge
 	}
 	if len(flux) != nI {
 		return newGridErr(noRow, "flux has %d rows, want one per current (%d)", len(flux), nI)
 	}
-	if ge := checkCurrents(currents, gaps, flux); ge != nil {
+	if ge := checkCurrents(currents, gaps, flux, u); ge != nil {
 		return ge
 	}
 	signed := tableSigned(currents, flux)
 	for j := range nX {
-		if ge := checkFluxColumn(currents, gaps, flux, j, signed); ge != nil {
+		if ge := checkFluxColumn(currents, gaps, flux, j, signed, u); ge != nil {
 			return ge
 		}
 	}
@@ -221,26 +230,27 @@ func checkGrid(currents, gaps []float64, flux [][]float64) *gridErr {
 }
 
 // checkGaps validates the gaps (m): finite, non-negative, strictly
-// ascending, the last within the table's bounds, neighbours apart.
-func checkGaps(gaps []float64) *gridErr {
+// ascending, the last within the table's bounds, neighbours apart. The
+// messages give the gaps in unit u.
+func checkGaps(gaps []float64, u Unit) *gridErr {
 	nX := len(gaps)
 	for j, x := range gaps {
 		if !isFinite(x) {
-			return newGridErr(-1, "gap %d is not finite: %g m", j+1, x).at(j + 1)
+			return newGridErr(-1, "gap %d is not finite: %s", j+1, u.Format(x)).at(j + 1)
 		}
 		if j == 0 && x < 0 {
-			return newGridErr(-1, "gaps must not be negative, first gap is %g m", x).at(j + 1)
+			return newGridErr(-1, "gaps must not be negative, first gap is %s", u.Format(x)).at(j + 1)
 		}
 		if j > 0 && !(x > gaps[j-1]) {
-			return newGridErr(-1, "gaps must be strictly ascending: gap %d (%g m) <= gap %d (%g m)", j+1, x, j, gaps[j-1]).at(j + 1)
+			return newGridErr(-1, "gaps must be strictly ascending: gap %d, %s, is not above gap %d, %s", j+1, u.Format(x), j, u.Format(gaps[j-1])).at(j + 1)
 		}
 	}
 	if last := gaps[nX-1]; last < minTableGap || last > maxTableGap {
-		return newGridErr(-1, "the last gap, %g m, is outside %g m to %g m: check the gap unit", last, minTableGap, maxTableGap).at(nX)
+		return newGridErr(-1, "the last gap, %s, is outside %g m to %g m: check the gap unit (%s)", u.WithSI(last, "m"), minTableGap, maxTableGap, u.Name).at(nX)
 	}
 	for j := 1; j < nX; j++ {
 		if gaps[j]-gaps[j-1] < minTableSpacing*gaps[nX-1] {
-			return newGridErr(-1, "gap %d (%g m) is too close to gap %d (%g m): less than %g of the last gap", j+1, gaps[j], j, gaps[j-1], minTableSpacing).at(j + 1)
+			return newGridErr(-1, "gap %d (%s) is too close to gap %d (%s): less than %g of the last gap", j+1, u.Format(gaps[j]), j, u.Format(gaps[j-1]), minTableSpacing).at(j + 1)
 		}
 	}
 	return nil
@@ -248,34 +258,35 @@ func checkGaps(gaps []float64) *gridErr {
 
 // checkCurrents validates the currents (A: finite, from 0, strictly
 // ascending, the last within the table's bounds, neighbours apart) and
-// that each flux row has a finite value per gap.
-func checkCurrents(currents, gaps []float64, flux [][]float64) *gridErr {
+// that each flux row has a finite value per gap; its messages give values
+// in units u.
+func checkCurrents(currents, gaps []float64, flux [][]float64, u tableUnits) *gridErr {
 	nI, nX := len(currents), len(gaps)
 	for k, c := range currents {
 		if !isFinite(c) {
-			return newGridErr(k, "current is not finite: %g A", c).at(0)
+			return newGridErr(k, "current is not finite: %s", u.cur.Format(c)).at(0)
 		}
 		if k == 0 && c > 0 {
-			return newGridErr(k, "first current must be 0 A or negative (a release current, with a permanent magnet), got %g A", c).at(0)
+			return newGridErr(k, "first current must be 0 or negative (a release current, with a permanent magnet), got %s", u.cur.Format(c)).at(0)
 		}
 		if k > 0 && !(c > currents[k-1]) {
-			return newGridErr(k, "currents must be strictly ascending: %g A after %g A", c, currents[k-1]).at(0)
+			return newGridErr(k, "currents must be strictly ascending: %s is not above the previous row's %s", u.cur.Format(c), u.cur.Format(currents[k-1])).at(0)
 		}
 		if len(flux[k]) != nX {
 			return newGridErr(k, "flux row has %d values, want one per gap (%d)", len(flux[k]), nX)
 		}
 		for j, v := range flux[k] {
 			if !isFinite(v) {
-				return newGridErr(k, "flux linkage at gap %g m is not finite: %g Wb", gaps[j], v).at(j + 1)
+				return newGridErr(k, "flux linkage at gap %s is not finite: %s", u.gap.Format(gaps[j]), u.flux.Format(v)).at(j + 1)
 			}
 		}
 	}
 	if last := currents[nI-1]; last < minTableCurrent || last > maxTableCurrent {
-		return newGridErr(nI-1, "the last current, %g A, is outside %g A to %g A: check the current unit", last, minTableCurrent, maxTableCurrent).at(0)
+		return newGridErr(nI-1, "the last current, %s, is outside %g A to %g A: check the current unit (%s)", u.cur.WithSI(last, "A"), minTableCurrent, maxTableCurrent, u.cur.Name).at(0)
 	}
 	for k := 1; k < nI; k++ {
 		if currents[k]-currents[k-1] < minTableSpacing*currents[nI-1] {
-			return newGridErr(k, "current %g A is too close to the previous one, %g A: less than %g of the last current", currents[k], currents[k-1], minTableSpacing).at(0)
+			return newGridErr(k, "current %s is too close to the previous one, %s: less than %g of the last current", u.cur.Format(currents[k]), u.cur.Format(currents[k-1]), minTableSpacing).at(0)
 		}
 	}
 	return nil
@@ -303,19 +314,20 @@ func tableSigned(currents []float64, flux [][]float64) bool {
 // checkFluxColumn validates the flux linkages (Wb) at gap j: the largest
 // within the table's bounds, zero at zero current unless signed,
 // strictly increasing in current by steps of at least minFluxStep of the
-// largest.
-func checkFluxColumn(currents, gaps []float64, flux [][]float64, j int, signed bool) *gridErr {
+// largest. Its messages give values in units u.
+func checkFluxColumn(currents, gaps []float64, flux [][]float64, j int, signed bool, u tableUnits) *gridErr {
 	big, kBig := 0.0, 0
 	for k := range currents {
 		if a := math.Abs(flux[k][j]); a > big {
 			big, kBig = a, k
 		}
 	}
+	gap := u.gap.Format(gaps[j])
 	if big < minTableFlux || big > maxTableFlux {
-		return newGridErr(kBig, "the largest flux linkage at gap %g m, %g Wb, is outside %g Wb to %g Wb: check the flux linkage unit", gaps[j], big, minTableFlux, maxTableFlux).at(j + 1)
+		return newGridErr(kBig, "the largest flux linkage at gap %s, %s, is outside %g Wb to %g Wb: check the flux linkage unit (%s)", gap, u.flux.WithSI(big, "Wb"), minTableFlux, maxTableFlux, u.flux.Name).at(j + 1)
 	}
 	if !signed && math.Abs(flux[0][j]) > zeroFluxTol*big {
-		return newGridErr(0, "flux linkage at 0 A must be 0 (no permanent magnet), got %g Wb at gap %g m", flux[0][j], gaps[j]).at(j + 1)
+		return newGridErr(0, "flux linkage at zero current must be 0 (no permanent magnet), got %s at gap %s", u.flux.Format(flux[0][j]), gap).at(j + 1)
 	}
 	for k := 1; k < len(currents); k++ {
 		prev := flux[k-1][j]
@@ -323,12 +335,12 @@ func checkFluxColumn(currents, gaps []float64, flux [][]float64, j int, signed b
 			prev = 0
 		}
 		if !(flux[k][j] > prev) {
-			return newGridErr(k, "flux linkage must be strictly increasing in current: at gap %g m, %g Wb at %g A after %g Wb at %g A",
-				gaps[j], flux[k][j], currents[k], prev, currents[k-1]).at(j + 1)
+			return newGridErr(k, "flux linkage must be strictly increasing in current: at gap %s, %s at %s after %s at %s",
+				gap, u.flux.Format(flux[k][j]), u.cur.Format(currents[k]), u.flux.Format(prev), u.cur.Format(currents[k-1])).at(j + 1)
 		}
 		if flux[k][j]-prev < minFluxStep*big {
-			return newGridErr(k, "flux linkage barely increases in current: at gap %g m, %g Wb at %g A after %g Wb at %g A (less than %g of the column's largest)",
-				gaps[j], flux[k][j], currents[k], prev, currents[k-1], minFluxStep).at(j + 1)
+			return newGridErr(k, "flux linkage barely increases in current: at gap %s, %s at %s after %s at %s (less than %g of the column's largest)",
+				gap, u.flux.Format(flux[k][j]), u.cur.Format(currents[k]), u.flux.Format(prev), u.cur.Format(currents[k-1]), minFluxStep).at(j + 1)
 		}
 	}
 	return nil
@@ -465,22 +477,23 @@ func (t *Table) curAtSigned(i float64) (k int, s float64) {
 // λ_j di', i0_j the current at which the column's flux linkage vanishes
 // (the magnet cancelled): it finds i0_j in the head, an interval or the
 // tail, and subtracts the co-energy accumulated from the first current up
-// to it from the column's stored co-energies. gap is for the message.
-func (t *Table) zeroFluxDatum(j int, gap float64) *gridErr {
+// to it from the column's stored co-energies. gap is the gap as the
+// message gives it.
+func (t *Table) zeroFluxDatum(j int, gap string) *gridErr {
 	nI, nX := len(t.cur), len(t.gap)
 	head, tail := t.head[j*tailStride:][:tailStride], t.tail[j*tailStride:][:tailStride]
 	k, s := -1, 0.0
 	switch {
 	case head[0] >= 0:
 		if !(head[1] > 0) && head[0] > 0 {
-			return newGridErr(0, "flux linkage at gap %g m does not vanish at any current: extend the table to the current that cancels the magnet", gap)
+			return newGridErr(0, "flux linkage at gap %s does not vanish at any current: extend the table to the current that cancels the magnet", gap)
 		}
 		if head[0] > 0 {
 			s = -head[0] / head[1]
 		}
 	case tail[0] <= 0:
 		if !(tail[1] > 0) {
-			return newGridErr(nI-1, "flux linkage at gap %g m does not vanish at any current: extend the table to the current that cancels the magnet", gap)
+			return newGridErr(nI-1, "flux linkage at gap %s does not vanish at any current: extend the table to the current that cancels the magnet", gap)
 		}
 		k, s = nI-1, -tail[0]/tail[1]
 	default:
@@ -527,8 +540,9 @@ func (t *Table) colCoEnergy(j, k int, s float64) float64 {
 }
 
 // checkMonotone verifies ∂λ/∂i > 0 at checkSub points per cell in both
-// directions, the blend weights being possibly negative.
-func (t *Table) checkMonotone() *gridErr {
+// directions, the blend weights being possibly negative; its message
+// gives the place in units u.
+func (t *Table) checkMonotone(u tableUnits) *gridErr {
 	nX, nI := len(t.gap), len(t.cur)
 	for j := 0; j < nX-1; j++ {
 		for a := 0; a <= checkSub; a++ {
@@ -544,9 +558,9 @@ func (t *Table) checkMonotone() *gridErr {
 						dl += g.phi[c] * d
 					}
 					if !(dl > 0) {
-						return newGridErr(noRow, "interpolated flux linkage is not increasing in current at gap %.4g mm, current %.4g A "+
-							"(∂λ/∂i = %.3g H): the gap interpolation overshoots between columns; refine the gap grid near %.4g mm",
-							x*1e3, t.cur[k]+s, dl, x*1e3)
+						return newGridErr(noRow, "interpolated flux linkage is not increasing in current at gap %s, current %s "+
+							"(∂λ/∂i = %.3g H): the gap interpolation overshoots between columns; refine the gap grid near %s",
+							u.gap.Approx(x), u.cur.Approx(t.cur[k]+s), dl, u.gap.Approx(x))
 					}
 				}
 			}
@@ -731,17 +745,18 @@ func (t *Table) Partials(lam, x float64) (diDlam, diDx float64) {
 // ReadTableCSV reads the grid from CSV and builds the model with NewTable.
 // Lines starting with '#' are comments and a UTF-8 byte-order mark is
 // skipped; the first data row is a header: an empty or any label cell, then
-// the gaps; each further row: current, then λ at each gap. Values are
-// multiplied by the given scales, the SI value of one file unit, for
-// current (A), gap (m) and flux linkage (Wb). At most MaxTableCurrents rows
-// and MaxTableGaps gaps are read. Errors are *InputError naming the file,
-// line and column: "magnet: name:LINE:COLUMN: ...".
-func ReadTableCSV(r io.Reader, name string, currentScale, gapScale, fluxScale float64) (*Table, error) {
-	if err := checkScales(name, csvScale{"current", currentScale}, csvScale{"gap", gapScale}, csvScale{"flux", fluxScale}); err != nil {
+// the gaps; each further row: current, then λ at each gap. Values are in
+// the file's units: current (of A), gap (of m) and flux (of Wb), each cell
+// multiplied by its unit's Scale. At most MaxTableCurrents rows and
+// MaxTableGaps gaps are read. Errors are *InputError naming the file, line
+// and column (in characters) and the cell, with values in the file's
+// units as written: "magnet: name:LINE:COLUMN: ...".
+func ReadTableCSV(r io.Reader, name string, current, gap, flux Unit) (*Table, error) {
+	if err := checkScales(name, []string{"current", "gap", "flux"}, current, gap, flux); err != nil {
 		return nil, err
 	}
 	in := newCSVInput(r, name)
-	g := &tableGrid{}
+	g := &tableGrid{units: tableUnits{cur: current, gap: gap, flux: flux}}
 	for {
 		rec, line, err := in.next()
 		if err == io.EOF {
@@ -751,9 +766,9 @@ func ReadTableCSV(r io.Reader, name string, currentScale, gapScale, fluxScale fl
 			return nil, err
 		}
 		if g.gaps == nil {
-			err = g.readHeader(in, rec, line, gapScale)
+			err = g.readHeader(in, rec, line)
 		} else {
-			err = g.readRow(in, rec, line, currentScale, fluxScale)
+			err = g.readRow(in, rec, line)
 		}
 		if err != nil {
 			return nil, err
@@ -762,7 +777,7 @@ func ReadTableCSV(r io.Reader, name string, currentScale, gapScale, fluxScale fl
 	if g.gaps == nil {
 		return nil, inputErr(name, 0, 0, "no data: want a header row of gaps and at least 2 current rows")
 	}
-	t, ge := newTable(g.currents, g.gaps, g.flux)
+	t, ge := newTable(g.currents, g.gaps, g.flux, g.units)
 	if ge != nil {
 		return nil, g.locate(name, ge)
 	}
@@ -772,15 +787,17 @@ func ReadTableCSV(r io.Reader, name string, currentScale, gapScale, fluxScale fl
 // tableGrid is a flux-linkage table as read (SI), with where each record
 // was read.
 type tableGrid struct {
+	units          tableUnits // the file's
 	gaps, currents []float64
 	flux           [][]float64
 	header         recordPos
 	rows           []recordPos // of each current row
+	fluxCells      []string    // per gap, its flux linkage cells' name for messages
 }
 
 // readHeader reads the header record (at line): a label cell, then the
 // gaps.
-func (g *tableGrid) readHeader(in *csvInput, rec []string, line int, gapScale float64) error {
+func (g *tableGrid) readHeader(in *csvInput, rec []string, line int) error {
 	if len(rec) < 3 {
 		return inputErr(in.name, line, 1, "header needs a label cell and at least 2 gaps, got %d cells", len(rec))
 	}
@@ -790,18 +807,22 @@ func (g *tableGrid) readHeader(in *csvInput, rec []string, line int, gapScale fl
 	g.header = in.pos(line, len(rec))
 	gaps := make([]float64, len(rec)-1)
 	for j := range gaps {
-		v, err := in.value(rec, g.header, j+1, gapScale, fmt.Sprintf("gap (cell %d of the header)", j+2))
+		v, err := in.value(rec, g.header, j+1, g.units.gap, fmt.Sprintf("gap %d (cell %d of the header), in %s", j+1, j+2, g.units.gap.Name))
 		if err != nil {
 			return err
 		}
 		gaps[j] = v
 	}
 	g.gaps = gaps
+	g.fluxCells = make([]string, len(gaps))
+	for j, x := range gaps {
+		g.fluxCells[j] = fmt.Sprintf("flux linkage at gap %s (cell %d), in %s", g.units.gap.Format(x), j+2, g.units.flux.Name)
+	}
 	return nil
 }
 
 // readRow reads a current row (at line): the current, then λ at each gap.
-func (g *tableGrid) readRow(in *csvInput, rec []string, line int, currentScale, fluxScale float64) error {
+func (g *tableGrid) readRow(in *csvInput, rec []string, line int) error {
 	if len(rec) != len(g.gaps)+1 {
 		return inputErr(in.name, line, 1, "row has %d cells, want %d (a current and one flux linkage per gap)", len(rec), len(g.gaps)+1)
 	}
@@ -809,13 +830,14 @@ func (g *tableGrid) readRow(in *csvInput, rec []string, line int, currentScale, 
 		return inputErr(in.name, line, 1, "more than %d current rows: a table may have at most %d", MaxTableCurrents, MaxTableCurrents)
 	}
 	p := in.pos(line, len(rec))
-	current, err := in.value(rec, p, 0, currentScale, "current (cell 1)")
+	u := g.units
+	current, err := in.value(rec, p, 0, u.cur, "current (cell 1), in "+u.cur.Name)
 	if err != nil {
 		return err
 	}
 	row := make([]float64, len(g.gaps))
 	for j := range row {
-		if row[j], err = in.value(rec, p, j+1, fluxScale, fmt.Sprintf("flux linkage (cell %d)", j+2)); err != nil {
+		if row[j], err = in.value(rec, p, j+1, u.flux, g.fluxCells[j]); err != nil {
 			return err
 		}
 	}

@@ -169,7 +169,7 @@ func TestReadTableCSVFile(t *testing.T) {
 	}
 	defer f.Close()
 	// File units: A, mm, mWb.
-	tb, err := ReadTableCSV(f, path, 1, 1e-3, 1e-3)
+	tb, err := ReadTableCSV(f, path, Unit{"A", 1}, Unit{"mm", 1e-3}, Unit{"mWb", 1e-3})
 	if err != nil {
 		t.Fatalf("ReadTableCSV(%s) = %v", path, err)
 	}
@@ -194,14 +194,14 @@ func TestReadTableCSVErrors(t *testing.T) {
 	}{
 		{"empty", "", "mem.csv: no data"},
 		{"comments only", "# nothing\n# here\n", "mem.csv: no data"},
-		{"non-numeric cell", "i,1,2\n0,0,0\n1,0.5,abc\n", `mem.csv:3:7: flux linkage (cell 3): not a finite number: "abc"`},
-		{"empty cell", "i,1,2\n0,0,0\n1,,0.5\n", "mem.csv:3:3: flux linkage (cell 2): empty cell"},
-		{"non-numeric gap", "#c\ni,1,x2\n0,0,0\n", "mem.csv:2:5: gap (cell 3 of the header)"},
+		{"non-numeric cell", "i,1,2\n0,0,0\n1,0.5,abc\n", `mem.csv:3:7: flux linkage at gap 2 mm (cell 3), in Wb: not a finite number: "abc"`},
+		{"empty cell", "i,1,2\n0,0,0\n1,,0.5\n", "mem.csv:3:3: flux linkage at gap 1 mm (cell 2), in Wb: empty cell"},
+		{"non-numeric gap", "#c\ni,1,x2\n0,0,0\n", "mem.csv:2:5: gap 2 (cell 3 of the header), in mm: not a finite number: \"x2\""},
 		{"non-numeric current", "i,1,2\n0,0,0\nx,0.5,0.4\n", "mem.csv:3:1: current (cell 1)"},
 		{"ragged row", "i,1,2\n0,0,0\n1,0.5\n", "mem.csv:3:1: row has 2 cells, want 3"},
-		{"gaps not ascending", "# units A, mm, Wb\ni,2,1\n0,0,0\n1,0.5,0.6\n", "mem.csv:2:5: gaps must be strictly ascending"},
+		{"gaps not ascending", "# units A, mm, Wb\ni,2,1\n0,0,0\n1,0.5,0.6\n", "mem.csv:2:5: gaps must be strictly ascending: gap 2, 1 mm, is not above gap 1, 2 mm"},
 		{"current not from 0", "i,1,2\n0.5,0.1,0.1\n1,0.5,0.4\n", "mem.csv:2:1: first current must be 0"},
-		{"flux not increasing", "i,1,2\n0,0,0\n1,0.5,0.4\n2,0.7,0.3\n", "mem.csv:4:7: flux linkage must be strictly increasing"},
+		{"flux not increasing", "i,1,2\n0,0,0\n1,0.5,0.4\n2,0.7,0.3\n", "mem.csv:4:7: flux linkage must be strictly increasing in current: at gap 2 mm, 0.3 Wb at 2 A after 0.4 Wb at 1 A"},
 		{"flux at 0 A above the next", "i,1,2\n0,0,0.5\n1,0.5,0.4\n", "mem.csv:3:7: flux linkage must be strictly increasing"},
 		{"one current row", "i,1,2\n0,0,0\n", "mem.csv: need at least 2 currents"},
 		{"header too short", "i,1\n0,0\n", "mem.csv:1:1: header needs"},
@@ -209,26 +209,26 @@ func TestReadTableCSVErrors(t *testing.T) {
 		{"bare quote", "i,1,2\n0,0,0\n1,0\"5,0.4\n", "mem.csv:3:4: not valid CSV"},
 		{"infinite cell", "i,1,2\n0,0,0\n1,Inf,0.4\n", "mem.csv:3:3:"},
 		{"BOM then comment", "\ufeff# units A, mm, Wb\ni,2,1\n0,0,0\n1,0.5,0.6\n", "mem.csv:2:5: gaps must be strictly ascending"},
-		{"current unit wrong", "i,1,2\n0,0,0\n1e7,0.5,0.4\n", "mem.csv:3:1: the last current, 1e+07 A, is outside 1e-09 A to 1e+06 A: check the current unit"},
-		{"gap unit wrong", "i,1,2e5\n0,0,0\n1,0.5,0.4\n", "mem.csv:1:5: the last gap, 200 m, is outside 1e-09 m to 10 m: check the gap unit"},
-		{"gaps too close", "i,1,1.0000000000001,2\n0,0,0,0\n1,0.5,0.4,0.3\n", "mem.csv:1:5: gap 2 (0.0010000000000001 m) is too close to gap 1"},
+		{"current unit wrong", "i,1,2\n0,0,0\n1e7,0.5,0.4\n", "mem.csv:3:1: the last current, 1e+07 A, is outside 1e-09 A to 1e+06 A: check the current unit (A)"},
+		{"gap unit wrong", "i,1,2e5\n0,0,0\n1,0.5,0.4\n", "mem.csv:1:5: the last gap, 200000 mm (200 m), is outside 1e-09 m to 10 m: check the gap unit (mm)"},
+		{"gaps too close", "i,1,1.0000000000001,2\n0,0,0,0\n1,0.5,0.4,0.3\n", "mem.csv:1:5: gap 2 (1.0000000000001 mm) is too close to gap 1 (1 mm)"},
 		{"currents too close", "i,1,2\n0,0,0\n1,0.5,0.4\n1.0000000000001,0.6,0.5\n", "mem.csv:4:1: current 1.0000000000001 A is too close to the previous one"},
 		{"flux barely increases", "i,1,2\n0,0,0\n1,0.5,0.4\n2,0.5000000000000001,0.6\n", "mem.csv:4:3: flux linkage barely increases in current"},
-		{"flux unit wrong", "i,1,2\n0,0,0\n1,1e-20,0.4\n", "mem.csv:3:3: the largest flux linkage at gap 0.001 m, 1e-20 Wb, is outside 1e-15 Wb to 1e+06 Wb"},
+		{"flux unit wrong", "i,1,2\n0,0,0\n1,1e-20,0.4\n", "mem.csv:3:3: the largest flux linkage at gap 1 mm, 1e-20 Wb, is outside 1e-15 Wb to 1e+06 Wb"},
 		{"too many gaps", "i" + strings.Repeat(",1", MaxTableGaps+1) + "\n", fmt.Sprintf("mem.csv:1:%d: header has %d gaps, more than the %d", 2*(MaxTableGaps+1)+1, MaxTableGaps+1, MaxTableGaps)},
 		{"too many currents", "i,1,2\n" + strings.Repeat("0,0,0\n", MaxTableCurrents+1), fmt.Sprintf("mem.csv:%d:1: more than %d current rows", MaxTableCurrents+2, MaxTableCurrents)},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			t.Parallel()
-			_, err := ReadTableCSV(strings.NewReader(tt.in), "mem.csv", 1, 1e-3, 1)
+			_, err := ReadTableCSV(strings.NewReader(tt.in), "mem.csv", Unit{"A", 1}, Unit{"mm", 1e-3}, Unit{"Wb", 1})
 			var ie *InputError
 			if err == nil || !strings.HasPrefix(err.Error(), "magnet: "+tt.want) || !errors.As(err, &ie) || ie.File != "mem.csv" {
 				t.Errorf("ReadTableCSV(%q) error = %v, want an *InputError starting %q", tt.in, err, "magnet: "+tt.want)
 			}
 		})
 	}
-	if _, err := ReadTableCSV(strings.NewReader("i,1,2\n0,0,0\n1,1,1\n"), "mem.csv", 0, 1, 1); err == nil || !strings.Contains(err.Error(), "current scale") {
+	if _, err := ReadTableCSV(strings.NewReader("i,1,2\n0,0,0\n1,1,1\n"), "mem.csv", Unit{"A", 0}, Unit{"mm", 1}, Unit{"Wb", 1}); err == nil || !strings.Contains(err.Error(), "current scale") {
 		t.Errorf("ReadTableCSV with zero current scale: error = %v, want one about the current scale", err)
 	}
 }
