@@ -68,6 +68,13 @@ type Metrics struct {
 	// while that pulse was still on (the reverse current beyond the
 	// magnet's equivalent current pulls it in the other direction).
 	Relatch Relatch
+	// ReverseStart: the run time (s) a reverse pulse started (an H-bridge's
+	// release pulse); not Happened: none.
+	ReverseStart Interval
+	// ReleaseAfterReverse: the reverse pulse's start → the plunger first
+	// leaves the energized stop after it; not Happened: it did not (or
+	// there was no reverse pulse).
+	ReleaseAfterReverse Interval
 	// CurrentAtTurnOff: coil current at the de-energize command, A.
 	CurrentAtTurnOff float64
 	// Release: de-energize → the plunger leaves the energized stop (the

@@ -80,6 +80,12 @@ type FitResult struct {
 	// their 1σ errors.
 	Shift, ShiftErr   float64
 	Offset, OffsetErr float64
+	// Energize, EnergizeErr (s): the energize command in trace time under
+	// the fitted alignment, the model's energize time − Shift, ± ShiftErr.
+	// It is the instant the fit used; the event detector's
+	// Events.Energize, where the alignment search started, may lie
+	// elsewhere (a threshold detector fooled by a baseline disturbance).
+	Energize, EnergizeErr float64
 	// ResidualSD (A) is the residual standard deviation s used for the
 	// errors: √(SSE/(n − p)) with p the fitted parameters plus offset and
 	// shift, but not below NoiseFloor (A), the model's own accuracy
@@ -270,6 +276,7 @@ func Fit(md *Model, tr *MeasuredTrace, params []FitParam) (*FitResult, error) {
 		return nil, err
 	}
 	fp.uncertainties(res, x, f)
+	res.Energize, res.EnergizeErr = md.Timing.EnergizeAt-res.Shift, res.ShiftErr
 	res.Evaluations = fp.evaluations
 	// The fitted model's seat instant.
 	v := *md

@@ -239,6 +239,10 @@ const (
 	DrivePWM       = "pwm"
 	DrivePeakHold  = "peak and hold"
 	DriveBoostHold = "boost then hold"
+	// DrivePulses: an H-bridge's timed pulses for a latching magnet: a
+	// latch pulse of forward polarity, then optionally a release pulse of
+	// reverse polarity (DriveSpec.LatchPulse, ReleaseAt, ReleasePulse).
+	DrivePulses = "pulses"
 )
 
 // DriveSpec is how the driver drives the coil while energized.
@@ -257,6 +261,10 @@ type DriveSpec struct {
 	BoostVoltage            float64 // V
 	BoostTime               float64 // s
 	BrakeAt, BrakeFor       float64 // s, soft-landing brake of a constant drive (0: none)
+	// Pulses: the latch pulse's length (forward polarity, from
+	// timing.energize at), the run time the release pulse (reverse
+	// polarity) starts and its length (0: none).
+	LatchPulse, ReleaseAt, ReleasePulse float64
 }
 
 // TimingSpec is when the drive is commanded on and off.

@@ -6,7 +6,7 @@ import (
 )
 
 // driveModes are the values of drive.mode.
-var driveModes = []string{DriveConstant, DrivePWM, DrivePeakHold, DriveBoostHold}
+var driveModes = []string{DriveConstant, DrivePWM, DrivePeakHold, DriveBoostHold, DrivePulses}
 
 // Modes that take a soft-landing brake (drive.brake at, brake for).
 var brakeModes = []string{DriveConstant, DrivePWM}
@@ -45,6 +45,12 @@ var driveSection = &sectionSpec{path: "drive", keys: []*keySpec{
 		doc: "soft landing (with brake for): the switch turns off this long after energize; `coilkick land` finds it"},
 	{name: "brake for", rng: newRange(Time, "1 µs to 60 min", ""), need: needWhere, example: "2 ms", only: brakeModes,
 		doc: "soft landing (with brake at): the switch stays off this long (constant: the current decays through the suppression part; pwm: as in its off-times), then the drive goes on; brake at + brake for before de-energize"},
+	{name: "latch pulse", rng: newRange(Time, "1 µs to 60 min", ""), example: "20 ms", only: []string{DrivePulses},
+		doc: "forward polarity (the current that adds to a permanent magnet's flux), full voltage from timing.energize at for this long; it sets the de-energize time (no timing.de-energize at)"},
+	{name: "release at", rng: newRange(Time, "0 s to 60 min", ""), need: whenGiven, example: "221 ms", only: []string{DrivePulses},
+		doc: "with release pulse: the run time the reverse pulse starts, at or after the latch pulse's end; needs suppression.type: reverse drive (the H-bridge)"},
+	{name: "release pulse", rng: newRange(Time, "1 µs to 10 s", ""), need: needWhere, example: "5 ms", only: []string{DrivePulses},
+		doc: "with release at: reverse polarity, −(supply + 2 bridge drops) across the coil this long; before timing.end"},
 }}
 
 // loadDrive reads the optional drive section (default: constant drive).
@@ -85,6 +91,58 @@ func (l *scenarioLoader) loadDrive(sec *yamlSection) {
 		l.read(sec, "boost voltage", &d.BoostVoltage)
 		l.read(sec, "boost time", &d.BoostTime)
 		l.exceed("drive.boost voltage", d.BoostVoltage, "supply.voltage", l.s.Supply.Voltage, false)
+	case DrivePulses:
+		l.loadPulses(sec)
+	}
+}
+
+// loadPulses reads an H-bridge's pulses: the latch pulse, and the release
+// pulse with its start (both or neither). The reverse pulse is then the
+// drive's, not the suppression section's.
+func (l *scenarioLoader) loadPulses(sec *yamlSection) {
+	d := &l.s.Drive
+	l.read(sec, "latch pulse", &d.LatchPulse)
+	if !sec.has("release at") && !sec.has("release pulse") {
+		return
+	}
+	if !sec.has("release at") {
+		l.errf("drive.release pulse", "needs drive.release at (the run time the reverse pulse starts), with a unit")
+		return
+	}
+	l.read(sec, "release at", &d.ReleaseAt)
+	l.read(sec, "release pulse", &d.ReleasePulse)
+	sp := &l.s.Suppression
+	switch {
+	case sp.Kind != "" && sp.Kind != SuppressBridge:
+		l.errf("drive.release pulse", "a release pulse of reverse polarity needs suppression.type: reverse drive (an H-bridge); the suppression is %q", sp.Kind)
+	case sp.ReversePulse > 0 || sp.ReverseDelay > 0:
+		l.errf("drive.release pulse", "the reverse pulse is given twice: with drive.mode pulses remove suppression.reverse pulse and reverse pulse delay")
+	}
+}
+
+// checkPulses sets the de-energize time of a pulses drive (the latch
+// pulse's end; timing.de-energize at is refused) and checks the release
+// pulse against the latch pulse and the run's end.
+func (l *scenarioLoader) checkPulses(sec *yamlSection) {
+	d, t := &l.s.Drive, &l.s.Timing
+	if sec.has("de-energize at") {
+		l.errf("timing.de-energize at", "with drive.mode pulses the de-energize time is the latch pulse's end (timing.energize at + drive.latch pulse): remove this key")
+		return
+	}
+	if !l.ok["drive.latch pulse"] || !l.ok["timing.energize at"] {
+		return
+	}
+	t.DeenergizeAt = t.EnergizeAt + d.LatchPulse
+	l.ok["timing.de-energize at"] = true
+	l.text["timing.de-energize at"] = fmt.Sprintf("%.6g s (energize at + latch pulse)", t.DeenergizeAt)
+	if !l.ok["drive.release at"] || !l.ok["drive.release pulse"] {
+		return
+	}
+	if d.ReleaseAt < t.DeenergizeAt*(1-LimitRelTol) {
+		l.errf("drive.release at", "%s is before the latch pulse ends (%.6g s); expected at or after it", l.show("drive.release at"), t.DeenergizeAt)
+	}
+	if l.ok["timing.end"] && !(d.ReleaseAt+d.ReleasePulse < t.End) {
+		l.errf("drive.release pulse", "the release pulse (%s from %s) ends at or after timing.end %s", l.show("drive.release pulse"), l.show("drive.release at"), l.showAt("timing.end"))
 	}
 }
 

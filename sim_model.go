@@ -333,7 +333,7 @@ func buildDrive(s *Scenario, md *Model) error {
 // controlModes maps the scenario's drive modes to circuit control modes
 // (no mode: constant).
 var controlModes = map[string]circuit.ControlMode{"": circuit.Constant, DriveConstant: circuit.Constant, DrivePWM: circuit.PWM,
-	DrivePeakHold: circuit.PeakHold, DriveBoostHold: circuit.BoostHold}
+	DrivePeakHold: circuit.PeakHold, DriveBoostHold: circuit.BoostHold, DrivePulses: circuit.Constant}
 
 // buildControl sets the driver's control law and checks it against the
 // drive (so the drive comes first).
@@ -349,6 +349,12 @@ func buildControl(s *Scenario, md *Model) error {
 		ReverseDelay: s.Suppression.ReverseDelay}
 	if dr.BrakeFor > 0 {
 		md.Control = md.Control.WithBrake(dr.BrakeAt, dr.BrakeFor)
+	}
+	if dr.Mode == DrivePulses && dr.ReleasePulse > 0 {
+		// The latch pulse ends at de-energize (the loader set it); the
+		// release pulse is the bridge's reverse pulse, delayed to its start.
+		md.Control.ReversePulse = dr.ReleasePulse
+		md.Control.ReverseDelay = max(0, dr.ReleaseAt-s.Timing.DeenergizeAt)
 	}
 	if dr.Regulation == "fixed frequency" {
 		md.Control.Regulation = circuit.FixedFrequency

@@ -79,7 +79,7 @@ func TestReverseWarnings(t *testing.T) {
 	}
 	// A 60 ms reverse pulse from a stiff 9 V supply (no storage
 	// capacitor) drives about −1.27 A, far past −i_m = −0.183 A.
-	res, a = releaseDemo(t, `reverse pulse: 5 ms`, `reverse pulse: 60 ms`, `  storage capacitor:\n(    .*\n)+`, ``)
+	res, a = releaseDemo(t, `release pulse: 5 ms`, `release pulse: 60 ms`, `  storage capacitor:\n(    .*\n)+`, ``)
 	rl := res.Metrics.Relatch
 	if !rl.Happened || !(rl.Time > 0.221 && rl.Time < 0.281 && rl.Current < -0.183) {
 		t.Fatalf("a 60 ms reverse pulse: relatch %+v, want a seat impact during the pulse (221 to 281 ms) past -0.183 A", rl)

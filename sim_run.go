@@ -514,6 +514,7 @@ func (r *run) deenergize(t float64, y []float64) {
 	} else if r.drive.Suppressor.Kind == circuit.Bridge && r.ctl.ReversePulse > 0 {
 		r.cmode = circuit.BridgeReverse
 		r.tRevEnd = t + r.ctl.ReversePulse
+		r.res.Metrics.ReverseStart = Interval{true, t}
 	} else {
 		r.cmode = r.turnOffMode(i)
 	}
@@ -547,6 +548,7 @@ func (r *run) startReverse(t float64, y []float64) {
 	}
 	r.cmode = circuit.BridgeReverse
 	r.tRevEnd = t + r.ctl.ReversePulse
+	r.res.Metrics.ReverseStart = Interval{true, t}
 	r.tRing = math.Inf(1)
 	r.note(t, "reverse pulse starts at %.4g A", r.current(y))
 	r.noteConduction(t, r.drive.ClampName(r.cmode), true)
@@ -689,6 +691,9 @@ func (r *run) leaveSeat(t float64, y []float64) {
 	y[sVel] = 0
 	if r.offDone && !m.Release.Happened && m.ReleaseNotApplicable() == "" {
 		m.Release = Interval{true, t - r.tOff}
+	}
+	if m.ReverseStart.Happened && !m.ReleaseAfterReverse.Happened {
+		m.ReleaseAfterReverse = Interval{true, t - m.ReverseStart.Seconds}
 	}
 	if r.energized && !m.DropOut.Happened {
 		_, im := r.solve(y)

@@ -59,11 +59,11 @@ func cmdFit(c *cli.Context, w io.Writer) error {
 	if err != nil && !failed {
 		return fmt.Errorf("fit of %s to %s: %w", path, tr.Source, trimPrefix(err))
 	}
-	// With --json - or --csv - standard output carries that document
+	// With -o -, --json - or --csv - standard output carries that document
 	// alone: the report is not printed (a failed fit's reasons are in the
 	// error message).
 	text := w
-	if toStdout(c, "json", "csv") {
+	if toStdout(c, fitStdoutFlags...) {
 		text = io.Discard
 	}
 	b := bufio.NewWriter(text)
@@ -85,6 +85,9 @@ func cmdFit(c *cli.Context, w io.Writer) error {
 	}
 	return nil
 }
+
+// fitStdoutFlags are fit's outputs that may be standard output ("-").
+var fitStdoutFlags = []string{"output", "json", "csv"}
 
 // parseFitParams reads --params: comma-separated names of
 // coilkick.FitParams.
@@ -114,7 +117,7 @@ func printFit(b io.Writer, path string, md *coilkick.Model, tr *coilkick.Measure
 	if tr.Repeated > 0 {
 		fmt.Fprintf(b, "  %d rows at a repeated time (one on each side of an event) dropped; the first of each kept\n", tr.Repeated)
 	}
-	printTraceEvents(b, ev)
+	printTraceEvents(b, fr)
 	if failed {
 		fmt.Fprintln(b, "\nFIT FAILED: the values below are not a calibration")
 	}
@@ -122,8 +125,8 @@ func printFit(b io.Writer, path string, md *coilkick.Model, tr *coilkick.Measure
 	fmt.Fprintf(b, "\nRMS current error: %s before, %s after (trace noise %s); %d simulations\n", si(fr.RMSStart, "A"), si(fr.RMS, "A"), si(fr.Noise, "A"), fr.Evaluations)
 	fmt.Fprintf(b, "Residual check: RMS error %.3g × the noise reference %s (a fit fails above %d ×; the reference is the largest of the noise before energizing, the sample-to-sample noise, the rounding noise of the trace's resolution and the σ floor)\n",
 		fr.RMS/fr.NoiseRef, si(fr.NoiseRef, "A"), coilkick.FitResidualLimit)
-	if fr.SeatModel.Happened && ev.HasDip {
-		fmt.Fprintf(b, "Pull-in: fitted model %s, trace dip %s after energize\n", si(fr.SeatModel.Seconds, "s"), si(ev.Seat-ev.Energize, "s"))
+	if on, _, _ := fitEnergize(fr); fr.SeatModel.Happened && ev.HasDip {
+		fmt.Fprintf(b, "Pull-in: fitted model %s, trace dip %s after energize (fitted alignment)\n", si(fr.SeatModel.Seconds, "s"), si(ev.Seat-on, "s"))
 	}
 	if failed {
 		fmt.Fprintln(b, "\nFIT FAILED:")
@@ -133,13 +136,38 @@ func printFit(b io.Writer, path string, md *coilkick.Model, tr *coilkick.Measure
 	}
 }
 
-// printTraceEvents prints the events found in the trace.
-func printTraceEvents(b io.Writer, ev *coilkick.TraceEvents) {
+// fitEnergize is the energize instant in trace time that the fit used
+// (the model's energize time less the fitted alignment) with its 1σ, or
+// the event detector's when the fit left no finite alignment (fitted
+// false).
+func fitEnergize(fr *coilkick.FitResult) (t, sigma float64, fitted bool) {
+	if !math.IsNaN(fr.Energize) && !math.IsInf(fr.Energize, 0) {
+		return fr.Energize, fr.EnergizeErr, true
+	}
+	return fr.Events.Energize, fr.Events.EnergizeErr, false
+}
+
+// printTraceEvents prints the events found in the trace, in trace time:
+// the energize instant the fit used (the fitted alignment; the edge
+// detector's estimate, where the alignment search started, only when it
+// lies more than 3 of its σ away), the pull-in dip with the pull-in time
+// from that instant, the end of the decay.
+func printTraceEvents(b io.Writer, fr *coilkick.FitResult) {
+	ev := fr.Events
+	on, sigma, fitted := fitEnergize(fr)
 	fmt.Fprintln(b, "\nEvents in the trace")
-	fmt.Fprintf(b, "  energize                 %s ± %s\n", si(ev.Energize, "s"), si(ev.EnergizeErr, "s"))
+	if fitted {
+		fmt.Fprintf(b, "  energize (fitted)        %s ± %s\n", si(on, "s"), stdErrSI(sigma, "s"))
+		if math.Abs(ev.Energize-on) > 3*ev.EnergizeErr {
+			fmt.Fprintf(b, "    (the edge detector found %s ± %s, where the alignment search started: a disturbance before the edge?)\n",
+				si(ev.Energize, "s"), si(ev.EnergizeErr, "s"))
+		}
+	} else {
+		fmt.Fprintf(b, "  energize (edge detector) %s ± %s (no fitted alignment)\n", si(on, "s"), si(sigma, "s"))
+	}
 	if ev.HasDip {
 		fmt.Fprintf(b, "  current peak before dip  %s at %s\n", si(ev.PeakI, "A"), si(ev.Peak, "s"))
-		fmt.Fprintf(b, "  dip minimum (seated)     %s at %s ± %s  (pull-in %s after energize)\n", si(ev.SeatI, "A"), si(ev.Seat, "s"), si(ev.SeatErr, "s"), si(ev.Seat-ev.Energize, "s"))
+		fmt.Fprintf(b, "  dip minimum (seated)     %s at %s ± %s  (pull-in %s after energize)\n", si(ev.SeatI, "A"), si(ev.Seat, "s"), si(ev.SeatErr, "s"), si(ev.Seat-on, "s"))
 	} else {
 		fmt.Fprintln(b, "  no pull-in dip (the plunger did not move, or moved too little to show)")
 	}
@@ -174,7 +202,7 @@ func printFitParameters(b io.Writer, fr *coilkick.FitResult) {
 // folder). Standard output ("-") is stdout, the text b otherwise.
 func writeFitOutputs(c *cli.Context, b *bufio.Writer, stdout io.Writer, path string, md *coilkick.Model, tr *coilkick.MeasuredTrace, fr *coilkick.FitResult) error {
 	outs := newOutputs(b)
-	if toStdout(c, "json", "csv") {
+	if toStdout(c, fitStdoutFlags...) {
 		b.Flush()
 		outs = newOutputs(stdout)
 	}
@@ -231,6 +259,15 @@ func stdErrText(v float64) string {
 		return "(not determined by the trace)"
 	}
 	return fmt.Sprintf("%.2g", v)
+}
+
+// stdErrSI prints a standard error with its unit, or says that the trace
+// does not determine it.
+func stdErrSI(v float64, unit string) string {
+	if math.IsInf(v, 0) || math.IsNaN(v) || !(v > 0) {
+		return "(not determined by the trace)"
+	}
+	return si(v, unit)
 }
 
 // siPM prints a value ± its standard error; a value below a hundredth of
@@ -308,11 +345,15 @@ type fitTrace struct {
 }
 
 type fitEvents struct {
-	Step        *float64 `json:"sample_step_s"`
-	Offset      *float64 `json:"pre_energize_offset_A"`
-	Noise       *float64 `json:"pre_energize_noise_A"`
-	Energize    *float64 `json:"energize_s"`
-	EnergizeErr *float64 `json:"energize_std_error_s"`
+	Step   *float64 `json:"sample_step_s"`
+	Offset *float64 `json:"pre_energize_offset_A"`
+	Noise  *float64 `json:"pre_energize_noise_A"`
+	// The energize instant the fit used (the fitted alignment), and the
+	// edge detector's estimate where the alignment search started.
+	Energize            *float64 `json:"energize_s"`
+	EnergizeErr         *float64 `json:"energize_std_error_s"`
+	DetectedEnergize    *float64 `json:"detected_energize_s"`
+	DetectedEnergizeErr *float64 `json:"detected_energize_std_error_s"`
 	// The pull-in dip: null when none was found.
 	PeakBeforeDip *float64 `json:"peak_before_dip_s"`
 	PeakCurrent   *float64 `json:"peak_before_dip_current_A"`
@@ -378,13 +419,15 @@ func newFitDoc(path string, md *coilkick.Model, tr *coilkick.MeasuredTrace, fr *
 			Start: fin(v.Start), Value: fin(v.Value), StdErr: positive(v.StdErr), Sensitivity: fin(v.Sensitivity)})
 	}
 	if ev := fr.Events; ev != nil {
+		on, sigma, _ := fitEnergize(fr)
 		d.Events = fitEvents{Step: positive(ev.Step), Offset: fin(ev.Offset), Noise: fin(ev.Noise),
-			Energize: fin(ev.Energize), EnergizeErr: positive(ev.EnergizeErr),
+			Energize: fin(on), EnergizeErr: positive(sigma),
+			DetectedEnergize: fin(ev.Energize), DetectedEnergizeErr: positive(ev.EnergizeErr),
 			TurnOff: optional(ev.TurnOff, ev.TurnOff > 0), DecayEnd: optional(ev.DecayEnd, ev.DecayEnd > 0)}
 		if ev.HasDip {
 			d.Events.PeakBeforeDip, d.Events.PeakCurrent = fin(ev.Peak), fin(ev.PeakI)
 			d.Events.Seat, d.Events.SeatCurrent, d.Events.SeatErr = fin(ev.Seat), fin(ev.SeatI), positive(ev.SeatErr)
-			d.Events.PullIn = fin(ev.Seat - ev.Energize)
+			d.Events.PullIn = fin(ev.Seat - on)
 		}
 		if ev.DecayEnd > 0 {
 			d.Events.DecayEndErr = positive(ev.DecayEndErr)

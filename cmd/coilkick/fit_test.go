@@ -8,6 +8,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"syscall"
 	"testing"
@@ -429,5 +430,95 @@ func TestFitNeverOverwritesInputs(t *testing.T) {
 	}
 	if _, err := os.Stat(fitted); err == nil {
 		t.Errorf("-o written although --plot was refused")
+	}
+}
+
+// TestFitStdoutAlone: with -o - standard output carries the fitted
+// scenario alone (it used to carry the text summary first), as with
+// --json - and --csv -.
+func TestFitStdoutAlone(t *testing.T) {
+	t.Parallel()
+	var out, errb bytes.Buffer
+	code := run(&out, &errb, []string{"coilkick", "fit", "../../scenarios/irrigation-valve.yaml", "--trace", "../../testdata/fit/irrigation-scope.csv", "-o", "-"})
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errb.String())
+	}
+	if !strings.HasPrefix(out.String(), "# Fitted by coilkick") || strings.Contains(out.String(), "Events in the trace") ||
+		strings.Contains(out.String(), "written to") {
+		t.Errorf("standard output is not the fitted scenario alone:\n%s", out.String())
+	}
+	if _, err := coilkick.Parse(out.Bytes(), "fitted.yaml"); err != nil {
+		t.Errorf("standard output does not read as a scenario: %v", err)
+	}
+}
+
+// TestFitEventsUseAlignment: the energize instant printed among the
+// trace's events (and the pull-in time from it) is the one the fit used,
+// the fitted alignment, not the edge detector's. The committed trace with
+// a 20 mA disturbance from 0.6 ms to the energize edge at 1 ms fools the
+// detector (it finds 0.5 ms, and a pull-in of 9.2 ms); the fit's
+// alignment finds the edge at 1 ms again (the scenario's energize time,
+// the trace's truth) and the dip 8.7 ms after it (true pull-in 8.63 ms).
+func TestFitEventsUseAlignment(t *testing.T) {
+	t.Parallel()
+	data, err := os.ReadFile("../../testdata/fit/irrigation-scope.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(string(data), "\n")
+	for k, l := range lines {
+		ms, mA, ok := strings.Cut(l, ",")
+		tm, err1 := strconv.ParseFloat(strings.TrimSpace(ms), 64)
+		i, err2 := strconv.ParseFloat(strings.TrimSpace(mA), 64)
+		if ok && err1 == nil && err2 == nil && tm >= 0.6 && tm < 1.0 {
+			lines[k] = fmt.Sprintf("%s, %.4f", ms, i+20)
+		}
+	}
+	trace := filepath.Join(t.TempDir(), "disturbed.csv")
+	if err := os.WriteFile(trace, []byte(strings.Join(lines, "\n")), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	args := []string{"fit", "../../scenarios/irrigation-valve.yaml", "--trace", trace}
+	js, errs, code := runArgs(append(args, "--json", "-")...)
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var doc struct {
+		Shift    float64 `json:"time_alignment_s"`
+		ShiftErr float64 `json:"time_alignment_std_error_s"`
+	}
+	var ev struct {
+		Events struct {
+			Energize    float64 `json:"energize_s"`
+			EnergizeErr float64 `json:"energize_std_error_s"`
+			Detected    float64 `json:"detected_energize_s"`
+			Seat        float64 `json:"seated_s"`
+			PullIn      float64 `json:"pull_in_time_s"`
+		} `json:"events"`
+	}
+	if err := json.Unmarshal([]byte(js), &doc); err != nil {
+		t.Fatal(err)
+	}
+	if err := json.Unmarshal([]byte(js), &ev); err != nil {
+		t.Fatal(err)
+	}
+	e := ev.Events
+	const energizeAt = 1e-3 // the scenario's timing.energize at
+	if math.Abs(e.Energize-(energizeAt-doc.Shift)) > 1e-12 || e.EnergizeErr != doc.ShiftErr || math.Abs(e.PullIn-(e.Seat-e.Energize)) > 1e-12 {
+		t.Errorf("events %+v inconsistent with the alignment %g ± %g s", e, doc.Shift, doc.ShiftErr)
+	}
+	if !(math.Abs(e.Energize-energizeAt) < 3*e.EnergizeErr) || !(math.Abs(e.Detected-energizeAt) > 3e-4) {
+		t.Errorf("fitted energize %g ± %g s (truth 1 ms), detector %g s: the test trace does not show the difference", e.Energize, e.EnergizeErr, e.Detected)
+	}
+	out, _, _ := runArgs(args...)
+	for _, want := range []string{
+		"energize (fitted)        " + si(e.Energize, "s") + " ± " + si(e.EnergizeErr, "s"),
+		"(pull-in " + si(e.Seat-e.Energize, "s") + " after energize)",
+		"(the edge detector found " + si(e.Detected, "s"),
+		"trace dip " + si(e.Seat-e.Energize, "s") + " after energize (fitted alignment)",
+	} {
+		if !strings.Contains(out, want) {
+			t.Errorf("fit output lacks %q:\n%s", want, out)
+		}
 	}
 }

@@ -300,6 +300,26 @@ func (s *summary) release(m *coilkick.Metrics) {
 	}
 	s.row(fmt.Sprintf("current decay (to %g %%)", 100*coilkick.DecayFraction), interval(m.CurrentDecay, "did not decay"))
 	s.row("clamp conduction", interval(m.ClampConduction, "still conducting"))
+	s.reversePulse(m)
+}
+
+// reversePulse prints an H-bridge's reverse (release) pulse figures: its
+// start, the release measured from it, the most negative current and any
+// re-latch during it.
+func (s *summary) reversePulse(m *coilkick.Metrics) {
+	if !m.ReverseStart.Happened {
+		return
+	}
+	s.row("reverse pulse starts at", si(m.ReverseStart.Seconds, "s")+" (run time)")
+	if m.SeatedAtTurnOff && m.ReleaseNotApplicable() == "" {
+		s.row("release after its start", interval(m.ReleaseAfterReverse, "did not release"))
+	}
+	s.row("lowest (reverse) current", si(m.LowestCurrent, "A"))
+	if m.Relatch.Happened {
+		s.row("re-latched during the pulse", fmt.Sprintf("at %s, %s", si(m.Relatch.Time, "s"), si(m.Relatch.Current, "A")))
+	} else {
+		s.row("re-latched during the pulse", "no")
+	}
 }
 
 func (s *summary) stress(m *coilkick.Metrics) {
@@ -453,6 +473,27 @@ type jsonMetrics struct {
 	Hold              *jsonHold         `json:"hold"`
 	Brake             *jsonBrake        `json:"brake"`
 	Storage           *jsonStorage      `json:"storage_capacitor"`
+	Reverse           *jsonReverse      `json:"reverse_pulse"`
+}
+
+// jsonReverse is an H-bridge's reverse (release) pulse (null without one).
+type jsonReverse struct {
+	Start         float64  `json:"start_s"` // run time
+	ReleaseAfter  *float64 `json:"release_after_start_s"`
+	LowestCurrent float64  `json:"lowest_current_A"`
+	Relatched     bool     `json:"relatched"`
+	RelatchTime   *float64 `json:"relatch_time_s"` // run time; null: none
+	RelatchAt     *float64 `json:"relatch_current_A"`
+}
+
+// newJSONReverse returns the reverse pulse's figures (nil without one).
+func newJSONReverse(m *coilkick.Metrics) *jsonReverse {
+	if !m.ReverseStart.Happened {
+		return nil
+	}
+	rl := m.Relatch
+	return &jsonReverse{Start: m.ReverseStart.Seconds, ReleaseAfter: seconds(m.ReleaseAfterReverse), LowestCurrent: m.LowestCurrent,
+		Relatched: rl.Happened, RelatchTime: optional(rl.Time, rl.Happened), RelatchAt: optional(rl.Current, rl.Happened)}
 }
 
 // jsonStorage is a capacitor-discharge drive's storage capacitor (null
@@ -572,6 +613,7 @@ func writeJSON(w io.Writer, md *coilkick.Model, res *coilkick.Result, as *coilki
 			CurrentAtEnd: optional(b.CurrentAtEnd, b.Ended), GapAtStart: b.GapAtStart, SpeedAtStart: b.SpeedAtStart}
 	}
 	doc.Metrics.Storage = newJSONStorage(m.Storage)
+	doc.Metrics.Reverse = newJSONReverse(m)
 	if d := m.DropOut; d.Happened {
 		doc.Metrics.DropOut = &jsonDropOut{Time: d.Time, InHold: d.InHold, Current: d.Current, Pull: d.Pull, Passive: d.Passive}
 	}

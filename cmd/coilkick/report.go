@@ -132,6 +132,9 @@ var reportGroups = []struct {
 		{"release_time_s", "release time"}, {"drop_time_s", "drop time"},
 		{"current_decay_time_s", fmt.Sprintf("current decay (to %g %%)", 100*coilkick.DecayFraction)},
 		{"clamp_conduction_time_s", "clamp conduction"},
+		{"reverse_pulse.start_s", "reverse pulse starts at (run time)"}, {"reverse_pulse.release_after_start_s", "release after its start"},
+		{"reverse_pulse.lowest_current_A", "lowest (reverse) current"}, {"reverse_pulse.relatched", "re-latched during the pulse"},
+		{"reverse_pulse.relatch_time_s", "re-latch (run time)"}, {"reverse_pulse.relatch_current_A", "current at re-latch"},
 	}},
 	{"Switch and suppression", []figureRow{
 		{"peak_switch_voltage_V", "peak switch voltage"}, {"lowest_switch_voltage_V", "lowest switch voltage"},
