@@ -192,6 +192,10 @@ func hostileCases() []hostileCase {
 		{name: "tolerance 1e-30", args: []string{"run", v, "--tolerance", "1e-30"}, code: 1, stderr: []string{"--tolerance 1e-30"}, quiet: true},
 		{name: "margin NaN", args: []string{"solve", v, "--margin", "NaN"}, code: 1, stderr: []string{"--margin NaN"}, quiet: true},
 		{name: "margin -1", args: []string{"solve", v, "--margin", "-1"}, code: 1, stderr: []string{"--margin -1"}, quiet: true},
+		// the range of ratings.hold force margin, 0.01 to 100: 1e-9 printed "force margin 0.00" and a holding current
+		{name: "margin 1e-9", args: []string{"solve", v, "--margin", "1e-9"}, code: 1, stderr: []string{"--margin 1e-09", "0.01 to 100"}, quiet: true},
+		{name: "margin 1e9", args: []string{"solve", v, "--margin", "1e9"}, code: 1, stderr: []string{"--margin 1e+09", "0.01 to 100"}, quiet: true},
+		{name: "margin at the range's ends", args: []string{"solve", v, "--margin", "0.01", "--json", "$D/m.json"}, code: 0, created: []string{"m.json"}},
 		{name: "samples -5", args: []string{"corners", "../../scenarios/door-strike-duty.yaml", "--samples", "-5"}, code: 1, stderr: []string{"--samples -5"}, quiet: true},
 		{name: "samples 1e9", args: []string{"corners", "../../scenarios/door-strike-duty.yaml", "--samples", "1000000000"}, code: 1, stderr: []string{"--samples 1000000000", "100000"}, quiet: true},
 		{name: "samples not a whole number", args: []string{"corners", "../../scenarios/door-strike-duty.yaml", "--samples", "1e9"}, code: 1, stderr: []string{"samples"}},

@@ -586,8 +586,9 @@ var flagChecks = []struct {
 		return nil
 	}},
 	{"margin", func(c *cli.Context) error {
-		if m := c.Float64("margin"); !(m > 0) || math.IsInf(m, 0) {
-			return fmt.Errorf("--margin %g: must be a finite number above 0 (as ratings.hold force margin in a scenario), e.g. 1.2", m)
+		// the range of ratings.hold force margin (scenario_ratings.go)
+		if m := c.Float64("margin"); !(m >= 0.01 && m <= 100) {
+			return fmt.Errorf("--margin %g: must be from 0.01 to 100 (as ratings.hold force margin in a scenario), e.g. 1.2", m)
 		}
 		return nil
 	}},
