@@ -56,6 +56,31 @@ type odeSystem interface {
 	dynamic() []int
 }
 
+// pieceSystem is a system whose right-hand side, within one mode, is
+// smooth only piecewise: across a piece's end f stays continuous but a
+// derivative of it jumps (a table's gap cells). A step over such a kink
+// loses the methods' order and is rejected again and again. The system
+// evaluates f on the present piece, continued smoothly past its ends, and
+// gives the piece's ends as guards; the integrator lands on a crossing as
+// on a state event, but only moves the system to the next piece — no event,
+// no mode change, no restart: f is recomputed there and the step size goes
+// on from the controller.
+type pieceSystem interface {
+	// enterPiece puts the system on the piece at y.
+	enterPiece(y []float64)
+	// crossPiece moves the system to the piece beyond the end of the
+	// present one whose guard k (0 ≤ k < the piece guards' number) has
+	// just crossed zero; y, where it crossed, may be a rounding error short
+	// of that end, so the piece is chosen by the guard, not by y.
+	crossPiece(k int)
+	// pieceGuards writes the present piece's guards at y into g (negative
+	// inside it) and returns how many there are.
+	pieceGuards(y, g []float64) int
+}
+
+// maxPieceGuards bounds the number of piece guards.
+const maxPieceGuards = 2
+
 // fastForwarder is a system that may jump ahead in time after an event,
 // repeating what it knows to be periodic: it changes y and returns the new
 // time (t when it does not jump).
@@ -81,6 +106,7 @@ type odeStats struct {
 	Evals      int // right-hand side evaluations
 	StiffSteps int // accepted steps taken by the Rosenbrock method
 	Switches   int // segments the stiffness detector moved to the Rosenbrock method
+	Pieces     int // accepted steps that ended on a piece's end (pieceSystem)
 }
 
 // maxGuardCount bounds the number of guards a system may report.
@@ -130,10 +156,12 @@ type odeIntegrator struct {
 	explicit, implicit stepper
 	stats              odeStats
 	norm               func(err, y0, y1 []float64) float64
+	pieces             pieceSystem // nil: the system's f is smooth within a mode
 }
 
 func newODE(sys odeSystem, n int, set odeSettings) *odeIntegrator {
 	in := &odeIntegrator{sys: sys, set: set, n: n, scratch: make([]float64, n)}
+	in.pieces, _ = sys.(pieceSystem)
 	if set.NJac == 0 {
 		in.set.NJac = n
 	}
@@ -194,6 +222,7 @@ type odeLoop struct {
 	gmid   [2][]float64 // guards at the step's two interior points
 	gt     []float64    // scratch for locate
 	ng     int          // guards the present modes have
+	np     int          // piece guards, after the ng mode guards (pieceSystem)
 	view   stepView     // the accepted step, as the system sees it
 	// Stiffness detection on the explicit method (Hairer & Wanner,
 	// Solving ODEs II, IV.2, DOPRI5's test): h·|λ| near the edge of the
@@ -208,11 +237,12 @@ type odeLoop struct {
 // per pass, up to the step budget.
 func (in *odeIntegrator) run(t0 float64, y []float64) error {
 	n := in.n
+	const ng = maxGuardCount + maxPieceGuards
 	s := &odeLoop{in: in, t: t0, y: y, f0: make([]float64, n), y1: make([]float64, n), ytmp: make([]float64, n),
-		g0: make([]float64, maxGuardCount), g1: make([]float64, maxGuardCount), gt: make([]float64, maxGuardCount),
-		gmid: [2][]float64{make([]float64, maxGuardCount), make([]float64, maxGuardCount)}}
+		g0: make([]float64, ng), g1: make([]float64, ng), gt: make([]float64, ng),
+		gmid: [2][]float64{make([]float64, ng), make([]float64, ng)}}
 	s.h = s.restart()
-	s.ng = in.sys.guards(s.t, y, s.g0)
+	s.guardsAtStart()
 	for attempts := 1; ; attempts++ {
 		if attempts > in.set.MaxSteps {
 			return fmt.Errorf("%w: %d steps reached at t = %.9g s; loosen the tolerance or raise the solver's max steps", errStepBudget, in.set.MaxSteps, s.t)
@@ -224,10 +254,34 @@ func (in *odeIntegrator) run(t0 float64, y []float64) error {
 	}
 }
 
+// guardsAtStart evaluates the mode's guards, then the piece guards, at
+// the present time and state into g0.
+func (s *odeLoop) guardsAtStart() {
+	s.ng, s.np = s.in.allGuards(s.t, s.y, s.g0)
+}
+
+// allGuards writes the mode's guards, then the piece guards, at (t, y)
+// into g and returns how many of each there are.
+func (in *odeIntegrator) allGuards(t float64, y, g []float64) (ng, np int) {
+	ng = in.sys.guards(t, y, g)
+	if in.pieces != nil {
+		np = in.pieces.pieceGuards(y, g[ng:])
+	}
+	return ng, np
+}
+
+// enterPiece puts a pieceSystem on the piece at y.
+func (in *odeIntegrator) enterPiece(y []float64) {
+	if in.pieces != nil {
+		in.pieces.enterPiece(y)
+	}
+}
+
 // restart chooses the method for the segment that starts at the present
 // time (after an event, or at the start) and returns a fresh starting step.
 func (s *odeLoop) restart() float64 {
 	in := s.in
+	in.enterPiece(s.y)
 	s.q = in.choose()
 	s.stiffHits, s.calm = 0, 0
 	in.sys.deriv(s.t, s.y, s.f0)
@@ -263,7 +317,14 @@ func (s *odeLoop) step() (done bool, err error) {
 		return false, nil
 	}
 	if kEv, tEv := s.firstCrossing(); kEv >= 0 {
-		return s.stateEvent(kEv, tEv, landing, tNext)
+		if kEv < s.ng {
+			return s.stateEvent(kEv, tEv, landing, tNext)
+		}
+		if !landing || tEv < tNext {
+			return s.pieceCrossing(errNorm, kEv-s.ng, tEv)
+		}
+		// A piece's end reached exactly at the time event: the landing
+		// re-enters the piece (afterLanding).
 	}
 	return s.accept(errNorm, landing, tNext, hNatural)
 }
@@ -278,7 +339,7 @@ func (s *odeLoop) atTimeEvent(tNext float64) (done bool, err error) {
 	}
 	s.t = in.jump(s.t, s.y)
 	s.h = s.restart()
-	s.ng = in.sys.guards(s.t, s.y, s.g0)
+	s.guardsAtStart()
 	return false, nil
 }
 
@@ -301,13 +362,13 @@ func (s *odeLoop) reject(errNorm float64) {
 func (s *odeLoop) firstCrossing() (kEv int, tEv float64) {
 	in := s.in
 	t, h := s.t, s.h
-	in.sys.guards(t+h, s.y1, s.g1)
+	in.allGuards(t+h, s.y1, s.g1)
 	for j, th := range [...]float64{1.0 / 3, 2.0 / 3} {
 		in.m.dense(th, s.ytmp)
-		in.sys.guards(t+th*h, s.ytmp, s.gmid[j])
+		in.allGuards(t+th*h, s.ytmp, s.gmid[j])
 	}
 	kEv, tEv = -1, t+h
-	for k := 0; k < s.ng; k++ {
+	for k := 0; k < s.ng+s.np; k++ {
 		a, ga := 0.0, s.g0[k]
 		for j, th := range [...]float64{1.0 / 3, 2.0 / 3, 1} {
 			gb := s.g1[k]
@@ -315,7 +376,7 @@ func (s *odeLoop) firstCrossing() (kEv int, tEv float64) {
 				gb = s.gmid[j][k]
 			}
 			if gb > 0 && ga <= 0 {
-				te := in.locate(t, h, k, a, th, ga, gb, s.ytmp, s.gt)
+				te := in.locate(t, h, k, s.ng, a, th, ga, gb, s.ytmp, s.gt)
 				if kEv < 0 || te < tEv {
 					kEv, tEv = k, te
 				}
@@ -376,8 +437,56 @@ func (s *odeLoop) stateEvent(k int, tEv float64, landing bool, tNext float64) (d
 		hOld = math.Inf(1)
 	}
 	s.h = math.Min(s.restart(), hOld)
-	s.ng = in.sys.guards(s.t, s.y, s.g0)
+	s.guardsAtStart()
 	return false, nil
+}
+
+// pieceCrossing accepts the step up to the present piece's end at tEv,
+// where its piece guard k crossed (pieceSystem), puts the system on the
+// next piece and goes on with the step size the error estimate errNorm of
+// the whole step asks for; f is recomputed at tEv (continuous there, but
+// the stepper's last f is at the step's end). The new piece's guard at the
+// end just crossed may start a rounding error above zero; it starts at 0,
+// so that a return across that end is still seen.
+func (s *odeLoop) pieceCrossing(errNorm float64, k int, tEv float64) (done bool, err error) {
+	in := s.in
+	in.m.dense((tEv-s.t)/s.h, s.ytmp)
+	s.record(tEv, s.ytmp)
+	in.stats.Pieces++
+	switchNow := s.stiffnessDetected()
+	s.t = tEv
+	copy(s.y, s.ytmp)
+	in.pieces.crossPiece(k)
+	in.sys.deriv(s.t, s.y, s.f0)
+	in.stats.Evals++
+	s.guardsAtStart()
+	for j := s.ng; j < s.ng+s.np; j++ {
+		s.g0[j] = math.Min(s.g0[j], 0)
+	}
+	s.h *= s.growth(errNorm)
+	if switchNow {
+		s.toImplicit()
+	}
+	return false, nil
+}
+
+// growth returns the step-size factor after an accepted step with error
+// norm errNorm: 0.9·err^(−1/q) within 0.2 to 5.
+func (s *odeLoop) growth(errNorm float64) float64 {
+	if errNorm > 0 {
+		return math.Min(5, math.Max(0.2, 0.9*math.Pow(errNorm, -1/s.q)))
+	}
+	return 5
+}
+
+// toImplicit moves the segment to the implicit method (the stiffness test
+// fired).
+func (s *odeLoop) toImplicit() {
+	in := s.in
+	in.implicit.(*rodas).setColumns(in.sys.dynamic())
+	in.m = in.implicit
+	s.q = float64(in.m.order())
+	in.stats.Switches++
 }
 
 // accept takes the step (to the time event tNext when landing), picks the
@@ -397,16 +506,9 @@ func (s *odeLoop) accept(errNorm float64, landing bool, tNext, hNatural float64)
 	copy(s.y, s.y1)
 	copy(s.f0, in.m.f1())
 	copy(s.g0, s.g1)
-	fac := 5.0
-	if errNorm > 0 {
-		fac = math.Min(5, math.Max(0.2, 0.9*math.Pow(errNorm, -1/s.q)))
-	}
-	s.h *= fac
+	s.h *= s.growth(errNorm)
 	if switchNow {
-		in.implicit.(*rodas).setColumns(in.sys.dynamic())
-		in.m = in.implicit
-		s.q = float64(in.m.order())
-		in.stats.Switches++
+		s.toImplicit()
 	}
 	if landing {
 		return s.afterLanding(hNatural)
@@ -446,18 +548,19 @@ func (s *odeLoop) afterLanding(hNatural float64) (done bool, err error) {
 	if t2 := in.jump(s.t, s.y); t2 != s.t {
 		s.t = t2
 		s.h = s.restart()
-		s.ng = in.sys.guards(s.t, s.y, s.g0)
+		s.guardsAtStart()
 		return false, nil
 	}
 	if q1 := in.choose(); q1 != s.q {
 		s.q = q1
 		s.h = s.restart()
 	} else {
+		in.enterPiece(s.y)
 		in.sys.deriv(s.t, s.y, s.f0)
 		in.stats.Evals++
 		s.h = hNatural
 	}
-	s.ng = in.sys.guards(s.t, s.y, s.g0)
+	s.guardsAtStart()
 	return false, nil
 }
 
@@ -484,8 +587,9 @@ func epsTime(t float64) float64 {
 // locate finds the time at which guard k crosses zero inside the last
 // attempted step [t, t+h], between the fractions a and b of the step where
 // its values are ga ≤ 0 and gb > 0, by the Illinois method on the dense output. It returns the right end
-// of the final bracket, so the guard has (just) crossed there.
-func (in *odeIntegrator) locate(t, h float64, k int, a, b, ga, gb float64, ytmp, g []float64) float64 {
+// of the final bracket, so the guard has (just) crossed there. Guards from
+// ng on are piece guards (pieceSystem).
+func (in *odeIntegrator) locate(t, h float64, k, ng int, a, b, ga, gb float64, ytmp, g []float64) float64 {
 	fa, fb := ga, gb
 	side := 0
 	tol := (1e-13 + 4*epsTime(t)) / h
@@ -495,7 +599,11 @@ func (in *odeIntegrator) locate(t, h float64, k int, a, b, ga, gb float64, ytmp,
 			c = 0.5 * (a + b)
 		}
 		in.m.dense(c, ytmp)
-		in.sys.guards(t+c*h, ytmp, g)
+		if k < ng {
+			in.sys.guards(t+c*h, ytmp, g)
+		} else {
+			in.pieces.pieceGuards(ytmp, g[ng:])
+		}
 		fc := g[k]
 		if fc > 0 {
 			b, fb = c, fc

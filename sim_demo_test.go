@@ -301,6 +301,27 @@ func BenchmarkBuildGeometryScenario(b *testing.B) {
 	}
 }
 
+// TestDosingDemoStepBudget: the geometry demo's flux-linkage table has a
+// force whose gap slope jumps at each of its 60 gap nodes; the run lands
+// on each node it crosses (system.pieceGuards) instead of stepping over
+// the kink. Steps are machine-independent: 587 accepted and 89 rejected
+// with the landing, 782 and 399 without. The budgets leave about 10 %
+// (accepted) and 40 % (rejected) for changes elsewhere in the run.
+func TestDosingDemoStepBudget(t *testing.T) {
+	t.Parallel()
+	md, err := LoadModel("scenarios/dosing-valve-geometry.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := Simulate(md, &Options{NoTrace: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if st := res.Stats; st.Steps > 650 || st.Rejected > 125 {
+		t.Errorf("geometry demo: %d steps, %d rejected; want at most 650 and 125", st.Steps, st.Rejected)
+	}
+}
+
 // One actuation of the geometry demo (Rosenbrock: eddy turn with switch
 // capacitance).
 func BenchmarkActuationDosingValveGeometry(b *testing.B) {

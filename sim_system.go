@@ -102,6 +102,16 @@ type system struct {
 	// mechanics off (Options.ImposedVelocity; 0: none).
 	blocked bool
 	imposed float64
+
+	// pieces: the magnet is smooth in the gap only piecewise (a table's
+	// cells); piece is the one the integrator's present step is on
+	// (enterPiece), nil before the first. The right-hand side (deriv)
+	// evaluates the magnet on piece, so that within a step it stays one
+	// smooth function even when a stage overshoots the piece's end, and the
+	// integrator lands on the crossing (pieceGuards) instead of stepping
+	// over a kink in the force's gap derivative.
+	pieces magnet.GapPiecewise
+	piece  magnet.GapPiece
 }
 
 // outputs are the algebraic quantities at a state.
@@ -159,6 +169,12 @@ func (s *system) current(y []float64) float64 {
 // i = im.
 func (s *system) solve(y []float64) (i, im float64) {
 	im = s.mag.Current(y[sFlux], y[sGap])
+	return s.solveAt(y, im), im
+}
+
+// solveAt is solve with the magnetizing current im (A) given; it returns
+// the winding current i.
+func (s *system) solveAt(y []float64, im float64) (i float64) {
 	vC, vS := y[sSwitchC], y[sSnubberC]
 	v0, rs := s.rail(y)
 	open := s.cmode == circuit.Off && s.drive.Open()
@@ -169,7 +185,7 @@ func (s *system) solve(y []float64) (i, im float64) {
 		}
 		s.termCurrent = i
 		s.drive.SolveRail(s.cmode, v0, rs, i, vC, vS, &s.pt)
-		return i, im
+		return i
 	}
 	// The circuit's Thevenin equivalent at the coil terminals.
 	var vc0, ra float64
@@ -220,7 +236,7 @@ func (s *system) solve(y []float64) (i, im float64) {
 		s.pt.SwitchVoltage = v0 - s.pt.CoilVoltage
 		s.pt.CurrentPinned = false
 	}
-	return i, im
+	return i
 }
 
 // turnOffMode returns the mode the drive takes when the switch opens with
@@ -235,10 +251,10 @@ func (s *system) turnOffMode(i float64) circuit.Mode {
 }
 
 func (s *system) deriv(_ float64, y, dy []float64) {
-	i, im := s.solve(y)
-	pt := &s.pt
 	x, v := y[sGap], y[sVel]
-	pull := s.mag.Force(im, x)
+	im, pull := s.currentForce(y)
+	i := s.solveAt(y, im)
+	pt := &s.pt
 	switch {
 	case !pt.CurrentPinned:
 		dy[sFlux] = pt.CoilVoltage - s.resistance(y)*i
@@ -247,7 +263,7 @@ func (s *system) deriv(_ float64, y, dy []float64) {
 	case s.pm:
 		// Open coil, no current: λ = λ(0, x) follows the gap,
 		// dλ/dt = ∂λ/∂x|_i·v = −(∂i/∂x)/(∂i/∂λ)·v.
-		dl, dx := s.mag.Partials(y[sFlux], x)
+		dl, dx := s.derivMagnet().Partials(y[sFlux], x)
 		dy[sFlux] = -dx / dl * v
 	default:
 		dy[sFlux] = 0
@@ -313,6 +329,70 @@ func (s *system) deriv(_ float64, y, dy []float64) {
 		dy[sVel] -= ringPull / s.plunger.Mass
 		dy[qMech] -= ringPull * v
 	}
+}
+
+// currentForce returns the magnetizing current (A) and the magnetic pull
+// (N) at y, on the present gap piece when there is one (deriv).
+func (s *system) currentForce(y []float64) (im, pull float64) {
+	if s.piece != nil {
+		return s.piece.CurrentForce(y[sFlux], y[sGap])
+	}
+	im = s.mag.Current(y[sFlux], y[sGap])
+	return im, s.mag.Force(im, y[sGap])
+}
+
+// derivMagnet returns the magnetic model deriv evaluates: the present
+// gap piece, or the whole model.
+func (s *system) derivMagnet() magnet.Model {
+	if s.piece != nil {
+		return s.piece
+	}
+	return s.mag
+}
+
+// enterPiece puts deriv on the gap piece at y (the integrator calls it at
+// the start of a run, after events and when a step has landed on a piece's
+// end); nothing for a magnet that is smooth in the gap.
+func (s *system) enterPiece(y []float64) {
+	if s.pieces == nil {
+		pw, ok := s.mag.(magnet.GapPiecewise)
+		if !ok {
+			return
+		}
+		s.pieces = pw
+	}
+	s.piece = s.pieces.GapPieceAt(y[sGap], y[sVel])
+}
+
+// crossPiece moves deriv to the gap piece beyond the present one's lower
+// end (guard k = 0) or upper end (k = 1), chosen at that end, not at the
+// gap reached, which may be a rounding error short of it.
+func (s *system) crossPiece(k int) {
+	lo, hi := s.piece.Span()
+	if k == 0 {
+		s.piece = s.pieces.GapPieceAt(lo, -1)
+	} else {
+		s.piece = s.pieces.GapPieceAt(hi, 1)
+	}
+}
+
+// pieceGuards writes the guards of the present gap piece into g and
+// returns their number: the gap's distances past the piece's ends, below
+// and above (negative inside), while the plunger moves; none otherwise.
+func (s *system) pieceGuards(y, g []float64) int {
+	if s.piece == nil || s.mmode != mechFree {
+		return 0
+	}
+	lo, hi := s.piece.Span()
+	x := y[sGap]
+	g[0], g[1] = -1, -1
+	if !math.IsInf(lo, -1) {
+		g[0] = lo - x
+	}
+	if !math.IsInf(hi, 1) {
+		g[1] = x - hi
+	}
+	return 2
 }
 
 // out computes the algebraic outputs at y.

@@ -46,7 +46,10 @@ const tailStride = 3
 //
 // and the force is exactly −∂W'/∂x of the model's own co-energy: energy is
 // conserved by construction. Gaps outside GapRange are clamped to the
-// range: λ, W' and the force hold their end values.
+// range: λ, W' and the force hold their end values. The blend is C1 in the
+// gap: the force is continuous at a gap node but its gap slope jumps there;
+// GapPieceAt gives the table on one cell's cubics, so that an integrator
+// can land on the nodes instead of stepping over the kinks.
 type Table struct {
 	cur  []float64 // A, ascending, cur[0] == 0
 	gap  []float64 // m, ascending
@@ -60,6 +63,7 @@ type Table struct {
 	// λ, dλ/di and W' at the first current, continued linearly below it.
 	signed bool
 	head   []float64
+	cells  []TableCell // per gap cell: the table on that cell's cubics (GapPieceAt)
 }
 
 // gapPoint holds the blend weights at one gap.
@@ -416,14 +420,23 @@ func (t *Table) buildGapWeights() {
 			add(cols[q], h*w[q], h11)
 		}
 	}
+	t.cells = make([]TableCell, nX-1)
+	for j := range t.cells {
+		t.cells[j] = TableCell{t: t, j: j}
+	}
 }
 
 // gapAt returns the blend weights at gap x (m), clamped to GapRange.
 func (t *Table) gapAt(x float64) gapPoint {
+	return t.gapIn(x, t.cellOf(x))
+}
+
+// cellOf returns the gap cell of x (m) clamped to GapRange: the largest
+// j <= len(gap)−2 with gap[j] <= x.
+func (t *Table) cellOf(x float64) int {
 	nX := len(t.gap)
-	g := gapPoint{inside: x >= t.gap[0] && x <= t.gap[nX-1]}
 	x = clamp(x, t.gap[0], t.gap[nX-1])
-	lo, hi := 0, nX-2 // cell index: largest j <= nX-2 with gap[j] <= x
+	lo, hi := 0, nX-2
 	for lo < hi {
 		mid := int(uint(lo+hi+1) >> 1)
 		if t.gap[mid] <= x {
@@ -432,9 +445,23 @@ func (t *Table) gapAt(x float64) gapPoint {
 			hi = mid - 1
 		}
 	}
-	j := lo
-	g.ws = t.ws[j]
-	g.h = t.gap[j+1] - t.gap[j]
+	return lo
+}
+
+// gapIn returns the blend weights at gap x (m), clamped to GapRange, from
+// the cubics of gap cell j: gapAt's inside cell j, their polynomial
+// continuation outside it.
+func (t *Table) gapIn(x float64, j int) gapPoint {
+	nX := len(t.gap)
+	g := t.cellPoint(clamp(x, t.gap[0], t.gap[nX-1]), j)
+	g.inside = x >= t.gap[0] && x <= t.gap[nX-1]
+	return g
+}
+
+// cellPoint returns the blend weights of gap cell j's cubics at any gap x
+// (m), not clamped (inside reports true).
+func (t *Table) cellPoint(x float64, j int) gapPoint {
+	g := gapPoint{inside: true, ws: t.ws[j], h: t.gap[j+1] - t.gap[j]}
 	u := (x - t.gap[j]) / g.h
 	p := t.wp[j*16:][:16]
 	for c := range t.nw {
@@ -585,6 +612,11 @@ func (t *Table) GapRange() (min, max float64) { return t.gap[0], t.gap[len(t.gap
 // FluxLinkage returns λ(i, x) (Wb); odd in i.
 func (t *Table) FluxLinkage(i, x float64) float64 {
 	g := t.gapAt(x)
+	return t.fluxLinkage(&g, i)
+}
+
+// fluxLinkage is FluxLinkage with the blend weights g at the gap.
+func (t *Table) fluxLinkage(g *gapPoint, i float64) float64 {
 	if t.signed {
 		k, s := t.curAtSigned(i)
 		lam := 0.0
@@ -606,6 +638,11 @@ func (t *Table) FluxLinkage(i, x float64) float64 {
 // CoEnergy returns W'(i, x) = Σ φ_j(x)·W'_j(|i|) (J); even in i.
 func (t *Table) CoEnergy(i, x float64) float64 {
 	g := t.gapAt(x)
+	return t.coEnergy(&g, i)
+}
+
+// coEnergy is CoEnergy with the blend weights g at the gap.
+func (t *Table) coEnergy(g *gapPoint, i float64) float64 {
 	k, s := t.curAt(math.Abs(i))
 	if t.signed {
 		k, s = t.curAtSigned(i)
@@ -622,6 +659,11 @@ func (t *Table) CoEnergy(i, x float64) float64 {
 // the nearest end.
 func (t *Table) Force(i, x float64) float64 {
 	g := t.gapAt(x)
+	return t.force(&g, i)
+}
+
+// force is Force with the blend weights g at the gap.
+func (t *Table) force(g *gapPoint, i float64) float64 {
 	k, s := t.curAt(math.Abs(i))
 	if t.signed {
 		k, s = t.curAtSigned(i)
@@ -639,10 +681,15 @@ func (t *Table) Force(i, x float64) float64 {
 // it inverts the linear continuation; odd in lam.
 func (t *Table) Current(lam, x float64) float64 {
 	g := t.gapAt(x)
+	return t.currentAt(&g, lam)
+}
+
+// currentAt is Current with the blend weights g at the gap.
+func (t *Table) currentAt(g *gapPoint, lam float64) float64 {
 	if t.signed {
-		return t.currentSigned(&g, lam)
+		return t.currentSigned(g, lam)
 	}
-	return math.Copysign(t.current(&g, math.Abs(lam)), lam)
+	return math.Copysign(t.current(g, math.Abs(lam)), lam)
 }
 
 func (t *Table) current(g *gapPoint, al float64) float64 {
@@ -720,12 +767,17 @@ func (t *Table) invert(g *gapPoint, al float64) float64 {
 // GapRange, where λ is held constant in x.
 func (t *Table) Partials(lam, x float64) (diDlam, diDx float64) {
 	g := t.gapAt(x)
+	return t.partials(&g, lam)
+}
+
+// partials is Partials with the blend weights g at the gap.
+func (t *Table) partials(g *gapPoint, lam float64) (diDlam, diDx float64) {
 	var k int
 	var s float64
 	if t.signed {
-		k, s = t.curAtSigned(t.currentSigned(&g, lam))
+		k, s = t.curAtSigned(t.currentSigned(g, lam))
 	} else {
-		k, s = t.curAt(t.current(&g, math.Abs(lam)))
+		k, s = t.curAt(t.current(g, math.Abs(lam)))
 	}
 	dldi, dldx := 0.0, 0.0
 	for c := range t.nw {
