@@ -84,7 +84,9 @@ func (md *Model) scales() []float64 {
 	// Current scale: the steady current, or the ramp reached in the on
 	// time when the coil's time constant is long.
 	rt := md.CoilResistance() + md.Drive.Supply.SourceResistance + md.Drive.Switch.OnResistance
-	lOpen := md.Magnet.FluxLinkage(1, md.Plunger.GapMax)
+	// The open inductance from 1 A of coil current: a permanent magnet's
+	// own flux linkage λ(0, x) is not the coil's.
+	lOpen := md.Magnet.FluxLinkage(1, md.Plunger.GapMax) - md.Magnet.FluxLinkage(0, md.Plunger.GapMax)
 	iScale := math.Min(v0/rt, v0*(md.Timing.DeenergizeAt-md.Timing.EnergizeAt)/lOpen)
 	if st := md.Storage; st != nil {
 		// A storage capacitor's energy bounds the coil's: ½·L·i² ≤ ½·C·V².
