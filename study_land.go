@@ -454,7 +454,7 @@ func (lp *landProblem) runAll(p LandProfile) (LandRun, []LandRun, error) {
 		go func() {
 			defer wg.Done()
 			for k := range jobs {
-				out[k], errs[k] = lp.runOne(p, k-1)
+				out[k], errs[k] = lp.runSafe(p, k-1)
 			}
 		}()
 	}
@@ -475,6 +475,24 @@ func (lp *landProblem) runAll(p LandProfile) (LandRun, []LandRun, error) {
 	}
 	return out[0], out[1:], nil
 }
+
+// runSafe is runOne with a panic in it (a bug) turned into the run's
+// error, so that a worker goroutine cannot end the process (whose exit
+// status would then be the runtime's 2, reserved for failing ratings).
+func (lp *landProblem) runSafe(p LandProfile, k int) (lr LandRun, err error) {
+	defer func() {
+		if r := recover(); r != nil {
+			lr, err = LandRun{}, fmt.Errorf("internal error (a bug in coilkick, not a fault of the input): %v", r)
+		}
+	}()
+	if landRunHook != nil {
+		landRunHook()
+	}
+	return lp.runOne(p, k)
+}
+
+// landRunHook, when set (by a test), runs at the start of every run.
+var landRunHook func()
 
 // runOne simulates the brake p at corner k (−1: the nominal point).
 func (lp *landProblem) runOne(p LandProfile, k int) (LandRun, error) {

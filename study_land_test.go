@@ -181,3 +181,18 @@ func BenchmarkLandDemo(b *testing.B) {
 		b.ReportMetric(float64(res.Evaluations), "evaluations")
 	}
 }
+
+// TestLandRunPanicBecomesError: a panic in one of land's parallel runs is
+// the study's error, not the end of the process (a panicking worker
+// goroutine would exit with the runtime's status 2, which is reserved for
+// failing ratings).
+func TestLandRunPanicBecomesError(t *testing.T) {
+	// Not parallel: it sets a package hook.
+	md := landTestModel(t)
+	landRunHook = func() { panic("injected") }
+	defer func() { landRunHook = nil }()
+	_, err := Land(md, LandOptions{MaxEvaluations: 1})
+	if err == nil || !strings.Contains(err.Error(), "internal error") || !strings.Contains(err.Error(), "injected") {
+		t.Errorf("error %v, want the internal error of the injected panic", err)
+	}
+}
