@@ -360,11 +360,14 @@ func (s *summary) balance(m *coilkick.Metrics) {
 		s.row("core loss", si(m.CoreLoss, "J"))
 	}
 	s.row("stored change", si(m.StoredChange, "J"))
-	if m.Storage.Fitted {
-		s.row("energy residual", fmt.Sprintf("%.2g of the largest flow", m.EnergyResidualRel()))
-	} else {
-		s.row("energy residual", fmt.Sprintf("%.2g of supply", m.EnergyResidualRel()))
+	// the residual is a fraction of the largest energy that flowed
+	// (EnergyFlow): the supply's in the usual run, not when a capacitor or
+	// the stored energy gave more than the supply
+	of := "of the largest flow"
+	if !m.Storage.Fitted && math.Abs(m.SupplyEnergy) == m.EnergyFlow() {
+		of = "of supply"
 	}
+	s.row("energy residual", fmt.Sprintf("%.2g %s", m.EnergyResidualRel(), of))
 	if m.SwitchingLossEstimate > 0 {
 		s.row("switching loss (estimate)", si(m.SwitchingLossEstimate, "J")+", from edge times, outside the balance")
 	}
