@@ -57,6 +57,9 @@ type StorageSpec struct {
 	ChargeVoltage      float64 // V at the start; 0: the supply voltage
 	ChargingResistance float64 // ohm from the supply; 0: no charging path
 	RechargeFraction   float64 // recharged: within this fraction of the charge voltage
+	// ChargeTime (s): instead of ChargeVoltage, charged from empty through
+	// the charging path for this long before the run; 0: not given.
+	ChargeTime float64
 }
 
 // ThermalSpec is the coil's thermal network.

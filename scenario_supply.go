@@ -21,6 +21,8 @@ var storageSection = &sectionSpec{path: "supply.storage capacitor", keys: []*key
 		doc: "equivalent series resistance, in series with the drive"},
 	{name: "charge voltage", rng: newRange(Voltage, "100 mV to 1 kV", ""), need: whenGiven, example: "9 V",
 		doc: "the voltage it starts at, at most supply.voltage; default supply.voltage"},
+	{name: "charge time", rng: newRange(Time, "1 µs to 60 min", ""), need: whenGiven, example: "500 ms",
+		doc: "instead of charge voltage: charged from empty through the charging resistance (and the source resistance) for this long before the run, so it starts at supply.voltage × (1 − e^(−t/RC)); needs charging resistance"},
 	{name: "charging resistance", rng: newRange(Resistance, "1 mohm to 100 Mohm", ""), need: whenGiven, example: "100 ohm",
 		doc: "from supply.voltage (in series with its source resistance), during and after the pulse; without it the capacitor has no charging path (the battery disconnected)"},
 	{name: "recharge fraction", rng: newRange(Dimensionless, "0.001 % to 50 %", ""), need: optional, def: defaultRechargeFraction,
@@ -59,5 +61,13 @@ func (l *scenarioLoader) loadStorage(sec *yamlSection) *StorageSpec {
 	}
 	l.read(sec, "charging resistance", &st.ChargingResistance)
 	l.read(sec, "recharge fraction", &st.RechargeFraction)
+	if l.read(sec, "charge time", &st.ChargeTime) {
+		switch {
+		case sec.has("charge voltage"):
+			l.errf("supply.storage capacitor.charge time", "give either charge voltage or charge time, not both")
+		case !sec.has("charging resistance"):
+			l.errf("supply.storage capacitor.charge time", "needs supply.storage capacitor.charging resistance (the path it was charged through)")
+		}
+	}
 	return st
 }

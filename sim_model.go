@@ -324,7 +324,8 @@ func buildDrive(s *Scenario, md *Model) error {
 	md.BulkCapacitance = s.Supply.BulkCapacitance
 	if st := s.Supply.Storage; st != nil {
 		md.Storage = &StorageCapacitor{Capacitance: st.Capacitance, ESR: st.ESR, ChargeVoltage: st.ChargeVoltage,
-			ChargingResistance: st.ChargingResistance, RechargeFraction: st.RechargeFraction}
+			ChargingResistance: st.ChargingResistance, RechargeFraction: st.RechargeFraction, ChargeTime: st.ChargeTime,
+			SourceResistance: s.Supply.SourceResistance}
 	}
 	md.RiseTime, md.FallTime = s.Switch.RiseTime, s.Switch.FallTime
 	dr := s.Drive

@@ -21,13 +21,23 @@ type StorageCapacitor struct {
 	// RechargeFraction: recharged means within this fraction of the charge
 	// voltage.
 	RechargeFraction float64
+	// ChargeTime (s), when not 0 (and ChargeVoltage is 0): the capacitor
+	// was charged from empty through ChargingResistance in series with
+	// SourceResistance (ohm, the supply's) for this long before the run.
+	ChargeTime, SourceResistance float64
 }
 
 // startVoltage returns the capacitor's voltage at the start of a run with
-// supply voltage vs (V).
+// supply voltage vs (V): the charge voltage, or after ChargeTime of
+// first-order RC charging from empty, v = vs·(1 − e^(−t/(R·C))) (Hayt &
+// Kemmerly, Engineering Circuit Analysis, ch. 8), or vs.
 func (sc *StorageCapacitor) startVoltage(vs float64) float64 {
-	if sc.ChargeVoltage > 0 {
+	switch {
+	case sc.ChargeVoltage > 0:
 		return sc.ChargeVoltage
+	case sc.ChargeTime > 0 && sc.ChargingResistance > 0:
+		rc := (sc.ChargingResistance + sc.SourceResistance) * sc.Capacitance
+		return -vs * math.Expm1(-sc.ChargeTime/rc)
 	}
 	return vs
 }

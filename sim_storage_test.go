@@ -303,3 +303,48 @@ func TestStorageBridge(t *testing.T) {
 	t.Logf("returned %.4g J; capacitor %.6g V → %.6g V; residual %.3g", m.EnergyReturned, st.VoltageAtTurnOff, st.FinalVoltage,
 		m.EnergyResidualRel())
 }
+
+// storage capacitor.charge time: the capacitor starts where first-order RC
+// charging from empty through the charging and source resistances puts it,
+// v0 = Vs·(1 − e^(−t/RC)) (Hayt & Kemmerly, Engineering Circuit Analysis,
+// ch. 8), and RechargeTime from 0 V to that voltage gives the charge time
+// back (the same law inverted).
+func TestStorageChargeTime(t *testing.T) {
+	t.Parallel()
+	good, err := os.ReadFile("scenarios/latch-valve-9v-cap.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	text := strings.Replace(string(good), "    charging resistance: 100 ohm\n", "    charging resistance: 100 ohm\n    charge time: 150 ms\n", 1)
+	s, err := Parse([]byte(text), "ct.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	md, err := Build(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := Simulate(md, &Options{NoTrace: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	const vs, r, c, tc = 9.0, 100.0 + 1.0, 2200e-6, 0.150 // the demo: 100 ohm charging + 1 ohm source
+	want := vs * (1 - math.Exp(-tc/(r*c)))
+	got := res.Metrics.Storage.ChargeVoltage
+	if math.Abs(got-want) > 1e-12*want {
+		t.Errorf("start voltage after 150 ms of charging: %.12g V, want %.12g V", got, want)
+	}
+	if back, ok := RechargeTime(r, c, vs, 0, got); !ok || math.Abs(back-tc) > 1e-9*tc {
+		t.Errorf("recharge time from 0 V to %.6g V: %v s (%v), want %g s", got, back, ok, tc)
+	}
+	for _, bad := range []struct{ old, new, want string }{
+		{"    charging resistance: 100 ohm\n", "    charging resistance: 100 ohm\n    charge time: 150 ms\n    charge voltage: 8 V\n", "not both"},
+		{"    charging resistance: 100 ohm\n", "    charge time: 150 ms\n", "needs supply.storage capacitor.charging resistance"},
+		{"    charging resistance: 100 ohm\n", "    charging resistance: 100 ohm\n    charge time: 150 mA\n", "supply.storage capacitor.charge time"},
+	} {
+		_, err := Parse([]byte(strings.Replace(string(good), bad.old, bad.new, 1)), "ct.yaml")
+		if err == nil || !strings.Contains(err.Error(), bad.want) || !strings.Contains(err.Error(), "ct.yaml:") {
+			t.Errorf("%q: %v, want an error naming the file and %q", bad.new, err, bad.want)
+		}
+	}
+}
