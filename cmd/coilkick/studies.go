@@ -389,7 +389,7 @@ func clampsPlot(md *coilkick.Model, cmp *coilkick.ClampComparison) *plot.Figure 
 	for k, o := range cmp.Options {
 		switch {
 		case o.NoFit != "":
-			notes = append(notes, o.NoFit)
+			notes = append(notes, "not shown: "+o.Name+", no part of its kind fits (the reason is in the text and JSON)")
 			continue
 		case o.Err != "":
 			notes = append(notes, "not simulated: "+o.Name)

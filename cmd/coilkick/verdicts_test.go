@@ -207,6 +207,21 @@ func TestClampsTable(t *testing.T) {
 	if found != 1 {
 		t.Errorf("%d options with no_fit, want 1", found)
 	}
+	// On the plot the option without a point is named in a short note
+	// (its full reason ran off the figure).
+	svg := filepath.Join(t.TempDir(), "clamps.svg")
+	if _, errs, code := runArgs("clamps", "../../scenarios/door-strike-duty.yaml", "--plot", svg); code != exitOK {
+		t.Fatalf("clamps --plot: exit %d: %s", code, errs)
+	}
+	texts := svgTexts(t, svg)
+	if !strings.Contains(texts, "not shown: TVS across the coil, no part of its kind fits") {
+		t.Errorf("clamps plot lacks the note:\n%s", texts)
+	}
+	for _, l := range strings.Split(texts, "\n") {
+		if utf8.RuneCountInString(l) > 100 {
+			t.Errorf("clamps plot text of %d characters runs off the figure: %q", utf8.RuneCountInString(l), l)
+		}
+	}
 }
 
 // checkTable checks the aligned table whose header is lines[0] (up to the
