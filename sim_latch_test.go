@@ -203,14 +203,7 @@ func TestScalesIgnoreMagnetFlux(t *testing.T) {
 	if plainText == string(data) {
 		t.Fatal("the demo no longer has its magnet keys")
 	}
-	s, err := Parse([]byte(plainText), "plain.yaml")
-	if err != nil {
-		t.Fatal(err)
-	}
-	plain, err := Build(s)
-	if err != nil {
-		t.Fatal(err)
-	}
+	plain := modelFromText(t, plainText, "plain.yaml")
 	latch, err := LoadModel("scenarios/latching-valve-9v.yaml")
 	if err != nil {
 		t.Fatal(err)

@@ -30,14 +30,7 @@ func TestPulsesDriveSameAsReversePulse(t *testing.T) {
 	old := strings.Replace(text, cut, "", 1)
 	old = strings.Replace(old, "  forward drop: 0.7 V\n", "  forward drop: 0.7 V\n  reverse pulse: 5 ms\n  reverse pulse delay: 200 ms\n", 1)
 	old = strings.Replace(old, "  end: 300 ms", "  de-energize at: 21 ms\n  end: 300 ms", 1)
-	sOld, err := Parse([]byte(old), "old.yaml")
-	if err != nil {
-		t.Fatal(err)
-	}
-	mdOld, err := Build(sOld)
-	if err != nil {
-		t.Fatal(err)
-	}
+	mdOld := modelFromText(t, old, "old.yaml")
 	md, err := LoadModel(pulsesDemo)
 	if err != nil {
 		t.Fatal(err)

@@ -273,14 +273,7 @@ func TestStorageBridge(t *testing.T) {
 	}
 	text := strings.NewReplacer("  bulk capacitance: 100 uF\n", "  storage capacitor:\n    capacitance: 4700 uF\n    esr: 0.05 ohm\n",
 		"de-energize at: 200 ms", "de-energize at: 21 ms", "end: 300 ms", "end: 60 ms").Replace(string(data))
-	s, err := Parse([]byte(text), "bridge-cap.yaml")
-	if err != nil {
-		t.Fatal(err)
-	}
-	md, err := Build(s)
-	if err != nil {
-		t.Fatal(err)
-	}
+	md := modelFromText(t, text, "bridge-cap.yaml")
 	res, err := Simulate(md, &Options{NoTrace: true})
 	if err != nil {
 		t.Fatal(err)
@@ -316,14 +309,7 @@ func TestStorageChargeTime(t *testing.T) {
 		t.Fatal(err)
 	}
 	text := strings.Replace(string(good), "    charging resistance: 100 ohm\n", "    charging resistance: 100 ohm\n    charge time: 150 ms\n", 1)
-	s, err := Parse([]byte(text), "ct.yaml")
-	if err != nil {
-		t.Fatal(err)
-	}
-	md, err := Build(s)
-	if err != nil {
-		t.Fatal(err)
-	}
+	md := modelFromText(t, text, "ct.yaml")
 	res, err := Simulate(md, &Options{NoTrace: true})
 	if err != nil {
 		t.Fatal(err)

@@ -4,10 +4,33 @@ import (
 	"math"
 	"slices"
 	"strings"
+	"sync"
 	"testing"
 )
 
 const storageDemo = "scenarios/latching-valve-9v-release.yaml"
+
+// demoSizing is the E6 sizing of the release demo with a 25 % pulse
+// margin, computed once for the tests that read it (about 1 900 runs).
+func demoSizing(t *testing.T) (*Model, *StorageSizing) {
+	t.Helper()
+	d := demoSizingOnce()
+	if d.err != nil {
+		t.Fatal(d.err)
+	}
+	return d.md, d.res
+}
+
+var demoSizingOnce = sync.OnceValue(func() (d struct {
+	md  *Model
+	res *StorageSizing
+	err error
+}) {
+	if d.md, d.err = LoadModel(storageDemo); d.err == nil {
+		d.res, d.err = StorageSize(d.md, StorageOptions{Series: "E6", PulseMargin: 0.25})
+	}
+	return d
+})
 
 // The preferred numbers of IEC 60063 (E6, E12; E24 is checked with the
 // clamps) and the tolerances the standard pairs with them.
@@ -55,14 +78,7 @@ func storageCornerModel(t *testing.T, md *Model, corner StorageCorner, c float64
 // capacitance lies between the two.
 func TestStorageSizeOneStepFlipsLatch(t *testing.T) {
 	t.Parallel()
-	md, err := LoadModel(storageDemo)
-	if err != nil {
-		t.Fatal(err)
-	}
-	res, err := StorageSize(md, StorageOptions{Series: "E6", PulseMargin: 0.25})
-	if err != nil {
-		t.Fatal(err)
-	}
+	md, res := demoSizing(t)
 	if !res.Found || res.Tolerance != 0.20 || len(res.Corners) != 32 {
 		t.Fatalf("found %v, tolerance %v, %d corners: %s", res.Found, res.Tolerance, len(res.Corners), res.Blocked)
 	}
@@ -114,14 +130,7 @@ func TestStorageSizeOneStepFlipsLatch(t *testing.T) {
 // inside [shortest, longest].
 func TestStorageSizePulses(t *testing.T) {
 	t.Parallel()
-	md, err := LoadModel(storageDemo)
-	if err != nil {
-		t.Fatal(err)
-	}
-	res, err := StorageSize(md, StorageOptions{Series: "E6", PulseMargin: 0.25})
-	if err != nil {
-		t.Fatal(err)
-	}
+	md, res := demoSizing(t)
 	lp, rp := res.LatchPulse, res.ReleasePulse
 	if !lp.Found || lp.Limit.Pass || !strings.Contains(lp.Limit.Reason, "seated") {
 		t.Errorf("latch pulse: %+v", lp)
