@@ -67,6 +67,7 @@ func Load(path string) (*Scenario, error) {
 //	    capacitance: 2200 uF
 //	    esr: 0.1 ohm                          # optional, default 0 ohm; equivalent series resistance, in series with the drive
 //	    charge voltage: 9 V                   # optional; the voltage it starts at, at most supply.voltage; default supply.voltage
+//	    charge time: 500 ms                   # optional; instead of charge voltage: charged from empty through the charging resistance (and the source resistance) for this long before the run, so it starts at supply.voltage × (1 − e^(−t/RC)); needs charging resistance
 //	    charging resistance: 100 ohm          # optional; from supply.voltage (in series with its source resistance), during and after the pulse; without it the capacitor has no charging path (the battery disconnected)
 //	    recharge fraction: 1 %                # optional, default 1 %; recharged means back within this fraction of the charge voltage
 //	coil:
@@ -160,7 +161,7 @@ func Load(path string) (*Scenario, error) {
 //	  reverse pulse: 2 ms                     # optional, default 0 s; for reverse drive; H-bridge: at turn-off the coil sees −(supply + 2 drops) and returns its energy to the supply; drive it in reverse this long first
 //	  reverse pulse delay: 200 ms             # optional, default 0 s; for reverse drive; H-bridge: start the reverse pulse this long after turn-off, the bridge diodes returning the coil current meanwhile (a latching magnet holds at zero current, then the pulse releases it)
 //	drive:                                    # optional; default constant (switch on while energized)
-//	  mode: peak and hold                     # constant | pwm | peak and hold | boost then hold
+//	  mode: peak and hold                     # constant | pwm | peak and hold | boost then hold | pulses
 //	  frequency: 20 kHz                       # for pwm, peak and hold; peak and hold: with fixed-frequency regulation only
 //	  duty: 0.4                               # for pwm; fraction of the period
 //	  peak current: 1.5 A                     # for peak and hold; at least hold current
@@ -175,9 +176,12 @@ func Load(path string) (*Scenario, error) {
 //	  boost time: 10 ms                       # for boost then hold; the supply is raised that long
 //	  brake at: 4 ms                          # optional; for constant, pwm; soft landing (with brake for): the switch turns off this long after energize; `coilkick land` finds it
 //	  brake for: 2 ms                         # for constant, pwm; soft landing (with brake at): the switch stays off this long (constant: the current decays through the suppression part; pwm: as in its off-times), then the drive goes on; brake at + brake for before de-energize
+//	  latch pulse: 20 ms                      # for pulses; forward polarity (the current that adds to a permanent magnet's flux), full voltage from timing.energize at for this long; it sets the de-energize time (no timing.de-energize at)
+//	  release at: 221 ms                      # optional; for pulses; with release pulse: the run time the reverse pulse starts, at or after the latch pulse's end; needs suppression.type: reverse drive (the H-bridge)
+//	  release pulse: 5 ms                     # for pulses; with release at: reverse polarity, −(supply + 2 bridge drops) across the coil this long; before timing.end
 //	timing:
 //	  energize at: 1 ms                       # optional, default 0 s
-//	  de-energize at: 150 ms                  # > energize at
+//	  de-energize at: 150 ms                  # > energize at; not with drive.mode pulses (its latch pulse sets it)
 //	  end: 300 ms                             # > de-energize at
 //	thermal:                                  # optional; the coil's thermal network (the winding temperature becomes a state): the ambient and exactly one of a rating, a surface or a two-node network
 //	  ambient: 40 degC
