@@ -203,6 +203,10 @@ func (rd *traceReader) read(expect string) ([]string, int, error) {
 		if errors.As(err, &pe) {
 			return nil, 0, fmt.Errorf("%s:%d: character %d: %v; expected %s", rd.name, pe.Line, pe.Column, pe.Err, expect)
 		}
+		var le *magnet.LineTooLongError
+		if errors.As(err, &le) {
+			return nil, 0, fmt.Errorf("%s:%d: %v; expected %s", rd.name, le.Line, err, expect)
+		}
 		return nil, 0, fmt.Errorf("%s:%d: %v", rd.name, rd.lastLine+1, err)
 	}
 	rd.lastLine = line

@@ -21,7 +21,20 @@ const (
 	MaxTableCurrents = 500   // current rows of a flux-linkage table
 	MaxTableGaps     = 500   // gap columns of a flux-linkage table
 	MaxBHPoints      = 10000 // points of a B–H curve
+	// MaxCSVLineBytes bounds a line of a CSV input: the longest row of a
+	// table (500 gaps of 25 characters) has about 13 KB, and a line of 60
+	// MB of one-character cells made encoding/csv hold 2.4 GB of cells
+	// and positions before the reader could count them.
+	MaxCSVLineBytes = 64 << 10
 )
+
+// LineTooLongError is the error of CSVReader.Read at a line longer than
+// MaxCSVLineBytes (Line, from 1).
+type LineTooLongError struct{ Line int }
+
+func (e *LineTooLongError) Error() string {
+	return fmt.Sprintf("a line longer than %d bytes (64 KiB): not a row of a table, curve or trace", MaxCSVLineBytes)
+}
 
 // InputError is an error in a CSV input file (a flux-linkage table, a B–H
 // curve) at a line and column (1-based; 0 when not known). Column counts
@@ -110,7 +123,8 @@ type CSVReader struct {
 
 var utf8BOM = []byte{0xEF, 0xBB, 0xBF}
 
-// NewCSVReader returns a reader of r.
+// NewCSVReader returns a reader of r. A line longer than MaxCSVLineBytes
+// ends the reading with a *LineTooLongError.
 func NewCSVReader(r io.Reader) *CSVReader {
 	br := bufio.NewReader(r)
 	if b, err := br.Peek(len(utf8BOM)); err == nil && bytes.Equal(b, utf8BOM) {
@@ -170,7 +184,13 @@ func (t *lineTee) Read(p []byte) (int, error) {
 			break
 		}
 		i += j + 1
+		if off+i-t.starts[len(t.starts)-1] > MaxCSVLineBytes {
+			return n, &LineTooLongError{Line: t.base + len(t.starts) - 1}
+		}
 		t.starts = append(t.starts, off+i)
+	}
+	if len(t.buf)-t.starts[len(t.starts)-1] > MaxCSVLineBytes {
+		return n, &LineTooLongError{Line: t.base + len(t.starts) - 1}
 	}
 	return n, err
 }
@@ -230,6 +250,10 @@ func (in *csvInput) next() (rec []string, line int, err error) {
 		var pe *csv.ParseError
 		if errors.As(err, &pe) {
 			return nil, 0, inputErr(in.name, pe.Line, pe.Column, "not valid CSV: %v", pe.Err)
+		}
+		var le *LineTooLongError
+		if errors.As(err, &le) {
+			return nil, 0, inputErr(in.name, le.Line, 0, "%v", err)
 		}
 		return nil, 0, inputErr(in.name, 0, 0, "%v", err)
 	}

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"os"
+	"runtime"
 	"strings"
 	"testing"
 	"time"
@@ -243,5 +244,34 @@ func TestCSVColumnsInCharacters(t *testing.T) {
 		if got := rd.Column(k); got != want {
 			t.Errorf("Column(%d) = %d, want %d (characters)", k, got, want)
 		}
+	}
+}
+
+// TestCSVLineTooLong: a line longer than MaxCSVLineBytes ends the reading
+// with an error at its line, before encoding/csv splits it (a 60 MB line
+// of one-character cells took 2.4 GB and 20 s); a line just below the
+// limit is read. Not parallel: it measures the bytes allocated.
+func TestCSVLineTooLong(t *testing.T) {
+	A, mm, Wb := Unit{"A", 1}, Unit{"mm", 1e-3}, Unit{"Wb", 1}
+	near := "# " + strings.Repeat("x", MaxCSVLineBytes-3) + "\n" // the limit, with its newline
+	if _, err := ReadTableCSV(strings.NewReader("i,1,2\n"+near+"0,0,0\n1,0.5,0.4\n"), "t.csv", A, mm, Wb); err != nil {
+		t.Errorf("a line of %d bytes: %v", MaxCSVLineBytes, err)
+	}
+	wide := "# a table\ni" + strings.Repeat(",1", 4<<20) + "\n" // 8 MiB, 4 Mi cells
+	var before, after runtime.MemStats
+	runtime.ReadMemStats(&before)
+	_, err := ReadTableCSV(strings.NewReader(wide), "t.csv", A, mm, Wb)
+	runtime.ReadMemStats(&after)
+	if want := "magnet: t.csv:2: a line longer than"; err == nil || !strings.HasPrefix(err.Error(), want) {
+		t.Errorf("an 8 MiB header: error %v, want it to start %q", err, want)
+	}
+	// common practice, no source: some times the limit, not the cells'
+	// 4 Mi strings and positions (about 200 MB)
+	if got := after.TotalAlloc - before.TotalAlloc; got > 128*MaxCSVLineBytes {
+		t.Errorf("reading an 8 MiB header allocated %d KiB, want at most %d KiB", got>>10, 128*MaxCSVLineBytes>>10)
+	}
+	_, err = ReadBHCSV(strings.NewReader("0,0\n1,1\n"+strings.Repeat("1", MaxCSVLineBytes+1)), "s.csv", Unit{"kA/m", 1e3}, Unit{"T", 1})
+	if want := "magnet: s.csv:3: a line longer than"; err == nil || !strings.HasPrefix(err.Error(), want) {
+		t.Errorf("a long last line without newline: error %v, want it to start %q", err, want)
 	}
 }
