@@ -126,8 +126,10 @@ type rodas struct {
 	f             func(t float64, y, dy []float64)
 	norm          func(err, y0, y1 []float64) float64
 	n, nj         int
-	jac, w        []float64 // n×n row-major
+	jac           []float64 // n×n row-major
+	w             []float64 // d×d row-major, d = len(cols): W on the taken columns
 	piv           []int
+	xb            []float64 // scratch: the taken components of a stage's right-hand side
 	k             [6][]float64
 	fa, yt, rhs   []float64
 	y0c, y1c, f1v []float64
@@ -172,7 +174,7 @@ const (
 func newRodas(n, nj int, f func(float64, []float64, []float64), norm func(err, y0, y1 []float64) float64) *rodas {
 	v := func() []float64 { return make([]float64, n) }
 	m := &rodas{f: f, norm: norm, n: n, nj: nj, jac: make([]float64, n*n), w: make([]float64, n*n),
-		piv: make([]int, n), fa: v(), yt: v(), rhs: v(), y0c: v(), y1c: v(), f1v: v(), cont3: v(), cont4: v()}
+		piv: make([]int, n), xb: v(), fa: v(), yt: v(), rhs: v(), y0c: v(), y1c: v(), f1v: v(), cont3: v(), cont4: v()}
 	for i := range m.k {
 		m.k[i] = v()
 	}
@@ -202,13 +204,28 @@ func (m *rodas) stage(t, h float64, s int, c ...float64) {
 }
 
 // solve solves W·x = b in place in b, W = [[W11, 0], [−J21, fac·I]]:
-// x1 = W11⁻¹·b1 by the LU factors, then x2 = (b2 + J21·x1)/fac.
+// x1 = W11⁻¹·b1, then x2 = (b2 + J21·x1)/fac. In W11 the columns not
+// taken (cols) are zero and so are the rows of those states (frozen: f is
+// identically zero there), so W11 is fac·I there and the LU factors are
+// of the taken block alone: the same operations as on the whole of W11,
+// minus the products with its zeros.
 func (m *rodas) solve(b []float64) {
 	n, nj := m.n, m.nj
-	luSolve(m.w, m.piv, nj, b[:nj])
+	d := len(m.cols)
+	xb := m.xb[:d]
+	for a, j := range m.cols {
+		xb[a] = b[j]
+	}
+	for j := 0; j < nj; j++ {
+		b[j] /= m.fac
+	}
+	luSolve(m.w, m.piv, d, xb)
+	for a, j := range m.cols {
+		b[j] = xb[a]
+	}
 	for i := nj; i < n; i++ {
 		v := b[i]
-		for j := 0; j < nj; j++ {
+		for _, j := range m.cols {
 			v += m.jac[i*n+j] * b[j]
 		}
 		b[i] = v / m.fac
@@ -236,20 +253,20 @@ func (m *rodas) attempt(t, h float64, y, f0, y1 []float64) float64 {
 	}
 	// W = 1/(γh)·I − J is block lower triangular: the quadratures (rows
 	// and columns from nj on) do not feed back, so only the nj×nj block
-	// is factored (see solve).
+	// is factored, and of it only the taken columns (see solve).
 	fac := 1 / (roGamma * h)
 	m.fac = fac
-	nj := m.nj
-	for i := 0; i < nj; i++ {
-		for j := 0; j < nj; j++ {
+	d := len(m.cols)
+	for a, i := range m.cols {
+		for b, j := range m.cols {
 			v := -m.jac[i*n+j]
 			if i == j {
 				v += fac
 			}
-			m.w[i*nj+j] = v
+			m.w[a*d+b] = v
 		}
 	}
-	if !luFactor(m.w, m.piv, nj) {
+	if !luFactor(m.w, m.piv, d) {
 		return math.Inf(1)
 	}
 	k := &m.k

@@ -168,7 +168,7 @@ func (s *system) current(y []float64) float64 {
 // Then i = (v0' + Re·im)/(Re + Ra' + R) exactly. Without eddy currents
 // i = im.
 func (s *system) solve(y []float64) (i, im float64) {
-	im = s.mag.Current(y[sFlux], y[sGap])
+	im = s.derivMagnet().Current(y[sFlux], y[sGap])
 	return s.solveAt(y, im), im
 }
 
@@ -331,11 +331,21 @@ func (s *system) deriv(_ float64, y, dy []float64) {
 	}
 }
 
+// currentForcer is a magnetic model that evaluates Current and then Force
+// at that current in one call, sharing its gap look-up (magnet.GapPiece,
+// magnet.CurveModel).
+type currentForcer interface {
+	CurrentForce(lam, x float64) (i, f float64)
+}
+
 // currentForce returns the magnetizing current (A) and the magnetic pull
 // (N) at y, on the present gap piece when there is one (deriv).
 func (s *system) currentForce(y []float64) (im, pull float64) {
 	if s.piece != nil {
 		return s.piece.CurrentForce(y[sFlux], y[sGap])
+	}
+	if cf, ok := s.mag.(currentForcer); ok {
+		return cf.CurrentForce(y[sFlux], y[sGap])
 	}
 	im = s.mag.Current(y[sFlux], y[sGap])
 	return im, s.mag.Force(im, y[sGap])
@@ -402,7 +412,7 @@ func (s *system) out(y []float64) outputs {
 	return outputs{
 		Current: i, CoilVoltage: s.pt.CoilVoltage, SwitchVoltage: s.pt.SwitchVoltage,
 		SupplyCurrent: s.pt.SupplyCurrent, ClampCurrent: math.Abs(s.pt.ClampCurrent),
-		Gap: x, Velocity: v, MagneticForce: s.mag.Force(im, x), PassiveForce: s.plunger.PassiveForce(x, v),
+		Gap: x, Velocity: v, MagneticForce: s.derivMagnet().Force(im, x), PassiveForce: s.plunger.PassiveForce(x, v),
 		RailVoltage: s.railVoltage(y), StorageVoltage: y[sBus], WindingTemperature: y[sWinding],
 	}
 }

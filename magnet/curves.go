@@ -242,7 +242,19 @@ func endSlope(h0, h1, d0, d1 float64) float64 {
 // eval returns the curve's force F (N) at x and its integral P (J) from the
 // first knot to x; x is within the knots.
 func (g *gapCurve) eval(x float64) (f, p float64) {
-	k := sort.Search(len(g.segs), func(k int) bool { return g.segs[k].x0+g.segs[k].h >= x })
+	// The first segment whose end is at or above x (sort.Search's
+	// bisection, without its closure: this runs per curve at every
+	// evaluation).
+	lo, hi := 0, len(g.segs)
+	for lo < hi {
+		mid := int(uint(lo+hi) >> 1)
+		if g.segs[mid].x0+g.segs[mid].h >= x {
+			hi = mid
+		} else {
+			lo = mid + 1
+		}
+	}
+	k := lo
 	if k == len(g.segs) {
 		k--
 	}
@@ -440,6 +452,14 @@ func (m *CurveModel) CoEnergy(i, x float64) float64 {
 func (m *CurveModel) Force(i, x float64) float64 {
 	p := m.profileAt(x)
 	return -m.at(&p, math.Abs(i)).w.d
+}
+
+// CurrentForce returns Current(lam, x) and Force at that current and x
+// (A, N), as the two calls would, with the gap profile computed once.
+func (m *CurveModel) CurrentForce(lam, x float64) (i, f float64) {
+	p := m.profileAt(x)
+	i = math.Copysign(m.current(&p, math.Abs(lam)), lam)
+	return i, -m.at(&p, math.Abs(i)).w.d
 }
 
 // GapRange returns the stroke the model was built for.

@@ -313,3 +313,22 @@ func TestCurveModelRoundTripAndPartials(t *testing.T) {
 		}
 	}
 }
+
+// TestCurveModelCurrentForce: CurrentForce is Current then Force, bit for
+// bit (one profile instead of two), for the smooth and the piecewise-linear
+// scheme, at gaps inside and outside the range and currents of both signs.
+func TestCurveModelCurrentForce(t *testing.T) {
+	t.Parallel()
+	for _, m := range []*CurveModel{saturatingCurves(t), saturatingCurvesLinear(t), gapLawCurves(t, refGapLaw(t), []float64{1.2})} {
+		for _, x := range []float64{0.5 * refXMin, refXMin, 0.37 * (refXMin + refXMax), refXMax, 1.2 * refXMax} {
+			for _, i := range []float64{-2.5, -0.3, 0, 0.05, 0.9, 2.2, 4.5} {
+				lam := m.FluxLinkage(i, x)
+				ci, cf := m.CurrentForce(lam, x)
+				wi := m.Current(lam, x)
+				if wf := m.Force(wi, x); ci != wi || cf != wf {
+					t.Errorf("%v: CurrentForce(%g, %g) = (%g, %g), Current and Force (%g, %g)", m, lam, x, ci, cf, wi, wf)
+				}
+			}
+		}
+	}
+}
