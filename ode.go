@@ -36,7 +36,9 @@ type odeSystem interface {
 	// deriv writes f(t, y) into dy.
 	deriv(t float64, y, dy []float64)
 	// guards writes the current mode's guard values at (t, y) into g and
-	// returns how many there are.
+	// returns how many there are. They may read only the fed-back
+	// components of y (odeSettings.NJac): the others are not interpolated
+	// for them.
 	guards(t float64, y, g []float64) int
 	// nextTimeEvent returns the first commanded event time strictly after t.
 	nextTimeEvent(t float64) float64
@@ -144,6 +146,9 @@ type stepper interface {
 	f1() []float64
 	// dense writes the interpolant at θ ∈ [0, 1] of the last attempt.
 	dense(theta float64, out []float64)
+	// denseFed is dense for the fed-back components only (odeSettings.NJac),
+	// all the guards may read.
+	denseFed(theta float64, out []float64)
 	order() int // order of the error estimator's lower formula + 1 (step-size exponent 1/order)
 }
 
@@ -187,7 +192,7 @@ func newODE(sys odeSystem, n int, set odeSettings) *odeIntegrator {
 		}
 		return math.Sqrt(s / float64(active))
 	}
-	in.explicit = newDopri(n, counted, in.norm)
+	in.explicit = newDopri(n, in.set.NJac, counted, in.norm)
 	in.implicit = newRodas(n, in.set.NJac, counted, in.norm)
 	in.m = in.explicit
 	return in
@@ -364,7 +369,7 @@ func (s *odeLoop) firstCrossing() (kEv int, tEv float64) {
 	t, h := s.t, s.h
 	in.allGuards(t+h, s.y1, s.g1)
 	for j, th := range [...]float64{1.0 / 3, 2.0 / 3} {
-		in.m.dense(th, s.ytmp)
+		in.m.denseFed(th, s.ytmp)
 		in.allGuards(t+th*h, s.ytmp, s.gmid[j])
 	}
 	kEv, tEv = -1, t+h
@@ -598,7 +603,7 @@ func (in *odeIntegrator) locate(t, h float64, k, ng int, a, b, ga, gb float64, y
 		if !(c > a && c < b) {
 			c = 0.5 * (a + b)
 		}
-		in.m.dense(c, ytmp)
+		in.m.denseFed(c, ytmp)
 		if k < ng {
 			in.sys.guards(t+c*h, ytmp, g)
 		} else {

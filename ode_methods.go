@@ -6,6 +6,7 @@ import "math"
 // first-same-as-last stages and the CONTD5 dense output of Hairer, Nørsett
 // & Wanner (Solving ODEs I, 2nd ed., II.6).
 type dopri struct {
+	nj                         int // fed-back components: the stages' arguments need only these
 	f                          func(t float64, y, dy []float64)
 	norm                       func(err, y0, y1 []float64) float64
 	k2, k3, k4, k5, k6, k7, yt []float64
@@ -16,9 +17,9 @@ type dopri struct {
 	hLambda                    float64   // stiffness estimate of the last attempt
 }
 
-func newDopri(n int, f func(float64, []float64, []float64), norm func(err, y0, y1 []float64) float64) *dopri {
+func newDopri(n, nj int, f func(float64, []float64, []float64), norm func(err, y0, y1 []float64) float64) *dopri {
 	v := func() []float64 { return make([]float64, n) }
-	return &dopri{f: f, norm: norm, k2: v(), k3: v(), k4: v(), k5: v(), k6: v(), k7: v(), yt: v(), errv: v(),
+	return &dopri{nj: nj, f: f, norm: norm, k2: v(), k3: v(), k4: v(), k5: v(), k6: v(), k7: v(), yt: v(), errv: v(),
 		r1: v(), r2: v(), r3: v(), r4: v(), r5: v(), k1: v(), y6: v()}
 }
 
@@ -52,19 +53,23 @@ func (m *dopri) f1() []float64 { return m.k7 }
 func (m *dopri) attempt(t, h float64, y, k1, y1 []float64) float64 {
 	yt := m.yt
 	copy(m.k1, k1)
-	for i := range y {
+	// The stages' arguments: f reads only the fed-back components (the
+	// quadratures do not feed back), except the sixth's, kept whole for
+	// the stiffness estimate.
+	nj := m.nj
+	for i := range nj {
 		yt[i] = y[i] + h*dpA21*k1[i]
 	}
 	m.f(t+dpC2*h, yt, m.k2)
-	for i := range y {
+	for i := range nj {
 		yt[i] = y[i] + h*(dpA31*k1[i]+dpA32*m.k2[i])
 	}
 	m.f(t+dpC3*h, yt, m.k3)
-	for i := range y {
+	for i := range nj {
 		yt[i] = y[i] + h*(dpA41*k1[i]+dpA42*m.k2[i]+dpA43*m.k3[i])
 	}
 	m.f(t+dpC4*h, yt, m.k4)
-	for i := range y {
+	for i := range nj {
 		yt[i] = y[i] + h*(dpA51*k1[i]+dpA52*m.k2[i]+dpA53*m.k3[i]+dpA54*m.k4[i])
 	}
 	m.f(t+dpC5*h, yt, m.k5)
@@ -106,8 +111,15 @@ func (m *dopri) attempt(t, h float64, y, k1, y1 []float64) float64 {
 }
 
 func (m *dopri) dense(th float64, out []float64) {
+	m.denseN(th, out, len(out))
+}
+
+func (m *dopri) denseFed(th float64, out []float64) { m.denseN(th, out, m.nj) }
+
+// denseN writes the first n components of the interpolant at θ.
+func (m *dopri) denseN(th float64, out []float64, n int) {
 	t1 := 1 - th
-	for i := range out {
+	for i := range n {
 		out[i] = m.r1[i] + th*(m.r2[i]+t1*(m.r3[i]+th*(m.r4[i]+t1*m.r5[i])))
 	}
 }
@@ -272,15 +284,18 @@ func (m *rodas) attempt(t, h float64, y, f0, y1 []float64) float64 {
 	k := &m.k
 	copy(k[0], f0)
 	m.solve(k[0])
-	for i := range y {
+	// The stages' arguments: f reads only the fed-back components, except
+	// the fifth's, which y1 continues.
+	nj := m.nj
+	for i := range nj {
 		m.yt[i] = y[i] + roA21*k[0][i]
 	}
 	m.stage(t, h, 1, roC21)
-	for i := range y {
+	for i := range nj {
 		m.yt[i] = y[i] + roA31*k[0][i] + roA32*k[1][i]
 	}
 	m.stage(t, h, 2, roC31, roC32)
-	for i := range y {
+	for i := range nj {
 		m.yt[i] = y[i] + roA41*k[0][i] + roA42*k[1][i] + roA43*k[2][i]
 	}
 	m.stage(t, h, 3, roC41, roC42, roC43)
@@ -308,8 +323,15 @@ func (m *rodas) attempt(t, h float64, y, f0, y1 []float64) float64 {
 // dense is the order-3 continuous extension of RODAS:
 // y(θ) = (1−θ)·y0 + θ·(y1 + (1−θ)·(d2 + θ·d3)).
 func (m *rodas) dense(th float64, out []float64) {
+	m.denseN(th, out, len(out))
+}
+
+func (m *rodas) denseFed(th float64, out []float64) { m.denseN(th, out, m.nj) }
+
+// denseN writes the first n components of the interpolant at θ.
+func (m *rodas) denseN(th float64, out []float64, n int) {
 	t1 := 1 - th
-	for i := range out {
+	for i := range n {
 		out[i] = t1*m.y0c[i] + th*(m.y1c[i]+t1*(m.cont3[i]+th*m.cont4[i]))
 	}
 }
