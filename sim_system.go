@@ -112,6 +112,9 @@ type system struct {
 	// over a kink in the force's gap derivative.
 	pieces magnet.GapPiecewise
 	piece  magnet.GapPiece
+	// curHint is the current interval of the piece's last current solve,
+	// where the next search starts (magnet.GapPiece.CurrentForceNear).
+	curHint int
 }
 
 // outputs are the algebraic quantities at a state.
@@ -342,7 +345,7 @@ type currentForcer interface {
 // (N) at y, on the present gap piece when there is one (deriv).
 func (s *system) currentForce(y []float64) (im, pull float64) {
 	if s.piece != nil {
-		return s.piece.CurrentForce(y[sFlux], y[sGap])
+		return s.piece.CurrentForceNear(y[sFlux], y[sGap], &s.curHint)
 	}
 	if cf, ok := s.mag.(currentForcer); ok {
 		return cf.CurrentForce(y[sFlux], y[sGap])

@@ -681,27 +681,27 @@ func (t *Table) force(g *gapPoint, i float64) float64 {
 // it inverts the linear continuation; odd in lam.
 func (t *Table) Current(lam, x float64) float64 {
 	g := t.gapAt(x)
-	return t.currentAt(&g, lam)
+	return t.currentAt(&g, lam, nil)
 }
 
 // currentAt is Current with the blend weights g at the gap.
-func (t *Table) currentAt(g *gapPoint, lam float64) float64 {
+func (t *Table) currentAt(g *gapPoint, lam float64, hint *int) float64 {
 	if t.signed {
-		return t.currentSigned(g, lam)
+		return t.currentSigned(g, lam, hint)
 	}
-	return math.Copysign(t.current(g, math.Abs(lam)), lam)
+	return math.Copysign(t.current(g, math.Abs(lam), hint), lam)
 }
 
-func (t *Table) current(g *gapPoint, al float64) float64 {
+func (t *Table) current(g *gapPoint, al float64, hint *int) float64 {
 	if !(al > 0) {
 		return 0
 	}
-	return t.invert(g, al)
+	return t.invert(g, al, hint)
 }
 
 // currentSigned inverts a signed table's λ at any sign, below the first
 // current by the head's linear continuation.
-func (t *Table) currentSigned(g *gapPoint, lam float64) float64 {
+func (t *Table) currentSigned(g *gapPoint, lam float64, hint *int) float64 {
 	lamStart, slopeStart := 0.0, 0.0
 	for c := range t.nw {
 		q := t.head[(g.ws+c)*tailStride:][:tailStride]
@@ -714,13 +714,14 @@ func (t *Table) currentSigned(g *gapPoint, lam float64) float64 {
 		}
 		return t.cur[0] + (lam-lamStart)/slopeStart
 	}
-	return t.invert(g, lam)
+	return t.invert(g, lam, hint)
 }
 
 // invert returns the current at flux linkage al (Wb) at or above the
 // first current's: in the tail, or by a search over the intervals and a
-// cubic solve.
-func (t *Table) invert(g *gapPoint, al float64) float64 {
+// cubic solve. hint, when not nil, is an interval to try first (a previous
+// answer), and is set to the interval found.
+func (t *Table) invert(g *gapPoint, al float64, hint *int) float64 {
 	nI := len(t.cur)
 	// Tail: λ above the last tabulated current.
 	lamEnd, slopeEnd := 0.0, 0.0
@@ -735,21 +736,7 @@ func (t *Table) invert(g *gapPoint, al float64) float64 {
 		}
 		return t.cur[nI-1] + (al-lamEnd)/slopeEnd
 	}
-	// Largest interval k with blended λ(cur[k]) <= al.
-	lo, hi := 0, nI-2
-	for lo < hi {
-		mid := int(uint(lo+hi+1) >> 1)
-		v := 0.0
-		for c := range t.nw {
-			v += g.phi[c] * t.seg[(mid*len(t.gap)+g.ws+c)*segStride]
-		}
-		if v <= al {
-			lo = mid
-		} else {
-			hi = mid - 1
-		}
-	}
-	k := lo
+	k := t.searchInterval(g, al, hint)
 	var c0, c1, c2, c3 float64
 	for c := range t.nw {
 		p := t.seg[(k*len(t.gap)+g.ws+c)*segStride:][:4]
@@ -760,6 +747,39 @@ func (t *Table) invert(g *gapPoint, al float64) float64 {
 		c3 += w * p[3]
 	}
 	return t.cur[k] + solveCubic(c0, c1, c2, c3, al, t.cur[k+1]-t.cur[k], t.cur[k])
+}
+
+// searchInterval returns the largest current interval k with blended
+// λ(cur[k]) <= al (below the tail): the interval *hint when it is that one
+// (checked with the very comparisons of the bisection, so the answer is
+// the same), else by bisection; *hint is set to k.
+func (t *Table) searchInterval(g *gapPoint, al float64, hint *int) int {
+	nI := len(t.cur)
+	knot := func(k int) float64 {
+		v := 0.0
+		for c := range t.nw {
+			v += g.phi[c] * t.seg[(k*len(t.gap)+g.ws+c)*segStride]
+		}
+		return v
+	}
+	if hint != nil {
+		if k := *hint; k >= 0 && k <= nI-2 && knot(k) <= al && (k == nI-2 || knot(k+1) > al) {
+			return k
+		}
+	}
+	lo, hi := 0, nI-2
+	for lo < hi {
+		mid := int(uint(lo+hi+1) >> 1)
+		if knot(mid) <= al {
+			lo = mid
+		} else {
+			hi = mid - 1
+		}
+	}
+	if hint != nil {
+		*hint = lo
+	}
+	return lo
 }
 
 // Partials returns ∂i/∂λ = 1/(∂λ/∂i) (1/H) and ∂i/∂x = −(∂λ/∂x)/(∂λ/∂i)
@@ -775,9 +795,9 @@ func (t *Table) partials(g *gapPoint, lam float64) (diDlam, diDx float64) {
 	var k int
 	var s float64
 	if t.signed {
-		k, s = t.curAtSigned(t.currentSigned(g, lam))
+		k, s = t.curAtSigned(t.currentSigned(g, lam, nil))
 	} else {
-		k, s = t.curAt(t.current(g, math.Abs(lam)))
+		k, s = t.curAt(t.current(g, math.Abs(lam), nil))
 	}
 	dldi, dldx := 0.0, 0.0
 	for c := range t.nw {

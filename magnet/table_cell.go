@@ -21,6 +21,9 @@ type GapPiece interface {
 	// CurrentForce returns Current(lam, x) and Force at that current and
 	// x (A, N), as the two calls would, with one gap look-up.
 	CurrentForce(lam, x float64) (i, f float64)
+	// CurrentForceNear is CurrentForce with a search hint held by the
+	// caller: *k, the last answer's current interval, updated.
+	CurrentForceNear(lam, x float64, k *int) (i, f float64)
 }
 
 // GapPiecewise is implemented by models whose gap dependence is a
@@ -80,13 +83,23 @@ func (c *TableCell) FluxLinkage(i, x float64) float64 {
 // Current is Table.Current on the cell's cubics (A).
 func (c *TableCell) Current(lam, x float64) float64 {
 	g := c.t.cellPoint(x, c.j)
-	return c.t.currentAt(&g, lam)
+	return c.t.currentAt(&g, lam, nil)
 }
 
-// CurrentForce is Table.CurrentForce on the cell's cubics (A, N).
+// CurrentForce returns Current(lam, x) and Force at that current (A, N),
+// with one gap evaluation.
 func (c *TableCell) CurrentForce(lam, x float64) (i, f float64) {
+	return c.CurrentForceNear(lam, x, nil)
+}
+
+// CurrentForceNear is CurrentForce with the search over the tabulated
+// currents started at interval *k (a previous answer, the caller's own
+// state: the cell itself holds none and is safe to share), which it sets
+// to the interval found; the result is CurrentForce's bit for bit. nil: no
+// hint.
+func (c *TableCell) CurrentForceNear(lam, x float64, k *int) (i, f float64) {
 	g := c.t.cellPoint(x, c.j)
-	i = c.t.currentAt(&g, lam)
+	i = c.t.currentAt(&g, lam, k)
 	return i, c.t.force(&g, i)
 }
 

@@ -8,7 +8,8 @@ import (
 // TestTableCellIsTableInsideItsCell: a cell gives the table's values bit
 // for bit at gaps inside it (the integrator's steps then follow the same
 // model), for a plain and a permanent magnet's (signed) table, and
-// CurrentForce is Current then Force.
+// CurrentForce is Current then Force, with any search hint (right, wrong,
+// out of range).
 func TestTableCellIsTableInsideItsCell(t *testing.T) {
 	t.Parallel()
 	for _, tc := range []struct {
@@ -31,6 +32,12 @@ func TestTableCellIsTableInsideItsCell(t *testing.T) {
 					if c.FluxLinkage(i, x) != lam || c.CoEnergy(i, x) != tb.CoEnergy(i, x) || c.Force(i, x) != tb.Force(i, x) ||
 						c.Current(lam, x) != ti || ci != ti || cf != tf {
 						t.Fatalf("%s: cell %d differs from the table at i = %g A, x = %g m", tc.name, j, i, x)
+					}
+					for _, h := range []int{-3, 0, 4, len(tb.cur) - 2, 1000} {
+						k := h
+						if ni, nf := c.CurrentForceNear(lam, x, &k); ni != ti || nf != tf {
+							t.Fatalf("%s: cell %d with hint %d: (%g, %g), want (%g, %g)", tc.name, j, h, ni, nf, ti, tf)
+						}
 					}
 					a, b := c.Partials(lam, x)
 					ta, tbb := tb.Partials(lam, x)
