@@ -340,6 +340,16 @@ func keyDims(key string) (dims []Dim, unit bool) {
 	return dims, unit
 }
 
+// keyChoices are the values of the text keys that take one of a list, as
+// their loaders accept them: a --vary value outside the list is an error of
+// the flag, like a value of the wrong unit.
+var keyChoices = map[string][]string{
+	"drive.mode":       driveModes,
+	"drive.regulation": {"hysteresis", "fixed frequency"},
+	"drive.decay":      {"slow", "fast"},
+	"suppression.type": suppressionTypes,
+}
+
 // keyExpects says what a quantity key takes, for messages: "supply.voltage
 // takes a voltage, e.g. \"24 V\""; "" for a key that is not a quantity.
 func keyExpects(key string) string {
@@ -361,6 +371,14 @@ func keyExpects(key string) string {
 // quantity of the right kind that breaks a rule of the scenario (its range,
 // the low voltage) is the point's question: the point is marked invalid.
 func checkValues(v Vary) error {
+	if choices := keyChoices[v.Key]; choices != nil {
+		for _, s := range v.Values {
+			if !slices.Contains(choices, s) {
+				return fmt.Errorf("--vary %q: %s: %q is not one of: %s", v.spec(), v.Key, s, strings.Join(choices, ", "))
+			}
+		}
+		return nil
+	}
 	dims, unit := keyDims(v.Key)
 	if len(dims) == 0 {
 		return nil

@@ -101,6 +101,8 @@ func TestSweepCheckValueUnits(t *testing.T) {
 		{"plunger.mass=5 g,8 N", []string{"plunger.mass", `"8 N" is a force; expected a mass`}},
 		{"magnet.gap law.closed inductance=60 mH,abc", []string{`"abc" is not a quantity`, "expected an inductance"}},
 		{"plunger.load.pressure=3 bar,2 V", []string{"plunger.load.pressure", `"2 V" is a voltage; expected a pressure`}},
+		{"suppression.type=freewheel diode,foo", []string{"suppression.type", `"foo" is not one of: none, freewheel diode`}},
+		{"drive.mode=constant,pwn", []string{"drive.mode", `"pwn" is not one of: constant, pwm`}},
 	}
 	for _, c := range cases {
 		err := sw.Check([]Vary{mustVary(t, c.spec)})
@@ -119,7 +121,8 @@ func TestSweepCheckValueUnits(t *testing.T) {
 	}
 	// Right kind, out of the key's range or below the scenario's rule: the
 	// flag is fine, the point will be invalid.
-	for _, spec := range []string{"supply.voltage=10 V,1e9 V", "supply.voltage=24 V,0.1 kV", "tolerances.supply=5 %,10 %"} {
+	for _, spec := range []string{"supply.voltage=10 V,1e9 V", "supply.voltage=24 V,0.1 kV", "tolerances.supply=5 %,10 %",
+		"suppression.type=freewheel diode,tvs"} {
 		if err := sw.Check([]Vary{mustVary(t, spec)}); err != nil {
 			t.Errorf("%s: %v", spec, err)
 		}
