@@ -1,6 +1,9 @@
 package coilkick
 
-import "math"
+import (
+	"math"
+	"slices"
+)
 
 // dopri is the Dormand–Prince 5(4) pair (Dormand & Prince 1980) with
 // first-same-as-last stages and the CONTD5 dense output of Hairer, Nørsett
@@ -149,6 +152,11 @@ type rodas struct {
 	fac           float64 // 1/(γh) of the last attempt
 	cols          []int   // Jacobian columns taken (the others are zero)
 	all           []int   // 0 … nj−1
+	// jacOK: jac holds the Jacobian at (jacT, y0c) with f there f0c (kept
+	// after a rejected step, whose retry starts from the same point).
+	jacOK bool
+	jacT  float64
+	f0c   []float64
 }
 
 // setColumns sets the Jacobian columns to take (nil: all nj).
@@ -157,6 +165,7 @@ func (m *rodas) setColumns(cols []int) {
 		cols = m.all
 	}
 	m.cols = cols
+	m.jacOK = false
 	for i := range m.jac {
 		m.jac[i] = 0
 	}
@@ -186,7 +195,7 @@ const (
 func newRodas(n, nj int, f func(float64, []float64, []float64), norm func(err, y0, y1 []float64) float64) *rodas {
 	v := func() []float64 { return make([]float64, n) }
 	m := &rodas{f: f, norm: norm, n: n, nj: nj, jac: make([]float64, n*n), w: make([]float64, n*n),
-		piv: make([]int, n), xb: v(), fa: v(), yt: v(), rhs: v(), y0c: v(), y1c: v(), f1v: v(), cont3: v(), cont4: v()}
+		piv: make([]int, n), xb: v(), f0c: v(), fa: v(), yt: v(), rhs: v(), y0c: v(), y1c: v(), f1v: v(), cont3: v(), cont4: v()}
 	for i := range m.k {
 		m.k[i] = v()
 	}
@@ -245,11 +254,31 @@ func (m *rodas) solve(b []float64) {
 }
 
 func (m *rodas) attempt(t, h float64, y, f0, y1 []float64) float64 {
-	n := m.n
-	copy(m.y0c, y)
 	// Jacobian by forward differences, on the columns of the fed-back
 	// states that the present modes let change (a frozen state's row is
-	// zero, so its stage increments are zero and its column is not needed).
+	// zero, so its stage increments are zero and its column is not needed);
+	// the same as the last attempt's when this one starts from the same
+	// time, state and f (the retry of a rejected step), so kept then.
+	if !(m.jacOK && t == m.jacT && slices.Equal(y, m.y0c) && slices.Equal(f0, m.f0c)) {
+		m.jacobian(t, y, f0)
+	}
+	m.jacT, m.jacOK = t, true
+	copy(m.y0c, y)
+	copy(m.f0c, f0)
+	if !m.factorAndStages(t, h, y, f0, y1) {
+		return math.Inf(1)
+	}
+	errNorm := m.norm(m.k[5], y, y1)
+	if errNorm <= 1 {
+		m.f(t+h, y1, m.f1v) // f at the new point: the next step's f0
+	}
+	return errNorm
+}
+
+// jacobian sets the taken columns of jac by forward differences at (t, y)
+// with f(t, y) = f0.
+func (m *rodas) jacobian(t float64, y, f0 []float64) {
+	n := m.n
 	for _, j := range m.cols {
 		dj := math.Sqrt(2.2e-16) * math.Max(math.Abs(y[j]), 1e-8)
 		if y[j] < 0 {
@@ -263,6 +292,13 @@ func (m *rodas) attempt(t, h float64, y, f0, y1 []float64) float64 {
 			m.jac[i*n+j] = (m.fa[i] - f0[i]) / dj
 		}
 	}
+}
+
+// factorAndStages factors W for the step h and computes the six stages,
+// y1 and the dense output's coefficients (k[5] is the error estimate); it
+// reports false when W is singular.
+func (m *rodas) factorAndStages(t, h float64, y, f0, y1 []float64) bool {
+	n := m.n
 	// W = 1/(γh)·I − J is block lower triangular: the quadratures (rows
 	// and columns from nj on) do not feed back, so only the nj×nj block
 	// is factored, and of it only the taken columns (see solve).
@@ -279,7 +315,7 @@ func (m *rodas) attempt(t, h float64, y, f0, y1 []float64) float64 {
 		}
 	}
 	if !luFactor(m.w, m.piv, d) {
-		return math.Inf(1)
+		return false
 	}
 	k := &m.k
 	copy(k[0], f0)
@@ -313,11 +349,7 @@ func (m *rodas) attempt(t, h float64, y, f0, y1 []float64) float64 {
 		m.cont4[i] = roD31*k[0][i] + roD32*k[1][i] + roD33*k[2][i] + roD34*k[3][i] + roD35*k[4][i]
 	}
 	copy(m.y1c, y1)
-	errNorm := m.norm(k[5], y, y1)
-	if errNorm <= 1 {
-		m.f(t+h, y1, m.f1v) // f at the new point: the next step's f0
-	}
-	return errNorm
+	return true
 }
 
 // dense is the order-3 continuous extension of RODAS:

@@ -287,3 +287,46 @@ func TestODEPieceCrossings(t *testing.T) {
 		t.Errorf("rejected steps: %d with pieces, %d without", stP.Rejected, stK.Rejected)
 	}
 }
+
+// TestRodasKeepsJacobianForRetry: the retry of a rejected step (same time,
+// state and f) reuses the finite-difference Jacobian — the result is bit for
+// bit that of a fresh stepper, with nj evaluations fewer — and a new
+// segment (setColumns) or another state takes it afresh.
+func TestRodasKeepsJacobianForRetry(t *testing.T) {
+	t.Parallel()
+	s := &testSys{a: [][]float64{{-1e6, 1e6, 0}, {0, -1, 0}, {1, 1, 0}}}
+	evals := 0
+	f := func(t float64, y, dy []float64) { evals++; s.deriv(t, y, dy) }
+	norm := func([]float64, []float64, []float64) float64 { return 2 } // rejected: no evaluation at y1
+	y := []float64{0.3, 1, 0}
+	f0 := make([]float64, 3)
+	s.deriv(0, y, f0)
+	attempt := func(m *rodas, h float64) ([]float64, float64, int) {
+		y1 := make([]float64, 3)
+		e0 := evals
+		e := m.attempt(0, h, y, f0, y1)
+		return y1, e, evals - e0
+	}
+	m := newRodas(3, 2, f, norm)
+	_, _, first := attempt(m, 1e-2)
+	y1, e1, retry := attempt(m, 1e-3)
+	fresh := newRodas(3, 2, f, norm)
+	y1f, e1f, _ := attempt(fresh, 1e-3)
+	if first-retry != 2 {
+		t.Errorf("evaluations: %d for the first attempt, %d for the retry; want 2 (the Jacobian's columns) fewer", first, retry)
+	}
+	for i := range y1 {
+		if y1[i] != y1f[i] || e1 != e1f {
+			t.Fatalf("retry y1 %v err %g, fresh stepper %v err %g", y1, e1, y1f, e1f)
+		}
+	}
+	m.setColumns(nil)
+	if _, _, again := attempt(m, 1e-3); again != retry+2 {
+		t.Errorf("after setColumns: %d evaluations, want the Jacobian again (%d)", again, retry+2)
+	}
+	y[0] = 0.31
+	s.deriv(0, y, f0)
+	if _, _, moved := attempt(m, 1e-3); moved != retry+2 {
+		t.Errorf("from another state: %d evaluations, want %d", moved, retry+2)
+	}
+}

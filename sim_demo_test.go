@@ -129,7 +129,8 @@ func TestStepBudgetError(t *testing.T) {
 }
 
 // benchActuation times one full actuation of a scenario, without the trace,
-// and reports its integrator steps (machine-independent).
+// and reports its integrator steps, rejected steps and right-hand-side
+// evaluations (machine-independent).
 func benchActuation(b *testing.B, path string) {
 	md, err := LoadModel(path)
 	if err != nil {
@@ -148,6 +149,8 @@ func benchModel(b *testing.B, md *Model) {
 		}
 	}
 	b.ReportMetric(float64(res.Stats.Steps), "steps")
+	b.ReportMetric(float64(res.Stats.Rejected), "rejected")
+	b.ReportMetric(float64(res.Stats.Evaluations), "evals")
 }
 
 // Every demo's single actuation (target: under 2 ms each).
