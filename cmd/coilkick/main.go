@@ -47,17 +47,28 @@ const (
 // errFailing marks a run that worked but failed a rating or requirement.
 var errFailing = errors.New("a rating or requirement fails")
 
-// valueFlags are the flags that take a value, for reordering arguments.
-var valueFlags = map[string]bool{"csv": true, "json": true, "tolerance": true, "curves": true, "currents": true,
-	"plot": true, "o": true, "output": true, "vary": true, "seed": true, "samples": true, "workers": true,
-	"trace": true, "params": true, "margin": true, "plot-window": true, "figure": true,
-	"bandwidth": true, "sample-rate": true, "resolution": true, "noise": true, "pull-in-cap": true, "evaluations": true,
-	"timing-margin": true, "series": true, "pulse-margin": true}
+// valueFlags returns the names (aliases too) of cmd's flags that take a
+// value, for reordering arguments; none for an unknown command.
+func valueFlags(cmd *cli.Command) map[string]bool {
+	names := map[string]bool{}
+	if cmd == nil {
+		return names
+	}
+	for _, f := range cmd.Flags {
+		if tv, ok := f.(interface{ TakesValue() bool }); ok && tv.TakesValue() {
+			for _, n := range f.Names() {
+				names[n] = true
+			}
+		}
+	}
+	return names
+}
 
 // permute moves flags written after positional arguments in front of them,
 // so that "coilkick run valve.yaml --csv out.csv" works: the flag parser
-// stops at the first positional argument.
-func permute(args []string) []string {
+// stops at the first positional argument. valueFlags names the flags whose
+// value is the next argument.
+func permute(args []string, valueFlags map[string]bool) []string {
 	var flags, pos []string
 	for i := 0; i < len(args); i++ {
 		a := args[i]
@@ -125,10 +136,10 @@ func (g *stdoutGuard) Write(p []byte) (int, error) {
 }
 
 func runApp(stdout, stderr io.Writer, args []string) int {
-	if len(args) > 2 {
-		args = append(args[:2:2], permute(args[2:])...)
-	}
 	app := newApp(stdout, stderr)
+	if len(args) > 2 {
+		args = append(args[:2:2], permute(args[2:], valueFlags(app.Command(args[1])))...)
+	}
 	// The conventions of command-line tools, before the library sees the
 	// arguments: no command prints the usage on stderr (exit 1); an unknown
 	// command is an error naming the known ones; --version.
