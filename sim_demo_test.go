@@ -391,3 +391,37 @@ func TestMetricsCheckNamesNonFinite(t *testing.T) {
 		}
 	}
 }
+
+// TestMagnetMemo: the system's one-entry memo of the magnet gives what the
+// magnet gives at the same flux linkage and gap, and is dropped when the
+// gap piece changes (the same point on the next cell's cubics differs).
+func TestMagnetMemo(t *testing.T) {
+	t.Parallel()
+	md, err := LoadModel("scenarios/dosing-valve-geometry.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := &system{mag: md.Magnet}
+	y := make([]float64, nState)
+	lo, hi := md.Plunger.GapMin, md.Plunger.GapMax
+	y[sGap], y[sVel], y[sFlux] = 0.5*(lo+hi), -1, 0.12
+	s.enterPiece(y)
+	i1, f1 := s.currentForce(y)
+	wi, wf := s.piece.CurrentForce(y[sFlux], y[sGap])
+	if i1 != wi || f1 != wf {
+		t.Fatalf("memo filled with (%g, %g), the piece gives (%g, %g)", i1, f1, wi, wf)
+	}
+	if _, im := s.solve(y); im != wi {
+		t.Errorf("solve at the same point: %g A, want the memo's %g A", im, wi)
+	}
+	s.crossPiece(1) // the next cell up, its cubics continued down to y's gap
+	i2, f2 := s.currentForce(y)
+	wi2, wf2 := s.piece.CurrentForce(y[sFlux], y[sGap])
+	if i2 != wi2 || f2 != wf2 || f2 == f1 {
+		t.Errorf("after the piece changed: (%g, %g), the new piece gives (%g, %g), the old (%g, %g)", i2, f2, wi2, wf2, i1, f1)
+	}
+	y[sFlux] = 0.11
+	if _, im := s.solve(y); im != s.piece.Current(y[sFlux], y[sGap]) {
+		t.Errorf("solve at another flux linkage: %g A, want %g A", im, s.piece.Current(y[sFlux], y[sGap]))
+	}
+}

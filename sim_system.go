@@ -115,6 +115,24 @@ type system struct {
 	// curHint is the current interval of the piece's last current solve,
 	// where the next search starts (magnet.GapPiece.CurrentForceNear).
 	curHint int
+	// memo is the last magnetic evaluation, valid while pieceGen is its
+	// gen: the step's end is asked for by f, the guards and the outputs.
+	memo     magMemo
+	pieceGen int // counts the changes of piece
+}
+
+// magMemo is one magnetic evaluation: the flux linkage (Wb) and gap (m)
+// it was at, the current (A) and, when hasPull, the pull (N), on the
+// magnet of piece generation gen.
+type magMemo struct {
+	lam, x, im, pull float64
+	hasPull          bool
+	gen              int
+}
+
+// memoHit reports whether the memo holds the magnet at y.
+func (s *system) memoHit(y []float64) bool {
+	return s.memo.gen == s.pieceGen && s.memo.lam == y[sFlux] && s.memo.x == y[sGap]
 }
 
 // outputs are the algebraic quantities at a state.
@@ -171,7 +189,12 @@ func (s *system) current(y []float64) float64 {
 // Then i = (v0' + Re·im)/(Re + Ra' + R) exactly. Without eddy currents
 // i = im.
 func (s *system) solve(y []float64) (i, im float64) {
-	im = s.derivMagnet().Current(y[sFlux], y[sGap])
+	if s.memoHit(y) {
+		im = s.memo.im
+	} else {
+		im = s.derivMagnet().Current(y[sFlux], y[sGap])
+		s.memo = magMemo{lam: y[sFlux], x: y[sGap], im: im, gen: s.pieceGen}
+	}
 	return s.solveAt(y, im), im
 }
 
@@ -344,14 +367,21 @@ type currentForcer interface {
 // currentForce returns the magnetizing current (A) and the magnetic pull
 // (N) at y, on the present gap piece when there is one (deriv).
 func (s *system) currentForce(y []float64) (im, pull float64) {
-	if s.piece != nil {
-		return s.piece.CurrentForceNear(y[sFlux], y[sGap], &s.curHint)
+	if s.memo.hasPull && s.memoHit(y) {
+		return s.memo.im, s.memo.pull
 	}
-	if cf, ok := s.mag.(currentForcer); ok {
-		return cf.CurrentForce(y[sFlux], y[sGap])
+	lam, x := y[sFlux], y[sGap]
+	switch cf, ok := s.mag.(currentForcer); {
+	case s.piece != nil:
+		im, pull = s.piece.CurrentForceNear(lam, x, &s.curHint)
+	case ok:
+		im, pull = cf.CurrentForce(lam, x)
+	default:
+		im = s.mag.Current(lam, x)
+		pull = s.mag.Force(im, x)
 	}
-	im = s.mag.Current(y[sFlux], y[sGap])
-	return im, s.mag.Force(im, y[sGap])
+	s.memo = magMemo{lam: lam, x: x, im: im, pull: pull, hasPull: true, gen: s.pieceGen}
+	return im, pull
 }
 
 // derivMagnet returns the magnetic model deriv evaluates: the present
@@ -375,6 +405,7 @@ func (s *system) enterPiece(y []float64) {
 		s.pieces = pw
 	}
 	s.piece = s.pieces.GapPieceAt(y[sGap], y[sVel])
+	s.pieceGen++
 }
 
 // crossPiece moves deriv to the gap piece beyond the present one's lower
@@ -387,6 +418,7 @@ func (s *system) crossPiece(k int) {
 	} else {
 		s.piece = s.pieces.GapPieceAt(hi, 1)
 	}
+	s.pieceGen++
 }
 
 // pieceGuards writes the guards of the present gap piece into g and
