@@ -66,10 +66,23 @@ type Model struct {
 	Timing             TimingSpec
 	Limits             LimitsSpec
 	Solver             SolverSpec
+	// Pulses: the drive is an H-bridge's timed pulses (drive.mode pulses):
+	// the latch pulse is the energized time, the release pulse the
+	// reverse pulse (Control.ReversePulse, ReverseDelay).
+	Pulses bool
 	// DemagCurrent (A): the reverse coil current at which the permanent
 	// magnet reaches its knee (magnet.gap law.demagnetising current); 0
 	// when not given.
 	DemagCurrent float64
+}
+
+// DriveName names the drive for reports: the control law ("constant",
+// "pwm", ...), or "H-bridge pulses" for a pulses drive.
+func (md *Model) DriveName() string {
+	if md.Pulses {
+		return "H-bridge pulses"
+	}
+	return md.Control.Mode.String()
 }
 
 // CoilResistance returns the coil resistance at the run's winding
@@ -353,6 +366,7 @@ func buildControl(s *Scenario, md *Model) error {
 	if dr.BrakeFor > 0 {
 		md.Control = md.Control.WithBrake(dr.BrakeAt, dr.BrakeFor)
 	}
+	md.Pulses = dr.Mode == DrivePulses
 	if dr.Mode == DrivePulses && dr.ReleasePulse > 0 {
 		// The latch pulse ends at de-energize (the loader set it); the
 		// release pulse is the bridge's reverse pulse, delayed to its start.

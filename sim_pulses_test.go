@@ -49,6 +49,20 @@ func TestPulsesDriveSameAsReversePulse(t *testing.T) {
 	if a.Metrics != b.Metrics || a.Stats.Steps != b.Stats.Steps {
 		t.Errorf("the two forms differ:\n%+v\n%+v", a.Metrics, b.Metrics)
 	}
+	// The events name the pulses as the scenario does.
+	var what []string
+	for _, e := range a.Events {
+		what = append(what, e.What)
+	}
+	all := strings.Join(what, "\n")
+	for _, w := range []string{"latch pulse starts (H-bridge, forward)", "latch pulse ends at", "release pulse starts (H-bridge, reverse)", "release pulse ends at"} {
+		if !strings.Contains(all, w) {
+			t.Errorf("events lack %q:\n%s", w, all)
+		}
+	}
+	if md.DriveName() != "H-bridge pulses" || mdOld.DriveName() != "constant" {
+		t.Errorf("drive names %q and %q", md.DriveName(), mdOld.DriveName())
+	}
 	// The release measured from the reverse pulse's start is the release
 	// from de-energize less the delay (definitions, assess_metrics.go).
 	m := a.Metrics

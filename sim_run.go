@@ -192,6 +192,7 @@ type run struct {
 	offDone         bool // de-energize command given
 	res             *Result
 	noTrace         bool
+	pulses          bool // an H-bridge's pulses drive (Model.Pulses): its events are named so
 
 	ctl           circuit.Controller
 	baseV0        float64         // V, the normal supply voltage
@@ -335,7 +336,7 @@ func (r *run) event(t float64, y []float64, k int) (bool, error) {
 		if t == r.tRevEnd && r.cmode == circuit.BridgeReverse {
 			i := r.current(y)
 			r.cmode = r.turnOffMode(i)
-			r.note(t, "reverse pulse ends at %.4g A", i)
+			r.note(t, "%s pulse ends at %.4g A", map[bool]string{false: "reverse", true: "release"}[r.pulses], i)
 		}
 		if t == r.tRing {
 			r.tryRetireRing(t, y)
@@ -492,6 +493,10 @@ func (r *run) energize(t float64, y []float64) {
 	if r.imposed != 0 {
 		r.mmode, y[sVel] = mechFree, r.imposed
 	}
+	if r.pulses {
+		r.note(t, "latch pulse starts (H-bridge, forward)")
+		return
+	}
 	r.note(t, "energize (%v drive)", r.ctl.Mode)
 }
 
@@ -532,7 +537,11 @@ func (r *run) deenergize(t float64, y []float64) {
 		r.decayThreshold = DecayFraction * math.Abs(i)
 		r.decaySign = math.Copysign(1, i)
 	}
-	r.note(t, "de-energize at %.4g A", i)
+	if r.pulses {
+		r.note(t, "latch pulse ends at %.4g A", i)
+	} else {
+		r.note(t, "de-energize at %.4g A", i)
+	}
 	if r.cmode != circuit.Off {
 		r.noteConduction(t, r.drive.ClampName(r.cmode), true)
 	}
@@ -550,7 +559,11 @@ func (r *run) startReverse(t float64, y []float64) {
 	r.tRevEnd = t + r.ctl.ReversePulse
 	r.res.Metrics.ReverseStart = Interval{true, t}
 	r.tRing = math.Inf(1)
-	r.note(t, "reverse pulse starts at %.4g A", r.current(y))
+	if r.pulses {
+		r.note(t, "release pulse starts (H-bridge, reverse) at %.4g A", r.current(y))
+	} else {
+		r.note(t, "reverse pulse starts at %.4g A", r.current(y))
+	}
 	r.noteConduction(t, r.drive.ClampName(r.cmode), true)
 }
 
@@ -890,7 +903,7 @@ func newRun(md *Model, opt *Options, tol float64) (*run, []float64) {
 	}
 	r := &run{system: sys, tOn: timing.EnergizeAt, tOff: timing.DeenergizeAt, tEnd: timing.End, tRing: math.Inf(1),
 		noRetire: opt.FollowRing, cols: make([]int, 0, stateJac), noFastForward: opt.FollowPeriods, tol: tol,
-		res: res, noTrace: opt.NoTrace, baseV0: drive.Supply.Voltage, tRevEnd: math.Inf(1), tRevStart: math.Inf(1),
+		res: res, noTrace: opt.NoTrace, pulses: md.Pulses, baseV0: drive.Supply.Voltage, tRevEnd: math.Inf(1), tRevStart: math.Inf(1),
 		riseTime: md.RiseTime, fallTime: md.FallTime, sampleTimes: opt.SampleTimes}
 	r.ctl.Control = md.Control
 	r.window = newHoldWindow(r.tOn, r.tOff, md.Control.PhaseTime())

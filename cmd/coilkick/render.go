@@ -202,7 +202,7 @@ func (s *summary) hold(md *coilkick.Model, m *coilkick.Metrics) {
 		}
 		return
 	}
-	fmt.Fprintf(s.b, "Hold (%v drive; window %s to %s)\n", md.Control.Mode, si(h.Start, "s"), si(h.End, "s"))
+	fmt.Fprintf(s.b, "Hold (%v drive; window %s to %s)\n", md.DriveName(), si(h.Start, "s"), si(h.End, "s"))
 	s.row("hold current mean", si(h.MeanCurrent, "A"))
 	if h.Chopped {
 		s.row("hold current ripple", fmt.Sprintf("%s (%s to %s)", si(h.Ripple, "A"), si(h.MinCurrent, "A"), si(h.MaxCurrent, "A")))

@@ -49,7 +49,7 @@ func displayName(path string, md *coilkick.Model) string {
 // runLine is a one-line description of the drive for a figure's subtitle.
 func runLine(md *coilkick.Model, res *coilkick.Result) string {
 	s := fmt.Sprintf("supply %s · coil %s at %.0f °C · %v drive · suppression: %v",
-		si(md.Drive.Supply.Voltage, "V"), si(md.CoilResistance(), "Ω"), md.Temperature-273.15, md.Control.Mode, md.Drive.Suppressor.Kind)
+		si(md.Drive.Supply.Voltage, "V"), si(md.CoilResistance(), "Ω"), md.Temperature-273.15, md.DriveName(), md.Drive.Suppressor.Kind)
 	if md.Thermal != nil {
 		// The trace has no temperature; say where the winding ended.
 		s += fmt.Sprintf(" · winding %.1f °C at the end", res.Metrics.FinalWindingTemperature-273.15)
@@ -594,21 +594,7 @@ func storageText(st *coilkick.StorageSpec) string {
 func scenarioSummary(md *coilkick.Model, sc *coilkick.Scenario) []plot.Item {
 	var out []plot.Item
 	add := func(label, value string) { out = append(out, plot.Item{Label: label, Value: value}) }
-	join := func(parts ...string) string {
-		var keep []string
-		for _, p := range parts {
-			if p != "" {
-				keep = append(keep, p)
-			}
-		}
-		return strings.Join(keep, ", ")
-	}
-	opt := func(v float64, format string, args ...any) string {
-		if v == 0 {
-			return ""
-		}
-		return fmt.Sprintf(format, args...)
-	}
+	join, opt := joinNonEmpty, optText
 	sp := sc.Supply
 	add("supply", join(si(sp.Voltage, "V"), opt(sp.SourceResistance, "source resistance %s", si(sp.SourceResistance, "Ω")),
 		opt(sp.BulkCapacitance, "bulk capacitor %s", si(sp.BulkCapacitance, "F")), storageText(sp.Storage),
@@ -649,18 +635,7 @@ func scenarioSummary(md *coilkick.Model, sc *coilkick.Scenario) []plot.Item {
 		opt(su.ZenerVoltage, "Zener %s", si(su.ZenerVoltage, "V")), opt(su.ClampVoltage, "clamp %s", si(su.ClampVoltage, "V")),
 		opt(su.Resistance, "resistance %s", si(su.Resistance, "Ω")), opt(su.Capacitance, "%s", si(su.Capacitance, "F")),
 		opt(su.ReversePulse, "reverse pulse %s", si(su.ReversePulse, "s"))))
-	dr := sc.Drive
-	drive := fmt.Sprint(md.Control.Mode)
-	switch dr.Mode {
-	case coilkick.DrivePWM:
-		drive = join(drive, si(dr.Frequency, "Hz"), fmt.Sprintf("duty %.2g", dr.Duty))
-	case coilkick.DrivePeakHold:
-		drive = join(drive, fmt.Sprintf("%s for %s, hold %s", si(dr.PeakCurrent, "A"), si(dr.PeakTime, "s"), si(dr.HoldCurrent, "A")),
-			dr.Regulation, opt(dr.Frequency, "%s", si(dr.Frequency, "Hz")), opt(boolFloat(dr.Decay != ""), "%s decay", dr.Decay))
-	case coilkick.DriveBoostHold:
-		drive = join(drive, fmt.Sprintf("%s for %s", si(dr.BoostVoltage, "V"), si(dr.BoostTime, "s")))
-	}
-	add("drive", drive)
+	add("drive", driveText(md, sc.Drive))
 	tm := sc.Timing
 	add("timing", fmt.Sprintf("energize at %s, de-energize at %s, end %s", si(tm.EnergizeAt, "s"), si(tm.DeenergizeAt, "s"), si(tm.End, "s")))
 	if th := sc.Thermal; th != nil {
@@ -670,6 +645,44 @@ func scenarioSummary(md *coilkick.Model, sc *coilkick.Scenario) []plot.Item {
 		add("duty", fmt.Sprintf("%s on per %s cycle", durationText(pat.OnTotal()), durationText(pat.CycleTime())))
 	}
 	return out
+}
+
+// joinNonEmpty joins the parts that are not empty with ", ".
+func joinNonEmpty(parts ...string) string {
+	var keep []string
+	for _, p := range parts {
+		if p != "" {
+			keep = append(keep, p)
+		}
+	}
+	return strings.Join(keep, ", ")
+}
+
+// optText formats args when v is not 0, else "".
+func optText(v float64, format string, args ...any) string {
+	if v == 0 {
+		return ""
+	}
+	return fmt.Sprintf(format, args...)
+}
+
+// driveText describes the drive for the scenario summary.
+func driveText(md *coilkick.Model, dr coilkick.DriveSpec) string {
+	join, opt := joinNonEmpty, optText
+	drive := md.DriveName()
+	switch dr.Mode {
+	case coilkick.DrivePulses:
+		drive = join(drive, fmt.Sprintf("latch %s", si(dr.LatchPulse, "s")),
+			opt(dr.ReleasePulse, "release %s at %s", si(dr.ReleasePulse, "s"), si(dr.ReleaseAt, "s")))
+	case coilkick.DrivePWM:
+		drive = join(drive, si(dr.Frequency, "Hz"), fmt.Sprintf("duty %.2g", dr.Duty))
+	case coilkick.DrivePeakHold:
+		drive = join(drive, fmt.Sprintf("%s for %s, hold %s", si(dr.PeakCurrent, "A"), si(dr.PeakTime, "s"), si(dr.HoldCurrent, "A")),
+			dr.Regulation, opt(dr.Frequency, "%s", si(dr.Frequency, "Hz")), opt(boolFloat(dr.Decay != ""), "%s decay", dr.Decay))
+	case coilkick.DriveBoostHold:
+		drive = join(drive, fmt.Sprintf("%s for %s", si(dr.BoostVoltage, "V"), si(dr.BoostTime, "s")))
+	}
+	return drive
 }
 
 func boolFloat(b bool) float64 {

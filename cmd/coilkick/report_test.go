@@ -168,8 +168,12 @@ func checkWaveformSVG(t *testing.T, b []byte, title string) {
 	if len(f.texts) == 0 || f.texts[0] != title {
 		t.Fatalf("SVG's first text %q, want the title %q", f.texts, title)
 	}
+	on, off := "energize", "de-energize"
+	if strings.Contains(strings.Join(f.texts, "\n"), "H-bridge pulses") {
+		on, off = "latch pulse", "latch ends"
+	}
 	for _, want := range []string{"coil current", "coil voltage", "switch voltage (drain to ground)", "working air gap",
-		"magnetic pull toward the seat", "passive force (spring + load − damping)", "energize", "de-energize"} {
+		"magnetic pull toward the seat", "passive force (spring + load − damping)", on, off} {
 		if !slices.Contains(f.texts, want) {
 			t.Errorf("SVG has no text %q: %q", want, f.texts)
 		}

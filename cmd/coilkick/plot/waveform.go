@@ -32,7 +32,9 @@ type Marker struct {
 
 // EventMarkers picks the instants worth marking on a waveform from a run's
 // events: energize, the plunger leaving the rest stop, the first seat
-// impact, de-energize, and the plunger leaving the seat after it.
+// impact, de-energize, and the plunger leaving the seat after it; for an
+// H-bridge's pulses drive, the latch pulse's start and end and the
+// release pulse's start instead of energize and de-energize.
 func EventMarkers(events []coilkick.Event) []Marker {
 	var out []Marker
 	found := map[string]bool{}
@@ -50,6 +52,13 @@ func EventMarkers(events []coilkick.Event) []Marker {
 		case strings.HasPrefix(e.What, "de-energize"):
 			add("de-energize", e.Time)
 			off = math.Min(off, e.Time)
+		case strings.HasPrefix(e.What, "latch pulse starts"):
+			add("latch pulse", e.Time)
+		case strings.HasPrefix(e.What, "latch pulse ends"):
+			add("latch ends", e.Time)
+			off = math.Min(off, e.Time)
+		case strings.HasPrefix(e.What, "release pulse starts"):
+			add("release pulse", e.Time)
 		case e.What == "leaves the rest stop":
 			add("moves", e.Time)
 		case strings.HasPrefix(e.What, "seat impact"):
