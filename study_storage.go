@@ -383,7 +383,7 @@ func (p *storageProblem) sizeCapacitance(res *StorageSizing, given storageTrial)
 		return err
 	}
 	if !top.Pass {
-		res.Blocked = fmt.Sprintf("does not latch even with %s at %s: %s", capText(values[hi]), top.Corner, top.Reason)
+		res.Blocked = fmt.Sprintf("does not latch even with %s at %s: %s", CapacitanceText(values[hi]), top.Corner, top.Reason)
 		return nil
 	}
 	for hi-lo > 1 {
@@ -549,10 +549,11 @@ func (p *storageProblem) longest(pa *PulseAnswer, trial storageTrial, set func(*
 	return err
 }
 
-// capText prints a capacitance in µF or mF.
-func capText(c float64) string {
-	if c >= 1e-3 {
-		return fmt.Sprintf("%.4g mF", c*1e3)
+// CapacitanceText prints a capacitance as capacitors are marked: µF
+// below 0.1 F (47000 µF), F from there (4.7 F), 4 significant digits.
+func CapacitanceText(c float64) string {
+	if c >= 0.1 {
+		return fmt.Sprintf("%.4g F", c)
 	}
 	return fmt.Sprintf("%.4g µF", c*1e6)
 }

@@ -210,3 +210,13 @@ func BenchmarkStorageSize(b *testing.B) {
 	}
 	b.ReportMetric(float64(res.Runs), "runs")
 }
+
+// Capacitances print as capacitors are marked: µF up to 0.1 F, then F.
+func TestCapacitanceText(t *testing.T) {
+	t.Parallel()
+	for c, want := range map[float64]string{1.5e-3: "1500 µF", 47e-3: "47000 µF", 1e-6: "1 µF", 0.1: "0.1 F", 10: "10 F"} {
+		if got := CapacitanceText(c); got != want {
+			t.Errorf("%g F prints %q, want %q", c, got, want)
+		}
+	}
+}

@@ -4,7 +4,6 @@ import (
 	"bufio"
 	"fmt"
 	"io"
-	"strconv"
 	"strings"
 
 	"github.com/urfave/cli/v2"
@@ -128,18 +127,18 @@ func printStorage(w io.Writer, path string, md *coilkick.Model, res *coilkick.St
 	fmt.Fprintf(b, "every corner must %s\n\n", storageRequirement(md, res))
 	fmt.Fprintf(b, "Storage capacitor\n")
 	if !res.Found {
-		fmt.Fprintf(b, "  none from %s to %s: %s\n", capUF(1e-6), capUF(10), res.Blocked)
+		fmt.Fprintf(b, "  none from %s to %s: %s\n", coilkick.CapacitanceText(1e-6), coilkick.CapacitanceText(10), res.Blocked)
 	} else {
-		fmt.Fprintf(b, "  %-20s %s (±%.3g %%: %s to %s)\n", "smallest "+res.Series+" value", capUF(res.Capacitance), 100*res.Tolerance,
-			capUF(res.Capacitance*(1-res.Tolerance)), capUF(res.Capacitance*(1+res.Tolerance)))
+		fmt.Fprintf(b, "  %-20s %s (±%.3g %%: %s to %s)\n", "smallest "+res.Series+" value", coilkick.CapacitanceText(res.Capacitance), 100*res.Tolerance,
+			coilkick.CapacitanceText(res.Capacitance*(1-res.Tolerance)), coilkick.CapacitanceText(res.Capacitance*(1+res.Tolerance)))
 		if res.Below > 0 {
-			fmt.Fprintf(b, "  %-20s %s %s\n", "one step below", capUF(res.Below), verdictText(res.BelowVerdict))
+			fmt.Fprintf(b, "  %-20s %s %s\n", "one step below", coilkick.CapacitanceText(res.Below), verdictText(res.BelowVerdict))
 		}
-		fmt.Fprintf(b, "  %-20s %s nominal (bisection to %.2g %%)\n", "least of any value", capUF(res.Threshold), 100*coilkick.SolveRel)
+		fmt.Fprintf(b, "  %-20s %s nominal (bisection to %.2g %%)\n", "least of any value", coilkick.CapacitanceText(res.Threshold), 100*coilkick.SolveRel)
 	}
-	fmt.Fprintf(b, "  %-20s %s with its pulses %s\n\n", "the scenario's", capUF(md.Storage.Capacitance), verdictText(res.Given))
+	fmt.Fprintf(b, "  %-20s %s with its pulses %s\n\n", "the scenario's", coilkick.CapacitanceText(md.Storage.Capacitance), verdictText(res.Given))
 	if res.Found {
-		fmt.Fprintf(b, "Pulses with %s\n", capUF(res.Capacitance))
+		fmt.Fprintf(b, "Pulses with %s\n", coilkick.CapacitanceText(res.Capacitance))
 		printPulse(b, "latch pulse", res.LatchPulse, margin)
 		if res.Release {
 			printPulse(b, "release pulse", res.ReleasePulse, margin)
@@ -280,7 +279,3 @@ func storageRecord(md *coilkick.Model, res *coilkick.StorageSizing) record {
 		{"release_pulse_recommended_s", optional(rp.Recommended, rel && rp.Found)},
 	}
 }
-
-// capUF prints a capacitance in µF, as capacitors are marked (4
-// significant digits).
-func capUF(c float64) string { return strconv.FormatFloat(c*1e6, 'g', 4, 64) + " µF" }
