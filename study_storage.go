@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"runtime"
+	"strconv"
 	"sync"
 
 	"coilkick/magnet"
@@ -552,10 +553,12 @@ func (p *storageProblem) longest(pa *PulseAnswer, trial storageTrial, set func(*
 // CapacitanceText prints a capacitance as capacitors are marked: µF
 // below 0.1 F (47000 µF), F from there (4.7 F), 4 significant digits.
 func CapacitanceText(c float64) string {
+	unit, v := " µF", c*1e6
 	if c >= 0.1 {
-		return fmt.Sprintf("%.4g F", c)
+		unit, v = " F", c
 	}
-	return fmt.Sprintf("%.4g µF", c*1e6)
+	r, _ := roundSig(v, 4)
+	return strconv.FormatFloat(r, 'f', -1, 64) + unit
 }
 
 // timeText prints a time in ms.
