@@ -2,6 +2,7 @@ package coilkick
 
 import (
 	"errors"
+	"strings"
 	"testing"
 )
 
@@ -20,4 +21,21 @@ func modelFromText(t testing.TB, text, name string) *Model {
 		t.Fatal(err)
 	}
 	return md
+}
+
+// errorHas reports a test error unless err is an error whose message
+// contains every part of want; label names the case. It returns whether
+// err was an error at all.
+func errorHas(t testing.TB, label string, err error, want []string) bool {
+	t.Helper()
+	if err == nil {
+		t.Errorf("%s: accepted", label)
+		return false
+	}
+	for _, w := range want {
+		if !strings.Contains(err.Error(), w) {
+			t.Errorf("%s: error lacks %q:\n%v", label, w, err)
+		}
+	}
+	return true
 }

@@ -1,6 +1,7 @@
 package coilkick
 
 import (
+	"fmt"
 	"math"
 	"os"
 	"strings"
@@ -124,14 +125,6 @@ func TestPulsesBadInput(t *testing.T) {
 		if err == nil {
 			_, err = Build(s)
 		}
-		if err == nil {
-			t.Errorf("%q: accepted", c.new)
-			continue
-		}
-		for _, w := range c.want {
-			if !strings.Contains(err.Error(), w) {
-				t.Errorf("%q: error lacks %q:\n%v", c.new, w, err)
-			}
-		}
+		errorHas(t, fmt.Sprintf("%q", c.new), err, c.want)
 	}
 }

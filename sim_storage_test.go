@@ -1,6 +1,7 @@
 package coilkick
 
 import (
+	"fmt"
 	"math"
 	"os"
 	"strings"
@@ -249,15 +250,7 @@ func TestStorageBadInput(t *testing.T) {
 	} {
 		bad := strings.Replace(string(good), c.old, c.new, 1)
 		_, err := Parse([]byte(bad), "cap.yaml")
-		if err == nil {
-			t.Errorf("%q: accepted", c.new)
-			continue
-		}
-		for _, w := range c.want {
-			if !strings.Contains(err.Error(), w) {
-				t.Errorf("%q: error lacks %q:\n%v", c.new, w, err)
-			}
-		}
+		errorHas(t, fmt.Sprintf("%q", c.new), err, c.want)
 	}
 }
 
@@ -329,8 +322,6 @@ func TestStorageChargeTime(t *testing.T) {
 		{"    charging resistance: 100 ohm\n", "    charging resistance: 100 ohm\n    charge time: 150 mA\n", "supply.storage capacitor.charge time"},
 	} {
 		_, err := Parse([]byte(strings.Replace(string(good), bad.old, bad.new, 1)), "ct.yaml")
-		if err == nil || !strings.Contains(err.Error(), bad.want) || !strings.Contains(err.Error(), "ct.yaml:") {
-			t.Errorf("%q: %v, want an error naming the file and %q", bad.new, err, bad.want)
-		}
+		errorHas(t, fmt.Sprintf("%q", bad.new), err, []string{bad.want, "ct.yaml:"})
 	}
 }

@@ -21,15 +21,7 @@ func landTestModel(t testing.TB) *Model {
 	}
 	src := strings.NewReplacer("de-energize at: 150 ms", "de-energize at: 40 ms", "end: 300 ms", "end: 60 ms",
 		"ratings:", "tolerances:\n  supply: 5 %\n  ambient: 15 K\nratings:").Replace(string(data))
-	s, err := Parse([]byte(src), "land-test.yaml")
-	if err != nil {
-		t.Fatal(err)
-	}
-	md, err := Build(s)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return md
+	return modelFromText(t, src, "land-test.yaml")
 }
 
 // Figures of the soft-landing tests, measured on landTestModel with a
