@@ -79,7 +79,7 @@ func (md *Model) MagnetSummary() MagnetSummary {
 	s.TimeConstantOpen = s.OpenInductance / r
 	s.SaturationSeated = saturationOnset(md, p.GapMin, s.RatedCurrent)
 	s.SaturationRest = saturationOnset(md, p.GapMax, s.RatedCurrent)
-	if pm, ok := mg.(magnet.Magnetized); ok && pm.HasPermanentMagnet() {
+	if magnetized(mg) {
 		s.PermanentMagnet = true
 		s.HoldingSeated, s.HoldingAtRest = mg.Force(0, p.GapMin), mg.Force(0, p.GapMax)
 		if gl, ok := mg.(*magnet.GapLaw); ok {

@@ -226,11 +226,21 @@ func withPermanentMagnet(s *Scenario, gl *magnet.GapLaw) (*magnet.GapLaw, error)
 // m at gap x (m): a permanent magnet's (magnet.Magnetized), exactly 0 for
 // every other model (a table's rounding at zero current is not taken).
 func zeroCurrentFlux(m magnet.Model, x float64) float64 {
-	if pm, ok := m.(magnet.Magnetized); ok && pm.HasPermanentMagnet() {
+	if magnetized(m) {
 		return m.FluxLinkage(0, x)
 	}
 	return 0
 }
+
+// magnetized reports whether magnetic model m holds a permanent magnet.
+func magnetized(m magnet.Model) bool {
+	pm, ok := m.(magnet.Magnetized)
+	return ok && pm.HasPermanentMagnet()
+}
+
+// HasPermanentMagnet reports whether the model's magnet holds a permanent
+// magnet (a latching plunger).
+func (md *Model) HasPermanentMagnet() bool { return magnetized(md.Magnet) }
 
 // chordInductance returns (λ(i, x) − λ(0, x))/i (H): the chord inductance
 // of the coil's own current, λ/i without a permanent magnet.

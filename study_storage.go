@@ -7,8 +7,6 @@ import (
 	"runtime"
 	"strconv"
 	"sync"
-
-	"coilkick/magnet"
 )
 
 // eSeries are the IEC 60063 series of preferred numbers used for
@@ -248,16 +246,12 @@ func (p *storageProblem) judge(c StorageCorner, tr storageTrial) (string, error)
 // storageFailure says why a run fails to latch (and, with release, to
 // release cleanly); "" when it passes.
 func storageFailure(md *Model, m *Metrics, release bool) string {
-	magnetHolds := false
-	if mz, ok := md.Magnet.(magnet.Magnetized); ok {
-		magnetHolds = mz.HasPermanentMagnet()
-	}
 	switch {
 	case !m.PullIn.Happened:
 		return "does not pull in"
 	case m.DropOut.Happened || !m.SeatedAtTurnOff:
 		return "not seated at the end of the latch pulse"
-	case !release && magnetHolds && m.Release.Happened:
+	case !release && md.HasPermanentMagnet() && m.Release.Happened:
 		return "does not stay latched after the pulse"
 	case !release:
 		return ""

@@ -89,7 +89,7 @@ func cmdStorage(c *cli.Context, w io.Writer) error {
 // storageRequirement says what every corner must do.
 func storageRequirement(md *coilkick.Model, res *coilkick.StorageSizing) string {
 	latch := fmt.Sprintf("pull in and be seated at the end of the %s latch pulse", si(res.LatchPulse.Given, "s"))
-	if storageMagnetHolds(md) {
+	if md.HasPermanentMagnet() {
 		latch += ", then stay latched on its magnet"
 	}
 	if !res.Release {
@@ -101,12 +101,6 @@ func storageRequirement(md *coilkick.Model, res *coilkick.StorageSizing) string 
 		rel += fmt.Sprintf(", the reverse current within the demagnetising current %s", si(md.DemagCurrent, "A"))
 	}
 	return latch + rel
-}
-
-// storageMagnetHolds says whether the magnet has a permanent magnet.
-func storageMagnetHolds(md *coilkick.Model) bool {
-	mz, ok := md.Magnet.(interface{ HasPermanentMagnet() bool })
-	return ok && mz.HasPermanentMagnet()
 }
 
 // verdictText is "passes" or "fails at CORNER: REASON".
