@@ -27,6 +27,14 @@ type StorageCapacitor struct {
 	ChargeTime, SourceResistance float64
 }
 
+// StartEnergy returns the energy (J) the capacitor holds at the start of a
+// run with supply voltage vs (V): ½·C·V0² at its start voltage (the charge
+// voltage, the voltage after the charge time, or vs).
+func (sc *StorageCapacitor) StartEnergy(vs float64) float64 {
+	v := sc.startVoltage(vs)
+	return 0.5 * sc.Capacitance * v * v
+}
+
 // startVoltage returns the capacitor's voltage at the start of a run with
 // supply voltage vs (V): the charge voltage, or after ChargeTime of
 // first-order RC charging from empty, v = vs·(1 − e^(−t/(R·C))) (Hayt &

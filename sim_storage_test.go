@@ -313,6 +313,11 @@ func TestStorageChargeTime(t *testing.T) {
 	if math.Abs(got-want) > 1e-12*want {
 		t.Errorf("start voltage after 150 ms of charging: %.12g V, want %.12g V", got, want)
 	}
+	// A capacitor's stored energy ½·C·V² (Hayt & Kemmerly, ch. 7) at that
+	// start voltage, which the storage command's caution quotes.
+	if e, want := md.Storage.StartEnergy(vs), 0.5*c*want*want; math.Abs(e-want) > 1e-12*want {
+		t.Errorf("energy at the start %.9g J, want %.9g J", e, want)
+	}
 	if back, ok := RechargeTime(r, c, vs, 0, got); !ok || math.Abs(back-tc) > 1e-9*tc {
 		t.Errorf("recharge time from 0 V to %.6g V: %v s (%v), want %g s", got, back, ok, tc)
 	}

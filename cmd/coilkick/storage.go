@@ -142,7 +142,7 @@ func printStorage(w io.Writer, path string, md *coilkick.Model, res *coilkick.St
 	fmt.Fprintf(b, "%d simulations\n", res.Runs)
 	fmt.Fprintf(b, "CAUTION: the shortest pulses and the smallest capacitance have no margin beyond the corners; the recommended pulses add %.3g %% (common practice, no source). Check the answer on the bench at the corners before relying on it.\n", 100*margin)
 	fmt.Fprintf(b, "CAUTION: a storage capacitor keeps its charge (%s here) after the battery is removed: discharge it before touching the driver, and follow local codes and licensed practice.\n",
-		si(0.5*md.Storage.Capacitance*md.Drive.Supply.Voltage*md.Drive.Supply.Voltage, "J"))
+		si(md.Storage.StartEnergy(md.Drive.Supply.Voltage), "J"))
 }
 
 // printPulse prints one pulse answer.
