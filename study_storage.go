@@ -42,22 +42,13 @@ func ESeriesValues(name string, lo, hi float64) []float64 {
 	for d := math.Floor(math.Log10(lo)); d <= math.Ceil(math.Log10(hi)); d++ {
 		for _, m := range s.values {
 			// Round to 3 significant digits so 4.7e-6 is exactly that.
-			v, _ := roundSig(m*math.Pow(10, d), 3)
+			v := roundSignificant(m*math.Pow(10, d), 3)
 			if v >= lo*(1-1e-9) && v <= hi*(1+1e-9) {
 				out = append(out, v)
 			}
 		}
 	}
 	return out
-}
-
-// roundSig rounds v to n significant digits.
-func roundSig(v float64, n int) (float64, bool) {
-	if v == 0 || math.IsInf(v, 0) || math.IsNaN(v) {
-		return v, false
-	}
-	p := math.Pow(10, float64(n)-1-math.Floor(math.Log10(math.Abs(v))))
-	return math.Round(v*p) / p, true
 }
 
 // Storage capacitance range searched (F): the range of
@@ -551,8 +542,7 @@ func CapacitanceText(c float64) string {
 	if c >= 0.1 {
 		unit, v = " F", c
 	}
-	r, _ := roundSig(v, 4)
-	return strconv.FormatFloat(r, 'f', -1, 64) + unit
+	return strconv.FormatFloat(roundSignificant(v, 4), 'f', -1, 64) + unit
 }
 
 // timeText prints a time in ms.
