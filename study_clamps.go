@@ -13,18 +13,7 @@ var E24 = []float64{1.0, 1.1, 1.2, 1.3, 1.5, 1.6, 1.8, 2.0, 2.2, 2.4, 2.7, 3.0,
 	3.3, 3.6, 3.9, 4.3, 4.7, 5.1, 5.6, 6.2, 6.8, 7.5, 8.2, 9.1}
 
 // E24Values returns the E24 values (all decades) in [lo, hi].
-func E24Values(lo, hi float64) []float64 {
-	var out []float64
-	for dec := 1e-1; dec <= 1e4; dec *= 10 {
-		for _, m := range E24 {
-			v := math.Round(m*dec*1e3) / 1e3
-			if v >= lo && v <= hi {
-				out = append(out, v)
-			}
-		}
-	}
-	return out
-}
+func E24Values(lo, hi float64) []float64 { return ESeriesValues("E24", lo, hi) }
 
 // Clamp-comparison assumptions (common practice, no source).
 const (
