@@ -137,6 +137,12 @@ type scaledLoad struct {
 
 func (s scaledLoad) Force(x float64) float64 { return s.k * s.Load.Force(x) }
 
+// Breaks returns the scaled load's break gaps (mech.PiecewiseLoad).
+func (s scaledLoad) Breaks() []float64 { return mech.LoadBreaks(s.Load) }
+
+// ForceOn returns the scaled load's force on a piece (mech.PiecewiseLoad).
+func (s scaledLoad) ForceOn(x, ref float64) float64 { return s.k * mech.LoadForceOn(s.Load, x, ref) }
+
 // apply returns the model and options of a corner.
 func applyCorner(md *Model, c Corner) (*Model, *Options) {
 	v := *md

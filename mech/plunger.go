@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 )
 
 // Spring is a linear return spring that pushes the gap open.
@@ -58,6 +59,58 @@ func (o OrificeLoad) Force(x float64) float64 {
 	return o.Pressure * o.Area * (1 - lift/o.Travel)
 }
 
+// Breaks returns the gaps (m) where the force's slope jumps: where the
+// seal starts to lift and where it is fully open (PiecewiseLoad).
+func (o OrificeLoad) Breaks() []float64 {
+	return []float64{o.GapMax - o.Travel, o.GapMax}
+}
+
+// ForceOn returns the force (N) at gap x of the piece of Force that holds
+// at gap ref (fully open, lifting, or seated), continued beyond the
+// piece's ends: inside the piece it is Force bit for bit.
+func (o OrificeLoad) ForceOn(x, ref float64) float64 {
+	lift := o.GapMax - ref
+	switch {
+	case lift <= 0:
+		return o.Pressure * o.Area
+	case lift >= o.Travel:
+		return 0
+	}
+	return o.Pressure * o.Area * (1 - (o.GapMax-x)/o.Travel)
+}
+
+// PiecewiseLoad is a load whose force is smooth in the gap only piecewise:
+// continuous, but its slope jumps at the break gaps. An integrator that
+// steps over a break loses its order and rejects step after step; it lands
+// on the breaks instead, evaluating the force within a step on one piece,
+// continued smoothly past the piece's ends (ForceOn).
+type PiecewiseLoad interface {
+	Load
+	// Breaks returns the break gaps (m), ascending.
+	Breaks() []float64
+	// ForceOn returns the force (N) at gap x of the piece holding at gap
+	// ref, continued beyond that piece's ends.
+	ForceOn(x, ref float64) float64
+}
+
+// LoadBreaks returns the break gaps (m) of l, ascending, or nil for a load
+// that is smooth in the gap.
+func LoadBreaks(l Load) []float64 {
+	if pl, ok := l.(PiecewiseLoad); ok {
+		return pl.Breaks()
+	}
+	return nil
+}
+
+// LoadForceOn returns the force (N) at gap x of l's piece holding at gap
+// ref (PiecewiseLoad.ForceOn); Force(x) for a smooth load.
+func LoadForceOn(l Load, x, ref float64) float64 {
+	if pl, ok := l.(PiecewiseLoad); ok {
+		return pl.ForceOn(x, ref)
+	}
+	return l.Force(x)
+}
+
 // Loads sums several loads.
 type Loads []Load
 
@@ -66,6 +119,26 @@ func (l Loads) Force(x float64) float64 {
 	f := 0.0
 	for _, ld := range l {
 		f += ld.Force(x)
+	}
+	return f
+}
+
+// Breaks returns the members' break gaps (m), ascending, without repeats.
+func (l Loads) Breaks() []float64 {
+	var b []float64
+	for _, ld := range l {
+		b = append(b, LoadBreaks(ld)...)
+	}
+	slices.Sort(b)
+	return slices.Compact(b)
+}
+
+// ForceOn returns the sum of the members' forces (N) on their pieces
+// holding at gap ref (LoadForceOn).
+func (l Loads) ForceOn(x, ref float64) float64 {
+	f := 0.0
+	for _, ld := range l {
+		f += LoadForceOn(ld, x, ref)
 	}
 	return f
 }
@@ -109,6 +182,32 @@ func (p *Plunger) PassiveForce(x, v float64) float64 {
 	f := p.Spring.Force(x, p.GapMax) - p.Damping*v
 	if p.Load != nil {
 		f += p.Load.Force(x)
+	}
+	return f
+}
+
+// Breaks returns the gaps (m) strictly between the stops where the passive
+// force's slope jumps (its load's breaks), ascending; nil when it is smooth
+// there.
+func (p *Plunger) Breaks() []float64 {
+	if p.Load == nil {
+		return nil
+	}
+	var b []float64
+	for _, x := range LoadBreaks(p.Load) {
+		if x > p.GapMin && x < p.GapMax {
+			b = append(b, x)
+		}
+	}
+	return b
+}
+
+// PassiveForceOn is PassiveForce with the load on its piece holding at gap
+// ref (LoadForceOn), continued beyond that piece's ends.
+func (p *Plunger) PassiveForceOn(x, v, ref float64) float64 {
+	f := p.Spring.Force(x, p.GapMax) - p.Damping*v
+	if p.Load != nil {
+		f += LoadForceOn(p.Load, x, ref)
 	}
 	return f
 }
