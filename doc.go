@@ -47,7 +47,7 @@
 //   - ode*.go — the integrator, which knows nothing of solenoids: ode.go
 //     steps, controls the error, lands on time events and locates state
 //     events (guards) on the dense output; ode_methods.go holds the
-//     Dormand–Prince 5(4) and RODAS4 methods.
+//     Dormand–Prince 5(4) and Rosenbrock (Rodas5P) methods.
 //   - assess*.go — metrics and assessment. assess_metrics.go defines every
 //     figure of a run (Metrics; each field's comment is its definition);
 //     assess.go checks them against the ratings and requirements and

@@ -16,9 +16,11 @@ import (
 //     Runge–Kutta formulae", J. Comp. Appl. Math. 6, 1980) with the dense
 //     output of Hairer, Nørsett & Wanner, Solving ODEs I, 2nd ed., II.6
 //     (DOPRI5's CONTD5) for non-stiff systems: the default.
-//   - RODAS4, the stiffly accurate L-stable Rosenbrock method of order
-//     4(3) of Hairer & Wanner (Solving ODEs II, IV.7), with its own dense
-//     output and a finite-difference Jacobian, while the system declares
+//   - Rodas5P, the stiffly accurate L-stable Rosenbrock method of order
+//     5(4) of G. Steinebach (BIT Numer. Math. 63, 2023), in the form of
+//     Hairer & Wanner's code RODAS (Solving ODEs II, IV.7), with its own
+//     order-4 dense output, a finite-difference Jacobian and the error
+//     estimate filtered through (I − γh·J)⁻¹, while the system declares
 //     its present modes stiff (an RC snubber, or the switch capacitance
 //     discharging through the eddy-current turn, against millisecond
 //     motion), or once DOPRI5's stiffness test fires (odeLoop). The choice
@@ -193,7 +195,7 @@ func newODE(sys odeSystem, n int, set odeSettings) *odeIntegrator {
 		return math.Sqrt(s / float64(active))
 	}
 	in.explicit = newDopri(n, in.set.NJac, counted, in.norm)
-	in.implicit = newRodas(n, in.set.NJac, counted, in.norm)
+	in.implicit = newRodas(rodas5p, n, in.set.NJac, counted, in.norm, set.Scale)
 	in.m = in.explicit
 	return in
 }
@@ -556,8 +558,9 @@ func (s *odeLoop) afterLanding(hNatural float64) (done bool, err error) {
 		s.guardsAtStart()
 		return false, nil
 	}
-	if q1 := in.choose(); q1 != s.q {
-		s.q = q1
+	m0 := in.m
+	in.choose()
+	if in.m != m0 {
 		s.h = s.restart()
 	} else {
 		in.enterPiece(s.y)

@@ -127,17 +127,19 @@ func (m *dopri) denseN(th float64, out []float64, n int) {
 	}
 }
 
-// rodas is RODAS4, the stiffly accurate, L-stable Rosenbrock method of
-// order 4 with an embedded order-3 error estimate and an order-3 dense
-// output, of Hairer & Wanner (Solving Ordinary Differential Equations II,
-// 2nd ed., IV.7; the coefficients of their code RODAS), for autonomous
-// systems (time dependence enters only through events). The Jacobian is
-// taken by forward differences on the first nj components (the rest are
-// quadratures that do not feed back). Stage form:
+// rodas is a stiffly accurate, L-stable Rosenbrock method with an
+// embedded error estimate and a continuous extension, in the form of Hairer
+// & Wanner's code RODAS (Solving Ordinary Differential Equations II, 2nd
+// ed., IV.7), for autonomous systems (time dependence enters only through
+// events). Its tableau (rosenbrockTableau) is Rodas5P. The
+// Jacobian is taken by forward differences on the first nj components
+// (the rest are quadratures that do not feed back). Stage form:
 //
-//	(1/(γh) − J)·k_i = f(y0 + Σ_j a_ij·k_j) + Σ_j (c_ij/h)·k_j,
-//	y1 = y0 + Σ_j a_5j·k_j + k5 + k6, error estimate k6.
+//	(1/(γh) − J)·k_i = f(Y_i) + Σ_j (c_ij/h)·k_j,
+//	Y_i = y0 + Σ_j a_ij·k_j for the stages with a row of a, then
+//	Y_i = Y_i−1 + k_i−1 (stiff accuracy), y1 = Y_s + k_s, error estimate k_s.
 type rodas struct {
+	tab           *rosenbrockTableau
 	f             func(t float64, y, dy []float64)
 	norm          func(err, y0, y1 []float64) float64
 	n, nj         int
@@ -145,13 +147,14 @@ type rodas struct {
 	w             []float64 // d×d row-major, d = len(cols): W on the taken columns
 	piv           []int
 	xb            []float64 // scratch: the taken components of a stage's right-hand side
-	k             [6][]float64
-	fa, yt, rhs   []float64
+	k             [][]float64
+	fa, yt        []float64
 	y0c, y1c, f1v []float64
-	cont3, cont4  []float64
-	fac           float64 // 1/(γh) of the last attempt
-	cols          []int   // Jacobian columns taken (the others are zero)
-	all           []int   // 0 … nj−1
+	cont          [][]float64 // the dense output's coefficients, one per row of tab.d
+	fac           float64     // 1/(γh) of the last attempt
+	cols          []int       // Jacobian columns taken (the others are zero)
+	typical       []float64   // each component's typical size, for the finite differences
+	all           []int       // 0 … nj−1
 	// jacOK: jac holds the Jacobian at (jacT, y0c) with f there f0c (kept
 	// after a rejected step, whose retry starts from the same point).
 	jacOK bool
@@ -159,45 +162,85 @@ type rodas struct {
 	f0c   []float64
 }
 
+// rosenbrockTableau is a stiffly accurate Rosenbrock method in RODAS form:
+// the stages 1 … len(a) take their arguments from the rows of a (a[i−1]
+// the weights of k_0 … k_i−1 for stage i), the later ones chain; c[i−1]
+// are stage i's weights of k_j/h; the continuous extension is
+// y(θ) = (1−θ)·y0 + θ·(y1 + (1−θ)·(D_1 + θ·(D_2 + θ·(…)))) with D_r =
+// Σ_j d[r−1][j]·k_j.
+type rosenbrockTableau struct {
+	name  string
+	gamma float64
+	a, c  [][]float64
+	d     [][]float64
+	order int // of the error estimate's lower formula + 1
+}
+
+// stages returns the number of stages.
+func (tb *rosenbrockTableau) stages() int { return len(tb.c) + 1 }
+
+// rodas5p is Rodas5P (G. Steinebach, "Construction of Rosenbrock–Wanner
+// method Rodas5P and numerical benchmarks within the Julia Differential
+// Equations package", BIT Numer. Math. 63, 27, 2023): eight stages, order
+// 5(4), a continuous extension of order 4.
+var rodas5p = &rosenbrockTableau{
+	name:  "Rodas5P (Steinebach)",
+	gamma: 0.21193756319429014,
+	a: [][]float64{
+		{3.0},
+		{2.849394379747939, 0.45842242204463923},
+		{-6.954028509809101, 2.489845061869568, -10.358996098473584},
+		{2.8029986275628964, 0.5072464736228206, -0.3988312541770524, -0.04721187230404641},
+		{-7.502846399306121, 2.561846144803919, -11.627539656261098, -0.18268767659942256, 0.030198172008377946},
+	},
+	c: [][]float64{
+		{-14.155112264123755},
+		{-17.97296035885952, -2.859693295451294},
+		{147.12150275711716, -1.41221402718213, 71.68940251302358},
+		{165.43517024871676, -0.4592823456491126, 42.90938336958603, -5.961986721573306},
+		{24.854864614690072, -3.0009227002832186, 47.4931110020768, 5.5814197821558125, -0.6610691825249471},
+		{30.91273214028599, -3.1208243349937974, 77.79954646070892, 34.28646028294783, -19.097331116725623, -28.087943162872662},
+		{37.80277123390563, -3.2571969029072276, 112.26918849496327, 66.9347231244047, -40.06618937091002, -54.66780262877968, -9.48861652309627},
+	},
+	d: [][]float64{
+		{25.948786856663858, -2.5579724845846235, 10.433815404888879, -2.3679251022685204, 0.524948541321073, 1.1241088310450404, 0.4272876194431874, -0.17202221070155493},
+		{-9.91568850695171, -0.9689944594115154, 3.0438037242978453, -24.495224566215796, 20.176138334709044, 15.98066361424651, -6.789040303419874, -6.710236069923372},
+		{11.419903575922262, 2.8879645146136994, 72.92137995996029, 80.12511834622643, -52.072871366152654, -59.78993625266729, -0.15582684282751913, 4.883087185713722},
+	},
+	order: 5,
+}
+
 // setColumns sets the Jacobian columns to take (nil: all nj).
+// Only the taken columns of jac are ever read (factorAndStages, solve),
+// and jacobian writes them whole, so the others need no clearing.
 func (m *rodas) setColumns(cols []int) {
 	if cols == nil {
 		cols = m.all
 	}
 	m.cols = cols
 	m.jacOK = false
-	for i := range m.jac {
-		m.jac[i] = 0
-	}
 }
 
-// RODAS4 coefficients (Hairer & Wanner, code RODAS, METH = 1).
-const (
-	roGamma = 0.25
-
-	roA21                      = 1.544
-	roA31, roA32               = 0.9466785280815826, 0.2557011698983284
-	roA41, roA42, roA43        = 3.314825187068521, 2.896124015972201, 0.9986419139977817
-	roA51, roA52, roA53, roA54 = 1.221224509226641, 6.019134481288629, 12.53708332932087, -0.6878860361058950
-
-	roC21                      = -5.6688
-	roC31, roC32               = -2.430093356833875, -0.2063599157091915
-	roC41, roC42, roC43        = -0.1073529058151375, -9.594562251023355, -20.47028614809616
-	roC51, roC52, roC53, roC54 = 7.496443313967647, -10.24680431464352, -33.99990352819905, 11.70890893206160
-	roC61, roC62, roC63        = 8.083246795921522, -7.981132988064893, -31.52159432874371
-	roC64, roC65               = 16.31930543123136, -6.058818238834054
-
-	// dense output
-	roD21, roD22, roD23, roD24, roD25 = 10.12623508344586, -7.487995877610167, -34.80091861555747, -7.992771707568823, 1.025137723295662
-	roD31, roD32, roD33, roD34, roD35 = -0.6762803392801253, 6.087714651680015, 16.43084320892478, 24.76722511418386, -6.594389125716872
-)
-
-func newRodas(n, nj int, f func(float64, []float64, []float64), norm func(err, y0, y1 []float64) float64) *rodas {
+// newRodas returns the method of tableau tab for n components, the first
+// nj fed back, with right-hand side f, error norm norm, and each
+// component's typical size (its error scale; 1e-8 where not positive).
+func newRodas(tab *rosenbrockTableau, n, nj int, f func(float64, []float64, []float64), norm func(err, y0, y1 []float64) float64, typical []float64) *rodas {
 	v := func() []float64 { return make([]float64, n) }
-	m := &rodas{f: f, norm: norm, n: n, nj: nj, jac: make([]float64, n*n), w: make([]float64, n*n),
-		piv: make([]int, n), xb: v(), f0c: v(), fa: v(), yt: v(), rhs: v(), y0c: v(), y1c: v(), f1v: v(), cont3: v(), cont4: v()}
+	m := &rodas{tab: tab, f: f, norm: norm, n: n, nj: nj, jac: make([]float64, n*n), w: make([]float64, n*n),
+		piv: make([]int, n), xb: v(), f0c: v(), fa: v(), yt: v(), y0c: v(), y1c: v(), f1v: v(), typical: v()}
+	for i := range m.typical {
+		m.typical[i] = 1e-8
+		if i < len(typical) && typical[i] > 0 {
+			m.typical[i] = typical[i]
+		}
+	}
+	m.k = make([][]float64, tab.stages())
 	for i := range m.k {
 		m.k[i] = v()
+	}
+	m.cont = make([][]float64, len(tab.d))
+	for i := range m.cont {
+		m.cont[i] = v()
 	}
 	for j := 0; j < nj; j++ {
 		m.all = append(m.all, j)
@@ -206,12 +249,12 @@ func newRodas(n, nj int, f func(float64, []float64, []float64), norm func(err, y
 	return m
 }
 
-func (m *rodas) order() int { return 4 }
+func (m *rodas) order() int { return m.tab.order }
 
 func (m *rodas) f1() []float64 { return m.f1v }
 
 // stage solves (1/(γh) − J)·k = f(yt) + Σ_j c_j·k_j/h into k[s].
-func (m *rodas) stage(t, h float64, s int, c ...float64) {
+func (m *rodas) stage(t, h float64, s int, c []float64) {
 	m.f(t, m.yt, m.fa)
 	ks := m.k[s]
 	for i := range ks {
@@ -268,7 +311,18 @@ func (m *rodas) attempt(t, h float64, y, f0, y1 []float64) float64 {
 	if !m.factorAndStages(t, h, y, f0, y1) {
 		return math.Inf(1)
 	}
-	errNorm := m.norm(m.k[5], y, y1)
+	// The error estimate filtered through (I − γh·J)⁻¹ = W⁻¹/(γh)
+	// (Shampine's filter; Hairer & Wanner, Solving ODEs II, IV.8, for
+	// RADAU5): unchanged on the slow components, it damps the estimate's
+	// fast ones, which the embedded formula does not damp as the method
+	// does, so that a fast mode's decay at a step's start (after an event)
+	// is not taken for an error.
+	errv := m.fa
+	for i, e := range m.k[len(m.k)-1] {
+		errv[i] = e * m.fac
+	}
+	m.solve(errv)
+	errNorm := m.norm(errv, y, y1)
 	if errNorm <= 1 {
 		m.f(t+h, y1, m.f1v) // f at the new point: the next step's f0
 	}
@@ -276,11 +330,13 @@ func (m *rodas) attempt(t, h float64, y, f0, y1 []float64) float64 {
 }
 
 // jacobian sets the taken columns of jac by forward differences at (t, y)
-// with f(t, y) = f0.
+// with f(t, y) = f0: component j is moved by √ε·max(|y_j|, its typical
+// size), so that a component at or near zero is not moved by a rounding
+// error (a garbage column costs the method its order).
 func (m *rodas) jacobian(t float64, y, f0 []float64) {
 	n := m.n
 	for _, j := range m.cols {
-		dj := math.Sqrt(2.2e-16) * math.Max(math.Abs(y[j]), 1e-8)
+		dj := math.Sqrt(2.2e-16) * math.Max(math.Abs(y[j]), m.typical[j])
 		if y[j] < 0 {
 			dj = -dj
 		}
@@ -294,15 +350,15 @@ func (m *rodas) jacobian(t float64, y, f0 []float64) {
 	}
 }
 
-// factorAndStages factors W for the step h and computes the six stages,
-// y1 and the dense output's coefficients (k[5] is the error estimate); it
-// reports false when W is singular.
+// factorAndStages factors W for the step h and computes the stages, y1
+// and the dense output's coefficients (the last stage is the error
+// estimate); it reports false when W is singular.
 func (m *rodas) factorAndStages(t, h float64, y, f0, y1 []float64) bool {
 	n := m.n
 	// W = 1/(γh)·I − J is block lower triangular: the quadratures (rows
 	// and columns from nj on) do not feed back, so only the nj×nj block
 	// is factored, and of it only the taken columns (see solve).
-	fac := 1 / (roGamma * h)
+	fac := 1 / (m.tab.gamma * h)
 	m.fac = fac
 	d := len(m.cols)
 	for a, i := range m.cols {
@@ -317,43 +373,53 @@ func (m *rodas) factorAndStages(t, h float64, y, f0, y1 []float64) bool {
 	if !luFactor(m.w, m.piv, d) {
 		return false
 	}
-	k := &m.k
+	k := m.k
 	copy(k[0], f0)
 	m.solve(k[0])
 	// The stages' arguments: f reads only the fed-back components, except
-	// the fifth's, which y1 continues.
-	nj := m.nj
-	for i := range nj {
-		m.yt[i] = y[i] + roA21*k[0][i]
+	// the last row of a's, which the chained stages and y1 continue.
+	tab := m.tab
+	for s := 1; s < len(k); s++ {
+		if s <= len(tab.a) {
+			row := tab.a[s-1]
+			nArg := m.nj
+			if s == len(tab.a) {
+				nArg = n
+			}
+			for i := range nArg {
+				v := y[i]
+				for j, aj := range row {
+					v += aj * k[j][i]
+				}
+				m.yt[i] = v
+			}
+		} else {
+			for i := range n {
+				m.yt[i] += k[s-1][i]
+			}
+		}
+		m.stage(t, h, s, tab.c[s-1])
 	}
-	m.stage(t, h, 1, roC21)
-	for i := range nj {
-		m.yt[i] = y[i] + roA31*k[0][i] + roA32*k[1][i]
+	last := k[len(k)-1]
+	for i := range n {
+		y1[i] = m.yt[i] + last[i]
 	}
-	m.stage(t, h, 2, roC31, roC32)
-	for i := range nj {
-		m.yt[i] = y[i] + roA41*k[0][i] + roA42*k[1][i] + roA43*k[2][i]
-	}
-	m.stage(t, h, 3, roC41, roC42, roC43)
-	for i := range y {
-		m.yt[i] = y[i] + roA51*k[0][i] + roA52*k[1][i] + roA53*k[2][i] + roA54*k[3][i]
-	}
-	m.stage(t, h, 4, roC51, roC52, roC53, roC54)
-	for i := range y {
-		m.yt[i] += k[4][i]
-	}
-	m.stage(t, h, 5, roC61, roC62, roC63, roC64, roC65)
-	for i := range y {
-		y1[i] = m.yt[i] + k[5][i]
-		m.cont3[i] = roD21*k[0][i] + roD22*k[1][i] + roD23*k[2][i] + roD24*k[3][i] + roD25*k[4][i]
-		m.cont4[i] = roD31*k[0][i] + roD32*k[1][i] + roD33*k[2][i] + roD34*k[3][i] + roD35*k[4][i]
+	for r, row := range tab.d {
+		cr := m.cont[r]
+		for i := range n {
+			v := 0.0
+			for j, dj := range row {
+				v += dj * k[j][i]
+			}
+			cr[i] = v
+		}
 	}
 	copy(m.y1c, y1)
 	return true
 }
 
-// dense is the order-3 continuous extension of RODAS:
-// y(θ) = (1−θ)·y0 + θ·(y1 + (1−θ)·(d2 + θ·d3)).
+// dense is the continuous extension: y(θ) = (1−θ)·y0 + θ·(y1 + (1−θ)·
+// (D_1 + θ·(D_2 + …))).
 func (m *rodas) dense(th float64, out []float64) {
 	m.denseN(th, out, len(out))
 }
@@ -363,8 +429,13 @@ func (m *rodas) denseFed(th float64, out []float64) { m.denseN(th, out, m.nj) }
 // denseN writes the first n components of the interpolant at θ.
 func (m *rodas) denseN(th float64, out []float64, n int) {
 	t1 := 1 - th
+	last := len(m.cont) - 1
 	for i := range n {
-		out[i] = t1*m.y0c[i] + th*(m.y1c[i]+t1*(m.cont3[i]+th*m.cont4[i]))
+		p := m.cont[last][i]
+		for r := last - 1; r >= 0; r-- {
+			p = m.cont[r][i] + th*p
+		}
+		out[i] = t1*m.y0c[i] + th*(m.y1c[i]+t1*p)
 	}
 }
 

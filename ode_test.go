@@ -307,10 +307,10 @@ func TestRodasKeepsJacobianForRetry(t *testing.T) {
 		e := m.attempt(0, h, y, f0, y1)
 		return y1, e, evals - e0
 	}
-	m := newRodas(3, 2, f, norm)
+	m := newRodas(rodas5p, 3, 2, f, norm, nil)
 	_, _, first := attempt(m, 1e-2)
 	y1, e1, retry := attempt(m, 1e-3)
-	fresh := newRodas(3, 2, f, norm)
+	fresh := newRodas(rodas5p, 3, 2, f, norm, nil)
 	y1f, e1f, _ := attempt(fresh, 1e-3)
 	if first-retry != 2 {
 		t.Errorf("evaluations: %d for the first attempt, %d for the retry; want 2 (the Jacobian's columns) fewer", first, retry)
@@ -329,4 +329,184 @@ func TestRodasKeepsJacobianForRetry(t *testing.T) {
 	if _, _, moved := attempt(m, 1e-3); moved != retry+2 {
 		t.Errorf("from another state: %d evaluations, want %d", moved, retry+2)
 	}
+}
+
+// rodas4 is RODAS4 (Hairer & Wanner, Solving ODEs II, IV.7, the
+// coefficients of their code RODAS, METH = 1): six stages, order 4(3), a
+// continuous extension of order 3. The integrator used it before Rodas5P;
+// here it checks the stage machinery on a second published tableau.
+var rodas4 = &rosenbrockTableau{
+	name:  "RODAS4 (Hairer–Wanner)",
+	gamma: 0.25,
+	a: [][]float64{
+		{1.544},
+		{0.9466785280815826, 0.2557011698983284},
+		{3.314825187068521, 2.896124015972201, 0.9986419139977817},
+		{1.221224509226641, 6.019134481288629, 12.53708332932087, -0.6878860361058950},
+	},
+	c: [][]float64{
+		{-5.6688},
+		{-2.430093356833875, -0.2063599157091915},
+		{-0.1073529058151375, -9.594562251023355, -20.47028614809616},
+		{7.496443313967647, -10.24680431464352, -33.99990352819905, 11.70890893206160},
+		{8.083246795921522, -7.981132988064893, -31.52159432874371, 16.31930543123136, -6.058818238834054},
+	},
+	d: [][]float64{
+		{10.12623508344586, -7.487995877610167, -34.80091861555747, -7.992771707568823, 1.025137723295662},
+		{-0.6762803392801253, 6.087714651680015, 16.43084320892478, 24.76722511418386, -6.594389125716872},
+	},
+	order: 4,
+}
+
+// hopf is the Hopf normal form y1' = −y2 + y1·(1 − r²), y2' = y1 + y2·(1 −
+// r²), r² = y1² + y2²: a nonlinear coupled system with the closed form
+// r(t) = 1/√(1 + (1/r0² − 1)·e^(−2t)), θ(t) = θ0 + t (polar coordinates:
+// r' = r·(1 − r²), θ' = 1; Strogatz, Nonlinear Dynamics and Chaos, 8.2).
+func hopf(_ float64, y, dy []float64) {
+	q := 1 - y[0]*y[0] - y[1]*y[1]
+	dy[0] = -y[1] + y[0]*q
+	dy[1] = y[0] + y[1]*q
+}
+
+// hopfExact returns the closed form at time t from y(0) = (r0, 0).
+func hopfExact(r0, t float64) [2]float64 {
+	r := 1 / math.Sqrt(1+(1/(r0*r0)-1)*math.Exp(-2*t))
+	return [2]float64{r * math.Cos(t), r * math.Sin(t)}
+}
+
+// TestRosenbrockOrders: one step from the exact state, on a nonlinear
+// system with a closed form, the local errors of the step, of its embedded
+// estimate and of its continuous extension fall with h as the orders the
+// methods' authors give: RODAS4 order 4(3), continuous extension 3 (Hairer
+// & Wanner, Solving ODEs II, IV.7); Rodas5P order 5(4), continuous
+// extension 4 (Steinebach 2023). A local error of order p is O(h^(p+1)):
+// halving h divides it by 2^(p+1). The stage machinery (rodas) and the
+// tableaus are checked together: a wrong coefficient loses an order.
+func TestRosenbrockOrders(t *testing.T) {
+	t.Parallel()
+	const r0 = 0.5
+	y0 := []float64{r0, 0}
+	f0 := make([]float64, 2)
+	hopf(0, y0, f0)
+	type localErrors struct{ step, estimate, dense float64 }
+	measure := func(tab *rosenbrockTableau, h float64) localErrors {
+		m := newRodas(tab, 2, 2, hopf, func(e, _, _ []float64) float64 { return math.Hypot(e[0], e[1]) }, []float64{1, 1})
+		y1 := make([]float64, 2)
+		est := m.attempt(0, h, y0, f0, y1)
+		ex := hopfExact(r0, h)
+		mid := make([]float64, 2)
+		m.dense(0.4, mid)
+		exMid := hopfExact(r0, 0.4*h)
+		return localErrors{math.Hypot(y1[0]-ex[0], y1[1]-ex[1]), est, math.Hypot(mid[0]-exMid[0], mid[1]-exMid[1])}
+	}
+	for _, c := range []struct {
+		tab                   *rosenbrockTableau
+		step, estimate, dense int // orders: local error O(h^(order+1)), the estimate's O(h^order)
+	}{
+		{rodas4, 4, 4, 3},
+		{rodas5p, 5, 5, 4},
+	} {
+		// The observed exponent between h = 0.02 and 0.01. The estimate
+		// is the one attempt returns, filtered through (I − γh·J)⁻¹: with
+		// J's eigenvalues of size 1 and γh ≤ 0.005 that is nearly the
+		// identity and keeps the order.
+		a, b := measure(c.tab, 0.02), measure(c.tab, 0.01)
+		for _, o := range []struct {
+			what      string
+			big, half float64
+			want      int
+		}{
+			{"step", a.step, b.step, c.step + 1},
+			{"error estimate", a.estimate, b.estimate, c.estimate},
+			{"continuous extension", a.dense, b.dense, c.dense + 1},
+		} {
+			got := math.Log2(o.big / o.half)
+			t.Logf("%s: %s local error %.3g at h = 0.02, %.3g at 0.01: h^%.2f", c.tab.name, o.what, o.big, o.half, got)
+			if math.Abs(got-float64(o.want)) > 0.3 {
+				t.Errorf("%s: %s local error falls as h^%.2f, want h^%d (%.3g at h = 0.02, %.3g at 0.01)", c.tab.name, o.what, got, o.want, o.big, o.half)
+			}
+		}
+	}
+	// L-stability: on y' = λ·y with h·λ = −1e8 one step leaves y·R(−1e8),
+	// R(∞) = 0 for these stiffly accurate methods.
+	lin := func(_ float64, y, dy []float64) { dy[0] = -1e8 * y[0] }
+	for _, tab := range []*rosenbrockTableau{rodas4, rodas5p} {
+		m := newRodas(tab, 1, 1, lin, func(e, _, _ []float64) float64 { return math.Abs(e[0]) }, nil)
+		y1 := []float64{0}
+		f := []float64{-1e8}
+		if m.attempt(0, 1, []float64{1}, f, y1); !(math.Abs(y1[0]) < 1e-6) {
+			t.Errorf("%s: y' = −1e8·y, one step of 1 s from 1 leaves %g, want about 0 (L-stable)", tab.name, y1[0])
+		}
+	}
+}
+
+// switchSys is y' = 0 until a command at t = 1, then y' = −k·(y − 1), a
+// fast decay that the system declares stiff from the command on; the run
+// ends at t = 2. It records the solution at probe times from the dense
+// output.
+type switchSys struct {
+	on     bool
+	probes []float64
+	got    []float64
+	buf    []float64
+}
+
+func (s *switchSys) deriv(_ float64, y, dy []float64) {
+	dy[0] = 0
+	if s.on {
+		dy[0] = -1e4 * (y[0] - 1)
+	}
+}
+func (s *switchSys) guards(float64, []float64, []float64) int { return 0 }
+func (s *switchSys) nextTimeEvent(t float64) float64 {
+	switch {
+	case t < 1:
+		return 1
+	case t < 2:
+		return 2
+	}
+	return math.Inf(1)
+}
+func (s *switchSys) event(t float64, _ []float64, _ int) (bool, error) {
+	s.on = true
+	return t >= 2, nil
+}
+func (s *switchSys) stiff() bool    { return s.on }
+func (s *switchSys) dynamic() []int { return nil }
+func (s *switchSys) accepted(v *stepView) {
+	for k, tp := range s.probes {
+		if tp > v.t0 && tp <= v.t1 {
+			v.interp(tp, s.buf)
+			s.got[k] = s.buf[0]
+		}
+	}
+}
+
+// TestODEMethodChangeAtCommandRestarts: when a command moves the run to
+// the other method, the integrator starts afresh with a new first step,
+// even when both methods' step-size exponents are equal (DOPRI5 and
+// Rodas5P are both of order 5): continuing with the step the explicit
+// method had grown to (the maximum, 0.5 s, on y' = 0) would try to step
+// over the 0.1 ms decay that starts at the command, and be rejected until
+// the step is small enough. Closed form: y = 1 − e^(−k·(t−1)).
+func TestODEMethodChangeAtCommandRestarts(t *testing.T) {
+	t.Parallel()
+	s := &switchSys{probes: []float64{1 + 5e-5, 1 + 2e-4, 1 + 1e-3}, buf: make([]float64, 1)}
+	s.got = make([]float64, len(s.probes))
+	in := newODE(s, 1, odeSettings{RelTol: 1e-8, Scale: []float64{1}, MaxSteps: 1e5, MaxStep: 0.5})
+	if err := in.run(0, []float64{0}); err != nil {
+		t.Fatal(err)
+	}
+	for k, tp := range s.probes {
+		want := 1 - math.Exp(-1e4*(tp-1))
+		if math.Abs(s.got[k]-want) > 1e-6 {
+			t.Errorf("y(%g) = %.9g, want %.9g (steps %d)", tp, s.got[k], want, in.stats.Steps)
+		}
+	}
+	// Continuing with 0.5 s, the first attempts after the command are
+	// rejected until the step is small enough: 7 rejections against 2.
+	if in.stats.Rejected > 3 {
+		t.Errorf("%d rejected steps, want at most 3: the run did not start afresh at the change of method", in.stats.Rejected)
+	}
+	t.Logf("%d steps, %d rejected", in.stats.Steps, in.stats.Rejected)
 }

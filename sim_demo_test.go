@@ -305,11 +305,15 @@ func BenchmarkBuildGeometryScenario(b *testing.B) {
 }
 
 // TestDosingDemoStepBudget: the geometry demo's flux-linkage table has a
-// force whose gap slope jumps at each of its 60 gap nodes; the run lands
-// on each node it crosses (system.pieceGuards) instead of stepping over
-// the kink. Steps are machine-independent: 587 accepted and 89 rejected
-// with the landing, 782 and 399 without. The budgets leave about 10 %
-// (accepted) and 40 % (rejected) for changes elsewhere in the run.
+// force whose gap slope jumps at each of its 60 gap nodes, and its orifice
+// load's slope jumps where the seal starts to lift; the run lands on each
+// of those it crosses (system.pieceGuards) instead of stepping over the
+// kink. Its switch node (200 pF through the 400 Ω eddy turn, 80 ns) makes
+// the release stiff: Rodas5P there, its error estimate filtered. Steps
+// are machine-independent. Measured: 311 accepted, 42 rejected, 3 009
+// evaluations; with RODAS4 in place of Rodas5P 587, 89 and 5 533; without
+// the filter 336 and 94; without landing on the load's break 333 and 88.
+// The budgets leave about 10 % for changes elsewhere in the run.
 func TestDosingDemoStepBudget(t *testing.T) {
 	t.Parallel()
 	md, err := LoadModel("scenarios/dosing-valve-geometry.yaml")
@@ -320,8 +324,8 @@ func TestDosingDemoStepBudget(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if st := res.Stats; st.Steps > 650 || st.Rejected > 125 {
-		t.Errorf("geometry demo: %d steps, %d rejected; want at most 650 and 125", st.Steps, st.Rejected)
+	if st := res.Stats; st.Steps > 345 || st.Rejected > 60 || st.Evaluations > 3300 {
+		t.Errorf("geometry demo: %d steps, %d rejected, %d evaluations; want at most 345, 60 and 3 300", st.Steps, st.Rejected, st.Evaluations)
 	}
 }
 

@@ -195,6 +195,18 @@ func TestParasiticsEnergyBalance(t *testing.T) {
 // reference.
 func TestDemoFiguresUnchanged(t *testing.T) {
 	t.Parallel()
+	// The peak-and-hold demo's 1.5 A peak phase chops at a fixed 20 kHz
+	// with a duty of about 0.77: above one half, peak-current control
+	// without slope compensation is unstable (the subharmonic
+	// instability of current-programmed control, e.g. Erickson &
+	// Maksimović, Fundamentals of Power Electronics, 2nd ed., the chapter
+	// on current-programmed control; from memory), so the pattern of
+	// long and short periods depends on the rounding of every step and the
+	// whole-run energies with it. Measured with Rodas5P, coil loss at
+	// tolerance 1e-8 … 1e-12: 2.59562, 2.59549, 2.59577, 2.59526, 2.59593
+	// J — a spread of 2.6e-4 that no tolerance narrows. They are checked
+	// within 1e-3 of the converged value instead.
+	chaotic := map[string]bool{"peak-hold-valve coil_loss_J": true, "peak-hold-valve supply_energy_J": true}
 	files, _ := filepath.Glob("testdata/demo-figures/*.json")
 	if len(files) < 8 {
 		t.Fatalf("%d recorded demos", len(files))
@@ -254,6 +266,14 @@ func TestDemoFiguresUnchanged(t *testing.T) {
 				scale = math.Max(math.Abs(b), md.Drive.Supply.Voltage)
 			case strings.HasSuffix(k, "_s") || strings.HasSuffix(k, "_m_per_s") || strings.HasSuffix(k, "_A"):
 				scale = math.Max(math.Abs(b), 1e-12)
+			}
+			if chaotic[name+" "+k] {
+				// Not determined to 1e-6 by any tolerance (see chaotic):
+				// within 1e-3 of the converged value.
+				if !(math.Abs(v-c) <= 1e-3*math.Abs(c)) {
+					t.Errorf("%s: %s %.12g, converged %.12g", name, k, v, c)
+				}
+				continue
 			}
 			if d := math.Abs(v - b); d > 1e-6*scale && math.Abs(v-c) > math.Abs(b-c) {
 				t.Errorf("%s: %s %.12g, before %.12g (converged %.12g)", name, k, v, b, c)

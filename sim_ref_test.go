@@ -186,18 +186,34 @@ func TestSnubberRLCResponse(t *testing.T) {
 			tEnd = e.Time
 		}
 	}
+	// The run's own steps (the trace) and 50 instants between them (the
+	// dense output, Options.SampleTimes) are compared.
+	times := make([]float64, 50)
+	for k := range times {
+		times[k] = tOff + (tEnd-tOff)*(float64(k)+0.5)/float64(len(times))
+	}
+	sampled, err := Simulate(md, &Options{SampleTimes: times})
+	if err != nil {
+		t.Fatal(err)
+	}
 	const tol = 1e-6 // of I0
 	worst, n := 0.0, 0
-	for k, tt := range res.Trace.Time {
+	check := func(tt, got float64) {
 		s := tt - tOff
 		if s <= 0 || tt >= tEnd {
-			continue
+			return
 		}
 		want := math.Exp(-alpha*s) * (i0*math.Cos(wd*s) + b*math.Sin(wd*s))
-		worst = math.Max(worst, math.Abs(res.Trace.Current[k]-want)/i0)
+		worst = math.Max(worst, math.Abs(got-want)/i0)
 		n++
 	}
-	if n < 20 || worst > tol {
+	for k, tt := range res.Trace.Time {
+		check(tt, res.Trace.Current[k])
+	}
+	for k, tt := range times {
+		check(tt, sampled.Samples[k])
+	}
+	if n < 60 || worst > tol {
 		t.Errorf("snubber RLC ring: worst error %.3g of I0 over %d samples, want <= %g", worst, n, tol)
 	}
 	if r := res.Metrics.EnergyResidualRel(); r > 1e-4 {

@@ -77,9 +77,12 @@ func TestReversePulseDelay(t *testing.T) {
 }
 
 // TestReversePulseDelayZeroUnchanged: a delay of 0 s is the reverse drive
-// as it was before the key, bit for bit: the run with the key equals the
-// run without it, and both equal figures printed (%.17g) by the code of
-// commit ef7a613, before the key existed.
+// as it was before the key: the run with the key equals the run without
+// it bit for bit, and both agree with figures printed (%.17g) by the code
+// of commit ef7a613, before the key existed — within 1e-9 relative, since
+// the integrator has changed since (Rodas5P in place of RODAS4, the load's
+// breaks landed on); the energy residual, an integration error, within
+// 1e-7 J of it (1e-6 of the 41 mJ returned).
 func TestReversePulseDelayZeroUnchanged(t *testing.T) {
 	t.Parallel()
 	a, err := Simulate(bridgeModel(t, ""), nil)
@@ -94,10 +97,16 @@ func TestReversePulseDelayZeroUnchanged(t *testing.T) {
 		t.Errorf("a zero delay changed the run:\n%+v\n%+v", a.Metrics, b.Metrics)
 	}
 	m := b.Metrics
-	got := []float64{m.Release.Seconds, m.Drop.Seconds, m.ClampConduction.Seconds, m.EnergyReturned, m.EnergyResidual, float64(len(b.Events))}
-	want := []float64{0.0027657463134013183, 0.012353228953940254, 0.0039307874627025619, 0.041050134252921262, -1.1085193030169194e-07, 14}
-	if !reflect.DeepEqual(got, want) {
-		t.Errorf("release, drop, clamp conduction, returned energy, residual, events = %.17g, want %.17g (before the key)", got, want)
+	got := []float64{m.Release.Seconds, m.Drop.Seconds, m.ClampConduction.Seconds, m.EnergyReturned, float64(len(b.Events))}
+	want := []float64{0.0027657463134013183, 0.012353228953940254, 0.0039307874627025619, 0.041050134252921262, 14}
+	for k := range got {
+		if !(math.Abs(got[k]-want[k]) <= 1e-9*math.Abs(want[k])) {
+			t.Errorf("release, drop, clamp conduction, returned energy, events = %.17g, want %.17g (before the key)", got, want)
+			break
+		}
+	}
+	if r := m.EnergyResidual; !(math.Abs(r-(-1.1085193030169194e-07)) <= 1e-7) {
+		t.Errorf("energy residual %.3g J, before the key -1.11e-07 J", r)
 	}
 }
 

@@ -894,6 +894,9 @@ func newRun(md *Model, opt *Options, tol float64) (*run, []float64) {
 	if md.Thermal != nil && opt.FixedTemperature == 0 {
 		sys.thermal = md.Thermal
 	}
+	if b := md.Plunger.Breaks(); len(b) > 0 {
+		sys.loadBreaks = b
+	}
 	if md.Storage != nil {
 		sys.storage, sys.bulkC = md.Storage, md.Storage.Capacitance
 	}
@@ -962,9 +965,9 @@ func solverStats(st odeStats, periodsRepeated int) SolverStats {
 		PeriodsRepeated: periodsRepeated}
 	switch {
 	case st.StiffSteps == st.Steps && st.Steps > 0:
-		stats.Method = "RODAS4 (Hairer–Wanner)"
+		stats.Method = rodas5p.name
 	case st.StiffSteps > 0:
-		stats.Method = fmt.Sprintf("Dormand–Prince 5(4), RODAS4 (Hairer–Wanner) where stiff (%d steps)", st.StiffSteps)
+		stats.Method = fmt.Sprintf("Dormand–Prince 5(4), %s where stiff (%d steps)", rodas5p.name, st.StiffSteps)
 	}
 	return stats
 }

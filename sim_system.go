@@ -2,6 +2,7 @@ package coilkick
 
 import (
 	"math"
+	"slices"
 
 	"coilkick/circuit"
 	"coilkick/magnet"
@@ -119,6 +120,12 @@ type system struct {
 	// gen: the step's end is asked for by f, the guards and the outputs.
 	memo     magMemo
 	pieceGen int // counts the changes of piece
+	// loadBreaks: the plunger's passive force is smooth in the gap only
+	// piecewise (its load's breaks between the stops, ascending; nil when
+	// smooth); deriv evaluates it on the load piece [loadLo, loadHi] that
+	// holds at gap loadRef, continued past its ends, as it does the magnet.
+	loadBreaks              []float64
+	loadLo, loadHi, loadRef float64
 }
 
 // magMemo is one magnetic evaluation: the flux linkage (Wb) and gap (m)
@@ -303,7 +310,7 @@ func (s *system) deriv(_ float64, y, dy []float64) {
 		dy[sGap] = v
 		dy[sVel] = 0
 		if s.imposed == 0 {
-			dy[sVel] = s.plunger.Acceleration(x, v, pull)
+			dy[sVel] = s.acceleration(x, v, pull)
 		}
 	} else {
 		dy[sGap], dy[sVel] = 0, 0
@@ -357,6 +364,16 @@ func (s *system) deriv(_ float64, y, dy []float64) {
 	}
 }
 
+// acceleration returns dv/dt (m/s²) of the free plunger at gap x, velocity
+// v and pull (mech.Plunger.Acceleration), its load on the present load
+// piece (enterLoadPiece) when the load is piecewise.
+func (s *system) acceleration(x, v, pull float64) float64 {
+	if s.loadBreaks == nil {
+		return s.plunger.Acceleration(x, v, pull)
+	}
+	return (s.plunger.PassiveForceOn(x, v, s.loadRef) - pull) / s.plunger.Mass
+}
+
 // currentForcer is a magnetic model that evaluates Current and then Force
 // at that current in one call, sharing its gap look-up (magnet.GapPiece,
 // magnet.CurveModel).
@@ -393,10 +410,12 @@ func (s *system) derivMagnet() magnet.Model {
 	return s.mag
 }
 
-// enterPiece puts deriv on the gap piece at y (the integrator calls it at
-// the start of a run, after events and when a step has landed on a piece's
-// end); nothing for a magnet that is smooth in the gap.
+// enterPiece puts deriv on the piece at y (the integrator calls it at the
+// start of a run, after events and when a step has landed on a piece's
+// end): the magnet's gap piece (none for a magnet that is smooth in the
+// gap) and the load's (enterLoadPiece).
 func (s *system) enterPiece(y []float64) {
+	s.enterLoadPiece(y[sGap], y[sVel])
 	if s.pieces == nil {
 		pw, ok := s.mag.(magnet.GapPiecewise)
 		if !ok {
@@ -408,27 +427,71 @@ func (s *system) enterPiece(y []float64) {
 	s.pieceGen++
 }
 
-// crossPiece moves deriv to the gap piece beyond the present one's lower
-// end (guard k = 0) or upper end (k = 1), chosen at that end, not at the
-// gap reached, which may be a rounding error short of it.
+// enterLoadPiece puts deriv on the load piece at gap x (m): at a break,
+// the piece on the side the gap is moving to (v, m/s).
+func (s *system) enterLoadPiece(x, v float64) {
+	b := s.loadBreaks
+	if b == nil {
+		return
+	}
+	k, _ := slices.BinarySearch(b, x) // b[k−1] < x <= b[k]
+	if k < len(b) && b[k] == x && v >= 0 {
+		k++
+	}
+	s.loadLo, s.loadHi = math.Inf(-1), math.Inf(1)
+	if k > 0 {
+		s.loadLo = b[k-1]
+	}
+	if k < len(b) {
+		s.loadHi = b[k]
+	}
+	// A gap inside the piece, and between the stops (the breaks are those
+	// between them), picks it (mech.PiecewiseLoad.ForceOn).
+	s.loadRef = 0.5 * (math.Max(s.loadLo, s.plunger.GapMin) + math.Min(s.loadHi, s.plunger.GapMax))
+}
+
+// pieceSpan returns the present piece's ends (m): the magnet's gap piece
+// intersected with the load's (±Inf where unbounded).
+func (s *system) pieceSpan() (lo, hi float64) {
+	lo, hi = math.Inf(-1), math.Inf(1)
+	if s.piece != nil {
+		lo, hi = s.piece.Span()
+	}
+	if s.loadBreaks != nil {
+		lo, hi = math.Max(lo, s.loadLo), math.Min(hi, s.loadHi)
+	}
+	return lo, hi
+}
+
+// crossPiece moves deriv to the piece beyond the present one's lower end
+// (guard k = 0) or upper end (k = 1): the magnet's gap piece and the load
+// piece whose end that is, each chosen at that end, not at the gap
+// reached, which may be a rounding error short of it.
 func (s *system) crossPiece(k int) {
-	lo, hi := s.piece.Span()
+	lo, hi := s.pieceSpan()
+	end, dir := hi, 1.0
 	if k == 0 {
-		s.piece = s.pieces.GapPieceAt(lo, -1)
-	} else {
-		s.piece = s.pieces.GapPieceAt(hi, 1)
+		end, dir = lo, -1
+	}
+	if s.piece != nil {
+		if mlo, mhi := s.piece.Span(); (k == 0 && mlo == end) || (k == 1 && mhi == end) {
+			s.piece = s.pieces.GapPieceAt(end, dir)
+		}
+	}
+	if s.loadBreaks != nil && ((k == 0 && s.loadLo == end) || (k == 1 && s.loadHi == end)) {
+		s.enterLoadPiece(end, dir)
 	}
 	s.pieceGen++
 }
 
-// pieceGuards writes the guards of the present gap piece into g and
-// returns their number: the gap's distances past the piece's ends, below
-// and above (negative inside), while the plunger moves; none otherwise.
+// pieceGuards writes the guards of the present piece into g and returns
+// their number: the gap's distances past the piece's ends, below and
+// above (negative inside), while the plunger moves; none otherwise.
 func (s *system) pieceGuards(y, g []float64) int {
-	if s.piece == nil || s.mmode != mechFree {
+	if (s.piece == nil && s.loadBreaks == nil) || s.mmode != mechFree {
 		return 0
 	}
-	lo, hi := s.piece.Span()
+	lo, hi := s.pieceSpan()
 	x := y[sGap]
 	g[0], g[1] = -1, -1
 	if !math.IsInf(lo, -1) {

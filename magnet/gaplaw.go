@@ -135,60 +135,41 @@ func (g *GapLaw) IronReluctance() (r float64, ok bool) {
 
 // Inductance returns L(x) (H) at gap x (m), clamped to GapRange.
 func (g *GapLaw) Inductance(x float64) float64 {
-	x = clamp(x, g.xMin, g.xMax)
-	return g.lLeak + 1/(g.a+g.b*x)
+	return g.inductanceAt(clamp(x, g.xMin, g.xMax))
 }
 
 // InductanceSlope returns dL/dx = −b/(a + b·x)² (H/m) at gap x (m); it is
 // taken at the clamped gap outside GapRange.
 func (g *GapLaw) InductanceSlope(x float64) float64 {
-	x = clamp(x, g.xMin, g.xMax)
-	d := g.a + g.b*x
-	return -g.b / (d * d)
+	return g.slopeAt(clamp(x, g.xMin, g.xMax))
 }
 
 // FluxLinkage returns λ = L(x)·i (Wb); with a permanent magnet
 // λ = L_leak·i + (i + i_m)/(a + b·x) (see WithMagnet).
 func (g *GapLaw) FluxLinkage(i, x float64) float64 {
-	if g.iMag == 0 {
-		return g.Inductance(x) * i
-	}
-	return g.Inductance(x)*i + g.iMag*g.gapInductance(x)
+	return g.fluxAt(i, clamp(x, g.xMin, g.xMax))
 }
 
 // Current returns i = λ/L(x) (A); with a permanent magnet
 // i = (λ − i_m·L_g(x))/L(x), L_g = 1/(a + b·x).
 func (g *GapLaw) Current(lam, x float64) float64 {
-	if g.iMag == 0 {
-		return lam / g.Inductance(x)
-	}
-	return (lam - g.iMag*g.gapInductance(x)) / g.Inductance(x)
+	return g.currentAt(lam, clamp(x, g.xMin, g.xMax))
 }
 
 // Partials returns ∂i/∂λ = 1/L (1/H) and ∂i/∂x = −λ·L'/L² (A/m); ∂i/∂x is 0
 // outside GapRange, where L is held constant. With a permanent magnet
 // (λ_g = λ − i_m·L_g, and dL_g/dx = dL/dx) ∂i/∂x = −(i_m·L + λ_g)·L'/L².
 func (g *GapLaw) Partials(lam, x float64) (diDlam, diDx float64) {
-	l := g.Inductance(x)
-	diDlam = 1 / l
 	if x < g.xMin || x > g.xMax {
-		return diDlam, 0
+		return 1 / g.Inductance(x), 0
 	}
-	if g.iMag == 0 {
-		return diDlam, -lam * g.InductanceSlope(x) / (l * l)
-	}
-	lg := lam - g.iMag*g.gapInductance(x)
-	return diDlam, -(g.iMag*l + lg) * g.InductanceSlope(x) / (l * l)
+	return g.partialsAt(lam, x)
 }
 
 // CoEnergy returns W' = ½·L(x)·i² (J); with a permanent magnet
 // W' = ½·L_leak·i² + ½·(i + i_m)²/(a + b·x) (see WithMagnet).
 func (g *GapLaw) CoEnergy(i, x float64) float64 {
-	if g.iMag == 0 {
-		return 0.5 * g.Inductance(x) * i * i
-	}
-	im := i + g.iMag
-	return 0.5*g.lLeak*i*i + 0.5*g.gapInductance(x)*im*im
+	return g.coEnergyAt(i, clamp(x, g.xMin, g.xMax))
 }
 
 // Force returns F = −½·i²·dL/dx = ½·i²·b/(a + b·x)² (N), the co-energy
@@ -196,15 +177,58 @@ func (g *GapLaw) CoEnergy(i, x float64) float64 {
 // F = ½·(i + i_m)²·b/(a + b·x)², which at i = 0 is Maxwell's pull
 // Φ_pm²/(2·µ0·A) on the magnet's own gap flux Φ_pm = F_m/ℜ_total(x).
 func (g *GapLaw) Force(i, x float64) float64 {
-	im := i + g.iMag
-	return -0.5 * im * im * g.InductanceSlope(x)
+	return g.forceAt(i, clamp(x, g.xMin, g.xMax))
 }
 
-// gapInductance returns L_g(x) = 1/(a + b·x) (H), the inductance through
-// the gap (L minus the leakage), at the clamped gap.
-func (g *GapLaw) gapInductance(x float64) float64 {
-	x = clamp(x, g.xMin, g.xMax)
-	return 1 / (g.a + g.b*x)
+// The law's formulas at any gap x (m), not clamped: the methods above
+// clamp first; the gap piece (gapLawPiece) continues them.
+
+func (g *GapLaw) inductanceAt(x float64) float64 { return g.lLeak + 1/(g.a+g.b*x) }
+
+func (g *GapLaw) slopeAt(x float64) float64 {
+	d := g.a + g.b*x
+	return -g.b / (d * d)
+}
+
+// gapInductanceAt returns L_g(x) = 1/(a + b·x) (H), the inductance through
+// the gap (L minus the leakage).
+func (g *GapLaw) gapInductanceAt(x float64) float64 { return 1 / (g.a + g.b*x) }
+
+func (g *GapLaw) fluxAt(i, x float64) float64 {
+	if g.iMag == 0 {
+		return g.inductanceAt(x) * i
+	}
+	return g.inductanceAt(x)*i + g.iMag*g.gapInductanceAt(x)
+}
+
+func (g *GapLaw) currentAt(lam, x float64) float64 {
+	if g.iMag == 0 {
+		return lam / g.inductanceAt(x)
+	}
+	return (lam - g.iMag*g.gapInductanceAt(x)) / g.inductanceAt(x)
+}
+
+func (g *GapLaw) partialsAt(lam, x float64) (diDlam, diDx float64) {
+	l := g.inductanceAt(x)
+	diDlam = 1 / l
+	if g.iMag == 0 {
+		return diDlam, -lam * g.slopeAt(x) / (l * l)
+	}
+	lg := lam - g.iMag*g.gapInductanceAt(x)
+	return diDlam, -(g.iMag*l + lg) * g.slopeAt(x) / (l * l)
+}
+
+func (g *GapLaw) coEnergyAt(i, x float64) float64 {
+	if g.iMag == 0 {
+		return 0.5 * g.inductanceAt(x) * i * i
+	}
+	im := i + g.iMag
+	return 0.5*g.lLeak*i*i + 0.5*g.gapInductanceAt(x)*im*im
+}
+
+func (g *GapLaw) forceAt(i, x float64) float64 {
+	im := i + g.iMag
+	return -0.5 * im * im * g.slopeAt(x)
 }
 
 // WithMagnet returns a copy of the gap law with a permanent magnet of MMF
@@ -265,3 +289,58 @@ func (g *GapLaw) MMFForHoldingForce(force, x float64) (float64, error) {
 
 // GapRange returns the seated and rest gaps (m).
 func (g *GapLaw) GapRange() (min, max float64) { return g.xMin, g.xMax }
+
+// GapPieceAt returns the gap law's one piece (GapPiecewise): the law
+// itself, its formulas continued beyond GapRange instead of clamped. The
+// law is smooth in the gap, but clamped it has a kink at each end of its
+// range, that is at the plunger's stops; an integrator's stages that
+// overshoot a stop within a step that is then cut back to the impact
+// evaluate the continuation instead, so that the step stays smooth.
+func (g *GapLaw) GapPieceAt(x, v float64) GapPiece { return (*gapLawPiece)(g) }
+
+// gapLawPiece is a GapLaw continued beyond its GapRange (GapPieceAt):
+// inside the range, the law bit for bit.
+type gapLawPiece GapLaw
+
+func (p *gapLawPiece) law() *GapLaw { return (*GapLaw)(p) }
+
+// Span returns the whole line: the piece is the only one.
+func (p *gapLawPiece) Span() (lo, hi float64) { return math.Inf(-1), math.Inf(1) }
+
+// String describes the piece for messages.
+func (p *gapLawPiece) String() string { return p.law().String() + " continued" }
+
+// FluxLinkage is GapLaw.FluxLinkage, not clamped (Wb).
+func (p *gapLawPiece) FluxLinkage(i, x float64) float64 { return p.law().fluxAt(i, x) }
+
+// Current is GapLaw.Current, not clamped (A).
+func (p *gapLawPiece) Current(lam, x float64) float64 { return p.law().currentAt(lam, x) }
+
+// Partials is GapLaw.Partials, not clamped (1/H, A/m).
+func (p *gapLawPiece) Partials(lam, x float64) (diDlam, diDx float64) {
+	return p.law().partialsAt(lam, x)
+}
+
+// CoEnergy is GapLaw.CoEnergy, not clamped (J).
+func (p *gapLawPiece) CoEnergy(i, x float64) float64 { return p.law().coEnergyAt(i, x) }
+
+// Force is GapLaw.Force, not clamped (N).
+func (p *gapLawPiece) Force(i, x float64) float64 { return p.law().forceAt(i, x) }
+
+// CurrentForce returns Current(lam, x) and Force at that current (A, N).
+func (p *gapLawPiece) CurrentForce(lam, x float64) (i, f float64) {
+	g := p.law()
+	i = g.currentAt(lam, x)
+	return i, g.forceAt(i, x)
+}
+
+// CurrentForceNear is CurrentForce; the law needs no search hint.
+func (p *gapLawPiece) CurrentForceNear(lam, x float64, _ *int) (i, f float64) {
+	return p.CurrentForce(lam, x)
+}
+
+// GapRange returns the law's GapRange (m).
+func (p *gapLawPiece) GapRange() (min, max float64) { return p.xMin, p.xMax }
+
+// HasPermanentMagnet reports the law's (Magnetized).
+func (p *gapLawPiece) HasPermanentMagnet() bool { return p.iMag != 0 }

@@ -186,3 +186,58 @@ func checkPartials(t *testing.T, m Model, lam, x float64) {
 		t.Errorf("%v.Partials(%g, %g) ∂i/∂x = %g, want %g", m, lam, x, dx, numX)
 	}
 }
+
+// TestGapLawPieceContinues: the gap law's piece (GapPieceAt) is the law
+// bit for bit inside GapRange and, beyond it, the law's own formula
+// L(x) = L_leak + 1/(a + b·x) continued instead of clamped, as smooth as
+// the law: its force is still −∂W'/∂x and its flux ∂W'/∂i (co-energy,
+// Woodson & Melcher, Electromechanical Dynamics, 3.1), and Current still
+// inverts FluxLinkage. With and without a permanent magnet.
+func TestGapLawPieceContinues(t *testing.T) {
+	t.Parallel()
+	plain := refGapLaw(t)
+	pm, err := plain.WithMagnet(-60)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, g := range []*GapLaw{plain, pm} {
+		p := g.GapPieceAt(0.5e-3, 1)
+		if lo, hi := p.Span(); !math.IsInf(lo, -1) || !math.IsInf(hi, 1) {
+			t.Errorf("%v: span %g..%g, want the whole line", g, lo, hi)
+		}
+		for _, x := range []float64{refXMin, 0.5e-3, refXMax} {
+			for _, i := range []float64{0.01, 0.3, -0.2} {
+				lam := g.FluxLinkage(i, x)
+				d1, d2 := g.Partials(lam, x)
+				p1, p2 := p.Partials(lam, x)
+				if p.FluxLinkage(i, x) != lam || p.Current(lam, x) != g.Current(lam, x) || p.CoEnergy(i, x) != g.CoEnergy(i, x) ||
+					p.Force(i, x) != g.Force(i, x) || p1 != d1 || p2 != d2 {
+					t.Errorf("%v: the piece differs from the law at %g m, %g A", g, x, i)
+				}
+			}
+		}
+		a, b := g.Coefficients()
+		for _, x := range []float64{0.05e-3, 3.3e-3, 4e-3} {
+			const i = 0.3
+			if got, want := p.FluxLinkage(i, x)-p.FluxLinkage(0, x), (g.Leakage()+1/(a+b*x))*i; math.Abs(got-want) > 1e-12*want {
+				t.Errorf("%v: flux of 0.3 A at %g m beyond the range %g, want L(x)·i = %g", g, x, got, want)
+			}
+			const h = 1e-9
+			if got, want := p.Force(i, x), -(p.CoEnergy(i, x+h)-p.CoEnergy(i, x-h))/(2*h); math.Abs(got-want) > 1e-6*math.Abs(want) {
+				t.Errorf("%v: force %g at %g m, −∂W'/∂x %g", g, got, x, want)
+			}
+			if got, want := p.FluxLinkage(i, x), (p.CoEnergy(i+1e-6, x)-p.CoEnergy(i-1e-6, x))/2e-6; math.Abs(got-want) > 1e-6*math.Abs(want) {
+				t.Errorf("%v: flux %g at %g m, ∂W'/∂i %g", g, got, x, want)
+			}
+			if got := p.Current(p.FluxLinkage(i, x), x); math.Abs(got-i) > 1e-12 {
+				t.Errorf("%v: Current(FluxLinkage(0.3 A)) = %g at %g m", g, got, x)
+			}
+			if ci, cf := p.CurrentForce(p.FluxLinkage(i, x), x); ci != p.Current(p.FluxLinkage(i, x), x) || cf != p.Force(ci, x) {
+				t.Errorf("%v: CurrentForce differs from Current and Force at %g m", g, x)
+			}
+		}
+		if got := g.FluxLinkage(0.3, 4e-3); got != g.FluxLinkage(0.3, refXMax) {
+			t.Errorf("%v: the law itself is no longer clamped beyond its range", g)
+		}
+	}
+}
