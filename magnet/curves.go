@@ -100,6 +100,10 @@ type CurveModel struct {
 	// else piecewise linear through the mean flux linkages.
 	smooth                         bool
 	splineSub, splineCp, splineDen []float64
+	// breaks are the curves' knots strictly inside the range, ascending:
+	// the ends of the model's gap pieces (pieces, GapPieceAt).
+	breaks []float64
+	pieces []curvePiece
 }
 
 // NewCurveModel builds the model from the curves (ascending currents), the
@@ -145,6 +149,7 @@ func NewCurveModel(curves []ForceCurve, lOpen, xMin, xMax float64) (*CurveModel,
 	if err := m.checkFlux(); err != nil {
 		return nil, err
 	}
+	m.buildPieces()
 	return m, nil
 }
 
@@ -242,9 +247,21 @@ func endSlope(h0, h1, d0, d1 float64) float64 {
 // eval returns the curve's force F (N) at x and its integral P (J) from the
 // first knot to x; x is within the knots.
 func (g *gapCurve) eval(x float64) (f, p float64) {
-	// The first segment whose end is at or above x (sort.Search's
-	// bisection, without its closure: this runs per curve at every
-	// evaluation).
+	s := &g.segs[g.segAt(x)]
+	return s.at(math.Min(math.Max(x-s.x0, 0), s.h))
+}
+
+// evalOn is eval on the segment at gap ref, its cubic continued to any x
+// (a gap piece; CurveModel.GapPieceAt).
+func (g *gapCurve) evalOn(x, ref float64) (f, p float64) {
+	s := &g.segs[g.segAt(ref)]
+	return s.at(x - s.x0)
+}
+
+// segAt returns the first segment whose end is at or above x, the last
+// one above them all (sort.Search's bisection, without its closure: this
+// runs per curve at every evaluation).
+func (g *gapCurve) segAt(x float64) int {
 	lo, hi := 0, len(g.segs)
 	for lo < hi {
 		mid := int(uint(lo+hi) >> 1)
@@ -254,12 +271,12 @@ func (g *gapCurve) eval(x float64) (f, p float64) {
 			lo = mid + 1
 		}
 	}
-	k := lo
-	if k == len(g.segs) {
-		k--
-	}
-	s := &g.segs[k]
-	t := math.Min(math.Max(x-s.x0, 0), s.h)
+	return min(lo, len(g.segs)-1)
+}
+
+// at returns the segment's force (N) and its integral from the first knot
+// (J) at offset t (m) from its start.
+func (s *curveSeg) at(t float64) (f, p float64) {
 	f = s.c0 + t*(s.c1+t*(s.c2+t*s.c3))
 	p = s.p + t*(s.c0+t*(s.c1/2+t*(s.c2/3+t*s.c3/4)))
 	return f, p
@@ -300,12 +317,23 @@ func (m *CurveModel) node(k int) float64 {
 
 // profileAt returns the profile at gap x (clamped to the range).
 func (m *CurveModel) profileAt(x float64) profile {
-	x = clamp(x, m.xMin, m.xMax)
+	return m.profileOn(clamp(x, m.xMin, m.xMax), math.NaN())
+}
+
+// profileOn returns the profile at gap x: each curve on its own segment
+// at x when ref is NaN (x within the range), else on its segment at gap
+// ref, continued to x (a gap piece, curvePiece).
+func (m *CurveModel) profileOn(x, ref float64) profile {
 	n := len(m.curves)
 	p := profile{n: n}
 	for k := range m.curves {
 		c := &m.curves[k]
-		f, q := c.eval(x)
+		var f, q float64
+		if math.IsNaN(ref) {
+			f, q = c.eval(x)
+		} else {
+			f, q = c.evalOn(x, ref)
+		}
 		i := c.i
 		// W'(i_k, x) = ½·L_o·i_k² + ∫_x^x_o F_k ds; ∂/∂x = −F_k(x)
 		p.y[k+1] = dual{0.5*m.lo*i*i + c.top - q, -f}
