@@ -71,6 +71,16 @@ func FuzzReadForceCurves(f *testing.F) {
 				}
 				prev = l
 			}
+			// The gap piece at x, also a little past its ends (an
+			// integrator's overshooting stage), stays finite.
+			p := m.GapPieceAt(x, 1)
+			lo, hi := p.Span()
+			for _, xp := range []float64{x, math.Max(lo, x-1e-4) - 1e-6, math.Min(hi, x+1e-4) + 1e-6} {
+				i, f := p.CurrentForce(m.FluxLinkage(0.25, x), xp)
+				if math.IsNaN(i) || math.IsInf(i, 0) || math.IsNaN(f) || math.IsInf(f, 0) {
+					t.Fatalf("%v: the piece %g..%g at %g m gives %g A, %g N", m, lo, hi, xp, i, f)
+				}
+			}
 		}
 	})
 }
