@@ -304,48 +304,43 @@ func BenchmarkBuildGeometryScenario(b *testing.B) {
 	}
 }
 
-// TestDosingDemoStepBudget: the geometry demo's flux-linkage table has a
-// force whose gap slope jumps at each of its 60 gap nodes, and its orifice
-// load's slope jumps where the seal starts to lift; the run lands on each
-// of those it crosses (system.pieceGuards) instead of stepping over the
-// kink. Its switch node (200 pF through the 400 Ω eddy turn, 80 ns) makes
-// the release stiff: Rodas5P there, its error estimate filtered. Steps
-// are machine-independent. Measured: 311 accepted, 42 rejected, 3 009
-// evaluations; with RODAS4 in place of Rodas5P 587, 89 and 5 533; without
-// the filter 336 and 94; without landing on the load's break 333 and 88.
-// The budgets leave about 10 % for changes elsewhere in the run.
-func TestDosingDemoStepBudget(t *testing.T) {
+// TestDemoStepBudgets: steps are machine-independent. The budgets leave
+// about 10 % above the measured counts for changes elsewhere in the runs.
+//   - The geometry demo's flux-linkage table has a force whose gap slope
+//     jumps at each of its 60 gap nodes, and its orifice load's slope jumps
+//     where the seal starts to lift; the run lands on each of those it
+//     crosses (system.pieceGuards) instead of stepping over the kink. Its
+//     switch node (200 pF through the 400 Ω eddy turn, 80 ns) makes the
+//     release stiff: Rodas5P there, its error estimate filtered. Measured:
+//     311 accepted, 42 rejected, 3 009 evaluations; with RODAS4 in place of
+//     Rodas5P 587, 89 and 5 533; without the filter 331, 77 and 3 469;
+//     without landing on the load's break 329, 78 and 3 459.
+//   - The force-curve demo's curves are piecewise cubics in the gap,
+//     clamped at the stops; the run lands on their knots and continues them
+//     past the stops (magnet.CurveModel.GapPieceAt). Measured: 189 steps,
+//     30 rejected, 1 359 evaluations; 188, 61 and 1 517 stepping over the
+//     knots.
+func TestDemoStepBudgets(t *testing.T) {
 	t.Parallel()
-	md, err := LoadModel("scenarios/dosing-valve-geometry.yaml")
-	if err != nil {
-		t.Fatal(err)
-	}
-	res, err := Simulate(md, &Options{NoTrace: true})
-	if err != nil {
-		t.Fatal(err)
-	}
-	if st := res.Stats; st.Steps > 345 || st.Rejected > 60 || st.Evaluations > 3300 {
-		t.Errorf("geometry demo: %d steps, %d rejected, %d evaluations; want at most 345, 60 and 3 300", st.Steps, st.Rejected, st.Evaluations)
-	}
-}
-
-// TestPilotCurvesStepBudget: the force-curve demo's curves are piecewise
-// cubics in the gap, clamped at the stops; the run lands on their knots
-// and continues them past the stops (magnet.CurveModel.GapPieceAt).
-// Measured: 189 steps, 30 rejected, 1 359 evaluations; 188, 61 and 1 517
-// stepping over the knots.
-func TestPilotCurvesStepBudget(t *testing.T) {
-	t.Parallel()
-	md, err := LoadModel("scenarios/pilot-valve-curves.yaml")
-	if err != nil {
-		t.Fatal(err)
-	}
-	res, err := Simulate(md, &Options{NoTrace: true})
-	if err != nil {
-		t.Fatal(err)
-	}
-	if st := res.Stats; st.Steps > 210 || st.Rejected > 40 || st.Evaluations > 1500 {
-		t.Errorf("force-curve demo: %d steps, %d rejected, %d evaluations; want at most 210, 40 and 1 500", st.Steps, st.Rejected, st.Evaluations)
+	for _, c := range []struct {
+		file                   string
+		steps, rejected, evals int
+	}{
+		{"scenarios/dosing-valve-geometry.yaml", 345, 60, 3300},
+		{"scenarios/pilot-valve-curves.yaml", 210, 40, 1500},
+	} {
+		md, err := LoadModel(c.file)
+		if err != nil {
+			t.Fatal(err)
+		}
+		res, err := Simulate(md, &Options{NoTrace: true})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if st := res.Stats; st.Steps > c.steps || st.Rejected > c.rejected || st.Evaluations > c.evals {
+			t.Errorf("%s: %d steps, %d rejected, %d evaluations; want at most %d, %d and %d",
+				c.file, st.Steps, st.Rejected, st.Evaluations, c.steps, c.rejected, c.evals)
+		}
 	}
 }
 

@@ -47,17 +47,9 @@ type OrificeLoad struct {
 // OrificeArea returns the area (m²) of a circular orifice of diameter d (m).
 func OrificeArea(d float64) float64 { return math.Pi * d * d / 4 }
 
-// Force returns the pressure force (N, along +x) at gap x (m).
-func (o OrificeLoad) Force(x float64) float64 {
-	lift := o.GapMax - x
-	switch {
-	case lift <= 0:
-		return o.Pressure * o.Area
-	case lift >= o.Travel:
-		return 0
-	}
-	return o.Pressure * o.Area * (1 - lift/o.Travel)
-}
+// Force returns the pressure force (N, along +x) at gap x (m): the piece
+// that holds at x (ForceOn).
+func (o OrificeLoad) Force(x float64) float64 { return o.ForceOn(x, x) }
 
 // Breaks returns the gaps (m) where the force's slope jumps: where the
 // seal starts to lift and where it is fully open (PiecewiseLoad).
