@@ -19,15 +19,7 @@ func latchModel(t *testing.T, magnetKey string) *Model {
 	if err != nil {
 		t.Fatal(err)
 	}
-	s, err := Parse([]byte(strings.Replace(string(src), "    holding force: 6 N\n", "    "+magnetKey+"\n", 1)), "latch.yaml")
-	if err != nil {
-		t.Fatalf("Parse: %v", err)
-	}
-	md, err := Build(s)
-	if err != nil {
-		t.Fatalf("Build: %v", err)
-	}
-	return md
+	return modelFromText(t, strings.Replace(string(src), "    holding force: 6 N\n", "    "+magnetKey+"\n", 1), "latch.yaml")
 }
 
 // TestLatchingRunStaysSeated: a pulse pulls the plunger in and, the

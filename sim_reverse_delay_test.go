@@ -20,15 +20,7 @@ func bridgeModel(t *testing.T, extra string) *Model {
 	if extra != "" && text == string(src) {
 		t.Fatal("door-latch-bridge.yaml no longer has its reverse pulse line")
 	}
-	s, err := Parse([]byte(text), "door-latch-bridge.yaml")
-	if err != nil {
-		t.Fatalf("Parse: %v", err)
-	}
-	md, err := Build(s)
-	if err != nil {
-		t.Fatalf("Build: %v", err)
-	}
-	return md
+	return modelFromText(t, text, "door-latch-bridge.yaml")
 }
 
 // eventTime returns the time of the first event whose text starts with

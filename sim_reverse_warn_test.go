@@ -23,14 +23,7 @@ func releaseDemo(t *testing.T, edits ...string) (*Result, Assessment) {
 		}
 		text = re.ReplaceAllString(text, edits[k+1])
 	}
-	s, err := Parse([]byte(text), "latching-valve-9v-release.yaml")
-	if err != nil {
-		t.Fatalf("Parse: %v", err)
-	}
-	md, err := Build(s)
-	if err != nil {
-		t.Fatalf("Build: %v", err)
-	}
+	md := modelFromText(t, text, "latching-valve-9v-release.yaml")
 	res, err := Simulate(md, nil)
 	if err != nil {
 		t.Fatal(err)

@@ -371,7 +371,7 @@ func (s *system) acceleration(x, v, pull float64) float64 {
 	if s.loadBreaks == nil {
 		return s.plunger.Acceleration(x, v, pull)
 	}
-	return (s.plunger.PassiveForceOn(x, v, s.loadRef) - pull) / s.plunger.Mass
+	return s.plunger.AccelerationOn(x, v, pull, s.loadRef)
 }
 
 // currentForcer is a magnetic model that evaluates Current and then Force

@@ -170,13 +170,7 @@ func (p *Plunger) Validate() error {
 
 // PassiveForce returns the force on the plunger other than the magnet's
 // (N, along +x) at gap x (m) and velocity v (m/s): spring + load − c·v.
-func (p *Plunger) PassiveForce(x, v float64) float64 {
-	f := p.Spring.Force(x, p.GapMax) - p.Damping*v
-	if p.Load != nil {
-		f += p.Load.Force(x)
-	}
-	return f
-}
+func (p *Plunger) PassiveForce(x, v float64) float64 { return p.PassiveForceOn(x, v, x) }
 
 // Breaks returns the gaps (m) strictly between the stops where the passive
 // force's slope jumps (its load's breaks), ascending; nil when it is smooth
@@ -207,8 +201,12 @@ func (p *Plunger) PassiveForceOn(x, v, ref float64) float64 {
 // Acceleration returns dv/dt (m/s²) for a free plunger at gap x, velocity v
 // and magnetic pull pull (N, toward the smaller gap): Newton's second law,
 // m·dv/dt = F_passive − F_pull.
-func (p *Plunger) Acceleration(x, v, pull float64) float64 {
-	return (p.PassiveForce(x, v) - pull) / p.Mass
+func (p *Plunger) Acceleration(x, v, pull float64) float64 { return p.AccelerationOn(x, v, pull, x) }
+
+// AccelerationOn is Acceleration with the load on its piece holding at gap
+// ref (PassiveForceOn).
+func (p *Plunger) AccelerationOn(x, v, pull, ref float64) float64 {
+	return (p.PassiveForceOn(x, v, ref) - pull) / p.Mass
 }
 
 // Impact returns the velocity after hitting a stop at velocity v (m/s) and

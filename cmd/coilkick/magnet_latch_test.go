@@ -46,17 +46,7 @@ func TestMagnetLatchingHoldingForce(t *testing.T) {
 			t.Errorf("magnet output lacks %q:\n%s", want, out)
 		}
 	}
-	code, out, errs = runCLI("magnet", path, "--json", "-")
-	if code != exitOK {
-		t.Fatalf("magnet --json: exit %d: %s", code, errs)
-	}
-	var doc struct {
-		Magnet map[string]any `json:"magnet"`
-	}
-	if err := json.Unmarshal([]byte(out), &doc); err != nil {
-		t.Fatal(err)
-	}
-	m := doc.Magnet
+	m := magnetJSON(t, path)
 	seat, _ := m["holding_force_seated_gap_N"].(float64)
 	rest, _ := m["holding_force_rest_gap_N"].(float64)
 	if math.Abs(seat-6) > 1e-9*6 {
@@ -138,21 +128,11 @@ func TestMagnetLatchingTable(t *testing.T) {
 	if err := os.WriteFile(path, []byte(table), 0o600); err != nil {
 		t.Fatal(err)
 	}
-	code, out, errs := runCLI("magnet", path, "--json", "-")
-	if code != exitOK {
-		t.Fatalf("magnet --json: exit %d: %s", code, errs)
-	}
-	var doc struct {
-		Magnet map[string]any `json:"magnet"`
-	}
-	if err := json.Unmarshal([]byte(out), &doc); err != nil {
-		t.Fatal(err)
-	}
+	m := magnetJSON(t, path)
 	tm, err := coilkick.LoadModel(path)
 	if err != nil {
 		t.Fatal(err)
 	}
-	m := doc.Magnet
 	for key, x := range map[string]float64{"holding_force_seated_gap_N": 0.05e-3, "holding_force_rest_gap_N": 1e-3} {
 		if got, _ := m[key].(float64); math.Abs(got-tm.Magnet.Force(0, x)) > 1e-9*math.Abs(got) || got == 0 {
 			t.Errorf("%s = %v, want the table's %g N", key, m[key], tm.Magnet.Force(0, x))
@@ -165,4 +145,20 @@ func TestMagnetLatchingTable(t *testing.T) {
 	if code, out, errs := runCLI("run", path); code != exitOK || !strings.Contains(out, "the permanent magnet holds it seated") {
 		t.Errorf("run: exit %d, %s\n%s", code, errs, out)
 	}
+}
+
+// magnetJSON returns the "magnet" object of `coilkick magnet path --json -`.
+func magnetJSON(t *testing.T, path string) map[string]any {
+	t.Helper()
+	code, out, errs := runCLI("magnet", path, "--json", "-")
+	if code != exitOK {
+		t.Fatalf("magnet --json: exit %d: %s", code, errs)
+	}
+	var doc struct {
+		Magnet map[string]any `json:"magnet"`
+	}
+	if err := json.Unmarshal([]byte(out), &doc); err != nil {
+		t.Fatal(err)
+	}
+	return doc.Magnet
 }
