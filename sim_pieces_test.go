@@ -11,7 +11,10 @@ import (
 // right-hand side evaluates the load of the present piece continued past
 // its end — the straight line of the lifting seal below 0.9 mm, zero
 // above it from the open side — and crossing the end moves to the next
-// piece, chosen by the side crossed.
+// piece, chosen by the side crossed. Expected values: Newton's second law
+// m·dv/dt = spring + load − c·v − pull, with the seal's load p·A·(1 −
+// lift/travel) (the OrificeLoad model: F = p·A on the seat, the linear
+// fall over the travel common practice, no source).
 func TestLoadBreaksArePieces(t *testing.T) {
 	t.Parallel()
 	md, err := LoadModel("scenarios/irrigation-valve.yaml")
